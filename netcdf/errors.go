@@ -51,15 +51,15 @@ func strerror(code int) string {
 
 // Sentinel errors for use with errors.Is.
 var (
-	ErrNotVar      = &Error{Code: int(C.NC_ENOTVAR)}   // variable not found
-	ErrNotAttr     = &Error{Code: int(C.NC_ENOTATT)}   // attribute not found
-	ErrNotNetCDF   = &Error{Code: int(C.NC_ENOTNC)}    // not a netCDF file (or truncated)
-	ErrBadDim      = &Error{Code: int(C.NC_EBADDIM)}   // dimension not found
-	ErrBadType     = &Error{Code: int(C.NC_EBADTYPE)}  // wrong type for the operation
-	ErrRange       = &Error{Code: int(C.NC_ERANGE)}    // value out of range for the type
-	ErrEdge        = &Error{Code: int(C.NC_EEDGE)}     // start+count beyond the variable's shape
-	ErrHDF5        = &Error{Code: int(C.NC_EHDFERR)}   // error inside HDF5 (damaged NetCDF-4 file)
-	ErrExists      = &Error{Code: int(C.NC_EEXIST)}    // file exists and may not be overwritten
+	ErrNotVar      = &Error{Code: int(C.NC_ENOTVAR)}    // variable not found
+	ErrNotAttr     = &Error{Code: int(C.NC_ENOTATT)}    // attribute not found
+	ErrNotNetCDF   = &Error{Code: int(C.NC_ENOTNC)}     // not a netCDF file (or truncated)
+	ErrBadDim      = &Error{Code: int(C.NC_EBADDIM)}    // dimension not found
+	ErrBadType     = &Error{Code: int(C.NC_EBADTYPE)}   // wrong type for the operation
+	ErrRange       = &Error{Code: int(C.NC_ERANGE)}     // value out of range for the type
+	ErrEdge        = &Error{Code: int(C.NC_EEDGE)}      // start+count beyond the variable's shape
+	ErrHDF5        = &Error{Code: int(C.NC_EHDFERR)}    // error inside HDF5 (damaged NetCDF-4 file)
+	ErrExists      = &Error{Code: int(C.NC_EEXIST)}     // file exists and may not be overwritten
 	ErrNameInUse   = &Error{Code: int(C.NC_ENAMEINUSE)} // dimension/variable/attribute name already defined
 	ErrNotInDefine = &Error{Code: int(C.NC_ENOTINDEFINE)}
 	ErrInDefine    = &Error{Code: int(C.NC_EINDEFINE)}

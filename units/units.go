@@ -25,14 +25,14 @@ type Kind int
 
 // The quantities lidscope reads.
 const (
-	Temperature  Kind = iota + 1 // SI unit K
-	Pressure                     // SI unit Pa
-	Fraction                     // dimensionless, 0–1
-	Omega                        // vertical pressure velocity, Pa s-1
-	Flux                         // radiative flux, W m-2
-	Length                       // m
-	MixingRatio                  // specific humidity or mixing ratio, kg/kg
-	Precipitation                // precipitation rate, kg m-2 s-1 (= mm s-1 of water)
+	Temperature   Kind = iota + 1 // SI unit K
+	Pressure                      // SI unit Pa
+	Fraction                      // dimensionless, 0–1
+	Omega                         // vertical pressure velocity, Pa s-1
+	Flux                          // radiative flux, W m-2
+	Length                        // m
+	MixingRatio                   // specific humidity or mixing ratio, kg/kg
+	Precipitation                 // precipitation rate, kg m-2 s-1 (= mm s-1 of water)
 )
 
 // String names the kind.
