@@ -143,7 +143,14 @@ func normalise(u string) string {
 	if i := strings.Index(u, "/"); i >= 0 && !strings.Contains(u[i+1:], "/") {
 		den := strings.TrimSpace(u[i+1:])
 		if den != "" && !strings.ContainsAny(den, " -") {
-			u = strings.TrimSpace(u[:i]) + " " + den + "-1"
+			// "m2" → "m-2", "s" → "s-1"
+			j := strings.IndexAny(den, "0123456789")
+			if j > 0 {
+				den = den[:j] + "-" + den[j:]
+			} else {
+				den += "-1"
+			}
+			u = strings.TrimSpace(u[:i]) + " " + den
 		}
 	}
 	u = strings.Join(strings.Fields(u), " ")
