@@ -1,0 +1,130 @@
+package accumulate
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"lidscope/regimes"
+)
+
+func layout() Layout {
+	l := Layout{NLat: 3, NLon: 4, Quantities: []string{"eis", "cloud"},
+		Regions: []Region{{Name: "box", South: -10, North: 10, West: 170, East: -170}}}
+	l.Lat = []float64{-20, 0, 20}
+	l.Lon = []float64{-175, -90, 0, 175}
+	for j := 0; j < 3; j++ {
+		for i := 0; i < 4; i++ {
+			l.Area = append(l.Area, 1+float64(j))
+			w := 0.0
+			if j == 1 {
+				w = 2
+			}
+			l.BandWeight = append(l.BandWeight, w)
+		}
+	}
+	return l
+}
+
+func randomStep(rng *rand.Rand, t int) *Step {
+	n := 12
+	s := &Step{Label: "step", Year: 2000 + t/12, Month: t%12 + 1, TropMean: 300, Rel: make([]float32, n), Regime: make([]regimes.Regime, n)}
+	s.Values = [][]float32{make([]float32, n), make([]float32, n)}
+	c := regimes.Classifier{Delta: 0.5}
+	for i := 0; i < n; i++ {
+		s.Rel[i] = float32(rng.NormFloat64())
+		if i == 5 && t%3 == 0 {
+			s.Rel[i] = float32(math.NaN())
+		}
+		s.Regime[i] = c.Classify(float64(s.Rel[i]))
+		s.Values[0][i] = float32(5 + rng.NormFloat64())
+		s.Values[1][i] = float32(rng.Float64())
+	}
+	return s
+}
+
+func TestMergeEqualsSinglePass(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	steps := make([]*Step, 50)
+	for i := range steps {
+		steps[i] = randomStep(rng, i)
+	}
+	whole, _ := New(layout())
+	for _, s := range steps {
+		whole.AddCells(s, 0, 12)
+		whole.AddStep(s)
+	}
+	a, _ := New(layout())
+	b, _ := New(layout())
+	for i, s := range steps {
+		x := a
+		if i >= 17 {
+			x = b
+		}
+		x.AddCells(s, 0, 7) // two ranges, as parallel workers would
+		x.AddCells(s, 7, 12)
+		x.AddStep(s)
+	}
+	if err := a.Merge(b); err != nil {
+		t.Fatal(err)
+	}
+	close := func(x, y float64) bool { return x == y || math.Abs(x-y) <= 1e-12*math.Max(1, math.Abs(y)) }
+	for i := 0; i < 12; i++ {
+		if a.Cells.Valid[i] != whole.Cells.Valid[i] || a.Cells.Tracks[i].Crossings != whole.Cells.Tracks[i].Crossings {
+			t.Fatalf("cell %d: counts differ", i)
+		}
+		for q := 0; q < 2; q++ {
+			for r := 0; r < nreg; r++ {
+				x, y := a.Cells.Values[q][r][i], whole.Cells.Values[q][r][i]
+				if x.N != y.N || !close(x.Mean, y.Mean) || !close(x.M2, y.M2) {
+					t.Fatalf("cell %d q %d r %d: %+v vs %+v", i, q, r, x, y)
+				}
+			}
+		}
+	}
+	if len(a.Series) != 50 || a.Cells.Steps != 50 {
+		t.Fatalf("series %d steps %d", len(a.Series), a.Cells.Steps)
+	}
+	x, y := a.Regions[0].Values[0][regimes.Subsidence], whole.Regions[0].Values[0][regimes.Subsidence]
+	if !close(x.Mean, y.Mean) || !close(x.M2, y.M2) || x.N == 0 {
+		t.Fatalf("region: %+v vs %+v", x, y)
+	}
+	bad := layout()
+	bad.NLon = 5
+	if err := a.Merge(&Acc{L: bad}); err == nil {
+		t.Error("merging different grids succeeded")
+	}
+}
+
+// TestBandSeriesByHand: one step with two band cells of weight 2 — one
+// convective, one subsidence — gives area fractions ½, ½.
+func TestBandSeriesByHand(t *testing.T) {
+	a, _ := New(layout())
+	s := &Step{Rel: make([]float32, 12), Regime: make([]regimes.Regime, 12), Values: [][]float32{make([]float32, 12), make([]float32, 12)}}
+	for i := range s.Regime {
+		s.Regime[i] = regimes.Missing
+	}
+	s.Regime[4], s.Regime[5] = regimes.Convective, regimes.Subsidence
+	s.Values[0][4], s.Values[0][5] = 1, 7
+	a.AddCells(s, 0, 12)
+	a.AddStep(s)
+	p := a.Series[0]
+	if p.AreaFraction[regimes.Convective] != 0.5 || p.AreaFraction[regimes.Subsidence] != 0.5 || p.AreaFraction[regimes.Transition] != 0 {
+		t.Errorf("fractions %v", p.AreaFraction)
+	}
+	if p.Means[0][regimes.Subsidence] != 7 || p.Means[0][regimes.Convective] != 1 {
+		t.Errorf("means %v", p.Means)
+	}
+}
+
+func TestRegionContains(t *testing.T) {
+	r := Region{South: -10, North: 10, West: 170, East: -170}
+	for _, c := range []struct {
+		lat, lon float64
+		in       bool
+	}{{0, 175, true}, {0, -175, true}, {0, 185, true}, {0, 0, false}, {20, 175, false}} {
+		if r.Contains(c.lat, c.lon) != c.in {
+			t.Errorf("%v %v", c, !c.in)
+		}
+	}
+}
