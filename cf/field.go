@@ -1,0 +1,615 @@
+package cf
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+	"sync/atomic"
+
+	"lidscope/netcdf"
+	"lidscope/units"
+)
+
+// Spec says which variable to read for a role and how.
+type Spec struct {
+	Role Role
+	// Var is the variable name; empty means: find the role in the file
+	// (by standard_name, then by unambiguous name and units).
+	Var string
+	// Level is the pressure (Pa) to take from a variable with a vertical
+	// axis (e.g. 70000 for T700). Zero for single-level fields.
+	Level float64
+	Overrides
+}
+
+// segment is one file's part of a field's record.
+type segment struct {
+	file  *netcdf.File
+	v     *netcdf.Var
+	nt    int // time steps in this file (1 for a field without time)
+	times []Date
+	mask  Mask
+}
+
+// Field is one variable for one role, possibly spread over several files
+// along time, delivered slab by slab in the canonical layout and in SI
+// units, with missing values as NaN.
+type Field struct {
+	Role   Role
+	Var    string
+	Kind   units.Kind
+	Conv   units.Conversion // stored (unpacked) units → SI
+	Layout *Layout
+	Level  *LevelPick // nil for single-level fields
+	Time   *TimeAxis  // nil for a field without a time axis
+	// Notes records every conversion and reordering applied, in plain words.
+	Notes []string
+
+	segs []segment
+	// index of each axis in the variable's dimension list (-1 if absent)
+	ti, zi, yi, xi int
+	ndim           int
+	latFirst       bool
+	nyx            int
+	infCount       atomic.Int64
+	paths          []string
+}
+
+// Paths lists the files the field is read from, in time order.
+func (f *Field) Paths() []string { return f.paths }
+
+// NT is the number of time steps (1 for a field without a time axis).
+func (f *Field) NT() int {
+	n := 0
+	for _, s := range f.segs {
+		n += s.nt
+	}
+	return n
+}
+
+// Len is the number of cells in a canonical slab.
+func (f *Field) Len() int { return f.Layout.NLat() * f.Layout.NLon() }
+
+// InfCount is how many ±Inf stored values have been read (and masked) so far.
+func (f *Field) InfCount() int64 { return f.infCount.Load() }
+
+// Close releases the files.
+func (f *Field) Close() error {
+	var errs []error
+	for _, s := range f.segs {
+		errs = append(errs, s.file.Close())
+	}
+	return errors.Join(errs...)
+}
+
+// Open opens a field from one or more files. With several files they are
+// one record along time: sorted by their first decoded time and checked for
+// equal grids and levels, duplicated or overlapping time steps (errors) and
+// gaps (notes naming the dates).
+func Open(paths []string, spec Spec) (*Field, error) {
+	if len(paths) == 0 {
+		return nil, fmt.Errorf("role %s: no input files", spec.Role)
+	}
+	kind, ok := KindOf(spec.Role)
+	if !ok {
+		return nil, fmt.Errorf("unknown role %q (known: %v)", spec.Role, Roles())
+	}
+	var fld *Field
+	var files []*netcdf.File
+	fail := func(err error) (*Field, error) {
+		for _, f := range files {
+			f.Close()
+		}
+		return nil, err
+	}
+	for _, p := range paths {
+		nf, err := netcdf.Open(p)
+		if err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
+		files = append(files, nf)
+		one, err := openOne(nf, spec, kind)
+		if err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
+		if fld == nil {
+			fld = one
+			continue
+		}
+		if err := fld.appendSegment(one); err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
+	}
+	if err := fld.orderSegments(); err != nil {
+		return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+	}
+	return fld, nil
+}
+
+func (fld *Field) appendSegment(o *Field) error {
+	a, b := fld.segs[0].file.Path(), o.segs[0].file.Path()
+	if o.Var != fld.Var {
+		return fmt.Errorf("%s has the field as variable %s but %s as %s; name the variable in the recipe", a, fld.Var, b, o.Var)
+	}
+	if same, why := SameGrid(fld.Layout, o.Layout, 1e-4); !same {
+		return fmt.Errorf("files of one record must share a grid: %s and %s differ (%s)", a, b, why)
+	}
+	if (fld.Level == nil) != (o.Level == nil) || (fld.Level != nil && *fld.Level != *o.Level) {
+		return fmt.Errorf("files of one record must share the vertical axis: %s and %s differ", a, b)
+	}
+	if (fld.Time == nil) != (o.Time == nil) {
+		return fmt.Errorf("%s has a time axis but %s does not", a, b)
+	}
+	if fld.Conv.Scale != o.Conv.Scale || fld.Conv.Offset != o.Conv.Offset {
+		return fmt.Errorf("files of one record must share units: %s uses %q, %s uses %q", a, fld.Conv.From, b, o.Conv.From)
+	}
+	if fld.Time != nil && fld.Time.Calendar != o.Time.Calendar {
+		return fmt.Errorf("files of one record must share a calendar: %s uses %s, %s uses %s", a, fld.Time.Calendar, b, o.Time.Calendar)
+	}
+	if fld.ti != o.ti || fld.zi != o.zi || fld.yi != o.yi || fld.xi != o.xi || fld.ndim != o.ndim {
+		return fmt.Errorf("files of one record must share the dimension order of %s: %s and %s differ", fld.Var, a, b)
+	}
+	fld.segs = append(fld.segs, o.segs...)
+	fld.paths = append(fld.paths, o.paths...)
+	for _, n := range o.Notes {
+		if !contains(fld.Notes, n) {
+			fld.Notes = append(fld.Notes, b+": "+n)
+		}
+	}
+	return nil
+}
+
+// orderSegments sorts files by first time and checks the joined axis.
+func (fld *Field) orderSegments() error {
+	if fld.Time == nil {
+		if len(fld.segs) > 1 {
+			return fmt.Errorf("%d files given for a field without a time axis (%s); give one file", len(fld.segs), strings.Join(fld.paths, ", "))
+		}
+		return nil
+	}
+	sort.SliceStable(fld.segs, func(i, j int) bool { return fld.segs[i].times[0].Before(fld.segs[j].times[0]) })
+	fld.paths = fld.paths[:0]
+	var all []Date
+	for _, s := range fld.segs {
+		fld.paths = append(fld.paths, s.file.Path())
+		all = append(all, s.times...)
+	}
+	for i := 1; i < len(all); i++ {
+		if !all[i-1].Before(all[i]) {
+			// find files
+			where := fld.fileOf(i-1) + " and " + fld.fileOf(i)
+			if all[i-1].Equal(all[i]) {
+				return fmt.Errorf("time step %s appears twice (%s): remove the duplicate file or limit the time range", all[i].String(), where)
+			}
+			return fmt.Errorf("time goes backwards from %s to %s (%s): files overlap; remove the overlap", all[i-1].String(), all[i].String(), where)
+		}
+	}
+	fld.Time.Dates = all
+	fld.Time.classify()
+	if gaps := fld.Time.Gaps(); len(gaps) > 0 {
+		fld.Notes = append(fld.Notes, "gaps in the record: "+strings.Join(gaps, "; "))
+	}
+	return nil
+}
+
+func (fld *Field) fileOf(t int) string {
+	for _, s := range fld.segs {
+		if t < s.nt {
+			return s.file.Path()
+		}
+		t -= s.nt
+	}
+	return "?"
+}
+
+// openOne resolves the spec against one open file.
+func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
+	path := nf.Path()
+	name := spec.Var
+	if name == "" {
+		found, err := FindRole(nf, spec.Role)
+		if err != nil {
+			return nil, err
+		}
+		name = found
+	}
+	v, err := nf.Var(name)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	if !v.Type.Numeric() {
+		return nil, fmt.Errorf("%s: variable %s is of type %s, not numeric", path, name, v.Type)
+	}
+	cs, err := findCoords(nf, v, spec.Overrides)
+	if err != nil {
+		return nil, err
+	}
+	fld := &Field{Role: spec.Role, Var: name, Kind: kind, ti: -1, zi: -1, yi: -1, xi: -1, ndim: len(v.Dims), paths: []string{path}}
+	for i, c := range cs {
+		switch c.Axis {
+		case AxisT:
+			fld.ti = i
+		case AxisZ:
+			fld.zi = i
+		case AxisY:
+			fld.yi = i
+		case AxisX:
+			fld.xi = i
+		default:
+			if v.Dims[i].Len != 1 {
+				return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0` or name its coordinate in the recipe", path, name, v.Dims[i].Name, v.Dims[i].Len, v.Dims[i].Name)
+			}
+			if c.Var == nil {
+				fld.Notes = append(fld.Notes, fmt.Sprintf("length-1 dimension %s ignored", v.Dims[i].Name))
+			}
+		}
+	}
+	if fld.yi < 0 || fld.xi < 0 {
+		var dn []string
+		for _, d := range v.Dims {
+			dn = append(dn, d.Name)
+		}
+		return nil, fmt.Errorf("%s: variable %s(%s): no latitude/longitude coordinates found (looked for axis, standard_name, units degrees_north/degrees_east, the coordinates attribute and common names); name them in the recipe (coordinate overrides)", path, name, strings.Join(dn, ", "))
+	}
+	// Horizontal layout.
+	latV, lonV := cs[fld.yi].Var, cs[fld.xi].Var
+	if err := geographic(nf, v, latV, AxisY); err != nil {
+		return nil, err
+	}
+	if err := geographic(nf, v, lonV, AxisX); err != nil {
+		return nil, err
+	}
+	lat, err := readCoord(nf, latV)
+	if err != nil {
+		return nil, err
+	}
+	lon, err := readCoord(nf, lonV)
+	if err != nil {
+		return nil, err
+	}
+	latB, err := readBounds(nf, latV)
+	var mb errMissingBounds
+	if errors.As(err, &mb) {
+		fld.Notes = append(fld.Notes, mb.Error()+": bounds derived from midpoints instead")
+	} else if err != nil {
+		return nil, err
+	}
+	lonB, err := readBounds(nf, lonV)
+	if errors.As(err, &mb) {
+		fld.Notes = append(fld.Notes, mb.Error()+": bounds derived from midpoints instead")
+	} else if err != nil {
+		return nil, err
+	}
+	fld.latFirst = fld.yi < fld.xi
+	fld.Layout, err = newLayout(path, latV.Name, lonV.Name, lat, lon, latB, lonB, fld.latFirst)
+	if err != nil {
+		return nil, err
+	}
+	fld.nyx = len(lat) * len(lon)
+	fld.Notes = append(fld.Notes, fld.Layout.Notes...)
+	// Vertical.
+	if fld.zi >= 0 {
+		zv := cs[fld.zi].Var
+		if spec.Level == 0 {
+			if v.Dims[fld.zi].Len != 1 {
+				return nil, fmt.Errorf("%s: variable %s has %d vertical levels but role %s is a single-level field; choose a level in the recipe", path, name, v.Dims[fld.zi].Len, spec.Role)
+			}
+		} else {
+			lv, err := readCoord(nf, zv)
+			if err != nil {
+				return nil, err
+			}
+			lu := spec.LevelUnits
+			if lu == "" {
+				lu = textAttr(zv, "units")
+			}
+			pick, err := PickLevel(lv, lu, spec.Level)
+			if err != nil {
+				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w", path, name, zv.Name, err)
+			}
+			fld.Level = &pick
+		}
+	} else if spec.Level != 0 {
+		// A single-level file may still be the right level, declared by a
+		// scalar coordinate (CF §5.7), e.g. plev = 70000.
+		if p, ok := scalarLevel(nf, v); ok {
+			if math.Abs(p-spec.Level) > 0.01 {
+				return nil, fmt.Errorf("%s: variable %s is on the single level %g hPa, but %g hPa is needed", path, name, p/100, spec.Level/100)
+			}
+			fld.Notes = append(fld.Notes, fmt.Sprintf("single level %g hPa (scalar coordinate)", p/100))
+		} else {
+			return nil, fmt.Errorf("%s: variable %s has no vertical axis, so lidscope cannot tell whether it is at %g hPa; give a file with a pressure axis or a scalar pressure coordinate (CF-1.10 §5.7)", path, name, spec.Level/100)
+		}
+	}
+	// Time.
+	seg := segment{file: nf, v: v, nt: 1}
+	if fld.ti >= 0 {
+		ta, err := decodeTimeAxis(nf, cs[fld.ti].Var, spec.Overrides)
+		if err != nil {
+			return nil, err
+		}
+		fld.Time = ta
+		seg.times = ta.Dates
+		seg.nt = len(ta.Dates)
+		if seg.nt == 0 {
+			return nil, fmt.Errorf("%s: variable %s has no time steps", path, name)
+		}
+	} else if spec.Climatology {
+		return nil, fmt.Errorf("%s: the recipe declares a 12-month climatology but variable %s has no time axis", path, name)
+	}
+	// Units.
+	u := spec.Units
+	uSrc := "recipe"
+	if u == "" {
+		u = textAttr(v, "units")
+		uSrc = "units attribute"
+		if _, err := v.Attr("units"); err != nil && kind != units.Fraction {
+			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the recipe (e.g. units: %s)", path, name, kind.SI())
+		}
+	}
+	fld.Conv, err = units.Parse(kind, u)
+	if err != nil {
+		return nil, fmt.Errorf("%s: variable %s (%s): %w; set its units in the recipe if the file is wrong", path, name, uSrc, err)
+	}
+	if !fld.Conv.Identity() {
+		fld.Notes = append(fld.Notes, "units "+fld.Conv.String())
+	}
+	seg.mask, err = maskOf(v)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	fld.Notes = append(fld.Notes, seg.mask.Notes...)
+	fld.segs = []segment{seg}
+	return fld, nil
+}
+
+func scalarLevel(nf *netcdf.File, v *netcdf.Var) (float64, bool) {
+	for _, name := range strings.Fields(textAttr(v, "coordinates")) {
+		cv, err := nf.Var(name)
+		if err != nil || len(cv.Dims) != 0 {
+			continue
+		}
+		if ax, _ := axisOf(cv); ax != AxisZ {
+			continue
+		}
+		c, err := units.Parse(units.Pressure, textAttr(cv, "units"))
+		if err != nil {
+			continue
+		}
+		x, err := cv.ReadAllFloat64()
+		if err != nil || len(x) != 1 {
+			continue
+		}
+		return c.Apply(x[0]), true
+	}
+	return 0, false
+}
+
+// Scratch holds the buffers ReadSlab needs; one per goroutine.
+type Scratch struct {
+	a, b []float64
+}
+
+// ReadSlab reads time step t into dst (len Len()), canonical layout, SI
+// units, NaN where missing. s may be nil (buffers are then allocated).
+func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
+	if len(dst) != fld.Len() {
+		return fmt.Errorf("role %s: slab buffer has %d cells, the grid has %d", fld.Role, len(dst), fld.Len())
+	}
+	if s == nil {
+		s = &Scratch{}
+	}
+	if cap(s.a) < fld.nyx {
+		s.a = make([]float64, fld.nyx)
+		s.b = make([]float64, fld.nyx)
+	}
+	a, b := s.a[:fld.nyx], s.b[:fld.nyx]
+	seg, lt, err := fld.locate(t)
+	if err != nil {
+		return err
+	}
+	zi := 0
+	if fld.Level != nil {
+		zi = fld.Level.Lower
+	}
+	if err := fld.read(seg, lt, zi, a); err != nil {
+		return err
+	}
+	interp := fld.Level != nil && !fld.Level.Exact
+	if interp {
+		if err := fld.read(seg, lt, fld.Level.Upper, b); err != nil {
+			return err
+		}
+	}
+	m := &seg.mask
+	var infs int64
+	for k, src := range fld.Layout.src {
+		x := a[src]
+		if math.IsInf(x, 0) {
+			infs++
+		}
+		y := m.Decode(x)
+		if interp {
+			x2 := b[src]
+			if math.IsInf(x2, 0) {
+				infs++
+			}
+			y2 := m.Decode(x2)
+			w := fld.Level.W
+			y = (1-w)*y + w*y2 // NaN if either is missing
+		}
+		dst[k] = float32(fld.Conv.Apply(y))
+	}
+	if infs > 0 {
+		fld.infCount.Add(infs)
+	}
+	return nil
+}
+
+func (fld *Field) locate(t int) (*segment, int, error) {
+	if t < 0 {
+		return nil, 0, fmt.Errorf("role %s: time step %d out of range", fld.Role, t)
+	}
+	lt := t
+	for i := range fld.segs {
+		if lt < fld.segs[i].nt {
+			return &fld.segs[i], lt, nil
+		}
+		lt -= fld.segs[i].nt
+	}
+	return nil, 0, fmt.Errorf("role %s: time step %d out of range (record has %d)", fld.Role, t, fld.NT())
+}
+
+func (fld *Field) read(seg *segment, t, z int, dst []float64) error {
+	start := make([]int, fld.ndim)
+	count := make([]int, fld.ndim)
+	for i := range count {
+		count[i] = 1
+	}
+	if fld.ti >= 0 {
+		start[fld.ti] = t
+	}
+	if fld.zi >= 0 {
+		start[fld.zi] = z
+	}
+	count[fld.yi] = len(fld.Layout.storedLat)
+	count[fld.xi] = len(fld.Layout.storedLon)
+	if err := seg.v.ReadFloat64(start, count, dst); err != nil {
+		return fmt.Errorf("%s: reading %s at time step %d: %w (the file may be truncated or damaged)", seg.file.Path(), fld.Var, t, err)
+	}
+	return nil
+}
+
+// FindRole returns the variable of file nf that fills role r, or an error
+// that says why none or several qualify.
+func FindRole(nf *netcdf.File, r Role) (string, error) {
+	cands, amb, rej, err := roleCandidates(nf)
+	if err != nil {
+		return "", err
+	}
+	if m, ok := cands[r]; ok {
+		return m.Var, nil
+	}
+	for _, a := range amb {
+		if strings.HasPrefix(a, "role "+string(r)+" ") {
+			return "", fmt.Errorf("%s: %s", nf.Path(), a)
+		}
+	}
+	var why []string
+	for _, x := range rej {
+		if x.Role == r {
+			why = append(why, x.String())
+		}
+	}
+	msg := fmt.Sprintf("%s: no variable found for role %s (by standard_name %s or by name); name it in the recipe", nf.Path(), r, strings.Join(specOf(r).StandardNames, " / "))
+	if len(why) > 0 {
+		msg += "; " + strings.Join(why, "; ")
+	}
+	return "", errors.New(msg)
+}
+
+// rejection is a variable whose standard_name or name suggests a role but
+// whose coordinates make it unusable.
+type rejection struct {
+	Role Role
+	Var  string
+	Hint string // how the role was suggested
+	Err  error
+}
+
+func (x rejection) String() string {
+	return fmt.Sprintf("variable %s (%s) looks like role %s but cannot be used: %v", x.Var, x.Hint, x.Role, x.Err)
+}
+
+// roleHints returns the roles a variable's standard_name, or failing
+// that its name, suggests, ignoring levels and units.
+func roleHints(v *netcdf.Var) ([]Role, string) {
+	sn := strings.ToLower(textAttr(v, "standard_name"))
+	var out []Role
+	if sn != "" {
+		for _, s := range roleSpecs {
+			if contains(s.StandardNames, sn) {
+				out = append(out, s.Role)
+			}
+		}
+		return out, "standard_name " + sn
+	}
+	for _, s := range roleSpecs {
+		if contains(s.Names, strings.ToLower(v.Name)) {
+			out = append(out, s.Role)
+		}
+	}
+	return out, "by its name"
+}
+
+func specOf(r Role) roleSpec {
+	for _, s := range roleSpecs {
+		if s.Role == r {
+			return s
+		}
+	}
+	return roleSpec{}
+}
+
+// roleCandidates matches every data variable of a file against the roles.
+func roleCandidates(nf *netcdf.File) (map[Role]RoleMatch, []string, []rejection, error) {
+	vars, err := nf.Vars()
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: %w", nf.Path(), err)
+	}
+	skip := auxNames(nf, vars)
+	var all []RoleMatch
+	var rej []rejection
+	for _, v := range vars {
+		if skip[v.Name] || len(v.Dims) < 2 || !v.Type.Numeric() {
+			continue
+		}
+		cs, err := findCoords(nf, v, Overrides{})
+		if err != nil {
+			roles, hint := roleHints(v)
+			for _, r := range roles {
+				rej = append(rej, rejection{r, v.Name, hint, err})
+			}
+			continue
+		}
+		hasLev := false // a pressure axis (depth or height axes do not count)
+		nlev := 0
+		for _, c := range cs {
+			if c.Axis == AxisZ && c.Var != nil && isPressureUnit(textAttr(c.Var, "units")) {
+				hasLev, nlev = true, c.Length
+			}
+		}
+		if !hasLev {
+			if _, ok := scalarLevel(nf, v); ok {
+				hasLev = true
+			}
+		}
+		for _, m := range matchRoles(v, hasLev) {
+			m.NLevels = nlev
+			all = append(all, m)
+		}
+	}
+	m, amb := assignRoles(all)
+	return m, amb, rej, nil
+}
+
+// auxNames returns the names of coordinate and bounds variables.
+func auxNames(nf *netcdf.File, vars []*netcdf.Var) map[string]bool {
+	skip := map[string]bool{}
+	for _, v := range vars {
+		if len(v.Dims) == 1 && v.Dims[0].Name == v.Name {
+			skip[v.Name] = true
+		}
+		for _, an := range []string{"bounds", "climatology"} {
+			if b := textAttr(v, an); b != "" {
+				skip[b] = true
+			}
+		}
+		for _, c := range strings.Fields(textAttr(v, "coordinates")) {
+			skip[c] = true
+		}
+	}
+	return skip
+}

@@ -1,0 +1,188 @@
+package cf
+
+import (
+	"sort"
+	"strings"
+
+	"lidscope/netcdf"
+	"lidscope/units"
+)
+
+// Role is what lidscope uses a variable for.
+type Role string
+
+// Roles. The names are lidscope's own; the standard_names that identify
+// them come from the CF Standard Name Table.
+const (
+	RoleSST          Role = "sst"              // sea-surface temperature
+	RoleAirTemp      Role = "air_temperature"  // on pressure levels (T700, T850)
+	RoleSurfaceAir   Role = "surface_air_temp" // near-surface air temperature
+	RoleLowCloud     Role = "low_cloud"        // low-cloud area fraction
+	RoleCloud        Role = "cloud"            // total cloud area fraction
+	RoleSWUp         Role = "toa_sw_up"        // TOA outgoing shortwave flux
+	RoleOLR          Role = "olr"              // TOA outgoing longwave flux
+	RoleOmega        Role = "omega"            // vertical pressure velocity (on levels: omega500)
+	RoleSurfacePres  Role = "surface_pressure" // surface air pressure
+	RoleSeaLevelPres Role = "sea_level_pressure"
+	RoleRH           Role = "relative_humidity"
+	RoleDewPoint     Role = "dew_point"
+	RoleSpecHum      Role = "specific_humidity"
+	RoleSeaFraction  Role = "sea_fraction"
+	RoleLandFraction Role = "land_fraction"
+	RoleSeaIce       Role = "sea_ice"
+	RolePrecip       Role = "precipitation"
+)
+
+// roleSpec says how a role is recognised and in which units it is read.
+type roleSpec struct {
+	Role          Role
+	Kind          units.Kind
+	StandardNames []string
+	Names         []string // variable names that identify the role when no standard_name does
+	Levels        int      // +1: needs a pressure axis; -1: must not have one; 0: either
+}
+
+var roleSpecs = []roleSpec{
+	{RoleSST, units.Temperature, []string{"sea_surface_temperature", "sea_surface_skin_temperature",
+		"sea_surface_foundation_temperature", "sea_water_temperature"}, []string{"sst", "tos", "analysed_sst", "sea_surface_temperature"}, -1},
+	{RoleAirTemp, units.Temperature, []string{"air_temperature"}, []string{"ta", "t", "air", "temp", "temperature", "t700"}, +1},
+	{RoleSurfaceAir, units.Temperature, []string{"air_temperature"}, []string{"tas", "t2m", "2t", "t2"}, -1},
+	{RoleLowCloud, units.Fraction, []string{"low_type_cloud_area_fraction"}, []string{"cldlow", "lcc", "low_cloud", "cll", "cldlow_cal"}, -1},
+	{RoleCloud, units.Fraction, []string{"cloud_area_fraction"}, []string{"clt", "tcc", "cldtot", "total_cloud"}, -1},
+	{RoleSWUp, units.Flux, []string{"toa_outgoing_shortwave_flux"}, []string{"rsut", "toa_sw_all_mon", "fsut"}, -1},
+	{RoleOLR, units.Flux, []string{"toa_outgoing_longwave_flux"}, []string{"rlut", "olr", "toa_lw_all_mon", "flut"}, -1},
+	{RoleOmega, units.Omega, []string{"lagrangian_tendency_of_air_pressure",
+		"vertical_air_velocity_expressed_as_tendency_of_pressure"}, []string{"wap", "omega", "w500", "omega500"}, 0},
+	{RoleSurfacePres, units.Pressure, []string{"surface_air_pressure"}, []string{"ps", "sp", "pres_sfc"}, -1},
+	{RoleSeaLevelPres, units.Pressure, []string{"air_pressure_at_mean_sea_level", "air_pressure_at_sea_level"}, []string{"psl", "msl", "slp", "mslp"}, -1},
+	{RoleRH, units.Fraction, []string{"relative_humidity"}, []string{"hurs", "rh", "hur"}, 0},
+	{RoleDewPoint, units.Temperature, []string{"dew_point_temperature"}, []string{"d2m", "2d", "tdps", "dewpoint"}, -1},
+	{RoleSpecHum, units.MixingRatio, []string{"specific_humidity"}, []string{"hus", "huss", "q"}, 0},
+	{RoleSeaFraction, units.Fraction, []string{"sea_area_fraction", "sea_binary_mask"}, []string{"sftof", "sea_fraction"}, -1},
+	{RoleLandFraction, units.Fraction, []string{"land_area_fraction", "land_binary_mask"}, []string{"sftlf", "lsm", "lsmask", "landsea", "land_sea_mask", "lsm_frac"}, -1},
+	{RoleSeaIce, units.Fraction, []string{"sea_ice_area_fraction"}, []string{"siconc", "sic", "ci", "seaice", "ice_fraction"}, -1},
+	{RolePrecip, units.Precipitation, []string{"precipitation_flux", "lwe_precipitation_rate"}, []string{"pr", "precip", "prate", "tp"}, -1},
+}
+
+// Roles lists every role lidscope knows, in a stable order.
+func Roles() []Role {
+	out := make([]Role, len(roleSpecs))
+	for i, s := range roleSpecs {
+		out[i] = s.Role
+	}
+	return out
+}
+
+// KindOf returns the physical quantity of a role (for units conversion).
+func KindOf(r Role) (units.Kind, bool) {
+	for _, s := range roleSpecs {
+		if s.Role == r {
+			return s.Kind, true
+		}
+	}
+	return 0, false
+}
+
+// RoleMatch is a variable recognised as a role, and how.
+type RoleMatch struct {
+	Role Role
+	Var  string
+	How  string
+	// ByName is true when only the variable name identified it (weaker
+	// evidence than a standard_name; reported so users can confirm).
+	ByName bool
+	// NLevels is the length of its pressure axis (0 when it has none, e.g.
+	// a single level given by a scalar coordinate).
+	NLevels int
+}
+
+// matchRoles returns the roles variable v could fill. hasLevels says
+// whether it has a pressure axis.
+func matchRoles(v *netcdf.Var, hasLevels bool) []RoleMatch {
+	sn := strings.ToLower(textAttr(v, "standard_name"))
+	name := strings.ToLower(v.Name)
+	var out []RoleMatch
+	levelOK := func(s roleSpec) bool {
+		return s.Levels == 0 || (s.Levels > 0) == hasLevels
+	}
+	if sn != "" {
+		for _, s := range roleSpecs {
+			for _, want := range s.StandardNames {
+				if sn == want && levelOK(s) {
+					out = append(out, RoleMatch{Role: s.Role, Var: v.Name, How: "standard_name " + sn})
+				}
+			}
+		}
+		if len(out) > 0 {
+			return out
+		}
+	}
+	for _, s := range roleSpecs {
+		for _, want := range s.Names {
+			if name == want && levelOK(s) {
+				if sn != "" && !contains(s.StandardNames, sn) {
+					continue // a standard_name that says otherwise wins over the name
+				}
+				if _, err := units.Parse(s.Kind, textAttr(v, "units")); err != nil && s.Kind != units.Fraction {
+					// a name alone, with units that do not fit, is not evidence
+					continue
+				}
+				out = append(out, RoleMatch{Role: s.Role, Var: v.Name, How: "variable name " + v.Name + " and its units", ByName: true})
+			}
+		}
+	}
+	return out
+}
+
+func contains(s []string, x string) bool {
+	for _, y := range s {
+		if y == x {
+			return true
+		}
+	}
+	return false
+}
+
+// assignRoles picks one variable per role among candidates, reporting
+// ambiguities (two standard_name matches, or two name matches with no
+// standard_name match) instead of choosing at random.
+func assignRoles(matches []RoleMatch) (map[Role]RoleMatch, []string) {
+	by := map[Role][]RoleMatch{}
+	for _, m := range matches {
+		by[m.Role] = append(by[m.Role], m)
+	}
+	out := map[Role]RoleMatch{}
+	var amb []string
+	roles := make([]string, 0, len(by))
+	for r := range by {
+		roles = append(roles, string(r))
+	}
+	sort.Strings(roles)
+	for _, rs := range roles {
+		r := Role(rs)
+		ms := by[r]
+		var strong, weak []RoleMatch
+		for _, m := range ms {
+			if m.ByName {
+				weak = append(weak, m)
+			} else {
+				strong = append(strong, m)
+			}
+		}
+		pick := strong
+		if len(pick) == 0 {
+			pick = weak
+		}
+		if len(pick) == 1 {
+			out[r] = pick[0]
+			continue
+		}
+		names := make([]string, len(pick))
+		for i, m := range pick {
+			names[i] = m.Var
+		}
+		amb = append(amb, "role "+string(r)+" is ambiguous: variables "+strings.Join(names, ", ")+
+			" all qualify; name the one to use in the recipe (variables: "+string(r)+": NAME)")
+	}
+	return out, amb
+}

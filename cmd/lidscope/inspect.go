@@ -1,0 +1,114 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"strings"
+
+	"lidscope/cf"
+)
+
+// inspectOptions are the options of `lidscope inspect`.
+type inspectOptions struct {
+	Files []string
+	JSON  bool
+}
+
+func cmdInspect(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("inspect", stderr)
+	var o inspectOptions
+	fs.BoolVar(&o.JSON, "json", false, "write the report as JSON")
+	fs.Usage = func() {
+		fmt.Fprintln(stderr, "usage: lidscope inspect [--json] FILE...\n\nReports, for each NetCDF file, which variables lidscope recognises for which role,\nhow they will be decoded (units conversion, packing, fill values, grid, levels, time),\nand every problem found. Exits with status 1 when a file cannot be used.")
+		fs.PrintDefaults()
+	}
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	o.Files = fs.Args()
+	if len(o.Files) == 0 {
+		return usageErr("give at least one file")
+	}
+	return runInspect(o, stdout)
+}
+
+// runInspect writes the inspect report; it returns errFailed when any file
+// is unusable (the report already says why).
+func runInspect(o inspectOptions, w io.Writer) error {
+	reports := make([]*cf.FileReport, 0, len(o.Files))
+	ok := true
+	for _, p := range o.Files {
+		r := cf.Inspect(p)
+		ok = ok && r.Usable
+		reports = append(reports, r)
+	}
+	if o.JSON {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(reports); err != nil {
+			return err
+		}
+	} else {
+		for i, r := range reports {
+			if i > 0 {
+				fmt.Fprintln(w)
+			}
+			writeReport(w, r)
+		}
+	}
+	if !ok {
+		return errFailed
+	}
+	return nil
+}
+
+func writeReport(w io.Writer, r *cf.FileReport) {
+	status := "usable"
+	if !r.Usable {
+		status = "NOT USABLE"
+	}
+	fmt.Fprintf(w, "%s  [%s]\n", r.Path, status)
+	if r.Format != "" {
+		var dims []string
+		for _, d := range r.Dims {
+			s := fmt.Sprintf("%s=%d", d.Name, d.Len)
+			if d.Unlimited {
+				s += " (unlimited)"
+			}
+			dims = append(dims, s)
+		}
+		fmt.Fprintf(w, "  format: %s; dimensions: %s\n", r.Format, strings.Join(dims, ", "))
+	}
+	for _, f := range r.Fields {
+		fmt.Fprintf(w, "  %s ← variable %s (%s)\n", f.Role, f.Var, f.How)
+		line := func(k, v string) {
+			if v != "" {
+				fmt.Fprintf(w, "      %-9s %s\n", k+":", v)
+			}
+		}
+		line("units", f.Conversion)
+		if f.Conversion == "" {
+			line("units", fmt.Sprintf("%q", f.Units))
+		}
+		line("grid", f.Grid)
+		line("level", f.Level)
+		line("time", f.Time)
+		line("decoding", f.Decoding)
+		if f.Min != nil {
+			line("sample", fmt.Sprintf("%.5g … %.5g %s (after conversion)", *f.Min, *f.Max, f.SIUnits))
+		}
+		for _, n := range f.Notes {
+			line("note", n)
+		}
+		for _, p := range f.Problems {
+			line("PROBLEM", p)
+		}
+	}
+	if len(r.Other) > 0 {
+		fmt.Fprintf(w, "  not used: %s\n", strings.Join(r.Other, ", "))
+	}
+	for _, p := range r.Problems {
+		fmt.Fprintf(w, "  PROBLEM: %s\n", p)
+	}
+}
