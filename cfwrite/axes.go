@@ -1,0 +1,760 @@
+package cfwrite
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"lidscope/netcdf"
+)
+
+// Grid is a latitude–longitude grid of cell centres, in degrees.
+type Grid struct {
+	// Lat and Lon are the cell centres, each strictly increasing or strictly
+	// decreasing; latitudes lie in [-90, 90].
+	Lat, Lon []float64
+	// LatBounds and LonBounds are the cell edges, one pair per centre, in
+	// the direction of the centres. Nil means halfway between neighbouring
+	// centres, the outer edges half a spacing beyond the end centres, and
+	// latitude edges clipped to ±90 (common practice for regular grids).
+	LatBounds, LonBounds [][2]float64
+}
+
+// Levels are pressure levels in Pa, strictly monotonic and positive.
+type Levels struct {
+	Pa []float64
+	// Bounds are the layer edges in Pa, one pair per level; optional.
+	Bounds [][2]float64
+}
+
+// TimeAxis describes the time coordinate over the unlimited dimension.
+type TimeAxis struct {
+	// Units is "<unit> since <reference date>" with unit days, hours,
+	// minutes or seconds, e.g. "days since 1979-01-01" (CF-1.10 §4.4).
+	Units string
+	// Calendar is a CF-1.10 §4.4.1 calendar name, e.g. "standard",
+	// "proleptic_gregorian", "noleap", "360_day"; required.
+	Calendar string
+	// Bounds adds time_bnds(time,bnds); every step is then appended with
+	// AppendTimeBounded.
+	Bounds bool
+}
+
+// Axis is a further coordinate axis, such as the bins of a relationship
+// table: a dimension of the same name with a double coordinate variable.
+type Axis struct {
+	Name         string
+	Values       []float64    // strictly monotonic (CF-1.10 §1.3, coordinate variable)
+	Bounds       [][2]float64 // optional cell edges; written as NAME_bnds(NAME,bnds)
+	Units        string       // UDUNITS string; "1" for dimensionless, "" for none
+	LongName     string
+	StandardName string
+	Attributes   map[string]any
+}
+
+// Categories is a categorical axis, e.g. a regime index: a dimension with an
+// int coordinate variable whose values are explained by flag_values and
+// flag_meanings (CF-1.10 §3.5). No string variables are written.
+type Categories struct {
+	Name         string
+	LongName     string
+	StandardName string
+	// Meanings are one word per category: letters, digits and the characters
+	// _ - . + @ (CF-1.10 §3.5), e.g. "convective", "subsidence".
+	Meanings []string
+	// Values are the category numbers, strictly increasing; nil means
+	// 0, 1, 2, ...
+	Values     []int
+	Attributes map[string]any
+}
+
+// ScalarCoord is a scalar coordinate variable (CF-1.10 §5.7), e.g. the
+// pressure of a single-level field, named by a data variable's coordinates
+// attribute.
+type ScalarCoord struct {
+	Name         string
+	Value        float64
+	Units        string
+	StandardName string
+	LongName     string
+	Positive     string // "up", "down" or ""
+	Axis         string // "X", "Y", "Z", "T" or ""
+	Attributes   map[string]any
+}
+
+// PressureCoord returns the scalar coordinate of a single pressure level in
+// Pa, e.g. PressureCoord("plev", 70000) for a 700 hPa field.
+func PressureCoord(name string, pa float64) ScalarCoord {
+	return ScalarCoord{Name: name, Value: pa, Units: "Pa", StandardName: "air_pressure",
+		LongName: "pressure", Positive: "down", Axis: "Z"}
+}
+
+// BinsFromEdges returns the centres and bounds of the bins between
+// consecutive edges, for Axis.Values and Axis.Bounds. The edges must be
+// finite and strictly increasing.
+func BinsFromEdges(edges []float64) ([]float64, [][2]float64, error) {
+	if len(edges) < 2 {
+		return nil, nil, fmt.Errorf("cfwrite: bins need at least 2 edges, got %d", len(edges))
+	}
+	c := make([]float64, len(edges)-1)
+	b := make([][2]float64, len(edges)-1)
+	for i := range c {
+		lo, hi := edges[i], edges[i+1]
+		if math.IsNaN(lo) || math.IsInf(lo, 0) || math.IsNaN(hi) || math.IsInf(hi, 0) {
+			return nil, nil, fmt.Errorf("cfwrite: bin edge %d or %d is not finite", i, i+1)
+		}
+		if !(hi > lo) {
+			return nil, nil, fmt.Errorf("cfwrite: bin edges must increase: edge %d = %g, edge %d = %g", i, lo, i+1, hi)
+		}
+		c[i] = lo + (hi-lo)/2
+		b[i] = [2]float64{lo, hi}
+	}
+	return c, b, nil
+}
+
+// monotonic checks that x is finite and strictly monotonic; it returns +1
+// for increasing, -1 for decreasing (0 for a single value).
+func monotonic(x []float64) (int, error) {
+	if len(x) == 0 {
+		return 0, errors.New("no values")
+	}
+	for i, v := range x {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return 0, fmt.Errorf("value %d is %v; coordinates must be finite (CF-1.10 §5)", i, v)
+		}
+	}
+	if len(x) == 1 {
+		return 0, nil
+	}
+	dir := 1
+	if x[1] < x[0] {
+		dir = -1
+	}
+	for i := 1; i < len(x); i++ {
+		if d := x[i] - x[i-1]; d == 0 || (d > 0) != (dir > 0) {
+			return 0, fmt.Errorf("values %d and %d (%g, %g) break strict monotonicity; coordinate variables must be strictly monotonic (CF-1.10 §1.3)", i-1, i, x[i-1], x[i])
+		}
+	}
+	return dir, nil
+}
+
+// edgesFromCentres returns bounds halfway between centres, extrapolating
+// half a spacing at the ends; shared edges are the same float64 values.
+func edgesFromCentres(c []float64) ([][2]float64, error) {
+	if len(c) < 2 {
+		return nil, errors.New("a single centre does not determine cell edges; give the bounds")
+	}
+	e := make([]float64, len(c)+1)
+	for i := 1; i < len(c); i++ {
+		e[i] = c[i-1] + (c[i]-c[i-1])/2
+	}
+	e[0] = c[0] - (c[1]-c[0])/2
+	n := len(c)
+	e[n] = c[n-1] + (c[n-1]-c[n-2])/2
+	b := make([][2]float64, n)
+	for i := range b {
+		b[i] = [2]float64{e[i], e[i+1]}
+	}
+	return b, nil
+}
+
+// checkBounds checks that each centre lies within its finite, non-empty cell.
+func checkBounds(c []float64, b [][2]float64) error {
+	if len(b) != len(c) {
+		return fmt.Errorf("%d bounds pairs for %d values; give one pair per value", len(b), len(c))
+	}
+	for i, p := range b {
+		if checkFinite(p[:]) != nil {
+			return fmt.Errorf("bounds %d (%v) are not finite", i, p)
+		}
+		lo, hi := math.Min(p[0], p[1]), math.Max(p[0], p[1])
+		if lo == hi {
+			return fmt.Errorf("bounds %d (%v) enclose no interval", i, p)
+		}
+		if c[i] < lo || c[i] > hi {
+			return fmt.Errorf("value %d (%g) lies outside its bounds %v", i, c[i], p)
+		}
+	}
+	return nil
+}
+
+func flatten(b [][2]float64) []float64 {
+	out := make([]float64, 0, 2*len(b))
+	for _, p := range b {
+		out = append(out, p[0], p[1])
+	}
+	return out
+}
+
+// needBounds defines the bnds dimension on first use.
+func (w *Writer) needBounds() error {
+	if w.bounds {
+		return nil
+	}
+	if err := w.claim(DimBounds, "bounds dimension"); err != nil {
+		return err
+	}
+	if _, err := w.nc.DefDim(DimBounds, 2); err != nil {
+		return fmt.Errorf("cfwrite: %s: dimension %s: %w", w.path, DimBounds, err)
+	}
+	w.dims[DimBounds] = &dim{name: DimBounds, n: 2}
+	w.bounds = true
+	return nil
+}
+
+// defDim defines a fixed dimension.
+func (w *Writer) defDim(name string, n int, axis byte) error {
+	if _, err := w.nc.DefDim(name, n); err != nil {
+		return fmt.Errorf("cfwrite: %s: dimension %s: %w", w.path, name, err)
+	}
+	w.dims[name] = &dim{name: name, n: n, axis: axis}
+	return nil
+}
+
+// defCoord defines a variable whose values are written on leaving define
+// mode (nil values: written later, as time is).
+func (w *Writer) defCoord(name string, t netcdf.Type, dims []string, values []float64, attrs []attr) (*netcdf.Var, error) {
+	v, err := w.nc.DefVar(name, t, dims)
+	if err != nil {
+		return nil, fmt.Errorf("cfwrite: %s: variable %s: %w", w.path, name, err)
+	}
+	if err := w.deflate(v); err != nil {
+		return nil, fmt.Errorf("cfwrite: %s: variable %s: %w", w.path, name, err)
+	}
+	if err := putAttrs(v, attrs); err != nil {
+		return nil, fmt.Errorf("cfwrite: %s: variable %s: %w", w.path, name, err)
+	}
+	if values != nil {
+		shape := make([]int, len(dims))
+		for i, d := range dims {
+			shape[i] = w.dims[d].n
+		}
+		w.coords[name] = &coordVar{v: v, values: values, shape: shape}
+		w.order = append(w.order, name)
+	}
+	return v, nil
+}
+
+// SetGrid declares the lat and lon dimensions with their coordinate and
+// bounds variables (CF-1.10 §4.1, §4.2, §7.1).
+func (w *Writer) SetGrid(g Grid) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("SetGrid"); err != nil {
+		return err
+	}
+	if err := w.setGrid(g); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) setGrid(g Grid) error {
+	if _, err := monotonic(g.Lat); err != nil {
+		return fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
+	}
+	if _, err := monotonic(g.Lon); err != nil {
+		return fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
+	}
+	for i, v := range g.Lat {
+		if v < -90 || v > 90 {
+			return fmt.Errorf("cfwrite: %s: latitude %d is %g, outside [-90, 90]", w.path, i, v)
+		}
+	}
+	latB, lonB := g.LatBounds, g.LonBounds
+	var err error
+	if latB == nil {
+		if latB, err = edgesFromCentres(g.Lat); err != nil {
+			return fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
+		}
+		for i := range latB {
+			for k := range latB[i] {
+				latB[i][k] = math.Max(-90, math.Min(90, latB[i][k]))
+			}
+		}
+	}
+	if lonB == nil {
+		if lonB, err = edgesFromCentres(g.Lon); err != nil {
+			return fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
+		}
+	}
+	if err := checkBounds(g.Lat, latB); err != nil {
+		return fmt.Errorf("cfwrite: %s: latitude bounds: %w", w.path, err)
+	}
+	for i, p := range latB {
+		if p[0] < -90 || p[0] > 90 || p[1] < -90 || p[1] > 90 {
+			return fmt.Errorf("cfwrite: %s: latitude bounds %d (%v) lie outside [-90, 90]", w.path, i, p)
+		}
+	}
+	if err := checkBounds(g.Lon, lonB); err != nil {
+		return fmt.Errorf("cfwrite: %s: longitude bounds: %w", w.path, err)
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, p := range lonB {
+		lo, hi = math.Min(lo, math.Min(p[0], p[1])), math.Max(hi, math.Max(p[0], p[1]))
+	}
+	if hi-lo > 360+1e-9 {
+		return fmt.Errorf("cfwrite: %s: longitude bounds span %g degrees, more than 360", w.path, hi-lo)
+	}
+	for _, n := range []string{DimLat, DimLon, "lat_bnds", "lon_bnds"} {
+		if err := w.claim(n, "grid"); err != nil {
+			return err
+		}
+	}
+	if err := w.defDim(DimLat, len(g.Lat), 'Y'); err != nil {
+		return err
+	}
+	if err := w.defDim(DimLon, len(g.Lon), 'X'); err != nil {
+		return err
+	}
+	if err := w.needBounds(); err != nil {
+		return err
+	}
+	if _, err := w.defCoord(DimLat, netcdf.Double, []string{DimLat}, append([]float64(nil), g.Lat...), []attr{
+		{"standard_name", "latitude"}, {"long_name", "latitude"}, {"units", "degrees_north"},
+		{"axis", "Y"}, {"bounds", "lat_bnds"},
+	}); err != nil {
+		return err
+	}
+	if _, err := w.defCoord("lat_bnds", netcdf.Double, []string{DimLat, DimBounds}, flatten(latB), nil); err != nil {
+		return err
+	}
+	if _, err := w.defCoord(DimLon, netcdf.Double, []string{DimLon}, append([]float64(nil), g.Lon...), []attr{
+		{"standard_name", "longitude"}, {"long_name", "longitude"}, {"units", "degrees_east"},
+		{"axis", "X"}, {"bounds", "lon_bnds"},
+	}); err != nil {
+		return err
+	}
+	_, err = w.defCoord("lon_bnds", netcdf.Double, []string{DimLon, DimBounds}, flatten(lonB), nil)
+	return err
+}
+
+// SetLevels declares the plev dimension and coordinate (CF-1.10 §4.3):
+// air_pressure in Pa, positive "down", axis Z, with plev_bnds if bounds are
+// given.
+func (w *Writer) SetLevels(l Levels) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("SetLevels"); err != nil {
+		return err
+	}
+	if err := w.setLevels(l); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) setLevels(l Levels) error {
+	if _, err := monotonic(l.Pa); err != nil {
+		return fmt.Errorf("cfwrite: %s: pressure levels: %w", w.path, err)
+	}
+	for i, p := range l.Pa {
+		if p <= 0 || p > 2e5 {
+			return fmt.Errorf("cfwrite: %s: pressure level %d is %g Pa; levels are in Pa (e.g. 70000 for 700 hPa)", w.path, i, p)
+		}
+	}
+	attrs := []attr{{"standard_name", "air_pressure"}, {"long_name", "pressure"}, {"units", "Pa"},
+		{"positive", "down"}, {"axis", "Z"}}
+	if l.Bounds != nil {
+		if err := checkBounds(l.Pa, l.Bounds); err != nil {
+			return fmt.Errorf("cfwrite: %s: pressure level bounds: %w", w.path, err)
+		}
+		attrs = append(attrs, attr{"bounds", "plev_bnds"})
+	}
+	if err := w.claim(DimPlev, "pressure levels"); err != nil {
+		return err
+	}
+	if l.Bounds != nil {
+		if err := w.claim("plev_bnds", "pressure levels"); err != nil {
+			return err
+		}
+	}
+	if err := w.defDim(DimPlev, len(l.Pa), 'Z'); err != nil {
+		return err
+	}
+	if l.Bounds != nil {
+		if err := w.needBounds(); err != nil {
+			return err
+		}
+	}
+	if _, err := w.defCoord(DimPlev, netcdf.Double, []string{DimPlev}, append([]float64(nil), l.Pa...), attrs); err != nil {
+		return err
+	}
+	if l.Bounds != nil {
+		if _, err := w.defCoord("plev_bnds", netcdf.Double, []string{DimPlev, DimBounds}, flatten(l.Bounds), nil); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// timeAxis is the state of the time coordinate.
+type timeAxis struct {
+	spec   TimeAxis
+	v, bv  *netcdf.Var
+	n      int
+	last   float64
+	lastLo float64
+}
+
+// SetTime declares the time coordinate over the unlimited time dimension
+// (CF-1.10 §4.4): double, standard_name time, axis T, the given units and
+// calendar, and time_bnds when t.Bounds is set.
+func (w *Writer) SetTime(t TimeAxis) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("SetTime"); err != nil {
+		return err
+	}
+	if err := w.setTime(t); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) setTime(t TimeAxis) error {
+	if _, err := parseTimeUnits(t.Units, t.Calendar); err != nil {
+		return fmt.Errorf("cfwrite: %s: time axis: %w", w.path, err)
+	}
+	units := strings.TrimSpace(t.Units)
+	cal := strings.ToLower(strings.TrimSpace(t.Calendar))
+	if err := w.claim(DimTime, "time axis"); err != nil {
+		return err
+	}
+	attrs := []attr{{"standard_name", "time"}, {"long_name", "time"}, {"units", units},
+		{"calendar", cal}, {"axis", "T"}}
+	if t.Bounds {
+		if err := w.claim("time_bnds", "time axis"); err != nil {
+			return err
+		}
+		attrs = append(attrs, attr{"bounds", "time_bnds"})
+	}
+	if _, err := w.nc.DefDim(DimTime, netcdf.Unlimited); err != nil {
+		return fmt.Errorf("cfwrite: %s: dimension %s: %w", w.path, DimTime, err)
+	}
+	w.dims[DimTime] = &dim{name: DimTime, axis: 'T'}
+	if t.Bounds {
+		if err := w.needBounds(); err != nil {
+			return err
+		}
+	}
+	ta := &timeAxis{spec: t}
+	v, err := w.defCoord(DimTime, netcdf.Double, []string{DimTime}, nil, attrs)
+	if err != nil {
+		return err
+	}
+	if err := v.SetChunking(defaultChunks([]*dim{w.dims[DimTime]}, 8)); err != nil {
+		return fmt.Errorf("cfwrite: %s: variable %s: %w", w.path, DimTime, err)
+	}
+	ta.v = v
+	if t.Bounds {
+		bv, err := w.defCoord("time_bnds", netcdf.Double, []string{DimTime, DimBounds}, nil, nil)
+		if err != nil {
+			return err
+		}
+		if err := bv.SetChunking(defaultChunks([]*dim{w.dims[DimTime], w.dims[DimBounds]}, 8)); err != nil {
+			return fmt.Errorf("cfwrite: %s: variable time_bnds: %w", w.path, err)
+		}
+		ta.bv = bv
+	}
+	w.time = ta
+	return nil
+}
+
+// AppendTime appends one value (in the axis units) to the time axis and
+// returns its index, the step to pass to Var.WriteStep. Values must be
+// finite and strictly increasing. The first call ends the declarations.
+func (w *Writer) AppendTime(value float64) (int, error) {
+	return w.appendTime(value, 0, 0, false)
+}
+
+// AppendTimeBounded is AppendTime for an axis declared with Bounds: lower
+// and upper are the edges of the step's interval (lower < upper), and the
+// lower edges must not decrease.
+func (w *Writer) AppendTimeBounded(value, lower, upper float64) (int, error) {
+	return w.appendTime(value, lower, upper, true)
+}
+
+func (w *Writer) appendTime(value, lo, hi float64, bounded bool) (int, error) {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return 0, err
+	}
+	ta := w.time
+	switch {
+	case ta == nil:
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: AppendTime without a time axis; call SetTime first", w.path))
+	case ta.spec.Bounds && !bounded:
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: the time axis has bounds; append steps with AppendTimeBounded", w.path))
+	case !ta.spec.Bounds && bounded:
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: the time axis was declared without bounds (TimeAxis.Bounds); use AppendTime", w.path))
+	}
+	if checkFinite([]float64{value}) != nil {
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: time step %d: value %v is not finite", w.path, ta.n, value))
+	}
+	if ta.n > 0 && !(value > ta.last) {
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: time step %d: value %g does not exceed the previous %g; time must increase strictly (CF-1.10 §1.3)", w.path, ta.n, value, ta.last))
+	}
+	if bounded {
+		if checkFinite([]float64{lo, hi}) != nil || !(lo < hi) {
+			return 0, w.fail(fmt.Errorf("cfwrite: %s: time step %d: bounds [%v, %v] must be finite with lower < upper", w.path, ta.n, lo, hi))
+		}
+		if ta.n > 0 && lo < ta.lastLo {
+			return 0, w.fail(fmt.Errorf("cfwrite: %s: time step %d: lower bound %g is before the previous step's %g", w.path, ta.n, lo, ta.lastLo))
+		}
+	}
+	if err := w.endDefine(); err != nil {
+		return 0, w.fail(err)
+	}
+	if err := ta.v.WriteFloat64([]int{ta.n}, []int{1}, []float64{value}); err != nil {
+		return 0, w.fail(fmt.Errorf("cfwrite: %s: variable time, step %d: %w", w.path, ta.n, err))
+	}
+	if bounded {
+		if err := ta.bv.WriteFloat64([]int{ta.n, 0}, []int{1, 2}, []float64{lo, hi}); err != nil {
+			return 0, w.fail(fmt.Errorf("cfwrite: %s: variable time_bnds, step %d: %w", w.path, ta.n, err))
+		}
+		ta.lastLo = lo
+	}
+	ta.last = value
+	ta.n++
+	return ta.n - 1, nil
+}
+
+// Times returns the number of time steps appended so far.
+func (w *Writer) Times() int {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if w.time == nil {
+		return 0
+	}
+	return w.time.n
+}
+
+// AddAxis declares a further axis: a dimension and a double coordinate
+// variable of the same name, with NAME_bnds when bounds are given.
+func (w *Writer) AddAxis(a Axis) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("AddAxis"); err != nil {
+		return err
+	}
+	if err := w.addAxis(a); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) addAxis(a Axis) error {
+	if _, err := monotonic(a.Values); err != nil {
+		return fmt.Errorf("cfwrite: %s: axis %q: %w", w.path, a.Name, err)
+	}
+	if err := checkStandardName(a.StandardName); err != nil {
+		return fmt.Errorf("cfwrite: %s: axis %q: %w", w.path, a.Name, err)
+	}
+	bname := a.Name + "_bnds"
+	var attrs []attr
+	if a.StandardName != "" {
+		attrs = append(attrs, attr{"standard_name", a.StandardName})
+	}
+	if a.LongName != "" {
+		attrs = append(attrs, attr{"long_name", a.LongName})
+	}
+	if a.Units != "" {
+		attrs = append(attrs, attr{"units", a.Units})
+	}
+	if a.Bounds != nil {
+		if err := checkBounds(a.Values, a.Bounds); err != nil {
+			return fmt.Errorf("cfwrite: %s: axis %q bounds: %w", w.path, a.Name, err)
+		}
+		attrs = append(attrs, attr{"bounds", bname})
+	}
+	extra, err := extraAttrs(a.Attributes, []string{"standard_name", "long_name", "units", "bounds", "_FillValue"}, netcdf.Double)
+	if err != nil {
+		return fmt.Errorf("cfwrite: %s: axis %q: %w", w.path, a.Name, err)
+	}
+	attrs = append(attrs, extra...)
+	if err := w.claim(a.Name, "axis"); err != nil {
+		return err
+	}
+	if a.Bounds != nil {
+		if err := w.claim(bname, "bounds of axis "+a.Name); err != nil {
+			return err
+		}
+	}
+	if err := w.defDim(a.Name, len(a.Values), 0); err != nil {
+		return err
+	}
+	if a.Bounds != nil {
+		if err := w.needBounds(); err != nil {
+			return err
+		}
+	}
+	if _, err := w.defCoord(a.Name, netcdf.Double, []string{a.Name}, append([]float64(nil), a.Values...), attrs); err != nil {
+		return err
+	}
+	if a.Bounds != nil {
+		if _, err := w.defCoord(bname, netcdf.Double, []string{a.Name, DimBounds}, flatten(a.Bounds), nil); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// checkMeaning checks one flag_meanings word (CF-1.10 §3.5).
+func checkMeaning(s string) error {
+	if s == "" {
+		return errors.New("empty meaning")
+	}
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; !isNameByte(c) && !strings.ContainsRune("-.+@", rune(c)) {
+			return fmt.Errorf("meaning %q may use only letters, digits and _ - . + @ (CF-1.10 §3.5); join words with '_'", s)
+		}
+	}
+	return nil
+}
+
+// AddCategories declares a categorical axis: a dimension and an int
+// coordinate variable of the same name carrying flag_values and
+// flag_meanings.
+func (w *Writer) AddCategories(c Categories) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("AddCategories"); err != nil {
+		return err
+	}
+	if err := w.addCategories(c); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) addCategories(c Categories) error {
+	if len(c.Meanings) == 0 {
+		return fmt.Errorf("cfwrite: %s: categories %q: no meanings given", w.path, c.Name)
+	}
+	vals := c.Values
+	if vals == nil {
+		vals = make([]int, len(c.Meanings))
+		for i := range vals {
+			vals[i] = i
+		}
+	}
+	if len(vals) != len(c.Meanings) {
+		return fmt.Errorf("cfwrite: %s: categories %q: %d values for %d meanings", w.path, c.Name, len(vals), len(c.Meanings))
+	}
+	fv := make([]float64, len(vals))
+	for i, v := range vals {
+		if i > 0 && v <= vals[i-1] {
+			return fmt.Errorf("cfwrite: %s: categories %q: values must increase strictly (a coordinate variable, CF-1.10 §1.3); %d follows %d", w.path, c.Name, v, vals[i-1])
+		}
+		fv[i] = float64(v)
+	}
+	flagValues, err := toInt32s(vals)
+	if err != nil {
+		return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
+	}
+	for _, m := range c.Meanings {
+		if err := checkMeaning(m); err != nil {
+			return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
+		}
+	}
+	if err := checkStandardName(c.StandardName); err != nil {
+		return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
+	}
+	var attrs []attr
+	if c.StandardName != "" {
+		attrs = append(attrs, attr{"standard_name", c.StandardName})
+	}
+	if c.LongName != "" {
+		attrs = append(attrs, attr{"long_name", c.LongName})
+	}
+	attrs = append(attrs, attr{"flag_values", flagValues}, attr{"flag_meanings", strings.Join(c.Meanings, " ")})
+	extra, err := extraAttrs(c.Attributes, []string{"standard_name", "long_name", "flag_values", "flag_meanings", "_FillValue"}, netcdf.Int)
+	if err != nil {
+		return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
+	}
+	attrs = append(attrs, extra...)
+	if err := w.claim(c.Name, "categorical axis"); err != nil {
+		return err
+	}
+	if err := w.defDim(c.Name, len(vals), 0); err != nil {
+		return err
+	}
+	_, err = w.defCoord(c.Name, netcdf.Int, []string{c.Name}, fv, attrs)
+	return err
+}
+
+// AddScalarCoord declares a scalar coordinate variable (CF-1.10 §5.7).
+func (w *Writer) AddScalarCoord(s ScalarCoord) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err := w.state(); err != nil {
+		return err
+	}
+	if err := w.define("AddScalarCoord"); err != nil {
+		return err
+	}
+	if err := w.addScalar(s); err != nil {
+		return w.fail(err)
+	}
+	return nil
+}
+
+func (w *Writer) addScalar(s ScalarCoord) error {
+	if checkFinite([]float64{s.Value}) != nil {
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: value %v is not finite", w.path, s.Name, s.Value)
+	}
+	if err := checkStandardName(s.StandardName); err != nil {
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: %w", w.path, s.Name, err)
+	}
+	switch s.Positive {
+	case "", "up", "down":
+	default:
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: positive %q must be \"up\" or \"down\" (CF-1.10 §4.3)", w.path, s.Name, s.Positive)
+	}
+	switch s.Axis {
+	case "", "X", "Y", "Z", "T":
+	default:
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: axis %q must be X, Y, Z or T (CF-1.10 §4)", w.path, s.Name, s.Axis)
+	}
+	if s.StandardName == "" && s.LongName == "" {
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: give a StandardName or a LongName", w.path, s.Name)
+	}
+	var attrs []attr
+	for _, a := range []attr{{"standard_name", s.StandardName}, {"long_name", s.LongName},
+		{"units", s.Units}, {"positive", s.Positive}, {"axis", s.Axis}} {
+		if a.value != "" {
+			attrs = append(attrs, a)
+		}
+	}
+	extra, err := extraAttrs(s.Attributes, []string{"standard_name", "long_name", "units", "positive", "axis", "_FillValue"}, netcdf.Double)
+	if err != nil {
+		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: %w", w.path, s.Name, err)
+	}
+	attrs = append(attrs, extra...)
+	if err := w.claim(s.Name, "scalar coordinate"); err != nil {
+		return err
+	}
+	if _, err := w.defCoord(s.Name, netcdf.Double, nil, []float64{s.Value}, attrs); err != nil {
+		return err
+	}
+	w.scalars[s.Name] = true
+	return nil
+}
