@@ -3,6 +3,7 @@ package metrics_test
 import (
 	"fmt"
 	"log"
+	"strings"
 
 	"lidscope/metrics"
 )
@@ -47,7 +48,7 @@ func ExampleKernel_Slab() {
 	fmt.Printf("LTS %.2f\nEIS %.2f\n%+v\n", out.LTS, out.EIS, st)
 	// Output:
 	// LTS [22.22 15.71 NaN]
-	// EIS [9.21 1.43 NaN]
+	// EIS [9.21 0.42 NaN]
 	// {Columns:3 Missing:1 Rejected:0}
 }
 
@@ -56,8 +57,23 @@ func ExampleRecipe_Text() {
 	r := metrics.DefaultRecipe()
 	r.SVP = metrics.SVPBolton
 	r.LCL = metrics.LCLBolton
-	fmt.Println(r.Text()[:120])
-	// Output: lidscope-metrics-recipe/1; constants Rd=287.04 Rv=461.5 cpd=1005.7 Lv0=2.501e+06 LvSlope=0 g=9.80665 p0=100000; theta=T
+	for _, part := range strings.Split(r.Text(), "; ") {
+		fmt.Println(part)
+	}
+	// Output:
+	// lidscope-metrics-recipe/1
+	// constants Rd=287.04 Rv=461.5 cpd=1005.7 Lv0=2.501e+06 LvSlope=0 g=9.80665 p0=100000
+	// theta=T*(p0/p)^(Rd/cpd)
+	// svp=bolton (Bolton 1980 eq. 10, over liquid)
+	// lcl=bolton (Bolton 1980 eq. 22 T_LCL, dry adiabat cpd/g)
+	// surface-temperature=sst
+	// surface-pressure=100000 Pa
+	// humidity=assumed-rh 0.8 (over liquid)
+	// lapse=Wood & Bretherton 2006 eq. 5 at 85000 Pa, qs, T=(Ts+T700)/2
+	// z700=hypsometric Rd*(Ts+T700)/2/g*ln(ps/70000), no virtual correction
+	// lts=theta700-theta_surface (Klein & Hartmann 1993)
+	// eis=LTS-Gamma_theta*(z700-z_LCL) (Wood & Bretherton 2006 eq. 4)
+	// ectei=off
 }
 
 // The check values of Romps' (2017) published code.
@@ -91,11 +107,11 @@ func ExampleMoistAdiabatThetaGradient() {
 	gθ := metrics.MoistAdiabatThetaGradient(T, qs, c)
 	gT := metrics.MoistAdiabaticLapseRate(T, qs, c)
 	fmt.Printf("Γθ %.3f K/km, Γ_T %.3f K/km, sum %.4f K/km = g/cp %.4f K/km\n", gθ*1e3, gT*1e3, (gθ+gT)*1e3, c.G/c.Cpd*1e3)
-	// Output: Γθ 3.293 K/km, Γ_T 6.458 K/km, sum 9.7511 K/km = g/cp 9.7511 K/km
+	// Output: Γθ 3.273 K/km, Γ_T 6.478 K/km, sum 9.7511 K/km = g/cp 9.7511 K/km
 }
 
 func ExampleSVPFormula_DewPoint() {
 	td := metrics.SVPMurphyKoop.DewPoint(293.15, 0.5)
 	fmt.Printf("%.2f °C\n", td-metrics.ZeroCelsius)
-	// Output: 9.26 °C
+	// Output: 9.27 °C
 }
