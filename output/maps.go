@@ -1,0 +1,319 @@
+package output
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"lidscope/cfwrite"
+	"lidscope/regimes"
+)
+
+// regimeDim is the name of the categorical regime axis in maps.nc and
+// series.nc. Its index k is regimes.All[k]: 0 convective, 1 transition,
+// 2 subsidence.
+const regimeDim = "regime"
+
+func regimeCategories() cfwrite.Categories {
+	m := make([]string, len(regimes.All))
+	for k, r := range regimes.All {
+		m[k] = r.String()
+	}
+	return cfwrite.Categories{
+		Name:     regimeDim,
+		LongName: "SST regime (relative sea surface temperature above or below the threshold)",
+		Meanings: m,
+	}
+}
+
+// timeComment returns the parenthesised part of a time cell method: the
+// interval of the original steps when it is monthly (CF-1.10 §7.3.2
+// "interval: value unit"), then the non-standard comment.
+func (c *checked) timeComment(comment string) string {
+	if c.meta.StepsPerYear == 12 {
+		return "(interval: 1 month comment: " + comment + ")"
+	}
+	return "(comment: " + comment + ")"
+}
+
+// mapVar is one variable of maps.nc with its values for the single time
+// step (the whole record).
+type mapVar struct {
+	spec cfwrite.VarSpec
+	data []float64
+}
+
+// mapVars builds every variable of maps.nc. Regime variables are laid out
+// [regime][lat][lon] in the order of regimes.All.
+func (c *checked) mapVars() []mapVar {
+	acc := c.acc
+	cells := &acc.Cells
+	n := len(cells.Valid)
+	yx := []string{cfwrite.DimTime, cfwrite.DimLat, cfwrite.DimLon}
+	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
+	steps := strconv.FormatFloat(c.meta.StepsPerYear, 'g', -1, 64)
+	var out []mapVar
+	add := func(s cfwrite.VarSpec, d []float64) { out = append(out, mapVar{s, d}) }
+
+	for _, r := range regimes.All {
+		d := make([]float64, n)
+		for i, v := range cells.Valid {
+			d[i] = math.NaN()
+			if v > 0 {
+				d[i] = float64(cells.Count[r][i]) / float64(v)
+			}
+		}
+		add(cfwrite.VarSpec{
+			Name: r.String() + "_fraction", Dims: yx, Units: "1",
+			LongName:    "fraction of valid time steps in the " + r.String() + " regime",
+			CellMethods: "time: mean " + c.timeComment("of the "+r.String()+"-regime indicator over the time steps in which the column was valid ocean with data"),
+		}, d)
+	}
+	add(cfwrite.VarSpec{
+		Name: "crossings_per_year", Dims: yx, Units: "yr-1",
+		LongName:    "crossings between the convective and subsidence regimes per year of record",
+		CellMethods: "time: mean " + c.timeComment("crossings counted with hysteresis across transition and missing steps, divided by the record length in years"),
+		Attributes:  map[string]any{"time_steps_per_year": c.meta.StepsPerYear},
+	}, acc.CrossingsPerYear(c.meta.StepsPerYear))
+	for _, r := range []regimes.Regime{regimes.Convective, regimes.Subsidence} {
+		d := make([]float64, n)
+		for i := range d {
+			d[i] = math.NaN()
+			if cells.Valid[i] > 0 {
+				d[i] = cells.Tracks[i].MeanDwell(r)
+			}
+		}
+		add(cfwrite.VarSpec{
+			Name: "dwell_" + r.String(), Dims: yx, Units: "1",
+			LongName:    "mean dwell time in the " + r.String() + " regime, in time steps",
+			CellMethods: "time: mean " + c.timeComment("mean length of the runs of steps in the regime, runs cut off by the ends of the record included"),
+			Attributes: map[string]any{
+				"time_steps_per_year": c.meta.StepsPerYear,
+				"comment":             "a number of time steps; one step is 1/" + steps + " year",
+			},
+		}, d)
+		if c.meta.StepsPerYear == 12 {
+			add(cfwrite.VarSpec{
+				Name: "dwell_" + r.String() + "_months", Dims: yx, Units: "month",
+				LongName:    "mean dwell time in the " + r.String() + " regime",
+				CellMethods: "time: mean " + c.timeComment("mean length of the runs of monthly steps in the regime, runs cut off by the ends of the record included"),
+				Attributes:  map[string]any{"comment": "dwell_" + r.String() + " of monthly steps in months; the UDUNITS month is a twelfth of a year"},
+			}, d)
+		}
+	}
+	valid := make([]float64, n)
+	for i, v := range cells.Valid {
+		valid[i] = float64(v)
+	}
+	add(cfwrite.VarSpec{
+		Name: "valid_steps", Dims: yx, Type: cfwrite.Int32, Units: "1",
+		LongName:    "number of time steps in which the column was valid ocean with data",
+		CellMethods: "time: sum " + c.timeComment("of the indicator of a valid step"),
+		Attributes:  map[string]any{"time_steps_in_record": cells.Steps},
+	}, valid)
+	rm, rs := make([]float64, n), make([]float64, n)
+	for i, m := range cells.Rel {
+		rm[i], rs[i] = m.MeanOrNaN(), m.Std()
+	}
+	add(cfwrite.VarSpec{
+		Name: "rel_sst_mean", Dims: yx, Units: "K",
+		LongName:    "relative sea surface temperature (SST minus tropical-mean SST)",
+		CellMethods: "time: mean " + c.timeComment("over the valid time steps of the column"),
+	}, rm)
+	add(cfwrite.VarSpec{
+		Name: "rel_sst_std", Dims: yx, Units: "K",
+		LongName:    "relative sea surface temperature (SST minus tropical-mean SST)",
+		CellMethods: "time: standard_deviation " + c.timeComment("population standard deviation over the valid time steps of the column"),
+	}, rs)
+
+	for qi, name := range acc.L.Quantities {
+		q := c.qs[qi]
+		mean := make([]float64, len(regimes.All)*n)
+		cnt := make([]float64, len(regimes.All)*n)
+		for k, r := range regimes.All {
+			for i, m := range cells.Values[qi][r] {
+				mean[k*n+i] = m.MeanOrNaN()
+				cnt[k*n+i] = float64(m.N)
+			}
+		}
+		coord := ""
+		if q.PressurePa > 0 {
+			coord = pressureCoordName(q.PressurePa)
+		}
+		add(cfwrite.VarSpec{
+			Name: name + "_mean", Dims: ryx, Units: q.Units,
+			LongName: q.LongName, StandardName: q.StandardName,
+			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
+			Coordinates: coord,
+		}, mean)
+		add(cfwrite.VarSpec{
+			Name: name + "_count", Dims: ryx, Type: cfwrite.Int32, Units: "1",
+			LongName:    "number of time steps averaged in " + name + "_mean",
+			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
+		}, cnt)
+	}
+	return out
+}
+
+// pressureCoordName names the scalar pressure coordinate of a single-level
+// quantity, e.g. p700 for 70000 Pa.
+func pressureCoordName(pa float64) string {
+	return "p" + strconv.FormatFloat(pa/100, 'g', -1, 64)
+}
+
+// cfGrid converts the analysis grid for cfwrite, whose bounds run in the
+// direction of the centres.
+func (c *checked) cfGrid() cfwrite.Grid {
+	g := c.meta.Grid
+	dir := func(centres []float64, b [][2]float64) [][2]float64 {
+		out := make([][2]float64, len(b))
+		desc := len(centres) > 1 && centres[1] < centres[0]
+		for i, p := range b {
+			lo, hi := math.Min(p[0], p[1]), math.Max(p[0], p[1])
+			if desc {
+				lo, hi = hi, lo
+			}
+			out[i] = [2]float64{lo, hi}
+		}
+		return out
+	}
+	return cfwrite.Grid{
+		Lat: append([]float64(nil), g.Lat...), Lon: append([]float64(nil), g.Lon...),
+		LatBounds: dir(g.Lat, g.LatBounds), LonBounds: dir(g.Lon, g.LonBounds),
+	}
+}
+
+// globalAttrs are the provenance attributes of both NetCDF files.
+func (c *checked) globalAttrs(notes []string) map[string]string {
+	m := c.meta
+	a := map[string]string{
+		"dataset":                 m.Dataset,
+		"lidscope_version":        m.Version,
+		"recipe_hash":             m.RecipeHash,
+		"metrics_recipe":          m.MetricsRecipe,
+		"regime_definition":       m.RegimeDefinition,
+		"delta_K":                 formatFloat(m.Delta),
+		"transition_half_width_K": formatFloat(m.HalfWidth),
+		"band":                    formatFloat(m.BandSouth) + " to " + formatFloat(m.BandNorth) + " degrees_north",
+		"period":                  c.period(),
+		"time_steps":              strconv.Itoa(len(c.acc.Series)),
+		"time_steps_per_year":     formatFloat(m.StepsPerYear),
+		"regime_index":            regimeIndexText(),
+	}
+	if len(m.Inputs) > 0 {
+		var b strings.Builder
+		for i, f := range m.Inputs {
+			if i > 0 {
+				b.WriteByte('\n')
+			}
+			fmt.Fprintf(&b, "%s: %s (%d bytes, sha256 %s)", f.Role, f.Path, f.Size, f.SHA256)
+		}
+		a["input_files"] = b.String()
+	}
+	if len(notes) > 0 {
+		a["processing_notes"] = strings.Join(notes, "\n")
+	}
+	for k, v := range a {
+		if v == "" {
+			delete(a, k)
+		}
+	}
+	return a
+}
+
+func regimeIndexText() string {
+	var parts []string
+	for k, r := range regimes.All {
+		parts = append(parts, fmt.Sprintf("%d = %s", k, r))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// period is Meta.Period, or the first and last step labels.
+func (c *checked) period() string {
+	if c.meta.Period != "" {
+		return c.meta.Period
+	}
+	s := c.acc.Series
+	return s[0].Label + " … " + s[len(s)-1].Label
+}
+
+func (c *checked) fileOptions(what string, notes []string) cfwrite.Options {
+	m := c.meta
+	title := m.Title
+	if title == "" {
+		title = "lidscope regime statistics"
+		if m.Dataset != "" {
+			title += ": " + m.Dataset
+		}
+	}
+	src := "lidscope"
+	if m.Version != "" {
+		src += " " + m.Version
+	}
+	return cfwrite.Options{
+		Title:      title + " (" + what + ")",
+		Source:     src,
+		Command:    commandArgs(m.Command),
+		Created:    m.End,
+		Attributes: c.globalAttrs(notes),
+	}
+}
+
+// writeMaps writes maps.nc at path.
+func (c *checked) writeMaps(path string, notes []string) error {
+	w, err := cfwrite.Create(path, c.fileOptions("per-column maps over the record", notes))
+	if err != nil {
+		return err
+	}
+	defer w.Abort()
+	if err := w.SetGrid(c.cfGrid()); err != nil {
+		return err
+	}
+	value, lo, hi, bounded, _ := c.periodAxis()
+	if err := w.SetTime(cfwrite.TimeAxis{Units: c.meta.TimeUnits, Calendar: c.meta.Calendar, Bounds: bounded}); err != nil {
+		return err
+	}
+	if err := w.AddCategories(regimeCategories()); err != nil {
+		return err
+	}
+	var levels []float64
+	for _, q := range c.qs {
+		if q.PressurePa > 0 {
+			levels = append(levels, q.PressurePa)
+		}
+	}
+	sort.Float64s(levels)
+	for i, pa := range levels {
+		if i > 0 && pa == levels[i-1] {
+			continue
+		}
+		if err := w.AddScalarCoord(cfwrite.PressureCoord(pressureCoordName(pa), pa)); err != nil {
+			return err
+		}
+	}
+	vars := c.mapVars()
+	handles := make([]*cfwrite.Var, len(vars))
+	for k, v := range vars {
+		if handles[k], err = w.AddVar(v.spec); err != nil {
+			return err
+		}
+	}
+	var step int
+	if bounded {
+		step, err = w.AppendTimeBounded(value, lo, hi)
+	} else {
+		step, err = w.AppendTime(value)
+	}
+	if err != nil {
+		return err
+	}
+	for k, v := range vars {
+		if err := handles[k].WriteStep(step, v.data); err != nil {
+			return err
+		}
+	}
+	return w.Close()
+}

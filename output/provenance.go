@@ -1,0 +1,113 @@
+package output
+
+import (
+	"math"
+	"runtime"
+	"time"
+
+	"lidscope/netcdf"
+)
+
+type provenance struct {
+	Format          string       `json:"format"`
+	FormatVersion   int          `json:"format_version"`
+	LidscopeVersion string       `json:"lidscope_version"`
+	Command         string       `json:"command"`
+	Dataset         string       `json:"dataset"`
+	Title           string       `json:"title"`
+	Recipe          provRecipe   `json:"recipe"`
+	MetricsRecipe   string       `json:"metrics_recipe"`
+	Regime          sumRegime    `json:"regime_definition"`
+	Inputs          []provInput  `json:"inputs"`
+	Run             provRun      `json:"run"`
+	Host            provHost     `json:"host"`
+	Time            provTime     `json:"time_axis"`
+	Outputs         []provOutput `json:"outputs"`
+	Notes           []string     `json:"notes"`
+}
+
+type provRecipe struct {
+	Text   string `json:"text"`
+	SHA256 string `json:"hash"`
+}
+
+type provInput struct {
+	Role     string `json:"role"`
+	Path     string `json:"path"`
+	Size     num    `json:"size"`
+	Modified string `json:"modified"`
+	SHA256   string `json:"sha256"`
+}
+
+type provRun struct {
+	Start    string `json:"start"`
+	End      string `json:"end"`
+	Duration num    `json:"duration"`
+}
+
+type provHost struct {
+	OS        string `json:"os"`
+	Arch      string `json:"arch"`
+	GoVersion string `json:"go_version"`
+	CPUs      num    `json:"cpus"`
+	NetCDF    string `json:"netcdf_c_library"`
+}
+
+type provTime struct {
+	Units    string `json:"units"`
+	Calendar string `json:"calendar"`
+	Steps    num    `json:"steps"`
+	Bounds   string `json:"bounds"`
+}
+
+// provOutput is one file written before provenance.json, with its digest.
+type provOutput struct {
+	Name   string `json:"name"`
+	Size   num    `json:"size"`
+	SHA256 string `json:"sha256"`
+}
+
+func rfc3339(t time.Time) string {
+	if t.IsZero() {
+		return ""
+	}
+	return t.UTC().Format(time.RFC3339Nano)
+}
+
+// provenance builds provenance.json; outs are the files already staged.
+func (c *checked) provenance(notes []string, outs []provOutput) provenance {
+	m := c.meta
+	p := provenance{
+		Format: ProvenanceFormat, FormatVersion: FormatVersion,
+		LidscopeVersion: m.Version, Command: m.Command, Dataset: m.Dataset, Title: m.Title,
+		Recipe:        provRecipe{Text: m.Recipe, SHA256: m.RecipeHash},
+		MetricsRecipe: m.MetricsRecipe,
+		Inputs:        []provInput{},
+		Run:           provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{math.NaN(), "s"}},
+		Host: provHost{OS: runtime.GOOS, Arch: runtime.GOARCH, GoVersion: runtime.Version(),
+			CPUs: count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
+		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: count(len(c.acc.Series)), Bounds: "none"},
+		Outputs: outs,
+		Notes:   append([]string{}, notes...),
+	}
+	p.Regime = c.summaryRegime()
+	if !m.Start.IsZero() && !m.End.IsZero() {
+		p.Run.Duration = num{m.End.Sub(m.Start).Seconds(), "s"}
+	}
+	if m.TimeBounds != nil {
+		p.Time.Bounds = "given by the run"
+	}
+	for _, f := range m.Inputs {
+		p.Inputs = append(p.Inputs, provInput{Role: f.Role, Path: f.Path, Size: num{float64(f.Size), "byte"}, Modified: rfc3339(f.ModTime), SHA256: f.SHA256})
+	}
+	return p
+}
+
+func (c *checked) summaryRegime() sumRegime {
+	m := c.meta
+	return sumRegime{
+		Text: m.RegimeDefinition, Delta: num{m.Delta, "K"}, HalfWidth: num{m.HalfWidth, "K"},
+		Band:  sumBand{South: num{m.BandSouth, "degrees_north"}, North: num{m.BandNorth, "degrees_north"}},
+		Index: regimeIndexText(),
+	}
+}
