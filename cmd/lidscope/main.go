@@ -25,6 +25,7 @@ type command struct {
 
 func commands() map[string]command {
 	return map[string]command{
+		"calc":    {"compute LTS, EIS and their ingredients for one column", cmdCalc},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},
 		"version": {"print the lidscope version", func(_ []string, w, _ io.Writer) error {
 			_, err := fmt.Fprintln(w, "lidscope", version)
