@@ -234,7 +234,7 @@ func findCoords(f *netcdf.File, v *netcdf.Var, ov Overrides) ([]coord, error) {
 			continue
 		}
 		if j, dup := seen[c.Axis]; dup {
-			return nil, fmt.Errorf("%s: variable %s: dimensions %s and %s both look like %s; name the right one in the recipe (coordinate overrides)", f.Path(), v.Name, v.Dims[j].Name, v.Dims[i].Name, c.Axis)
+			return nil, fmt.Errorf("%s: variable %s: dimensions %s and %s both look like %s; name the right one in the recipe (the coordinates key)", f.Path(), v.Name, v.Dims[j].Name, v.Dims[i].Name, c.Axis)
 		}
 		seen[c.Axis] = i
 	}

@@ -105,6 +105,9 @@ func Open(paths []string, spec Spec) (*Field, error) {
 		return nil, err
 	}
 	for _, p := range paths {
+		if err := checkClassicSize(p); err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
 		nf, err := netcdf.Open(p)
 		if err != nil {
 			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
@@ -172,19 +175,24 @@ func (fld *Field) orderSegments() error {
 	sort.SliceStable(fld.segs, func(i, j int) bool { return fld.segs[i].times[0].Before(fld.segs[j].times[0]) })
 	fld.paths = fld.paths[:0]
 	var all []Date
-	for _, s := range fld.segs {
+	for j, s := range fld.segs {
 		fld.paths = append(fld.paths, s.file.Path())
 		all = append(all, s.times...)
-	}
-	for i := 1; i < len(all); i++ {
-		if !all[i-1].Before(all[i]) {
-			// find files
-			where := fld.fileOf(i-1) + " and " + fld.fileOf(i)
-			if all[i-1].Equal(all[i]) {
-				return fmt.Errorf("time step %s appears twice (%s): remove the duplicate file or limit the time range", all[i].String(), where)
-			}
-			return fmt.Errorf("time goes backwards from %s to %s (%s): files overlap; remove the overlap", all[i-1].String(), all[i].String(), where)
+		if j == 0 {
+			continue
 		}
+		// Each file's own axis increases (decodeTimeAxis checks it), so the
+		// record increases when every file starts after its predecessor ends.
+		prev := fld.segs[j-1]
+		last, first := prev.times[len(prev.times)-1], s.times[0]
+		if first.After(last) {
+			continue
+		}
+		a, b := prev.file.Path(), s.file.Path()
+		if d, ok := commonDate(prev.times, s.times); ok {
+			return fmt.Errorf("time step %s appears twice, in %s and in %s: remove the duplicate file or limit the time range", d, a, b)
+		}
+		return fmt.Errorf("files overlap in time: %s runs to %s but %s starts at %s; remove the overlap", a, last, b, first)
 	}
 	fld.Time.Dates = all
 	fld.Time.classify()
@@ -194,14 +202,20 @@ func (fld *Field) orderSegments() error {
 	return nil
 }
 
-func (fld *Field) fileOf(t int) string {
-	for _, s := range fld.segs {
-		if t < s.nt {
-			return s.file.Path()
+// commonDate returns the first date of b that is also in a (both increase).
+func commonDate(a, b []Date) (Date, bool) {
+	i, j := 0, 0
+	for i < len(a) && j < len(b) {
+		switch c := a[i].Compare(b[j]); {
+		case c == 0:
+			return b[j], true
+		case c < 0:
+			i++
+		default:
+			j++
 		}
-		t -= s.nt
 	}
-	return "?"
+	return Date{}, false
 }
 
 // openOne resolves the spec against one open file.
@@ -227,6 +241,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		return nil, err
 	}
 	fld := &Field{Role: spec.Role, Var: name, Kind: kind, ti: -1, zi: -1, yi: -1, xi: -1, ndim: len(v.Dims), paths: []string{path}}
+	var unknown []int // dimensions of length > 1 with no recognised axis
 	for i, c := range cs {
 		switch c.Axis {
 		case AxisT:
@@ -239,9 +254,8 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 			fld.xi = i
 		default:
 			if v.Dims[i].Len != 1 {
-				return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0` or name its coordinate in the recipe", path, name, v.Dims[i].Name, v.Dims[i].Len, v.Dims[i].Name)
-			}
-			if c.Var == nil {
+				unknown = append(unknown, i)
+			} else if c.Var == nil {
 				fld.Notes = append(fld.Notes, fmt.Sprintf("length-1 dimension %s ignored", v.Dims[i].Name))
 			}
 		}
@@ -251,7 +265,11 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		for _, d := range v.Dims {
 			dn = append(dn, d.Name)
 		}
-		return nil, fmt.Errorf("%s: variable %s(%s): no latitude/longitude coordinates found (looked for axis, standard_name, units degrees_north/degrees_east, the coordinates attribute and common names); name them in the recipe (coordinate overrides)", path, name, strings.Join(dn, ", "))
+		return nil, fmt.Errorf("%s: variable %s(%s): no latitude/longitude coordinates found (looked for axis, standard_name, units degrees_north/degrees_east, the coordinates attribute and common names); name them in the recipe (coordinates.%s.lat and coordinates.%s.lon)", path, name, strings.Join(dn, ", "), spec.Role, spec.Role)
+	}
+	if len(unknown) > 0 {
+		d := v.Dims[unknown[0]]
+		return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0`, or name its coordinate in the recipe (coordinates.%s)", path, name, d.Name, d.Len, d.Name, spec.Role)
 	}
 	// Horizontal layout.
 	latV, lonV := cs[fld.yi].Var, cs[fld.xi].Var
@@ -307,7 +325,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 			}
 			pick, err := PickLevel(lv, lu, spec.Level)
 			if err != nil {
-				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w", path, name, zv.Name, err)
+				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w (recipe key coordinates.%s.level_units)", path, name, zv.Name, err, spec.Role)
 			}
 			fld.Level = &pick
 		}
@@ -346,12 +364,12 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		u = textAttr(v, "units")
 		uSrc = "units attribute"
 		if _, err := v.Attr("units"); err != nil && kind != units.Fraction {
-			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the recipe (e.g. units: %s)", path, name, kind.SI())
+			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the recipe (units.%s: %s, if that is what it is)", path, name, spec.Role, kind.SI())
 		}
 	}
 	fld.Conv, err = units.Parse(kind, u)
 	if err != nil {
-		return nil, fmt.Errorf("%s: variable %s (%s): %w; set its units in the recipe if the file is wrong", path, name, uSrc, err)
+		return nil, fmt.Errorf("%s: variable %s (%s): %w; set units.%s in the recipe if the file is wrong", path, name, uSrc, err, spec.Role)
 	}
 	if !fld.Conv.Identity() {
 		fld.Notes = append(fld.Notes, "units "+fld.Conv.String())
@@ -503,7 +521,7 @@ func FindRole(nf *netcdf.File, r Role) (string, error) {
 			why = append(why, x.String())
 		}
 	}
-	msg := fmt.Sprintf("%s: no variable found for role %s (by standard_name %s or by name); name it in the recipe", nf.Path(), r, strings.Join(specOf(r).StandardNames, " / "))
+	msg := fmt.Sprintf("%s: no variable found for role %s (by standard_name %s or by name); name it in the recipe (variables.%s: NAME)", nf.Path(), r, strings.Join(specOf(r).StandardNames, " / "), r)
 	if len(why) > 0 {
 		msg += "; " + strings.Join(why, "; ")
 	}

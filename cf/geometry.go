@@ -18,7 +18,7 @@ import (
 
 // Layout maps a file's stored horizontal order to the canonical one.
 type Layout struct {
-	Lat, Lon             []float64    // canonical centres, degrees
+	Lat, Lon []float64 // canonical centres, degrees
 	// LatBounds and LonBounds are the canonical cell bounds, [lower, upper]
 	// per centre: read from the file's bounds variables (CF-1.10 §7.1) when
 	// it has them, else derived half-way between neighbouring centres. They
@@ -44,6 +44,9 @@ func normLon(x float64) float64 {
 	y := math.Mod(x+180, 360)
 	if y < 0 {
 		y += 360
+	}
+	if y >= 360 { // a tiny negative y rounds up to 360 when shifted
+		y = 0
 	}
 	return y - 180
 }
@@ -154,8 +157,10 @@ func newLayout(path string, latName, lonName string, lat, lon []float64, latB, l
 		kept = append(kept, c)
 	}
 	if dropped > 0 {
-		if dropped > 1 || span < 359.999 {
-			return nil, fmt.Errorf("%s: longitude %s has %d values that coincide modulo 360; only one duplicated wrap-around column is allowed", path, lonName, dropped)
+		// Only the last column may repeat the first, one full turn later.
+		wrap := math.Abs(span-360) < 1e-3 && math.Abs(normLon(lon[0])-normLon(lon[nx-1])) < 1e-6
+		if dropped > 1 || !wrap {
+			return nil, fmt.Errorf("%s: longitude %s has %d values that coincide modulo 360; only a last column that repeats the first, 360° on, is allowed (a duplicated wrap-around column)", path, lonName, dropped)
 		}
 		l.Notes = append(l.Notes, "duplicated wrap-around longitude column dropped")
 	}

@@ -65,6 +65,10 @@ func levelFor(r Role) float64 {
 // file; an unreadable file gives a report with Usable false.
 func Inspect(path string) *FileReport {
 	rep := &FileReport{Path: path}
+	if err := checkClassicSize(path); err != nil {
+		rep.Problems = append(rep.Problems, err.Error())
+		return rep
+	}
 	nf, err := netcdf.Open(path)
 	if err != nil {
 		rep.Problems = append(rep.Problems, fmt.Sprintf("cannot open: %v", err))
@@ -275,13 +279,14 @@ func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int
 	case units.Temperature:
 		switch {
 		case conv.Offset != 0 && rawLo > 150 && rawHi < 350:
-			out = append(out, rng+": these look like kelvin, not Celsius; if so set units: K in the recipe")
+			out = append(out, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the recipe")
 		case conv.Offset == 0 && rawHi < 100 && rawLo > -100:
-			out = append(out, rng+": these look like degrees Celsius, not kelvin; if so set units: degC in the recipe")
+			out = append(out, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the recipe")
 		case lo < 150 || hi > 350:
 			out = append(out, rng+": outside 150…350 K, impossible for "+string(r))
 		}
-		if r == RoleSST && rawLo == 0 && rawHi == 0 {
+		// (a tolerance: slabs are float32, so 0 °C comes back as 273.15f)
+		if r == RoleSST && math.Abs(rawLo) < 1e-3 && math.Abs(rawHi) < 1e-3 {
 			out = append(out, rng+": SST is 0 everywhere in the sampled steps; suspicious (a land mask or fill?)")
 		}
 	case units.Fraction:
@@ -289,17 +294,17 @@ func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
 			out = append(out, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the recipe which values are ocean")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas? category codes?); convert them to a fraction first, or set the units in the recipe")
+			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas? category codes?); convert them to a fraction first, or set units."+string(r)+" in the recipe")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
-			out = append(out, rng+": values up to 100 look like percent; if so set units: % in the recipe")
+			out = append(out, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the recipe")
 		case hi > 1.05 || lo < -0.05:
 			out = append(out, rng+": a fraction must lie in 0…1")
 		case conv.Scale == 0.01 && rawHi <= 1.0 && rawHi > 0:
-			out = append(out, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units: 1 in the recipe")
+			out = append(out, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the recipe")
 		}
 	case units.Pressure:
 		if hi < 2000 && hi > 0 {
-			out = append(out, rng+": far too small for Pa; if these are hPa set units: hPa in the recipe")
+			out = append(out, rng+": far too small for Pa; if these are hPa set units."+string(r)+": hPa in the recipe")
 		} else if hi > 120000 {
 			out = append(out, rng+": above 1200 hPa; check the units")
 		}

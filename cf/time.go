@@ -130,11 +130,19 @@ func (ta *TimeAxis) classify() {
 			return
 		}
 	}
+	// Monthly with gaps (which Gaps reports): every step moves on by whole
+	// months, most by one, and the stamps keep to one day of the month
+	// (within 3 days, or all at month ends).
+	lo, hi := ta.Dates[0].Day, ta.Dates[0].Day
+	for _, d := range ta.Dates {
+		lo, hi = min(lo, d.Day), max(hi, d.Day)
+	}
+	sameDay := hi-lo <= 3 || lo >= 28
 	switch {
 	case twelves == n-1:
 		ta.Step = StepAnnual
-	case ones*10 >= (n-1)*9:
-		ta.Step = StepMonthly // with a few gaps, which Gaps reports
+	case sameDay && ones*2 >= n-1:
+		ta.Step = StepMonthly
 	default:
 		ta.Step, ta.Why = StepIrregular, why
 	}
@@ -224,7 +232,7 @@ func decodeTimeAxis(nf *netcdf.File, cv *netcdf.Var, ov Overrides) (*TimeAxis, e
 	if u == "" {
 		u = textAttr(cv, "units")
 		if _, err := cv.Attr("units"); err != nil {
-			return nil, fmt.Errorf("%s: time coordinate %s has no units attribute (CF-1.10 §4.4 needs \"<unit> since <date>\"); declare the time units in the recipe, or declare a 12-month climatology", path, cv.Name)
+			return nil, fmt.Errorf("%s: time coordinate %s has no units attribute (CF-1.10 §4.4 needs \"<unit> since <date>\"); set time.units in the recipe, or time.climatology: true for a 12-month climatology", path, cv.Name)
 		}
 	} else {
 		ta.Declared = true
@@ -244,11 +252,11 @@ func decodeTimeAxis(nf *netcdf.File, cv *netcdf.Var, ov Overrides) (*TimeAxis, e
 			if ov.Calendar != "" {
 				where = fmt.Sprintf("time coordinate %s, calendar %q from the recipe", cv.Name, calName)
 			}
-			return nil, fmt.Errorf("%s: %s: %w; set the calendar in the recipe overrides (Calendar, one of %s)", path, where, err, strings.Join(calendar.CalendarNames(), ", "))
+			return nil, fmt.Errorf("%s: %s: %w; set time.calendar in the recipe (one of %s)", path, where, err, strings.Join(calendar.CalendarNames(), ", "))
 		}
-		hint := "; recipe overrides that fix it: TimeUnits with CF units for these values (e.g. \"months since 1988-01-01\")"
+		hint := "; fix it in the recipe: time.units with CF units for these values (e.g. \"months since 1988-01-01\")"
 		if n == 12 {
-			hint += ", or Climatology: true — the axis has 12 steps, which looks like a 12-month climatology, January first"
+			hint += ", or time.climatology: true — the axis has 12 steps, which looks like a 12-month climatology, January first"
 		}
 		return nil, fmt.Errorf("%s: %s: %w%s", path, where, err, hint)
 	}

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"lidscope/cf"
+	"lidscope/pipeline"
 )
 
 // inspectOptions are the options of `lidscope inspect`.
@@ -55,6 +56,13 @@ func runInspect(o inspectOptions, w io.Writer) error {
 				fmt.Fprintln(w)
 			}
 			writeReport(w, r)
+		}
+		if len(reports) > 1 {
+			if gr, err := pipeline.CompareGrids(reports); err == nil {
+				fmt.Fprintf(w, "\ngrids: %s\n", gr)
+			} else {
+				fmt.Fprintf(w, "\ngrids: cannot compare: %v\n", err)
+			}
 		}
 	}
 	if !ok {

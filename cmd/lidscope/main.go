@@ -27,6 +27,7 @@ func commands() map[string]command {
 	return map[string]command{
 		"calc":    {"compute LTS, EIS and their ingredients for one column", cmdCalc},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},
+		"recipe":  {"write a commented starter recipe from NetCDF files (recipe init FILE...)", cmdRecipe},
 		"version": {"print the lidscope version", func(_ []string, w, _ io.Writer) error {
 			_, err := fmt.Fprintln(w, "lidscope", version)
 			return err

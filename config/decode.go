@@ -1,0 +1,896 @@
+package config
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"sort"
+	"strconv"
+	"strings"
+
+	"lidscope/calendar"
+	"lidscope/cf"
+	"lidscope/metrics"
+	"lidscope/regimes"
+	"lidscope/regrid"
+	"lidscope/units"
+)
+
+// Defaults of the analysis (see the package documentation for why).
+const (
+	DefaultBandSouth     = -30.0 // degrees north
+	DefaultBandNorth     = 30.0  // degrees north
+	DefaultThreshold     = 1.5   // K
+	DefaultMinOcean      = 0.5   // ocean fraction
+	DefaultMaxSeaIce     = 0.15  // sea-ice fraction
+	DefaultMinCoverage   = 0.5   // conservative remapping
+	DefaultMaskThreshold = 0.5   // remapped masks
+	DefaultOutputDir     = "out"
+	// MaxThreshold bounds |δ|, K: relative SST rarely leaves ±5 K, so a
+	// larger δ is a units mistake.
+	MaxThreshold = 10.0
+)
+
+var nameRE = regexp.MustCompile(`^[A-Za-z0-9_.-]+$`)
+
+// where turns a key path into a Problem located by line or origin.
+type where struct {
+	file    string
+	lines   *lineIndex
+	origins map[string]string
+}
+
+func (w *where) origin(path string) string {
+	for p := path; p != ""; {
+		if o, ok := w.origins[p]; ok {
+			return o
+		}
+		i := strings.LastIndexByte(p, '.')
+		if i < 0 {
+			break
+		}
+		p = p[:i]
+	}
+	return ""
+}
+
+func (w *where) problem(path, msg string) Problem {
+	p := Problem{File: w.file, Key: path, Msg: msg}
+	if o := w.origin(path); o != "" {
+		p.Origin = o
+	} else {
+		p.Line = w.lines.line(path)
+	}
+	return p
+}
+
+type decoder struct {
+	*where
+	probs []Problem
+}
+
+func (d *decoder) fail(path, format string, a ...any) {
+	d.probs = append(d.probs, d.problem(path, fmt.Sprintf(format, a...)))
+}
+
+func toFloat(v any) (float64, bool) {
+	switch t := v.(type) {
+	case float64:
+		return t, true
+	case float32:
+		return float64(t), true
+	case int:
+		return float64(t), true
+	case int8:
+		return float64(t), true
+	case int16:
+		return float64(t), true
+	case int32:
+		return float64(t), true
+	case int64:
+		return float64(t), true
+	case uint:
+		return float64(t), true
+	case uint8:
+		return float64(t), true
+	case uint16:
+		return float64(t), true
+	case uint32:
+		return float64(t), true
+	case uint64:
+		return float64(t), true
+	}
+	return 0, false
+}
+
+func present(m map[string]any, k string) (any, bool) {
+	v, ok := m[k]
+	return v, ok && v != nil
+}
+
+func sub(m map[string]any, k string) map[string]any {
+	t, _ := m[k].(map[string]any)
+	if t == nil {
+		return map[string]any{}
+	}
+	return t
+}
+
+// str reads a string (numbers are taken as their text).
+func (d *decoder) str(m map[string]any, path, k, def string) string {
+	v, ok := present(m, k)
+	if !ok {
+		return def
+	}
+	switch t := v.(type) {
+	case string:
+		return strings.TrimSpace(t)
+	case bool:
+		d.fail(join(path, k), "must be a string, not %s (quote it)", describe(v))
+		return def
+	}
+	if f, ok := toFloat(v); ok {
+		return strconv.FormatFloat(f, 'f', -1, 64)
+	}
+	d.fail(join(path, k), "must be a string, not %s", describe(v))
+	return def
+}
+
+// num reads a finite number (a string holding a number is accepted).
+func (d *decoder) num(m map[string]any, path, k string, def float64) (float64, bool) {
+	v, ok := present(m, k)
+	if !ok {
+		return def, false
+	}
+	f, isNum := toFloat(v)
+	if s, isStr := v.(string); isStr {
+		var err error
+		f, err = strconv.ParseFloat(strings.TrimSpace(s), 64)
+		isNum = err == nil
+	}
+	if !isNum {
+		d.fail(join(path, k), "must be a number, not %s", describe(v))
+		return def, true
+	}
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		d.fail(join(path, k), "must be a finite number, not %v", f)
+		return def, true
+	}
+	return f, true
+}
+
+// fraction reads a number in [lo, 1].
+func (d *decoder) fraction(m map[string]any, path, k string, def float64) (float64, bool) {
+	f, set := d.num(m, path, k, def)
+	if set && !(f >= 0 && f <= 1) {
+		d.fail(join(path, k), "%v is not a fraction: give a value from 0 to 1 (0.5 means 50 %%)", f)
+		return def, set
+	}
+	return f, set
+}
+
+func (d *decoder) boolean(m map[string]any, path, k string, def bool) bool {
+	v, ok := present(m, k)
+	if !ok {
+		return def
+	}
+	switch t := v.(type) {
+	case bool:
+		return t
+	case string:
+		switch strings.ToLower(strings.TrimSpace(t)) {
+		case "true":
+			return true
+		case "false":
+			return false
+		}
+	}
+	d.fail(join(path, k), "must be true or false, not %s", describe(v))
+	return def
+}
+
+// strList reads a string or a list of strings.
+func (d *decoder) strList(m map[string]any, path, k string) []string {
+	v, ok := present(m, k)
+	if !ok {
+		return nil
+	}
+	p := join(path, k)
+	switch t := v.(type) {
+	case string:
+		if strings.TrimSpace(t) == "" {
+			d.fail(p, "is empty: give a file, a glob such as \"sst/*.nc\", or a list of them")
+			return nil
+		}
+		return []string{strings.TrimSpace(t)}
+	case []any:
+		if len(t) == 0 {
+			d.fail(p, "is an empty list: give at least one file or glob")
+			return nil
+		}
+		var out []string
+		for i, x := range t {
+			s, ok := x.(string)
+			if !ok || strings.TrimSpace(s) == "" {
+				d.fail(join(p, strconv.Itoa(i)), "must be a file name or glob, not %s", describe(x))
+				continue
+			}
+			out = append(out, strings.TrimSpace(s))
+		}
+		return out
+	}
+	d.fail(p, "must be a file name, a glob or a list of them, not %s", describe(v))
+	return nil
+}
+
+// numList reads a number, a list of numbers, or a comma-separated text of
+// numbers (as flags and environment variables give them).
+func (d *decoder) numList(m map[string]any, path, k string) ([]float64, bool) {
+	v, ok := present(m, k)
+	if !ok {
+		return nil, false
+	}
+	p := join(path, k)
+	var items []any
+	switch t := v.(type) {
+	case []any:
+		items = t
+	case string:
+		for _, s := range strings.Split(t, ",") {
+			items = append(items, strings.TrimSpace(s))
+		}
+	default:
+		items = []any{v}
+	}
+	if len(items) == 0 {
+		d.fail(p, "is an empty list")
+		return nil, true
+	}
+	out := make([]float64, 0, len(items))
+	for i, x := range items {
+		f, isNum := toFloat(x)
+		if s, isStr := x.(string); isStr {
+			var err error
+			f, err = strconv.ParseFloat(s, 64)
+			isNum = err == nil
+		}
+		if !isNum || math.IsNaN(f) || math.IsInf(f, 0) {
+			d.fail(join(p, strconv.Itoa(i)), "must be a finite number, not %s", describe(x))
+			continue
+		}
+		out = append(out, f)
+	}
+	return out, true
+}
+
+// choice reads one of a fixed set of words.
+func (d *decoder) choice(m map[string]any, path, k, def string, choices ...string) (string, bool) {
+	_, set := present(m, k)
+	s := d.str(m, path, k, def)
+	if !set {
+		return def, false
+	}
+	if slices.Contains(choices, s) {
+		return s, true
+	}
+	d.fail(join(path, k), "%q is not one of %s; %s", s, strings.Join(choices, ", "), suggest(s, choices))
+	return def, true
+}
+
+// parseYearMonth reads "YYYY-MM".
+func parseYearMonth(s string) (calendar.YearMonth, error) {
+	i := strings.LastIndexByte(s, '-')
+	if i <= 0 || i == len(s)-1 {
+		return calendar.YearMonth{}, fmt.Errorf("%q is not a year and month: write YYYY-MM, e.g. \"1979-01\" (quoted)", s)
+	}
+	y, err1 := strconv.Atoi(s[:i])
+	mo, err2 := strconv.Atoi(s[i+1:])
+	if err1 != nil || err2 != nil || len(s[i+1:]) != 2 {
+		return calendar.YearMonth{}, fmt.Errorf("%q is not a year and month: write YYYY-MM, e.g. \"1979-01\" (quoted)", s)
+	}
+	if mo < 1 || mo > 12 {
+		return calendar.YearMonth{}, fmt.Errorf("%q: month %d is not 1–12", s, mo)
+	}
+	return calendar.YearMonth{Year: y, Month: mo}, nil
+}
+
+var seasons = map[string][]int{"DJF": {12, 1, 2}, "MAM": {3, 4, 5}, "JJA": {6, 7, 8}, "SON": {9, 10, 11}}
+
+var resolutionRE = regexp.MustCompile(`^([0-9]*\.?[0-9]+)\s*deg$`)
+
+// decode builds the typed recipe from the raw tree. Problems go to d.
+func (d *decoder) decode(tree map[string]any, r *Recipe) {
+	d.analysis(sub(tree, "analysis"), r)
+	out := sub(tree, "output")
+	dir := d.str(out, "output", "dir", DefaultOutputDir)
+	if dir == "" {
+		d.fail("output.dir", "is empty: give a folder (default %q)", DefaultOutputDir)
+		dir = DefaultOutputDir
+	}
+	if !filepath.IsAbs(dir) {
+		dir = filepath.Join(r.Dir, dir)
+	}
+	r.Output = Output{Dir: filepath.Clean(dir), Plots: d.boolean(out, "output", "plots", true)}
+
+	list, _ := tree["datasets"].([]any)
+	if _, ok := present(tree, "datasets"); !ok || len(list) == 0 {
+		d.fail("datasets", "the recipe has no datasets: add a list \"datasets:\" with at least one entry (name and inputs)")
+		return
+	}
+	seen := map[string]int{}
+	for i, x := range list {
+		m, _ := x.(map[string]any)
+		if m == nil {
+			continue // checkKeys reported it
+		}
+		path := "datasets." + strconv.Itoa(i)
+		ds := d.dataset(path, m, r)
+		if ds.Name != "" {
+			if j, dup := seen[ds.Name]; dup {
+				d.fail(join(path, "name"), "dataset name %q is used twice (also datasets.%d); names must be unique", ds.Name, j)
+			}
+			seen[ds.Name] = i
+		}
+		r.Datasets = append(r.Datasets, ds)
+	}
+	d.checkGridTarget(r)
+}
+
+func (d *decoder) analysis(m map[string]any, r *Recipe) {
+	a := &r.Analysis
+	band := sub(m, "band")
+	s, _ := d.num(band, "analysis.band", "south", DefaultBandSouth)
+	n, _ := d.num(band, "analysis.band", "north", DefaultBandNorth)
+	switch {
+	case s < -90 || s > 90:
+		d.fail("analysis.band.south", "%v° is not a latitude: give −90…90 (default %v)", s, DefaultBandSouth)
+	case n < -90 || n > 90:
+		d.fail("analysis.band.north", "%v° is not a latitude: give −90…90 (default %v)", n, DefaultBandNorth)
+	case s >= n:
+		d.fail("analysis.band", "south (%v°) must be less than north (%v°)", s, n)
+	}
+	a.Band = regimes.Band{South: s, North: n}
+	a.Threshold, _ = d.num(m, "analysis", "threshold", DefaultThreshold)
+	if math.Abs(a.Threshold) >= MaxThreshold {
+		d.fail("analysis.threshold", "δ = %v K is implausible: SST minus the tropical-mean SST rarely leaves ±5 K; give |δ| < %v K (default %v K)", a.Threshold, MaxThreshold, DefaultThreshold)
+	}
+	a.Transition, _ = d.num(m, "analysis", "transition", 0)
+	if a.Transition < 0 {
+		d.fail("analysis.transition", "the half-width of the transition band must be ≥ 0 K, not %v (0 = no transition band)", a.Transition)
+	}
+	a.CloudChoice, _ = d.choice(m, "analysis", "cloud", "auto", "auto", "low_cloud", "cloud")
+
+	regs, _ := m["regions"].([]any)
+	names := map[string]int{}
+	for i, x := range regs {
+		rm, _ := x.(map[string]any)
+		if rm == nil {
+			continue
+		}
+		p := "analysis.regions." + strconv.Itoa(i)
+		reg := Region{Name: d.str(rm, p, "name", "")}
+		if reg.Name == "" {
+			d.fail(p, "a region needs a name ([A-Za-z0-9_.-])")
+		} else if !nameRE.MatchString(reg.Name) {
+			d.fail(join(p, "name"), "%q: region names may contain only letters, digits and _ . -", reg.Name)
+		} else if j, dup := names[reg.Name]; dup {
+			d.fail(join(p, "name"), "region name %q is used twice (also analysis.regions.%d)", reg.Name, j)
+		} else {
+			names[reg.Name] = i
+		}
+		need := func(k string) float64 {
+			v, set := d.num(rm, p, k, 0)
+			if !set {
+				d.fail(p, "region %q needs %s", reg.Name, k)
+			}
+			return v
+		}
+		reg.South, reg.North, reg.West, reg.East = need("south"), need("north"), need("west"), need("east")
+		switch {
+		case reg.South < -90 || reg.North > 90 || reg.South >= reg.North:
+			d.fail(p, "south %v° and north %v° must lie within −90…90 with south < north", reg.South, reg.North)
+		case reg.West < -180 || reg.West > 360 || reg.East < -180 || reg.East > 360:
+			d.fail(p, "west %v° and east %v° must be longitudes in −180…360", reg.West, reg.East)
+		case reg.West == reg.East:
+			d.fail(p, "west and east are both %v°: a region needs a width (west > east crosses the 0°/180° meridian)", reg.West)
+		}
+		a.Regions = append(a.Regions, reg)
+	}
+
+	g := sub(m, "grid")
+	a.Grid.Target = d.str(g, "analysis.grid", "target", "")
+	switch t := a.Grid.Target; {
+	case t == "":
+	case resolutionRE.MatchString(t):
+		x, _ := strconv.ParseFloat(resolutionRE.FindStringSubmatch(t)[1], 64)
+		nlat, nlon := 180/x, 360/x
+		if !(x > 0 && x <= 90) || math.Abs(nlat-math.Round(nlat)) > 1e-9 || math.Abs(nlon-math.Round(nlon)) > 1e-9 {
+			d.fail("analysis.grid.target", "%q: a regular global grid needs a spacing that divides 180° (e.g. 1deg, 2deg, 2.5deg)", t)
+		}
+		a.Grid.Resolution = x
+	default:
+		if _, ok := cf.KindOf(cf.Role(t)); ok {
+			a.Grid.TargetRole = cf.Role(t)
+		} else {
+			cands := append(roleNames(&key{}), "1deg", "2deg", "2.5deg")
+			d.fail("analysis.grid.target", "%q is neither a role nor a resolution such as \"2.5deg\"; %s", t, suggest(t, cands))
+		}
+	}
+	a.Grid.Method = map[cf.Role]regrid.Method{}
+	for role, v := range sub(g, "method") {
+		if !isRole(schema.keys["analysis"].keys["grid"].keys["method"], role) {
+			continue
+		}
+		p := "analysis.grid.method." + role
+		s, ok := v.(string)
+		switch strings.TrimSpace(s) {
+		case "conservative":
+			a.Grid.Method[cf.Role(role)] = regrid.Conservative
+		case "bilinear":
+			a.Grid.Method[cf.Role(role)] = regrid.Bilinear
+		default:
+			if !ok {
+				d.fail(p, "must be conservative or bilinear, not %s", describe(v))
+			} else {
+				d.fail(p, "%q is not conservative or bilinear; %s", s, suggest(s, []string{"conservative", "bilinear"}))
+			}
+		}
+	}
+	a.Grid.MinCoverage, _ = d.fraction(g, "analysis.grid", "min_coverage", DefaultMinCoverage)
+	a.Grid.MaskThreshold, _ = d.fraction(g, "analysis.grid", "mask_threshold", DefaultMaskThreshold)
+}
+
+// checkGridTarget: a role named as the target grid must be read by every dataset.
+func (d *decoder) checkGridTarget(r *Recipe) {
+	t := r.Analysis.Grid.TargetRole
+	if t == "" {
+		return
+	}
+	for _, ds := range r.Datasets {
+		if !ds.hasPattern(t) && !ds.hasPattern(allKey) {
+			d.fail("analysis.grid.target", "names role %s, but dataset %q has no %s input; give one or choose another target", t, ds.Name, t)
+		}
+	}
+}
+
+func (ds *Dataset) hasPattern(r cf.Role) bool {
+	_, ok := ds.Patterns[string(r)]
+	return ok
+}
+
+// dataset decodes one dataset. Inputs are expanded later (expandInputs).
+func (d *decoder) dataset(path string, m map[string]any, r *Recipe) Dataset {
+	ds := Dataset{
+		Patterns:    map[string][]string{},
+		Variables:   map[cf.Role]string{},
+		Units:       map[cf.Role]string{},
+		Coordinates: map[cf.Role]Coordinates{},
+		Inputs:      map[cf.Role][]string{},
+	}
+	ds.Name = d.str(m, path, "name", "")
+	switch {
+	case ds.Name == "":
+		d.fail(path, "a dataset needs a name (letters, digits and _ . -; it is used in output paths)")
+	case !nameRE.MatchString(ds.Name):
+		d.fail(join(path, "name"), "%q: dataset names may contain only letters, digits and _ . - (they are used in output paths)", ds.Name)
+	}
+	ds.Description = d.str(m, path, "description", "")
+
+	// inputs
+	inPath := join(path, "inputs")
+	inputs := sub(m, "inputs")
+	for _, k := range sortedKeys(inputs) {
+		if !isRole(datasetKeys.keys["inputs"], k) {
+			continue // reported by checkKeys
+		}
+		if pats := d.strList(inputs, inPath, k); len(pats) > 0 {
+			ds.Patterns[k] = pats
+		}
+	}
+	if _, ok := present(m, "inputs"); !ok || len(inputs) == 0 {
+		d.fail(path, "dataset %q has no inputs: give at least inputs.sst, inputs.air_temperature and inputs.low_cloud (or inputs.cloud)", ds.Name)
+	}
+	has := func(r cf.Role) bool { return ds.hasPattern(r) || ds.hasPattern(allKey) }
+	explicit := ds.hasPattern
+
+	// variables, units, coordinates
+	for role, v := range sub(m, "variables") {
+		if !isRole(datasetKeys.keys["variables"], role) {
+			continue
+		}
+		s := d.str(map[string]any{role: v}, join(path, "variables"), role, "")
+		if s != "" {
+			ds.Variables[cf.Role(role)] = s
+		}
+	}
+	for role, v := range sub(m, "units") {
+		if !isRole(datasetKeys.keys["units"], role) {
+			continue
+		}
+		p := join(path, "units")
+		s := d.str(map[string]any{role: v}, p, role, "")
+		if s == "" {
+			continue
+		}
+		kind, _ := cf.KindOf(cf.Role(role))
+		if _, err := units.Parse(kind, s); err != nil {
+			d.fail(join(p, role), "%v", err)
+			continue
+		}
+		ds.Units[cf.Role(role)] = s
+	}
+	for role, v := range sub(m, "coordinates") {
+		if !isRole(datasetKeys.keys["coordinates"], role) {
+			continue
+		}
+		cm, _ := v.(map[string]any)
+		p := join(join(path, "coordinates"), role)
+		c := Coordinates{
+			Lat: d.str(cm, p, "lat", ""), Lon: d.str(cm, p, "lon", ""),
+			Level: d.str(cm, p, "level", ""), Time: d.str(cm, p, "time", ""),
+			LevelUnits: d.str(cm, p, "level_units", ""),
+		}
+		if c.LevelUnits != "" {
+			if _, err := units.Parse(units.Pressure, c.LevelUnits); err != nil {
+				d.fail(join(p, "level_units"), "%v (lidscope reads pressure levels only)", err)
+			}
+		}
+		ds.Coordinates[cf.Role(role)] = c
+	}
+	for _, tbl := range []string{"variables", "units", "coordinates"} {
+		for role := range sub(m, tbl) {
+			if isRole(datasetKeys.keys[tbl], role) && !has(cf.Role(role)) {
+				d.fail(join(join(path, tbl), role), "role %s has no input (inputs.%s); give one or remove this entry", role, role)
+			}
+		}
+	}
+
+	d.timeSel(join(path, "time"), sub(m, "time"), &ds.Time)
+	d.ocean(join(path, "ocean"), sub(m, "ocean"), &ds, has, explicit)
+
+	// sea ice
+	si := sub(m, "sea_ice")
+	ds.SeaIce.MaxFraction, _ = d.fraction(si, join(path, "sea_ice"), "max_fraction", DefaultMaxSeaIce)
+	_, siSet := present(m, "sea_ice")
+	switch {
+	case explicit(cf.RoleSeaIce):
+		ds.SeaIce.Use = true
+	case siSet && has(cf.RoleSeaIce):
+		ds.SeaIce.Use = true // from inputs.all
+	case siSet:
+		d.fail(join(path, "sea_ice"), "sea-ice exclusion needs a sea_ice input (inputs.sea_ice); give one or remove sea_ice")
+	}
+
+	ectei, _ := sub(m, "metrics")["ectei"].(bool) // checked by d.metrics
+	d.surface(join(path, "surface"), sub(m, "surface"), &ds, has, explicit, ectei)
+	d.metrics(join(path, "metrics"), sub(m, "metrics"), &ds, has)
+
+	// cloud
+	switch r.Analysis.CloudChoice {
+	case "low_cloud", "cloud":
+		ds.Cloud = cf.Role(r.Analysis.CloudChoice)
+		if !has(ds.Cloud) {
+			d.fail(inPath, "analysis.cloud is %s, but dataset %q has no %s input", ds.Cloud, ds.Name, ds.Cloud)
+		}
+	default:
+		switch {
+		case explicit(cf.RoleLowCloud):
+			ds.Cloud = cf.RoleLowCloud
+		case explicit(cf.RoleCloud):
+			ds.Cloud = cf.RoleCloud
+		case has(cf.RoleLowCloud):
+			ds.Cloud = cf.RoleLowCloud // from inputs.all: low cloud is preferred
+		default:
+			d.fail(inPath, "dataset %q needs a cloud input: inputs.low_cloud (preferred) or inputs.cloud", ds.Name)
+		}
+	}
+	for _, req := range []cf.Role{cf.RoleSST, cf.RoleAirTemp} {
+		if !has(req) {
+			d.fail(inPath, "dataset %q needs an input for role %s (inputs.%s)", ds.Name, req, req)
+		}
+	}
+	ds.OutputDir = filepath.Join(r.Output.Dir, ds.Name)
+	return ds
+}
+
+func sortedKeys(m map[string]any) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection) {
+	t.Units = d.str(m, path, "units", "")
+	t.Calendar = d.str(m, path, "calendar", "")
+	t.Climatology = d.boolean(m, path, "climatology", false)
+	if t.Calendar != "" {
+		if _, err := calendar.ParseCalendar(t.Calendar); err != nil {
+			d.fail(join(path, "calendar"), "%v", err)
+		}
+	}
+	if t.Units != "" {
+		if _, err := calendar.Parse(t.Units, t.Calendar, calendar.Options{CalendarMonths: true}); err != nil {
+			d.fail(join(path, "units"), "%v", err)
+		}
+		if t.Climatology {
+			d.fail(join(path, "units"), "time units are not used when climatology is true (the axis is declared as 12 months); remove one of them")
+		}
+	}
+	for _, k := range []string{"start", "end"} {
+		s := d.str(m, path, k, "")
+		if s == "" {
+			continue
+		}
+		ym, err := parseYearMonth(s)
+		if err != nil {
+			d.fail(join(path, k), "%v", err)
+			continue
+		}
+		if t.Climatology {
+			d.fail(join(path, k), "a 12-month climatology has no years, so %s cannot be used with climatology: true", k)
+			continue
+		}
+		if k == "start" {
+			t.Start = &ym
+		} else {
+			t.End = &ym
+		}
+	}
+	if t.Start != nil && t.End != nil && t.Start.Index() > t.End.Index() {
+		d.fail(join(path, "start"), "start %s is after end %s", t.Start, t.End)
+	}
+	months, mSet := d.numList(m, path, "months")
+	seen := map[int]bool{}
+	for i, f := range months {
+		mo := int(f)
+		if float64(mo) != f || mo < 1 || mo > 12 {
+			d.fail(join(join(path, "months"), strconv.Itoa(i)), "%v is not a month: give whole numbers 1–12", f)
+			continue
+		}
+		if seen[mo] {
+			d.fail(join(path, "months"), "month %d is listed twice", mo)
+			continue
+		}
+		seen[mo] = true
+		t.Months = append(t.Months, mo)
+	}
+	if s := d.str(m, path, "season", ""); s != "" {
+		up := strings.ToUpper(s)
+		ms, ok := seasons[up]
+		switch {
+		case !ok:
+			d.fail(join(path, "season"), "%q is not a season: use DJF, MAM, JJA or SON, or list the months", s)
+		case mSet:
+			d.fail(join(path, "season"), "give either months or season, not both")
+		default:
+			t.Season, t.Months = up, append([]int(nil), ms...)
+		}
+	}
+}
+
+func (d *decoder) ocean(path string, m map[string]any, ds *Dataset, has, explicit func(cf.Role) bool) {
+	o := &ds.Ocean
+	def := "sst"
+	if explicit(cf.RoleLandFraction) || explicit(cf.RoleSeaFraction) {
+		def = "fraction"
+	}
+	mask, _ := d.choice(m, path, "mask", def, "sst", "fraction", "categorical")
+	roleS, roleSet := d.choice(m, path, "role", "", string(cf.RoleLandFraction), string(cf.RoleSeaFraction))
+	var minSet, valSet bool
+	o.MinOceanFraction, minSet = d.fraction(m, path, "min_ocean_fraction", DefaultMinOcean)
+	o.OceanValues, valSet = d.numList(m, path, "ocean_values")
+	switch mask {
+	case "sst":
+		o.Method = OceanWhereSST
+		o.MinOceanFraction = 0
+		for k, set := range map[string]bool{"role": roleSet, "min_ocean_fraction": minSet, "ocean_values": valSet} {
+			if set {
+				d.fail(join(path, k), "is used only with mask: fraction or mask: categorical, but mask is sst")
+			}
+		}
+		o.OceanValues = nil
+		return
+	case "fraction":
+		o.Method = OceanFromFraction
+		if valSet {
+			d.fail(join(path, "ocean_values"), "is used only with mask: categorical, but mask is fraction")
+		}
+		o.OceanValues = nil
+	case "categorical":
+		o.Method = OceanFromCategories
+		if minSet {
+			d.fail(join(path, "min_ocean_fraction"), "is used only with mask: fraction, but mask is categorical")
+		}
+		o.MinOceanFraction = 0
+		if !valSet {
+			o.OceanValues = []float64{0}
+		}
+	}
+	switch {
+	case roleS != "":
+		o.Role = cf.Role(roleS)
+	case explicit(cf.RoleLandFraction):
+		o.Role = cf.RoleLandFraction
+	case explicit(cf.RoleSeaFraction):
+		o.Role = cf.RoleSeaFraction
+	case has(cf.RoleLandFraction):
+		o.Role = cf.RoleLandFraction // from inputs.all
+	}
+	if o.Role == "" || !has(o.Role) {
+		want := "a land_fraction or sea_fraction input"
+		if o.Role != "" {
+			want = "a " + string(o.Role) + " input"
+		}
+		d.fail(join(path, "mask"), "mask %s needs %s (inputs.%s); give one, or use mask: sst", mask, want, cmpOr(string(o.Role), "land_fraction"))
+	}
+}
+
+func cmpOr(a, b string) string {
+	if a != "" {
+		return a
+	}
+	return b
+}
+
+var humidityRoles = []cf.Role{cf.RoleRH, cf.RoleDewPoint, cf.RoleSpecHum}
+
+func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, explicit func(cf.Role) bool, ectei bool) {
+	s := &ds.Surface
+	mr := metrics.DefaultRecipe()
+	temp, _ := d.choice(m, path, "temperature", "sst", "sst", "air")
+	if temp == "air" {
+		mr.Surface, s.TemperatureRole = metrics.SurfaceAir, cf.RoleSurfaceAir
+		if !has(cf.RoleSurfaceAir) {
+			d.fail(join(path, "temperature"), "air needs a surface_air_temp input (inputs.surface_air_temp); give one or use sst")
+		}
+	} else {
+		mr.Surface, s.TemperatureRole = metrics.SurfaceSST, cf.RoleSST
+	}
+
+	if v, ok := present(m, "pressure"); ok {
+		p := join(path, "pressure")
+		if str, isStr := v.(string); isStr && strings.TrimSpace(str) == "field" {
+			mr.PressureField, s.PressureRole = true, cf.RoleSurfacePres
+			if !has(cf.RoleSurfacePres) {
+				d.fail(p, "field needs a surface_pressure input (inputs.surface_pressure); give one or a constant such as 1000hPa")
+			}
+		} else if pa, err := quantity(units.Pressure, v); err != nil {
+			d.fail(p, "give a pressure with units (e.g. 1000hPa; a bare number is Pa) or \"field\": %v", err)
+		} else if !(pa > metrics.P700 && pa <= 120000) {
+			d.fail(p, "%v Pa is not a surface pressure: give one above 700 hPa and at most 1200 hPa, with units (e.g. 1000hPa; a bare number is Pa)", pa)
+		} else {
+			mr.SurfacePressure = pa
+		}
+	}
+
+	if v, ok := present(m, "humidity"); ok {
+		p := join(path, "humidity")
+		str, isStr := v.(string)
+		str = strings.TrimSpace(str)
+		switch {
+		case isStr && str == "field":
+			// With ECTEI on, specific_humidity is the 700-hPa humidity, so
+			// it is not a candidate for the surface humidity.
+			var given []cf.Role
+			for _, r := range humidityRoles {
+				if explicit(r) && !(r == cf.RoleSpecHum && ectei) {
+					given = append(given, r)
+				}
+			}
+			switch {
+			case len(given) == 1:
+				s.HumidityRole = given[0]
+			case len(given) > 1:
+				d.fail(p, "field is ambiguous: inputs give %v; write the role to use instead (humidity: %s)", given, given[0])
+			case has(cf.RoleRH): // no explicit humidity input, but inputs.all
+				d.fail(p, "field with inputs.all: write which humidity role to read (relative_humidity, dew_point or specific_humidity)")
+			default:
+				d.fail(p, "field needs a humidity input: inputs.relative_humidity, inputs.dew_point or inputs.specific_humidity; or give an assumed relative humidity such as 0.8")
+			}
+		case isStr && slices.Contains(humidityRoles, cf.Role(str)):
+			s.HumidityRole = cf.Role(str)
+			if !has(s.HumidityRole) {
+				d.fail(p, "%s needs an input (inputs.%s)", str, str)
+			}
+		default:
+			rh, err := quantity(units.Fraction, v)
+			switch {
+			case err != nil:
+				d.fail(p, "give an assumed relative humidity (0.8 or 80%%), \"field\", or a humidity role: %v", err)
+			case !(rh > 0 && rh <= 1):
+				d.fail(p, "%v is not a relative humidity: give a fraction in (0, 1] (0.8 means 80 %%) or write it with %% (80%%)", rh)
+			default:
+				mr.AssumedRH = rh
+			}
+		}
+		switch s.HumidityRole {
+		case cf.RoleRH:
+			mr.Humidity = metrics.HumidityRH
+		case cf.RoleDewPoint:
+			mr.Humidity = metrics.HumidityDewPoint
+		case cf.RoleSpecHum:
+			mr.Humidity = metrics.HumiditySpecific
+		}
+	}
+	ds.Metrics = mr
+}
+
+// quantity reads a number (SI) or a string with units.
+func quantity(k units.Kind, v any) (float64, error) {
+	if f, ok := toFloat(v); ok {
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			return 0, fmt.Errorf("%v is not finite", f)
+		}
+		return f, nil
+	}
+	s, ok := v.(string)
+	if !ok {
+		return 0, fmt.Errorf("not %s", describe(v))
+	}
+	f, _, err := units.ParseQuantity(k, s)
+	if err == nil && (math.IsNaN(f) || math.IsInf(f, 0)) {
+		err = fmt.Errorf("%q is not finite", s)
+	}
+	return f, err
+}
+
+func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(cf.Role) bool) {
+	mr := &ds.Metrics
+	if s, set := d.choice(m, path, "svp", mr.SVP.String(), metrics.SVPMurphyKoop.String(), metrics.SVPBolton.String()); set {
+		if f, err := metrics.ParseSVPFormula(s); err == nil {
+			mr.SVP = f
+		}
+	}
+	if s, set := d.choice(m, path, "lcl", mr.LCL.String(), metrics.LCLRomps.String(), metrics.LCLBolton.String(), metrics.LCLLinear.String()); set {
+		if l, err := metrics.ParseLCLMethod(s); err == nil {
+			mr.LCL = l
+		}
+	}
+	t850, _ := d.choice(m, path, "t850", "mean", "mean", "field")
+	mr.T850Field = t850 == "field"
+	if v, ok := present(m, "lapse_pressure"); ok {
+		pa, err := quantity(units.Pressure, v)
+		if err != nil {
+			d.fail(join(path, "lapse_pressure"), "give a pressure with units (e.g. 850hPa; a bare number is Pa): %v", err)
+		} else {
+			mr.LapsePressure = pa
+		}
+	}
+	if s, set := d.choice(m, path, "lapse_moisture", mr.LapseMoisture.String(), metrics.LapseQs.String(), metrics.LapseRs.String()); set {
+		if l, err := metrics.ParseLapseMoisture(s); err == nil {
+			mr.LapseMoisture = l
+		}
+	}
+	mr.ECTEI = d.boolean(m, path, "ectei", false)
+	mr.ECTEIBeta, _ = d.num(m, path, "ectei_beta", mr.ECTEIBeta)
+	if s, set := d.choice(m, path, "ectei_surface", mr.ECTEISurface.String(), metrics.ECTEIAir.String(), metrics.ECTEISaturated.String()); set {
+		if e, err := metrics.ParseECTEISurface(s); err == nil {
+			mr.ECTEISurface = e
+		}
+	}
+	c := sub(m, "constants")
+	cp := join(path, "constants")
+	for _, f := range []struct {
+		k string
+		p *float64
+	}{{"rd", &mr.Constants.Rd}, {"rv", &mr.Constants.Rv}, {"cpd", &mr.Constants.Cpd}, {"lv0", &mr.Constants.Lv0},
+		{"lv_slope", &mr.Constants.LvSlope}, {"g", &mr.Constants.G}, {"p0", &mr.Constants.P0}} {
+		*f.p, _ = d.num(c, cp, f.k, *f.p)
+	}
+	if mr.ECTEI {
+		if !has(cf.RoleSpecHum) {
+			d.fail(join(path, "ectei"), "ECTEI needs specific humidity at 700 hPa: give inputs.specific_humidity (on pressure levels) or set ectei: false")
+		}
+		if ds.Surface.HumidityRole == cf.RoleSpecHum {
+			d.fail(join(path, "ectei"), "the specific_humidity input cannot be both the 700-hPa humidity of ECTEI and the surface humidity; use relative_humidity or dew_point for surface.humidity, or set ectei: false")
+		}
+	}
+	if err := mr.Validate(); err != nil {
+		d.fail(path, "%v", err)
+	}
+}

@@ -1,0 +1,177 @@
+// Package config reads lidscope recipes: the one file a scientist keeps per
+// dataset (or per model run, or per comparison of several) that says which
+// files hold which variables, how to read the ones that are not quite CF,
+// which months to use, how to tell ocean from land, how LTS and EIS are
+// computed, and how ocean columns are split into convective and subsidence
+// regimes.
+//
+// [Load] reads a recipe, applies overrides and defaults, checks it and
+// expands the input globs; the pipeline then works from the typed [Recipe]
+// and records [Recipe.Resolved] (a canonical text of everything the recipe
+// decides) and [Recipe.Hash] (its SHA-256) in every output. [Starter]
+// writes a commented starter recipe from what cf.Inspect found in a set of
+// files (`lidscope recipe init FILE…`).
+//
+// The package is pure Go: it never opens a NetCDF file. It only checks that
+// the input files exist.
+//
+// # Formats
+//
+// YAML by default (.yaml or .yml), TOML (.toml) and JSON (.json) are read
+// too, chosen by the file name extension; testdata/example.yaml is a
+// commented example, and testdata/example.toml and testdata/example.json
+// say the same in the other formats. Keys are lower_snake_case. An
+// unknown key is an error that names the file, line and key path and
+// suggests the nearest valid key (edit distance); so is an unknown role.
+// Lines are exact for YAML and JSON; for TOML they are found by following
+// table headers and "key =" lines (keys inside inline tables get the line
+// of the table).
+//
+// Every problem is reported at once, one per line, as
+//
+//	recipe.yaml:12: datasets.0.ocean.mask: mask fraction needs a land_fraction or sea_fraction input …
+//
+// Key paths are dotted; list elements are numbered from 0
+// (datasets.0.inputs.sst, analysis.regions.1.west).
+//
+// # Overrides: flags and environment
+//
+// Values come, highest precedence first, from flags ([LoadOptions].Flags,
+// a map of dotted key paths to values), the environment, the recipe file,
+// and the defaults below. Any key may be overridden, including per-dataset
+// keys by their element number:
+//
+//	flag key                         environment variable
+//	analysis.threshold               LIDSCOPE_ANALYSIS_THRESHOLD
+//	datasets.0.metrics.svp           LIDSCOPE_DATASETS_0_METRICS_SVP
+//	datasets.1.time.months           LIDSCOPE_DATASETS_1_TIME_MONTHS
+//	analysis.regions                 LIDSCOPE_ANALYSIS_REGIONS
+//
+// The variable name is "LIDSCOPE_" followed by the key path in capitals
+// with dots replaced by underscores ([EnvName]). Only datasets present in
+// the file can be overridden (there is no way to add a dataset from the
+// environment), and empty variables are ignored. Values are read as YAML
+// flow values: "1.0" is a number, "true" a boolean, "[12, 1, 2]" (or, for
+// lists of numbers, "12,1,2") a list, "{south: -20, north: 20}" a table,
+// and "null" removes the key so that its default applies. [Recipe.Overrides]
+// lists what was applied; problems in overridden values name the flag or
+// variable instead of a line.
+//
+// # Keys
+//
+// datasets (required): a list of datasets, each a table with:
+//
+//   - name (required): unique, made of letters, digits and _ . - ; used
+//     in output paths.
+//   - description: free text.
+//   - inputs (required): role → a file, a glob, or a list of files and
+//     globs, relative to the recipe's folder. Several files of one role are
+//     one record along time (cf.Open sorts them). The roles are those of
+//     package cf: sst, air_temperature, surface_air_temp, low_cloud, cloud,
+//     toa_sw_up, olr, omega, surface_pressure, sea_level_pressure,
+//     relative_humidity, dew_point, specific_humidity, sea_fraction,
+//     land_fraction, sea_ice, precipitation. The key all lists files that
+//     may hold any role: every role the settings read and no other key
+//     gives is read from them. Required: sst, air_temperature, and
+//     low_cloud or cloud (see analysis.cloud). A glob that matches no file
+//     is an error naming the role and the pattern.
+//   - variables: role → variable name; by default cf finds the variable by
+//     standard_name, then by an unambiguous name with fitting units.
+//   - units: role → units, overriding the variable's units attribute (for
+//     files whose attribute is missing or wrong, e.g. sst: degC). Checked
+//     against the role's quantity.
+//   - coordinates: role → {lat, lon, level, time, level_units}: names of
+//     coordinate variables for files that do not declare them in a CF way,
+//     and the units of the vertical coordinate (a pressure unit).
+//   - time: units (CF time units such as "days since 1979-01-01", for
+//     files with non-CF time units), calendar (a CF calendar name),
+//     climatology (true: every time axis is 12 calendar months, January
+//     first), start and end (inclusive year-months "YYYY-MM"; not with
+//     climatology), and months (a list of 1–12) or season (DJF, MAM, JJA
+//     or SON; not both). Units, calendar and climatology apply to every
+//     role except land_fraction and sea_fraction, which are read as fixed
+//     fields. [Dataset.Selects] applies the selection.
+//   - ocean: mask is sst (ocean where the SST is present), fraction or
+//     categorical; the default is fraction when a land_fraction or
+//     sea_fraction input is given, else sst. role (land_fraction or
+//     sea_fraction; default: the one given, land_fraction first) names the
+//     mask input. min_ocean_fraction (fraction; default 0.5): ocean where
+//     the ocean fraction (1 − land fraction, or the sea fraction) is at
+//     least this. ocean_values (categorical; default [0]): the mask values
+//     that mean ocean. See [OceanMask.IsOcean].
+//   - sea_ice: max_fraction (default 0.15): columns with more sea ice are
+//     excluded. Exclusion is on whenever a sea_ice input is given; a
+//     sea_ice table without a sea_ice input (or inputs.all) is an error.
+//   - surface: pressure is a constant with units (default 1000hPa; a bare
+//     number is Pa) or "field" (needs a surface_pressure input); humidity
+//     is an assumed relative humidity (default 0.8; 0.8 or "80%"), "field"
+//     (the one humidity input given: relative_humidity, dew_point or
+//     specific_humidity) or one of those role names; temperature is sst
+//     (default) or air (needs a surface_air_temp input).
+//   - metrics: how LTS, EIS and ECTEI are computed, by the names of package
+//     metrics: svp (murphy-koop, default; bolton), lcl (romps, default;
+//     bolton; linear), t850 (mean, default: (Ts + T700)/2; field: the
+//     air_temperature input at 850 hPa), lapse_pressure (default 850hPa),
+//     lapse_moisture (qs, default; rs), ectei (default false; true needs a
+//     specific_humidity input on pressure levels, read at 700 hPa, which
+//     cannot also be the surface humidity), ectei_beta (default 0.23),
+//     ectei_surface (air, default; saturated), and constants {rd, rv, cpd,
+//     lv0, lv_slope, g, p0} (SI; defaults of metrics.DefaultConstants).
+//     The mapping of t850, surface.temperature and surface.humidity onto
+//     metrics.Recipe is done here; the other names are parsed by package
+//     metrics. The result, surface settings included, is [Dataset].Metrics
+//     and must pass metrics.Recipe.Validate.
+//
+// analysis (shared by all datasets):
+//
+//   - band: {south, north}, degrees north (default −30, 30): the band of
+//     the tropical-mean SST (ocean cells, area-weighted). Within ±90 with
+//     south < north.
+//   - threshold: δ, K (default 1.5): a column is convective where SST minus
+//     the tropical-mean SST exceeds δ. Finite, |δ| < 10 K.
+//   - transition: half-width, K, of a transition band around δ (default 0:
+//     none). At least 0.
+//   - cloud: auto (default: low_cloud where a low_cloud input is given,
+//     else cloud; low_cloud when both come from inputs.all), low_cloud or
+//     cloud. [Dataset].Cloud holds the role used. Low cloud is preferred
+//     because the cloud–inversion relationships concern low cloud (Klein &
+//     Hartmann 1993; Wood & Bretherton 2006).
+//   - regions: a list of named boxes {name, south, north, west, east}.
+//     Longitudes in either convention (−180…180 or 0…360); west > east
+//     (after putting both in 0…360) crosses the 0° or 180° meridian. See
+//     [Region.Contains].
+//   - grid: the analysis grid when inputs come on different grids. target
+//     is "" (default: every input must share one grid), a role (that
+//     role's grid; every dataset must have that input), or a regular global
+//     grid such as 1deg, 2deg, 2.5deg or "<x>deg" (x must divide 180).
+//     method: role → conservative (default) or bilinear. min_coverage
+//     (default 0.5): for conservative remapping, the smallest valid overlap
+//     fraction of a target cell. mask_threshold (default 0.5): masks are
+//     remapped as fractions and then thresholded at this.
+//
+// output:
+//
+//   - dir (default "out", relative to the recipe's folder): each dataset
+//     writes into dir/<dataset name> ([Dataset].OutputDir).
+//   - plots (default true).
+//
+// # Defaults and why
+//
+// The tropical band 30°S–30°N is common practice for tropical-mean SST.
+//
+// δ = 1.5 K: deep convection over the tropical oceans sets in near an SST
+// of about 27.5 °C (Graham & Barnett 1987, Science 238, "Sea surface
+// temperature, surface wind divergence, and convection over tropical
+// oceans"), and the present-day 30°S–30°N ocean-mean SST is near 26 °C
+// (from memory), so the onset lies about 1.5 K above the tropical mean.
+// Because the threshold is taken relative to the tropical mean, it moves
+// with the tropical mean as the climate warms. δ is a choice, not a
+// constant of nature: every output records it ([Recipe.Resolved]), and
+// results should be shown for a few values around it (e.g. 1.0–2.0 K).
+//
+// The ocean fraction 0.5 and the mask threshold 0.5 count a cell as ocean
+// when at least half of it is ocean (a choice; recorded). The sea-ice limit
+// 0.15 is the usual ice-edge concentration (common practice). The surface
+// and metrics defaults are those of metrics.DefaultRecipe, documented there
+// (relative humidity 0.8 is an assumption, not a measurement).
+package config

@@ -1,0 +1,85 @@
+package config_test
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"lidscope/config"
+)
+
+// FuzzLoad feeds random bytes to Load in each format: it must return a
+// recipe or an error, never panic, and a recipe it returns must have a
+// stable resolved text.
+func FuzzLoad(f *testing.F) {
+	for _, p := range exampleFiles {
+		b, err := os.ReadFile(p)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(b, uint8(0))
+		f.Add(b, uint8(1))
+		f.Add(b, uint8(2))
+	}
+	f.Add([]byte(head), uint8(0))
+	f.Add([]byte("datasets:\n  - name: &a x\n    inputs: *a\n"), uint8(0))
+	f.Add([]byte("[[datasets]]\nname = 1979-01-01\n"), uint8(1))
+	f.Add([]byte(`{"datasets": [{"name": 1e400}]}`), uint8(2))
+	f.Add([]byte("analysis: {threshold: .nan, band: [1, 2]}\n"), uint8(0))
+	exts := []string{".yaml", ".toml", ".json"}
+	dir := f.TempDir()
+	// the example's data files, so that valid recipes can load
+	for _, n := range []string{"example/sst/a.nc", "example/ta_1979-1998.nc", "example/ta_1999-2018.nc", "example/cloud/cll_1.nc", "example/mask.nc", "example/model_all_1979-2008.nc", "sst.nc", "ta.nc", "cll.nc"} {
+		p := filepath.Join(dir, n)
+		os.MkdirAll(filepath.Dir(p), 0o755)
+		os.WriteFile(p, nil, 0o644)
+	}
+	f.Fuzz(func(t *testing.T, src []byte, ext uint8) {
+		p := filepath.Join(dir, "fuzz"+exts[int(ext)%3])
+		if err := os.WriteFile(p, src, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		r, err := config.Load(p, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"output.plots": "false"}})
+		if err != nil {
+			if err.Error() == "" {
+				t.Fatal("empty error message")
+			}
+			return
+		}
+		if len(r.Datasets) == 0 {
+			t.Fatal("a recipe without datasets loaded")
+		}
+		if a, b := r.Resolved(), r.Resolved(); a != b || !strings.HasPrefix(a, "{") {
+			t.Fatal("unstable resolved text")
+		}
+		if len(r.Hash()) != 64 {
+			t.Fatal("bad hash")
+		}
+	})
+}
+
+// FuzzOverrides feeds random flag keys and values: problems, never panics.
+func FuzzOverrides(f *testing.F) {
+	f.Add("analysis.threshold", "1.0")
+	f.Add("datasets.0.time.months", "12,1,2")
+	f.Add("datasets.0", "{name: x}")
+	f.Add("analysis.regions", "[{name: a}]")
+	f.Add("datasets.99999999999999999999.name", "x")
+	f.Add("datasets.-1.name", "null")
+	f.Add("datasets", "[]")
+	dir := dataDir(f, baseFiles...)
+	p := filepath.Join(dir, "r.yaml")
+	if err := os.WriteFile(p, []byte(head+"analysis:\n  regions:\n    - {name: a, south: 0, north: 1, west: 0, east: 1}\n"), 0o644); err != nil {
+		f.Fatal(err)
+	}
+	f.Fuzz(func(t *testing.T, k, v string) {
+		env := func(name string) (string, bool) {
+			if name == config.EnvName(k) {
+				return v, true
+			}
+			return "", false
+		}
+		_, _ = config.Load(p, config.LoadOptions{Flags: map[string]string{k: v}, LookupEnv: env})
+	})
+}

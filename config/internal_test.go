@@ -1,0 +1,106 @@
+package config
+
+import (
+	"fmt"
+	"strings"
+	"testing"
+)
+
+// TestDistance checks the edit distance on worked examples: kitten →
+// sitting is 3 (the classic Levenshtein example, common practice); a
+// transposition costs 1; "ca" → "abc" is 3 for the optimal-string-alignment
+// distance (2 for unrestricted Damerau–Levenshtein; the textbook example
+// of the difference, from memory).
+func TestDistance(t *testing.T) {
+	for _, c := range []struct {
+		a, b string
+		want int
+	}{
+		{"kitten", "sitting", 3}, {"", "abc", 3}, {"abc", "", 3}, {"flaw", "lawn", 2},
+		{"ocaen", "ocean", 1}, {"sts", "sst", 1}, {"ca", "abc", 3}, {"threshold", "threshold", 0},
+		{"treshold", "threshold", 1},
+	} {
+		if got := distance(c.a, c.b); got != c.want {
+			t.Errorf("distance(%q, %q) = %d, want %d", c.a, c.b, got, c.want)
+		}
+		if got := distance(c.b, c.a); got != c.want {
+			t.Errorf("distance(%q, %q) = %d, want %d (symmetry)", c.b, c.a, got, c.want)
+		}
+	}
+	if n := nearest("zzzzzz", []string{"dir", "plots"}); n != "" {
+		t.Errorf("nearest suggests %q for an unrelated word", n)
+	}
+	if n := nearest("nord", []string{"north", "south"}); n != "north" {
+		t.Errorf("nearest(nord) = %q", n)
+	}
+}
+
+// TestEnvNamesUnique: no two overridable keys share an environment
+// variable name, so LIDSCOPE_… is never ambiguous.
+func TestEnvNamesUnique(t *testing.T) {
+	ds := map[string]any{}
+	tree := map[string]any{
+		"datasets": []any{ds, ds, ds, ds, ds, ds, ds, ds, ds, ds, ds, ds},
+		"analysis": map[string]any{"regions": []any{map[string]any{}, map[string]any{}}},
+	}
+	seen := map[string]string{}
+	paths := envPaths(tree)
+	for _, p := range paths {
+		n := EnvName(p)
+		if q, dup := seen[n]; dup {
+			t.Errorf("%s and %s share %s", p, q, n)
+		}
+		seen[n] = p
+	}
+	for _, want := range []string{"datasets.11.inputs.all", "datasets.0.coordinates.sst.level_units", "analysis.regions", "analysis.regions.1.east", "output.plots"} {
+		if _, ok := seen[EnvName(want)]; !ok {
+			t.Errorf("%s cannot be overridden from the environment", want)
+		}
+	}
+	// whole lists come before their elements
+	idx := map[string]int{}
+	for i, p := range paths {
+		idx[p] = i
+	}
+	if idx["analysis.regions"] > idx["analysis.regions.0.name"] {
+		t.Error("analysis.regions is applied after its elements")
+	}
+}
+
+func TestParseValue(t *testing.T) {
+	for _, c := range []struct {
+		raw    string
+		want   string // fmt of the value
+		remove bool
+	}{
+		{"1.5", "1.5", false}, {"true", "true", false}, {"[12, 1, 2]", "[12 1 2]", false},
+		{"*.nc", "*.nc", false}, {"sst/*.nc", "sst/*.nc", false}, {"null", "<nil>", true}, {"~", "<nil>", true},
+		{"", "", false}, {"# x", "# x", false}, {"{South: 1}", "map[south:1]", false}, {"1979-01", "1979-01", false},
+	} {
+		v, rm := parseValue(c.raw)
+		if got := strings.TrimSpace(fmtValue(v)); got != c.want || rm != c.remove {
+			t.Errorf("parseValue(%q) = %s, %v; want %s, %v", c.raw, got, rm, c.want, c.remove)
+		}
+	}
+}
+
+func fmtValue(v any) string {
+	if v == nil {
+		return "<nil>"
+	}
+	return fmt.Sprint(v)
+}
+
+// TestYAMLLines: the YAML line index follows nested tables and lists.
+func TestYAMLLines(t *testing.T) {
+	src := "datasets:\n  - name: a\n    inputs:\n      sst: x\n  - name: b\n    time:\n      months:\n        - 1\n        - 2\nanalysis: {band: {south: 1}}\n"
+	ix := indexLines("yaml", []byte(src))
+	for p, want := range map[string]int{
+		"datasets": 1, "datasets.0": 2, "datasets.0.inputs.sst": 4, "datasets.1.name": 5,
+		"datasets.1.time.months.1": 9, "analysis.band.south": 10, "datasets.1.time.unknown": 6,
+	} {
+		if got := ix.line(p); got != want {
+			t.Errorf("line(%s) = %d, want %d", p, got, want)
+		}
+	}
+}

@@ -1,0 +1,166 @@
+package config
+
+import (
+	"sort"
+
+	"lidscope/cf"
+)
+
+// kind is the shape of a recipe value.
+type kind uint8
+
+const (
+	kTable   kind = iota + 1 // a table with fixed keys
+	kRoles                   // a table keyed by role names (values: elem)
+	kList                    // a list of tables (elem)
+	kString                  // a string
+	kNumber                  // a number
+	kBool                    // true or false
+	kStrings                 // a string or a list of strings
+	kNumbers                 // a number or a list of numbers
+	kScalar                  // a number or a string (e.g. "1000hPa", "field")
+)
+
+func (k kind) String() string {
+	switch k {
+	case kTable, kRoles:
+		return "a table"
+	case kList:
+		return "a list of tables"
+	case kString:
+		return "a string"
+	case kNumber:
+		return "a number"
+	case kBool:
+		return "true or false"
+	case kStrings:
+		return "a string or a list of strings"
+	case kNumbers:
+		return "a number or a list of numbers"
+	case kScalar:
+		return "a number or a string"
+	}
+	return "?"
+}
+
+// key describes one recipe key: its shape and, for tables and lists, what
+// it holds. The schema is the single list of valid keys: unknown-key
+// checks, suggestions, override keys and environment names all come from it.
+type key struct {
+	kind kind
+	keys map[string]*key // kTable
+	elem *key            // kRoles, kList
+	all  bool            // kRoles: the key "all" is accepted too
+}
+
+func table(keys map[string]*key) *key { return &key{kind: kTable, keys: keys} }
+func leaf(k kind) *key                { return &key{kind: k} }
+
+var (
+	str     = leaf(kString)
+	number  = leaf(kNumber)
+	boolean = leaf(kBool)
+	strs    = leaf(kStrings)
+	numbers = leaf(kNumbers)
+	scalar  = leaf(kScalar)
+)
+
+var datasetKeys = table(map[string]*key{
+	"name":        str,
+	"description": str,
+	"inputs":      {kind: kRoles, elem: strs, all: true},
+	"variables":   {kind: kRoles, elem: str},
+	"units":       {kind: kRoles, elem: str},
+	"coordinates": {kind: kRoles, elem: table(map[string]*key{
+		"lat": str, "lon": str, "level": str, "time": str, "level_units": str,
+	})},
+	"time": table(map[string]*key{
+		"units": str, "calendar": str, "climatology": boolean,
+		"start": str, "end": str, "months": numbers, "season": str,
+	}),
+	"ocean": table(map[string]*key{
+		"mask": str, "role": str, "min_ocean_fraction": number, "ocean_values": numbers,
+	}),
+	"sea_ice": table(map[string]*key{"max_fraction": number}),
+	"surface": table(map[string]*key{
+		"pressure": scalar, "humidity": scalar, "temperature": str,
+	}),
+	"metrics": table(map[string]*key{
+		"svp": str, "lcl": str, "t850": str,
+		"lapse_pressure": scalar, "lapse_moisture": str,
+		"ectei": boolean, "ectei_beta": number, "ectei_surface": str,
+		"constants": table(map[string]*key{
+			"rd": number, "rv": number, "cpd": number, "lv0": number,
+			"lv_slope": number, "g": number, "p0": number,
+		}),
+	}),
+})
+
+var schema = table(map[string]*key{
+	"datasets": {kind: kList, elem: datasetKeys},
+	"analysis": table(map[string]*key{
+		"band":       table(map[string]*key{"south": number, "north": number}),
+		"threshold":  number,
+		"transition": number,
+		"cloud":      str,
+		"regions": {kind: kList, elem: table(map[string]*key{
+			"name": str, "south": number, "north": number, "west": number, "east": number,
+		})},
+		"grid": table(map[string]*key{
+			"target":         str,
+			"method":         {kind: kRoles, elem: str},
+			"min_coverage":   number,
+			"mask_threshold": number,
+		}),
+	}),
+	"output": table(map[string]*key{"dir": str, "plots": boolean}),
+})
+
+// roleNames lists the role keys a kRoles table accepts.
+func roleNames(k *key) []string {
+	var out []string
+	for _, r := range cf.Roles() {
+		out = append(out, string(r))
+	}
+	if k.all {
+		out = append(out, allKey)
+	}
+	return out
+}
+
+// allKey is the inputs key for files that may hold any role.
+const allKey = "all"
+
+func isRole(k *key, name string) bool {
+	if k.all && name == allKey {
+		return true
+	}
+	_, ok := cf.KindOf(cf.Role(name))
+	return ok
+}
+
+// names returns the valid keys of a table, sorted.
+func (k *key) names() []string {
+	if k.kind == kRoles {
+		return roleNames(k)
+	}
+	out := make([]string, 0, len(k.keys))
+	for n := range k.keys {
+		out = append(out, n)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// child returns the description of key name inside k, or nil.
+func (k *key) child(name string) *key {
+	switch k.kind {
+	case kTable:
+		return k.keys[name]
+	case kRoles:
+		if isRole(k, name) {
+			return k.elem
+		}
+	}
+	return nil
+}

@@ -1,0 +1,82 @@
+package pipeline
+
+import (
+	"fmt"
+
+	"lidscope/accumulate"
+	"lidscope/cf"
+	"lidscope/config"
+	"lidscope/regrid"
+)
+
+// extraRoles are composited by regime when a dataset gives them.
+var extraRoles = []cf.Role{cf.RoleCloud, cf.RoleLowCloud, cf.RoleSWUp, cf.RoleOLR, cf.RolePrecip}
+
+// PlanFor builds the plan of one dataset of a loaded recipe.
+func PlanFor(r *config.Recipe, d *config.Dataset) (Plan, error) {
+	in := func(role cf.Role) Input { return Input{Paths: d.Inputs[role], Spec: d.Spec(role)} }
+	need := func(role cf.Role) (Input, error) {
+		if len(d.Inputs[role]) == 0 {
+			return Input{}, fmt.Errorf("dataset %s: no input files for role %s", d.Name, role)
+		}
+		return in(role), nil
+	}
+	p := Plan{Dataset: d.Name, Metrics: d.Metrics, Classifier: r.Analysis.Classifier(), Band: r.Analysis.Band, Select: d.Selects}
+	var err error
+	if p.SST, err = need(cf.RoleSST); err != nil {
+		return p, err
+	}
+	if p.T700, err = need(cf.RoleAirTemp); err != nil {
+		return p, err
+	}
+	if p.Cloud, err = need(d.Cloud); err != nil {
+		return p, err
+	}
+	opt := func(role cf.Role) *Input {
+		if role == "" || len(d.Inputs[role]) == 0 {
+			return nil
+		}
+		x := in(role)
+		return &x
+	}
+	if d.Surface.TemperatureRole == cf.RoleSurfaceAir {
+		if p.SurfaceAir = opt(cf.RoleSurfaceAir); p.SurfaceAir == nil {
+			return p, fmt.Errorf("dataset %s: the metrics use surface air temperature but no surface_air_temp input is given", d.Name)
+		}
+	}
+	p.SurfacePressure = opt(d.Surface.PressureRole)
+	p.Humidity = opt(d.Surface.HumidityRole)
+	if d.Metrics.T850Field {
+		x := Input{Paths: d.Inputs[cf.RoleAirTemp], Spec: d.SpecAt(cf.RoleAirTemp, d.Metrics.LapsePressure)}
+		p.T850 = &x
+	}
+	if d.Metrics.ECTEI {
+		p.Q700 = opt(cf.RoleSpecHum)
+	}
+	if d.SeaIce.Use {
+		p.SeaIce = opt(cf.RoleSeaIce)
+		p.MaxSeaIce = d.SeaIce.MaxFraction
+	}
+	for _, role := range extraRoles {
+		if role != d.Cloud && len(d.Inputs[role]) > 0 {
+			p.Extras = append(p.Extras, in(role))
+		}
+	}
+	switch d.Ocean.Method {
+	case config.OceanWhereSST:
+		p.Ocean = Ocean{Kind: "sst"}
+	case config.OceanFromFraction:
+		p.Ocean = Ocean{Kind: "fraction", Input: opt(d.Ocean.Role), MinFraction: d.Ocean.MinOceanFraction}
+	case config.OceanFromCategories:
+		p.Ocean = Ocean{Kind: "categorical", Input: opt(d.Ocean.Role), OceanValues: d.Ocean.OceanValues}
+	}
+	for _, rg := range r.Analysis.Regions {
+		p.Regions = append(p.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
+	}
+	g := r.Analysis.Grid
+	p.Grid = GridPlan{Target: g.Target, MinCoverage: g.MinCoverage, MaskThreshold: g.MaskThreshold, Methods: map[cf.Role]regrid.Method{}}
+	for _, role := range cf.Roles() {
+		p.Grid.Methods[role] = g.MethodFor(role)
+	}
+	return p, nil
+}
