@@ -21,6 +21,7 @@ import (
 	"sync"
 
 	"lidscope/accumulate"
+	"lidscope/calendar"
 	"lidscope/cf"
 	"lidscope/grid"
 	"lidscope/metrics"
@@ -88,7 +89,9 @@ type Plan struct {
 type Result struct {
 	Acc          *accumulate.Acc
 	Grid         *grid.Grid
-	Labels       []string // kept time steps
+	Labels       []string        // kept time steps
+	Dates        []calendar.Date // their SST time stamps
+	Sampling     cf.Step         // monthly, daily, climatology, …
 	StepsPerYear float64
 	Calendar     string
 	Notes        []string // conversions, reorderings, drops, in plain words
@@ -236,6 +239,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	}
 	res.StepsPerYear = stepsPerYear
 	res.Calendar = sst.f.Time.Calendar
+	res.Sampling = sst.f.Time.Step
 	res.Notes = append(res.Notes, dropped...)
 	if len(steps) == 0 {
 		return nil, fmt.Errorf("no time step is common to every input after the time selection (%s); check the files' periods and the recipe's time range", strings.Join(dropped, "; "))
@@ -442,6 +446,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		}
 		acc.AddStep(step)
 		res.Labels = append(res.Labels, st.label)
+		res.Dates = append(res.Dates, st.date)
 		free <- b
 		if p.Progress != nil {
 			p.Progress(k+1, len(steps))
@@ -552,6 +557,7 @@ func attachWeights(gp GridPlan, target *grid.Grid, all []*field, notes *[]string
 // stepRef is one analysis time step and the matching index of each field.
 type stepRef struct {
 	label       string
+	date        calendar.Date
 	year, month int
 	idx         map[*field]int
 }
@@ -606,7 +612,7 @@ func align(sst *field, all []*field, maskF *field, sel func(y, m int) bool) (flo
 			unselected++
 			continue
 		}
-		st := stepRef{label: d.YearMonth().String(), year: d.Year, month: d.Month, idx: map[*field]int{}}
+		st := stepRef{label: d.YearMonth().String(), date: d, year: d.Year, month: d.Month, idx: map[*field]int{}}
 		if ta.Step == cf.StepDaily {
 			st.label = d.String()[:10]
 		}

@@ -26,6 +26,8 @@ type command struct {
 func commands() map[string]command {
 	return map[string]command{
 		"calc":    {"compute LTS, EIS and their ingredients for one column", cmdCalc},
+		"run":     {"run the regime analysis of a recipe's datasets (run RECIPE)", cmdRun},
+		"demo":    {"generate the synthetic demo world, analyse it and check the result", cmdDemo},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},
 		"recipe":  {"write a commented starter recipe from NetCDF files (recipe init FILE...)", cmdRecipe},
 		"version": {"print the lidscope version", func(_ []string, w, _ io.Writer) error {
