@@ -1,7 +1,9 @@
 package accumulate
 
 import (
+	"bytes"
 	"math"
+	"reflect"
 	"math/rand/v2"
 	"testing"
 
@@ -126,5 +128,29 @@ func TestRegionContains(t *testing.T) {
 		if r.Contains(c.lat, c.lon) != c.in {
 			t.Errorf("%v %v", c, !c.in)
 		}
+	}
+}
+
+func TestEncodeDecodeRoundTrip(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	a, _ := New(layout())
+	for i := 0; i < 20; i++ {
+		s := randomStep(rng, i)
+		a.AddCells(s, 0, 12)
+		a.AddStep(s)
+	}
+	var buf bytes.Buffer
+	if err := a.Encode(&buf); err != nil {
+		t.Fatal(err)
+	}
+	b, err := Decode(&buf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(a.Cells.Tracks, b.Cells.Tracks) || a.Cells.Values[1][2][3] != b.Cells.Values[1][2][3] || len(b.Series) != 20 || !reflect.DeepEqual(a.member, b.member) {
+		t.Fatal("state did not round-trip")
+	}
+	if _, err := Decode(bytes.NewReader([]byte("not a state"))); err == nil {
+		t.Error("garbage decoded")
 	}
 }

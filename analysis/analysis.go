@@ -100,7 +100,7 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	}
 	// Refuse to overwrite before spending time on the run.
 	if !opt.Force {
-		for _, n := range output.OutputNames() {
+		for _, n := range append(output.OutputNames(), StateFile) {
 			if _, err := os.Stat(filepath.Join(out, n)); err == nil {
 				return Report{}, fmt.Errorf("%s already holds results (%s); use --force to replace them or choose another --out", out, n)
 			}
@@ -125,6 +125,10 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	if err != nil {
 		return Report{}, err
 	}
+	if err := saveState(out, meta, res.Acc); err != nil {
+		return Report{}, fmt.Errorf("writing the run state: %w", err)
+	}
+	files = append(files, filepath.Join(out, StateFile))
 	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta}, nil
 }
 

@@ -34,8 +34,9 @@ type Track struct {
 	ConvRuns, SubsRuns         int32
 	ConvRunSteps, SubsRunSteps int64
 	// first run (needed to join runs across a merge)
-	FirstRunEnd  int32 // step index of the last step of the first run (−1 while it is open)
-	firstRunDone bool
+	FirstRunEnd int32 // step index of the last step of the first run (−1 while it is open)
+	// FirstRunDone is true once the first run has ended.
+	FirstRunDone bool
 }
 
 // NewTrack returns an empty track.
@@ -56,8 +57,8 @@ func (t *Track) Add(r Regime) {
 	case r != t.Last:
 		t.Crossings++
 		t.closeRun(t.Last, t.LastAt-t.RunStart+1)
-		if !t.firstRunDone {
-			t.FirstRunEnd, t.firstRunDone = t.LastAt, true
+		if !t.FirstRunDone {
+			t.FirstRunEnd, t.FirstRunDone = t.LastAt, true
 		}
 		t.RunStart = i
 	}
@@ -111,15 +112,15 @@ func (t *Track) Merge(b Track) {
 	}
 	t.Crossings += b.Crossings
 	bFirstEnd := b.FirstRunEnd
-	if !b.firstRunDone {
+	if !b.FirstRunDone {
 		bFirstEnd = b.LastAt
 	}
 	if b.First == t.Last {
 		// t's open run continues into b's first run
-		if b.firstRunDone {
+		if b.FirstRunDone {
 			t.closeRun(t.Last, off+bFirstEnd-t.RunStart+1)
-			if !t.firstRunDone {
-				t.FirstRunEnd, t.firstRunDone = off+bFirstEnd, true
+			if !t.FirstRunDone {
+				t.FirstRunEnd, t.FirstRunDone = off+bFirstEnd, true
 			}
 			t.RunStart = off + b.RunStart
 		}
@@ -127,10 +128,10 @@ func (t *Track) Merge(b Track) {
 	} else {
 		t.Crossings++
 		t.closeRun(t.Last, t.LastAt-t.RunStart+1)
-		if !t.firstRunDone {
-			t.FirstRunEnd, t.firstRunDone = t.LastAt, true
+		if !t.FirstRunDone {
+			t.FirstRunEnd, t.FirstRunDone = t.LastAt, true
 		}
-		if b.firstRunDone {
+		if b.FirstRunDone {
 			t.closeRun(b.First, bFirstEnd-b.FirstAt+1)
 			t.RunStart = off + b.RunStart
 		} else {
@@ -138,7 +139,7 @@ func (t *Track) Merge(b Track) {
 		}
 	}
 	// b's completed runs other than its first
-	if b.firstRunDone {
+	if b.FirstRunDone {
 		cr, cs, sr, ss := b.ConvRuns, b.ConvRunSteps, b.SubsRuns, b.SubsRunSteps
 		n := int64(bFirstEnd - b.FirstAt + 1)
 		if b.First == Convective {
@@ -163,7 +164,7 @@ func shifted(b Track, off, steps int32) Track {
 	b.FirstAt += off
 	b.LastAt += off
 	b.RunStart += off
-	if b.firstRunDone {
+	if b.FirstRunDone {
 		b.FirstRunEnd += off
 	}
 	b.Steps += steps

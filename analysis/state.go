@@ -1,0 +1,182 @@
+package analysis
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/gob"
+	"encoding/hex"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+
+	"lidscope/accumulate"
+	"lidscope/output"
+)
+
+// StateFile holds a finished run's complete accumulator and provenance, so
+// that runs over consecutive pieces of a record (split by time range or by
+// file set) can be merged later into exactly what one run over the whole
+// record gives (see Merge).
+const StateFile = "run-state.gob"
+
+const stateFormat = "lidscope-run-state/1"
+
+type runState struct {
+	Format string
+	Meta   output.Meta
+	Acc    []byte
+}
+
+func saveState(dir string, meta output.Meta, acc *accumulate.Acc) error {
+	var ab bytes.Buffer
+	if err := acc.Encode(&ab); err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes()}); err != nil {
+		return fmt.Errorf("encoding the run state: %w", err)
+	}
+	final := filepath.Join(dir, StateFile)
+	tmp, err := os.CreateTemp(dir, "."+StateFile+".tmp-*")
+	if err != nil {
+		return err
+	}
+	defer os.Remove(tmp.Name())
+	if _, err := tmp.Write(buf.Bytes()); err != nil {
+		tmp.Close()
+		return fmt.Errorf("writing %s: %w", final, err)
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), final)
+}
+
+// LoadState reads the state a run left in dir.
+func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
+	p := filepath.Join(dir, StateFile)
+	b, err := os.ReadFile(p)
+	if err != nil {
+		return output.Meta{}, nil, fmt.Errorf("%w (is %s a lidscope run folder?)", err, dir)
+	}
+	var s runState
+	if err := gob.NewDecoder(bytes.NewReader(b)).Decode(&s); err != nil {
+		return output.Meta{}, nil, fmt.Errorf("%s: %w", p, err)
+	}
+	if s.Format != stateFormat {
+		return output.Meta{}, nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: re-run with this version", p, s.Format, stateFormat)
+	}
+	acc, err := accumulate.Decode(bytes.NewReader(s.Acc))
+	if err != nil {
+		return output.Meta{}, nil, fmt.Errorf("%s: %w", p, err)
+	}
+	return s.Meta, acc, nil
+}
+
+// Merge joins finished runs over consecutive, non-overlapping pieces of one
+// dataset's record and writes the merged results to out. The runs must
+// agree on everything but the period: dataset, metrics recipe, regime
+// definition, grid, quantities, regions, calendar and sampling.
+func Merge(dirs []string, out string, opt Options) (Report, error) {
+	if len(dirs) < 2 {
+		return Report{}, fmt.Errorf("give at least two run folders to merge")
+	}
+	type run struct {
+		dir  string
+		meta output.Meta
+		acc  *accumulate.Acc
+	}
+	var runs []run
+	for _, d := range dirs {
+		m, a, err := LoadState(d)
+		if err != nil {
+			return Report{}, err
+		}
+		if len(m.TimeValues) == 0 {
+			return Report{}, fmt.Errorf("%s: the run has no time steps", d)
+		}
+		runs = append(runs, run{d, m, a})
+	}
+	sort.SliceStable(runs, func(i, j int) bool { return runs[i].meta.TimeValues[0] < runs[j].meta.TimeValues[0] })
+	first := runs[0]
+	var problems []string
+	for _, r := range runs[1:] {
+		a, b := first.meta, r.meta
+		check := func(what string, x, y any) {
+			if fmt.Sprint(x) != fmt.Sprint(y) {
+				problems = append(problems, fmt.Sprintf("%s: %s has %v, %s has %v", what, first.dir, x, r.dir, y))
+			}
+		}
+		check("dataset", a.Dataset, b.Dataset)
+		check("metrics recipe", a.MetricsRecipe, b.MetricsRecipe)
+		check("regime definition", a.RegimeDefinition, b.RegimeDefinition)
+		check("time steps per year", a.StepsPerYear, b.StepsPerYear)
+		check("calendar", a.Calendar, b.Calendar)
+		check("time units", a.TimeUnits, b.TimeUnits)
+	}
+	for i := 1; i < len(runs); i++ {
+		p, q := runs[i-1].meta, runs[i].meta
+		if q.TimeValues[0] <= p.TimeValues[len(p.TimeValues)-1] {
+			problems = append(problems, fmt.Sprintf("periods overlap: %s (%s) and %s (%s)", runs[i-1].dir, p.Period, runs[i].dir, q.Period))
+		}
+	}
+	if len(problems) > 0 {
+		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
+	}
+	acc := first.acc
+	meta := first.meta
+	hashes := []string{}
+	recipes := []string{}
+	for i, r := range runs {
+		hashes = append(hashes, r.meta.RecipeHash)
+		recipes = append(recipes, fmt.Sprintf("# run %d: %s (%s)\n%s", i+1, r.dir, r.meta.Period, r.meta.Recipe))
+		if i == 0 {
+			continue
+		}
+		if err := acc.Merge(r.acc); err != nil {
+			return Report{}, fmt.Errorf("merging %s: %w", r.dir, err)
+		}
+		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)
+		if meta.TimeBounds != nil && r.meta.TimeBounds != nil {
+			meta.TimeBounds = append(meta.TimeBounds, r.meta.TimeBounds...)
+		} else {
+			meta.TimeBounds = nil
+		}
+		meta.Inputs = append(meta.Inputs, r.meta.Inputs...)
+		meta.Notes = append(meta.Notes, r.meta.Notes...)
+		if r.meta.Start.Before(meta.Start) {
+			meta.Start = r.meta.Start
+		}
+	}
+	meta.Notes = append(meta.Notes, fmt.Sprintf("merged from %d runs: %s", len(runs), strings.Join(dirs, ", ")))
+	meta.Period = strings.SplitN(first.meta.Period, " … ", 2)[0] + " … " + lastOf(runs[len(runs)-1].meta.Period)
+	meta.Recipe = strings.Join(recipes, "\n")
+	sum := sha256.Sum256([]byte(strings.Join(hashes, "+")))
+	meta.RecipeHash = hex.EncodeToString(sum[:])
+	meta.Version = opt.Version
+	meta.Command = strings.Join(opt.Command, " ")
+	meta.End = time.Now()
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return Report{}, err
+	}
+	files, err := output.Write(out, acc, meta, output.Options{Force: opt.Force})
+	if err != nil {
+		return Report{}, err
+	}
+	if err := saveState(out, meta, acc); err != nil {
+		return Report{}, err
+	}
+	return Report{Dataset: meta.Dataset, OutDir: out, Files: append(files, filepath.Join(out, StateFile)), Meta: meta}, nil
+}
+
+func lastOf(period string) string {
+	parts := strings.Split(period, " … ")
+	return parts[len(parts)-1]
+}
