@@ -2,6 +2,7 @@ package config
 
 import (
 	"fmt"
+	"os"
 	"strings"
 	"testing"
 )
@@ -103,4 +104,36 @@ func TestYAMLLines(t *testing.T) {
 			t.Errorf("line(%s) = %d, want %d", p, got, want)
 		}
 	}
+}
+
+// TestEveryKeyDocumented: every key of the schema is described in doc.go,
+// and the commented example uses only keys of the schema (Load checks
+// that) and mentions each table.
+func TestEveryKeyDocumented(t *testing.T) {
+	doc, err := os.ReadFile("doc.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	example, err := os.ReadFile("testdata/example.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var walk func(k *key, path string)
+	walk = func(k *key, path string) {
+		switch k.kind {
+		case kTable:
+			for _, n := range k.names() {
+				if !strings.Contains(string(doc), n) {
+					t.Errorf("key %s is not described in doc.go", join(path, n))
+				}
+				if k.keys[n].kind == kTable && !strings.Contains(string(example), n+":") {
+					t.Errorf("table %s is not in testdata/example.yaml", join(path, n))
+				}
+				walk(k.keys[n], join(path, n))
+			}
+		case kRoles, kList:
+			walk(k.elem, path)
+		}
+	}
+	walk(schema, "")
 }

@@ -270,7 +270,12 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 				return
 			}
 			for i, x := range l {
-				walk(k.elem, join(path, strconv.Itoa(i)), x)
+				p := join(path, strconv.Itoa(i))
+				if x == nil {
+					probs = append(probs, w.problem(p, "is an empty list entry: give a table of keys, or remove the \"-\""))
+					continue
+				}
+				walk(k.elem, p, x)
 			}
 		}
 	}
