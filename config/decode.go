@@ -891,6 +891,16 @@ func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(c
 		}
 	}
 	if err := mr.Validate(); err != nil {
-		d.fail(path, "%v", err)
+		d.fail(path, "%s", recipeKeys.Replace(err.Error()))
 	}
 }
+
+// recipeKeys names metrics.Recipe fields by their recipe keys in messages.
+var recipeKeys = strings.NewReplacer(
+	"Recipe.LapsePressure", "lapse_pressure (Recipe.LapsePressure)",
+	"Recipe.SurfacePressure", "surface.pressure (Recipe.SurfacePressure)",
+	"Recipe.AssumedRH", "surface.humidity (Recipe.AssumedRH)",
+	"Recipe.ECTEIBeta", "ectei_beta (Recipe.ECTEIBeta)",
+	"Recipe.Constants", "constants (Recipe.Constants)",
+	"; start from metrics.DefaultRecipe()", "",
+)

@@ -39,23 +39,37 @@ func TestExampleFormatsAgree(t *testing.T) {
 
 // TestExampleFilesHoldTheSameData checks the premise of the test above
 // with independent parsers: Python's json and tomllib (standard library)
-// and PyYAML (Debian python3-yaml) must read the three example files as
-// the same data.
+// must read the TOML and JSON examples as the same data, and PyYAML
+// (Debian python3-yaml) the YAML example as that data too.
 func TestExampleFilesHoldTheSameData(t *testing.T) {
-	py := python(t, "json", "tomllib", "yaml")
-	script := `
-import json, sys, tomllib, yaml
+	t.Run("toml=json", func(t *testing.T) {
+		py := python(t, "json", "tomllib")
+		script := `
+import json, sys, tomllib
+t = tomllib.load(open(sys.argv[1], "rb"))
+j = json.load(open(sys.argv[2]))
+assert t == j, "toml != json"
+print("equal", len(t["datasets"]))
+`
+		out, err := exec.Command(py, "-c", script, exampleFiles[1], exampleFiles[2]).CombinedOutput()
+		if err != nil || strings.TrimSpace(string(out)) != "equal 2" {
+			t.Fatalf("python says: %v\n%s", err, out)
+		}
+	})
+	t.Run("yaml=json", func(t *testing.T) {
+		py := python(t, "json", "yaml")
+		script := `
+import json, sys, yaml
 y = yaml.safe_load(open(sys.argv[1]))
-t = tomllib.load(open(sys.argv[2], "rb"))
-j = json.load(open(sys.argv[3]))
-assert y == t, "yaml != toml"
+j = json.load(open(sys.argv[2]))
 assert y == j, "yaml != json"
 print("equal", len(y["datasets"]))
 `
-	out, err := exec.Command(py, append([]string{"-c", script}, exampleFiles...)...).CombinedOutput()
-	if err != nil || strings.TrimSpace(string(out)) != "equal 2" {
-		t.Fatalf("python says: %v\n%s", err, out)
-	}
+		out, err := exec.Command(py, "-c", script, exampleFiles[0], exampleFiles[2]).CombinedOutput()
+		if err != nil || strings.TrimSpace(string(out)) != "equal 2" {
+			t.Fatalf("python says: %v\n%s", err, out)
+		}
+	})
 }
 
 // TestFormatsTable: small recipes written in each format (and with keys in
