@@ -117,3 +117,28 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 		t.Errorf("overlapping runs merged: %v", err)
 	}
 }
+
+// TestDemoComparisonSeesTheModel: the synthetic model was built with a
+// stronger warm pool and weaker upwelling (ModelScenario), so its maps
+// differ from the reference's, while a run compared with itself does not.
+func TestDemoComparisonSeesTheModel(t *testing.T) {
+	dir := t.TempDir()
+	d, err := Demo(context.Background(), dir, DemoOptions{Scenario: smallWorld()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Comparison == nil || len(d.Comparison.Candidates) != 1 {
+		t.Fatal("no comparison")
+	}
+	c := d.Comparison.Candidates[0]
+	if c.Maps[0].Corr >= 1 || c.Maps[0].CRMS <= 0 {
+		t.Errorf("the model's convective-fraction map is indistinguishable from the reference: %+v", c.Maps[0])
+	}
+	self, _, err := CompareDirs(d.Reports[0].OutDir, []string{d.Reports[0].OutDir}, filepath.Join(dir, "self"), CompareOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := self.Candidates[0].Maps[0]; m.Corr != 1 || m.CRMS != 0 {
+		t.Errorf("self comparison: %+v", m)
+	}
+}

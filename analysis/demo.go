@@ -7,18 +7,25 @@ import (
 	"math"
 	"path/filepath"
 
+	"lidscope/compare"
 	"lidscope/config"
 	"lidscope/fixtures"
 	"lidscope/regimes"
 )
 
 // DemoReport is the outcome of the demo: where things went, and how the
-// analysis compares with what the synthetic world was built to contain.
+// analysis compares with what the synthetic worlds were built to contain.
 type DemoReport struct {
 	DataDir, RecipePath string
 	Reports             []Report
 	Truth               *fixtures.Truth
 	Checks              []Check
+	// The second synthetic world, a "model" with other sensitivities, and
+	// its comparison with the first.
+	ModelDataDir string
+	ModelTruth   *fixtures.Truth
+	Comparison   *compare.Result
+	CompareDir   string
 }
 
 // Check compares one recovered number with the construction's truth.
@@ -35,39 +42,81 @@ func (c Check) OK() bool { return math.Abs(c.Got-c.Want) <= c.Tol }
 // DemoOptions control the demo.
 type DemoOptions struct {
 	Options
-	// Scenario sets the synthetic world (fixtures.DefaultOptions() when zero).
+	// Scenario sets the synthetic world (fixtures.DefaultOptions() when nil).
 	Scenario *fixtures.Options
+	// Model sets the second world; nil derives it from Scenario with
+	// ModelPhysics.
+	Model *fixtures.Options
 }
 
-// Demo generates the synthetic demo world into dir/data, runs the full
-// analysis of its recipe into dir/results, and checks the results against
-// the world's known truth.
+// ModelScenario is the demo's synthetic "model": the same grid, period
+// and calendar as obs, with a weaker low-cloud sensitivity to EIS, a
+// stronger warm pool and weaker upwelling (invented, to show a model that
+// differs from the reference in known ways).
+func ModelScenario(obs fixtures.Options) fixtures.Options {
+	m := obs
+	m.Name = "synthetic-model"
+	m.Seed = obs.Seed + 1
+	m.Physics.CloudSlope = 0.03
+	m.Physics.WarmPool = obs.Physics.WarmPool + 0.5
+	m.Physics.Upwelling = obs.Physics.Upwelling - 1
+	return m
+}
+
+// Demo generates the synthetic demo world into dir/data and a synthetic
+// model into dir/data-model, runs the full analysis of both into
+// dir/results, checks each against its known truth, and compares the
+// model with the reference world into dir/results/comparison.
 func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error) {
 	so := fixtures.DefaultOptions()
 	if opt.Scenario != nil {
 		so = *opt.Scenario
 	}
-	so.Overwrite = opt.Force
-	so.Command = opt.Command
-	data := filepath.Join(dir, "data")
-	truth, err := fixtures.Generate(data, so)
-	if err != nil {
-		return nil, fmt.Errorf("generating the synthetic demo world: %w", err)
+	mo := ModelScenario(so)
+	if opt.Model != nil {
+		mo = *opt.Model
 	}
-	rp := filepath.Join(data, fixtures.RecipeFile)
 	res := filepath.Join(dir, "results")
-	r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"output.dir": res}})
-	if err != nil {
-		return nil, err
+	dr := &DemoReport{}
+	for k, sc := range []fixtures.Options{so, mo} {
+		sc.Overwrite = opt.Force
+		sc.Command = opt.Command
+		data := filepath.Join(dir, "data")
+		if k == 1 {
+			data = filepath.Join(dir, "data-model")
+		}
+		truth, err := fixtures.Generate(data, sc)
+		if err != nil {
+			return nil, fmt.Errorf("generating the synthetic world %s: %w", sc.Name, err)
+		}
+		rp := filepath.Join(data, fixtures.RecipeFile)
+		r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"output.dir": res}})
+		if err != nil {
+			return nil, err
+		}
+		ro := opt.Options
+		ro.OutDir = ""
+		reps, err := Run(ctx, r, nil, ro)
+		if err != nil {
+			return nil, err
+		}
+		dr.Reports = append(dr.Reports, reps...)
+		for _, c := range demoChecks(reps[0], truth) {
+			c.What = sc.Name + ": " + c.What
+			dr.Checks = append(dr.Checks, c)
+		}
+		if k == 0 {
+			dr.DataDir, dr.RecipePath, dr.Truth = data, rp, truth
+		} else {
+			dr.ModelDataDir, dr.ModelTruth = data, truth
+		}
 	}
-	ro := opt.Options
-	ro.OutDir = ""
-	reps, err := Run(ctx, r, nil, ro)
+	dr.CompareDir = filepath.Join(res, "comparison")
+	cr, _, err := CompareDirs(dr.Reports[0].OutDir, []string{dr.Reports[1].OutDir}, dr.CompareDir, CompareOptions{Options: opt.Options})
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("comparing the synthetic model with the reference: %w", err)
 	}
-	dr := &DemoReport{DataDir: data, RecipePath: rp, Reports: reps, Truth: truth}
-	dr.Checks = demoChecks(reps[0], truth)
+	dr.Comparison = cr
 	return dr, nil
 }
 
@@ -118,18 +167,17 @@ func demoChecks(rep Report, t *fixtures.Truth) []Check {
 
 // WriteSummary prints a short human summary of the demo.
 func (d *DemoReport) WriteSummary(w io.Writer) {
-	fmt.Fprintln(w, "lidscope demo — a synthetic world of invented data (not observations)")
-	fmt.Fprintf(w, "  input files and recipe: %s\n", d.DataDir)
+	fmt.Fprintln(w, "lidscope demo — two synthetic worlds of invented data (not observations)")
+	fmt.Fprintf(w, "  reference world: %s\n  synthetic model: %s\n", d.DataDir, d.ModelDataDir)
 	for _, r := range d.Reports {
 		res := r.Result
 		fmt.Fprintf(w, "  dataset %s: %d time steps (%s), grid %s\n", r.Dataset, len(res.Labels), r.Meta.Period, res.Grid)
-		fmt.Fprintf(w, "  regimes: %s\n", r.Meta.RegimeDefinition)
-		fmt.Fprintf(w, "  results: %s\n", r.OutDir)
-		for _, f := range r.Files {
-			fmt.Fprintf(w, "    %s\n", filepath.Base(f))
-		}
+		fmt.Fprintf(w, "    results: %s\n", r.OutDir)
 	}
-	fmt.Fprintln(w, "  recovered vs built into the world:")
+	if len(d.Reports) > 0 {
+		fmt.Fprintf(w, "  regimes: %s\n", d.Reports[0].Meta.RegimeDefinition)
+	}
+	fmt.Fprintln(w, "  recovered vs built into the worlds:")
 	for _, c := range d.Checks {
 		mark := "ok"
 		if !c.OK() {
@@ -137,5 +185,17 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 		}
 		fmt.Fprintf(w, "    %-8s %s: %.6g (truth %.6g) %s\n", mark, c.What, c.Got, c.Want, c.Units)
 	}
-	fmt.Fprintf(w, "  true subsidence cloud–EIS slope: %.4g per K (sample fit %.4g ± %.2g)\n", d.Truth.CloudEIS.TrueSlope, d.Truth.CloudEIS.SampleSlope, d.Truth.CloudEIS.SlopeSEAR1)
+	fmt.Fprintf(w, "  true subsidence cloud–EIS slope: reference %.3g per K, model %.3g per K\n", d.Truth.CloudEIS.TrueSlope, d.ModelTruth.CloudEIS.TrueSlope)
+	if d.Comparison != nil {
+		fmt.Fprintf(w, "  comparison (model − reference): %s\n", d.CompareDir)
+		for _, c := range d.Comparison.Candidates {
+			for _, m := range c.Maps {
+				fmt.Fprintf(w, "    %-22s pattern correlation %.3f, centred RMS difference %.3g %s, bias %+.3g %s\n", m.Name, m.Corr, m.CRMS, m.Units, m.Bias, m.Units)
+			}
+			fmt.Fprintf(w, "    %-34s %10s  %10s\n", "", "reference", "model")
+			for _, s := range c.Scalars {
+				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%+.3g %s)\n", s.Name, s.Ref, s.Cand, s.Diff, s.Units)
+			}
+		}
+	}
 }

@@ -27,6 +27,7 @@ func commands() map[string]command {
 	return map[string]command{
 		"calc":    {"compute LTS, EIS and their ingredients for one column", cmdCalc},
 		"run":     {"run the regime analysis of a recipe's datasets (run RECIPE)", cmdRun},
+		"compare": {"set models side by side with observations (compare --out DIR REF_RUN RUN... | RECIPE)", cmdCompare},
 		"merge":   {"join runs over consecutive pieces of a record (merge --out DIR RUN...)", cmdMerge},
 		"demo":    {"generate the synthetic demo world, analyse it and check the result", cmdDemo},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},

@@ -1,0 +1,112 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+
+	"lidscope/analysis"
+	"lidscope/compare"
+	"lidscope/config"
+)
+
+// compareOptions are the options of `lidscope compare`.
+type compareOptions struct {
+	Args          []string // a recipe, or run folders (reference first)
+	Reference     string   // recipe mode: the reference dataset (default: the first)
+	Out           string
+	Force         bool
+	AllowMismatch bool
+	Set           setFlags
+	Log           logOptions
+}
+
+func cmdCompare(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("compare", stderr)
+	o := compareOptions{Set: setFlags{}}
+	fs.StringVar(&o.Out, "out", "", "folder for the comparison (required)")
+	fs.StringVar(&o.Reference, "reference", "", "with a recipe: the reference dataset (default: the first)")
+	fs.BoolVar(&o.Force, "force", false, "replace existing results")
+	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different recipes, periods or regime definitions (every mismatch is listed)")
+	fs.Var(o.Set, "set", "with a recipe: override a recipe key, KEY=VALUE (repeatable)")
+	o.Log.register(fs)
+	fs.Usage = func() {
+		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] RECIPE\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud. With a recipe, every dataset is run first into DIR/<name>.")
+		fs.PrintDefaults()
+	}
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	o.Args = fs.Args()
+	if o.Out == "" {
+		return usageErr("--out is required")
+	}
+	if len(o.Args) == 0 {
+		return usageErr("give a recipe, or a reference run folder and at least one candidate run folder")
+	}
+	return runCompare(o, stdout, stderr)
+}
+
+func runCompare(o compareOptions, stdout, stderr io.Writer) error {
+	log, err := o.Log.logger(stderr)
+	if err != nil {
+		return err
+	}
+	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log}, AllowMismatch: o.AllowMismatch}
+	var res *compare.Result
+	var files []string
+	if fi, err := os.Stat(o.Args[0]); err == nil && !fi.IsDir() && len(o.Args) == 1 {
+		r, err := config.Load(o.Args[0], config.LoadOptions{Flags: o.Set})
+		if err != nil {
+			return err
+		}
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+		defer stop()
+		res, files, err = analysis.CompareRecipe(ctx, r, o.Reference, o.Out, opt)
+		if err != nil {
+			return err
+		}
+	} else {
+		if len(o.Args) < 2 {
+			return usageErr("give a reference run folder and at least one candidate run folder")
+		}
+		res, files, err = analysis.CompareDirs(o.Args[0], o.Args[1:], o.Out, opt)
+		if err != nil {
+			return err
+		}
+	}
+	writeComparison(stdout, res)
+	for _, f := range files {
+		fmt.Fprintf(stdout, "wrote %s\n", f)
+	}
+	return nil
+}
+
+func writeComparison(w io.Writer, res *compare.Result) {
+	if len(res.Mismatches) > 0 {
+		fmt.Fprintln(w, "MISMATCHES (compared anyway, --allow-mismatch):")
+		for _, m := range res.Mismatches {
+			fmt.Fprintf(w, "  %s\n", m)
+		}
+	}
+	fmt.Fprintf(w, "reference: %s (%s)\n", res.Reference.Name, res.Reference.Meta.Period)
+	fmt.Fprintf(w, "%-34s %12s", "", res.Reference.Name)
+	for _, c := range res.Candidates {
+		fmt.Fprintf(w, " %12s", c.Name)
+	}
+	fmt.Fprintln(w)
+	for i, s := range res.ReferenceScalars {
+		fmt.Fprintf(w, "%-34s %12.5g", s.Name+" ["+s.Units+"]", s.Cand)
+		for _, c := range res.Candidates {
+			fmt.Fprintf(w, " %12.5g", c.Scalars[i].Cand)
+		}
+		fmt.Fprintln(w)
+	}
+	for _, c := range res.Candidates {
+		for _, m := range c.Maps {
+			fmt.Fprintf(w, "%s %s: pattern correlation %.3f, centred RMS difference %.3g %s, bias %+.3g %s (%d band cells)\n", c.Name, m.Name, m.Corr, m.CRMS, m.Units, m.Bias, m.Units, m.N)
+		}
+	}
+}

@@ -1,0 +1,311 @@
+// Package compare sets finished runs side by side: one reference (usually
+// observations) and one or more candidates (usually models), all on one
+// analysis grid. For each candidate it reports map statistics against the
+// reference (area-weighted pattern correlation, centred RMS difference and
+// bias of the convective-frequency and crossings-per-year maps, with the
+// difference maps), and scalar diagnostics side by side (tropical-mean SST,
+// convective area fraction and its variability, regime-mean EIS, LTS and
+// cloud).
+//
+// Runs made with different metrics recipes, regime definitions, bands,
+// periods or grids measure different things; Compare refuses them unless
+// told to allow the mismatch, and then lists every mismatch.
+package compare
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"lidscope/accumulate"
+	"lidscope/output"
+	"lidscope/regimes"
+)
+
+// Run is a finished run.
+type Run struct {
+	Name string // the dataset name (or the folder)
+	Dir  string
+	Meta output.Meta
+	Acc  *accumulate.Acc
+}
+
+// Options control a comparison.
+type Options struct {
+	// AllowMismatch compares runs whose recipes, periods or grids differ;
+	// the mismatches are listed in the result.
+	AllowMismatch bool
+}
+
+// MapStat compares one per-column map of a candidate with the reference
+// over the cells of the tropical band where both are valid, weighted by
+// the cell area inside the band.
+type MapStat struct {
+	Name  string  `json:"name"`
+	Units string  `json:"units"`
+	N     int     `json:"cells"`
+	Corr  float64 `json:"pattern_correlation"`
+	// CRMS is the centred RMS difference (Taylor 2001, J. Geophys. Res.
+	// 106(D7), eq. 2): the RMS of the difference after removing each map's
+	// weighted mean.
+	CRMS     float64 `json:"centred_rms_difference"`
+	Bias     float64 `json:"bias"` // candidate mean − reference mean
+	RefMean  float64 `json:"reference_mean"`
+	CandMean float64 `json:"candidate_mean"`
+	RefStd   float64 `json:"reference_std"`
+	CandStd  float64 `json:"candidate_std"`
+}
+
+// Scalar is one diagnostic of the reference and a candidate.
+type Scalar struct {
+	Name  string  `json:"name"`
+	Units string  `json:"units"`
+	Ref   float64 `json:"reference"`
+	Cand  float64 `json:"candidate"`
+	Diff  float64 `json:"difference"` // candidate − reference
+}
+
+// Candidate is the comparison of one candidate with the reference.
+type Candidate struct {
+	Name    string    `json:"name"`
+	Dir     string    `json:"dir"`
+	Maps    []MapStat `json:"maps"`
+	Scalars []Scalar  `json:"scalars"`
+	// Diff holds the difference maps (candidate − reference, NaN where
+	// either is missing), by map name.
+	Diff map[string][]float64 `json:"-"`
+}
+
+// Result is a whole comparison.
+type Result struct {
+	Reference  Run
+	Candidates []Candidate
+	// ReferenceScalars are the reference's own diagnostics (for the table's first row).
+	ReferenceScalars []Scalar
+	Mismatches       []string
+}
+
+// mapNames are the maps compared, with their units.
+var mapNames = []struct{ name, units string }{
+	{"convective_fraction", "1"},
+	{"crossings_per_year", "yr-1"},
+}
+
+// Mismatches lists how two runs' definitions differ.
+func Mismatches(a, b Run) []string {
+	var out []string
+	chk := func(what string, x, y any) {
+		if fmt.Sprint(x) != fmt.Sprint(y) {
+			out = append(out, fmt.Sprintf("%s differs: %s has %v, %s has %v", what, a.Name, x, b.Name, y))
+		}
+	}
+	chk("metrics recipe", a.Meta.MetricsRecipe, b.Meta.MetricsRecipe)
+	chk("regime definition", a.Meta.RegimeDefinition, b.Meta.RegimeDefinition)
+	chk("threshold δ (K)", a.Meta.Delta, b.Meta.Delta)
+	chk("transition half-width (K)", a.Meta.HalfWidth, b.Meta.HalfWidth)
+	chk("band", fmt.Sprintf("%g…%g", a.Meta.BandSouth, a.Meta.BandNorth), fmt.Sprintf("%g…%g", b.Meta.BandSouth, b.Meta.BandNorth))
+	chk("period", a.Meta.Period, b.Meta.Period)
+	chk("time steps per year", a.Meta.StepsPerYear, b.Meta.StepsPerYear)
+	la, lb := a.Acc.L, b.Acc.L
+	if la.NLat != lb.NLat || la.NLon != lb.NLon {
+		out = append(out, fmt.Sprintf("grid differs: %s is %d×%d, %s is %d×%d (put both on one analysis grid)", a.Name, la.NLat, la.NLon, b.Name, lb.NLat, lb.NLon))
+	} else {
+		for i := range la.Lat {
+			if math.Abs(la.Lat[i]-lb.Lat[i]) > 1e-6 {
+				out = append(out, fmt.Sprintf("grid differs: latitude %d is %g in %s, %g in %s", i, la.Lat[i], a.Name, lb.Lat[i], b.Name))
+				break
+			}
+		}
+		for i := range la.Lon {
+			if math.Abs(la.Lon[i]-lb.Lon[i]) > 1e-6 {
+				out = append(out, fmt.Sprintf("grid differs: longitude %d is %g in %s, %g in %s", i, la.Lon[i], a.Name, lb.Lon[i], b.Name))
+				break
+			}
+		}
+	}
+	return out
+}
+
+// Compare compares every candidate with the reference.
+func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
+	if len(cands) == 0 {
+		return nil, fmt.Errorf("give at least one candidate run to compare with the reference %s", ref.Name)
+	}
+	res := &Result{Reference: ref, ReferenceScalars: scalars(ref)}
+	for _, c := range cands {
+		mm := Mismatches(ref, c)
+		res.Mismatches = append(res.Mismatches, mm...)
+		if len(mm) > 0 && !opt.AllowMismatch {
+			continue
+		}
+		gridOK := ref.Acc.L.NLat == c.Acc.L.NLat && ref.Acc.L.NLon == c.Acc.L.NLon
+		if !gridOK {
+			return nil, fmt.Errorf("%s and %s are on different grids; maps cannot be compared even with --allow-mismatch: run both on one analysis grid", ref.Name, c.Name)
+		}
+		cr := Candidate{Name: c.Name, Dir: c.Dir, Diff: map[string][]float64{}}
+		rm, cm := maps(ref), maps(c)
+		w := weights(ref.Acc.L)
+		for _, mn := range mapNames {
+			st, diff := mapStat(rm[mn.name], cm[mn.name], w)
+			st.Name, st.Units = mn.name, mn.units
+			cr.Maps = append(cr.Maps, st)
+			cr.Diff[mn.name] = diff
+		}
+		cs := scalars(c)
+		for i, s := range cs {
+			s.Ref = res.ReferenceScalars[i].Cand
+			s.Diff = s.Cand - s.Ref
+			cs[i] = s
+		}
+		cr.Scalars = cs
+		res.Candidates = append(res.Candidates, cr)
+	}
+	if len(res.Mismatches) > 0 && !opt.AllowMismatch {
+		return nil, &MismatchError{List: res.Mismatches}
+	}
+	return res, nil
+}
+
+// MismatchError lists why runs were not compared.
+type MismatchError struct{ List []string }
+
+func (e *MismatchError) Error() string {
+	s := "the runs were made differently and are not comparable (use --allow-mismatch to compare anyway):"
+	for _, m := range e.List {
+		s += "\n  " + m
+	}
+	return s
+}
+
+func weights(l accumulate.Layout) []float64 { return l.BandWeight }
+
+func maps(r Run) map[string][]float64 {
+	spy := r.Meta.StepsPerYear
+	if spy == 0 {
+		spy = 12
+	}
+	return map[string][]float64{
+		"convective_fraction": r.Acc.ConvectiveFraction(),
+		"crossings_per_year":  r.Acc.CrossingsPerYear(spy),
+	}
+}
+
+// mapStat computes the weighted statistics of cand against ref.
+func mapStat(ref, cand, w []float64) (MapStat, []float64) {
+	diff := make([]float64, len(ref))
+	var sw, sr, sc float64
+	n := 0
+	for i := range ref {
+		diff[i] = math.NaN()
+		if ref[i] != ref[i] || cand[i] != cand[i] {
+			continue
+		}
+		diff[i] = cand[i] - ref[i]
+		if w[i] <= 0 {
+			continue
+		}
+		n++
+		sw += w[i]
+		sr += w[i] * ref[i]
+		sc += w[i] * cand[i]
+	}
+	st := MapStat{N: n, Corr: math.NaN(), CRMS: math.NaN(), Bias: math.NaN(), RefMean: math.NaN(), CandMean: math.NaN(), RefStd: math.NaN(), CandStd: math.NaN()}
+	if sw == 0 {
+		return st, diff
+	}
+	mr, mc := sr/sw, sc/sw
+	var vr, vc, cov, d2 float64
+	for i := range ref {
+		if ref[i] != ref[i] || cand[i] != cand[i] || w[i] <= 0 {
+			continue
+		}
+		a, b := ref[i]-mr, cand[i]-mc
+		vr += w[i] * a * a
+		vc += w[i] * b * b
+		cov += w[i] * a * b
+		d2 += w[i] * (b - a) * (b - a)
+	}
+	st.RefMean, st.CandMean, st.Bias = mr, mc, mc-mr
+	st.RefStd, st.CandStd = math.Sqrt(vr/sw), math.Sqrt(vc/sw)
+	st.CRMS = math.Sqrt(d2 / sw)
+	if vr > 0 && vc > 0 {
+		st.Corr = cov / math.Sqrt(vr*vc)
+	} else if d2 == 0 {
+		st.Corr = 1 // identical constant maps
+	}
+	return st, diff
+}
+
+// scalars are a run's own diagnostics (in the Cand field).
+func scalars(r Run) []Scalar {
+	a := r.Acc
+	var out []Scalar
+	add := func(name, units string, v float64) { out = append(out, Scalar{Name: name, Units: units, Cand: v}) }
+	var mSST, mConv, n float64
+	for _, p := range a.Series {
+		if p.TropMean == p.TropMean {
+			mSST += p.TropMean
+		}
+		if c := p.AreaFraction[regimes.Convective]; c == c {
+			mConv += c
+			n++
+		}
+	}
+	ns := float64(len(a.Series))
+	mSST /= ns
+	mConv /= n
+	var vConv float64
+	for _, p := range a.Series {
+		if c := p.AreaFraction[regimes.Convective]; c == c {
+			vConv += (c - mConv) * (c - mConv)
+		}
+	}
+	add("tropical_mean_sst", "K", mSST)
+	add("convective_area_fraction_mean", "1", mConv)
+	add("convective_area_fraction_std", "1", math.Sqrt(vConv/n))
+	q := map[string]int{}
+	for i, name := range a.L.Quantities {
+		q[name] = i
+	}
+	names := []string{"eis", "lts", "cloud"}
+	for _, name := range names {
+		k, ok := q[name]
+		if !ok {
+			continue
+		}
+		for _, rg := range []regimes.Regime{regimes.Subsidence, regimes.Convective} {
+			units := "K"
+			if name == "cloud" {
+				units = "1"
+			}
+			add(fmt.Sprintf("%s_%s_mean", name, rg), units, bandMean(a, k, rg))
+		}
+	}
+	return out
+}
+
+// bandMean is the band-area- and time-weighted regime mean of quantity k.
+func bandMean(a *accumulate.Acc, k int, r regimes.Regime) float64 {
+	var sw, swx float64
+	vals := a.Cells.Values[k][r]
+	for i, w := range a.L.BandWeight {
+		if w > 0 && vals[i].W > 0 {
+			sw += w * vals[i].W
+			swx += w * vals[i].W * vals[i].Mean
+		}
+	}
+	if sw == 0 {
+		return math.NaN()
+	}
+	return swx / sw
+}
+
+// SortedMapNames lists the compared maps.
+func SortedMapNames() []string {
+	var out []string
+	for _, m := range mapNames {
+		out = append(out, m.name)
+	}
+	sort.Strings(out)
+	return out
+}

@@ -1,0 +1,250 @@
+package compare
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+
+	"lidscope/cfwrite"
+)
+
+// Output files of a comparison.
+const (
+	CSVFile  = "comparison.csv"
+	JSONFile = "comparison.json"
+	MapsFile = "comparison_maps.nc"
+)
+
+// WriteOptions control Write.
+type WriteOptions struct {
+	Force   bool
+	Version string
+	Command []string
+}
+
+// Write writes comparison.csv, comparison.json and comparison_maps.nc
+// into dir. Each file is written under a temporary name and renamed.
+func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
+	names := []string{CSVFile, JSONFile, MapsFile}
+	if !opt.Force {
+		for _, n := range names {
+			if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
+				return nil, fmt.Errorf("%s already exists: use --force to replace it or choose another --out: %w", filepath.Join(dir, n), fs.ErrExist)
+			} else if !errors.Is(err, fs.ErrNotExist) {
+				return nil, err
+			}
+		}
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, err
+	}
+	var out []string
+	csvb, err := csvBytes(res)
+	if err != nil {
+		return nil, err
+	}
+	if err := atomicWrite(filepath.Join(dir, CSVFile), csvb); err != nil {
+		return out, err
+	}
+	out = append(out, filepath.Join(dir, CSVFile))
+	jb, err := jsonBytes(res, opt)
+	if err != nil {
+		return out, err
+	}
+	if err := atomicWrite(filepath.Join(dir, JSONFile), jb); err != nil {
+		return out, err
+	}
+	out = append(out, filepath.Join(dir, JSONFile))
+	if len(res.Candidates) > 0 {
+		if err := writeMaps(filepath.Join(dir, MapsFile), res, opt); err != nil {
+			return out, err
+		}
+		out = append(out, filepath.Join(dir, MapsFile))
+	}
+	return out, nil
+}
+
+func atomicWrite(path string, b []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	defer os.Remove(tmp.Name())
+	if _, err := tmp.Write(b); err != nil {
+		tmp.Close()
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := tmp.Close(); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
+}
+
+func num(x float64) string {
+	if x != x {
+		return "NaN"
+	}
+	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// csvBytes: one row per run, the reference first (an ensemble view).
+func csvBytes(res *Result) ([]byte, error) {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	head := []string{"run", "role"}
+	for _, s := range res.ReferenceScalars {
+		head = append(head, fmt.Sprintf("%s [%s]", s.Name, s.Units), fmt.Sprintf("%s_diff [%s]", s.Name, s.Units))
+	}
+	for _, m := range mapNames {
+		head = append(head, m.name+"_pattern_corr [1]", fmt.Sprintf("%s_centred_rms [%s]", m.name, m.units), fmt.Sprintf("%s_bias [%s]", m.name, m.units))
+	}
+	w.Write(head)
+	row := []string{res.Reference.Name, "reference"}
+	for _, s := range res.ReferenceScalars {
+		row = append(row, num(s.Cand), "0")
+	}
+	for range mapNames {
+		row = append(row, "1", "0", "0")
+	}
+	w.Write(row)
+	for _, c := range res.Candidates {
+		row := []string{c.Name, "candidate"}
+		for _, s := range c.Scalars {
+			row = append(row, num(s.Cand), num(s.Diff))
+		}
+		for _, m := range c.Maps {
+			row = append(row, num(m.Corr), num(m.CRMS), num(m.Bias))
+		}
+		w.Write(row)
+	}
+	w.Flush()
+	return buf.Bytes(), w.Error()
+}
+
+type jnum struct {
+	Value *float64 `json:"value"`
+	Units string   `json:"units"`
+}
+
+func jv(x float64, u string) jnum {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return jnum{nil, u}
+	}
+	return jnum{&x, u}
+}
+
+func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
+	type jscalar struct {
+		Reference  jnum `json:"reference"`
+		Candidate  jnum `json:"candidate"`
+		Difference jnum `json:"difference"`
+	}
+	type jmap struct {
+		Cells             int    `json:"cells"`
+		PatternCorr       jnum   `json:"pattern_correlation"`
+		CentredRMS        jnum   `json:"centred_rms_difference"`
+		Bias              jnum   `json:"bias"`
+		ReferenceMean     jnum   `json:"reference_mean"`
+		CandidateMean     jnum   `json:"candidate_mean"`
+		ReferenceStd      jnum   `json:"reference_std"`
+		CandidateStd      jnum   `json:"candidate_std"`
+		WeightingAndCells string `json:"weighting"`
+	}
+	type jcand struct {
+		Name    string             `json:"name"`
+		Dir     string             `json:"dir"`
+		Scalars map[string]jscalar `json:"scalars"`
+		Maps    map[string]jmap    `json:"maps"`
+	}
+	doc := struct {
+		Format     string          `json:"format"`
+		Version    string          `json:"lidscope_version"`
+		Reference  map[string]any  `json:"reference"`
+		Candidates []jcand         `json:"candidates"`
+		Mismatches []string        `json:"mismatches"`
+		Scalars    map[string]jnum `json:"reference_scalars"`
+	}{Format: "lidscope-comparison/1", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{}}
+	if doc.Mismatches == nil {
+		doc.Mismatches = []string{}
+	}
+	m := res.Reference.Meta
+	doc.Reference = map[string]any{"name": res.Reference.Name, "dir": res.Reference.Dir, "period": m.Period,
+		"regime_definition": m.RegimeDefinition, "metrics_recipe": m.MetricsRecipe, "recipe_hash": m.RecipeHash}
+	for _, s := range res.ReferenceScalars {
+		doc.Scalars[s.Name] = jv(s.Cand, s.Units)
+	}
+	for _, c := range res.Candidates {
+		jc := jcand{Name: c.Name, Dir: c.Dir, Scalars: map[string]jscalar{}, Maps: map[string]jmap{}}
+		for _, s := range c.Scalars {
+			jc.Scalars[s.Name] = jscalar{jv(s.Ref, s.Units), jv(s.Cand, s.Units), jv(s.Diff, s.Units)}
+		}
+		for _, mp := range c.Maps {
+			jc.Maps[mp.Name] = jmap{mp.N, jv(mp.Corr, "1"), jv(mp.CRMS, mp.Units), jv(mp.Bias, mp.Units),
+				jv(mp.RefMean, mp.Units), jv(mp.CandMean, mp.Units), jv(mp.RefStd, mp.Units), jv(mp.CandStd, mp.Units),
+				"ocean cells of the tropical band valid in both runs, weighted by cell area inside the band; centred RMS difference as Taylor (2001, eq. 2)"}
+		}
+		doc.Candidates = append(doc.Candidates, jc)
+	}
+	return json.MarshalIndent(doc, "", "  ")
+}
+
+func writeMaps(path string, res *Result, opt WriteOptions) error {
+	l := res.Reference.Acc.L
+	w, err := cfwrite.Create(path, cfwrite.Options{
+		Title:     fmt.Sprintf("lidscope comparison with reference %s: difference maps (candidate − reference)", res.Reference.Name),
+		Source:    "lidscope " + opt.Version,
+		Command:   opt.Command,
+		Overwrite: opt.Force,
+		Attributes: map[string]string{
+			"reference":         res.Reference.Name,
+			"regime_definition": res.Reference.Meta.RegimeDefinition,
+			"metrics_recipe":    res.Reference.Meta.MetricsRecipe,
+			"period":            res.Reference.Meta.Period,
+		},
+	})
+	if err != nil {
+		return err
+	}
+	defer w.Abort()
+	g := res.Reference.Meta.Grid
+	cg := cfwrite.Grid{Lat: l.Lat, Lon: l.Lon}
+	if g != nil && len(g.Lat) == len(l.Lat) && len(g.Lon) == len(l.Lon) {
+		cg.LatBounds, cg.LonBounds = g.LatBounds, g.LonBounds
+	}
+	if err := w.SetGrid(cg); err != nil {
+		return err
+	}
+	var meanings []string
+	for _, c := range res.Candidates {
+		meanings = append(meanings, c.Name)
+	}
+	if err := w.AddCategories(cfwrite.Categories{Name: "candidate", LongName: "candidate run", Meanings: meanings}); err != nil {
+		return err
+	}
+	vars := make([]*cfwrite.Var, len(mapNames))
+	for k, mn := range mapNames {
+		v, err := w.AddVar(cfwrite.VarSpec{Name: mn.name + "_diff", Dims: []string{"candidate", cfwrite.DimLat, cfwrite.DimLon},
+			Units: mn.units, LongName: fmt.Sprintf("%s of the candidate minus that of the reference (%s)", mn.name, res.Reference.Name)})
+		if err != nil {
+			return err
+		}
+		vars[k] = v
+	}
+	for k, mn := range mapNames {
+		var all []float64
+		for _, c := range res.Candidates {
+			all = append(all, c.Diff[mn.name]...)
+		}
+		if err := vars[k].Write(all); err != nil {
+			return err
+		}
+	}
+	return w.Close()
+}
