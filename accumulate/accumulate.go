@@ -4,7 +4,7 @@
 // consecutive pieces of a record merge (Merge) into exactly what one pass
 // over the whole record gives, up to floating-point rounding.
 //
-// Quantities are identified by name (e.g. "eis", "lts", "cloud"); their
+// Quantities are identified by name (e.g. "eis", "lts", "low_cloud"); their
 // values arrive in SI units.
 package accumulate
 
@@ -48,7 +48,10 @@ type Layout struct {
 	Lat, Lon   []float64 // cell centres
 	Area       []float64 // cell areas, m², row-major [lat][lon]
 	BandWeight []float64 // area inside the tropical band (0 outside)
-	Quantities []string  // names of the per-column quantities, e.g. eis, lts, cloud
+	Quantities []string  // names of the per-column quantities, e.g. eis, lts, low_cloud
+	// Cloud names the quantity that is the analysis's cloud field (the
+	// recipe's cloud role: low_cloud or cloud).
+	Cloud string
 	Regions    []Region
 }
 

@@ -159,7 +159,7 @@ func demoChecks(rep Report, t *fixtures.Truth) []Check {
 	}
 	out = append(out,
 		Check{What: "subsidence-regime mean EIS over the band", Got: mean("eis", regimes.Subsidence), Want: t.Subsidence.MeanEIS, Tol: 1e-3, Units: "K"},
-		Check{What: "subsidence-regime mean low cloud over the band", Got: mean("cloud", regimes.Subsidence), Want: t.Subsidence.MeanCloud, Tol: 1e-4, Units: "1"},
+		Check{What: "subsidence-regime mean low cloud over the band", Got: mean(acc.L.Cloud, regimes.Subsidence), Want: t.Subsidence.MeanCloud, Tol: 1e-4, Units: "1"},
 		Check{What: "convective-regime mean SST over the band", Got: mean("sst", regimes.Convective), Want: t.Convective.MeanSST, Tol: 1e-3, Units: "K"},
 	)
 	return out

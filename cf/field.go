@@ -54,6 +54,7 @@ type Field struct {
 	latFirst       bool
 	nyx            int
 	infCount       atomic.Int64
+	nanCount       atomic.Int64
 	paths          []string
 }
 
@@ -74,6 +75,21 @@ func (f *Field) Len() int { return f.Layout.NLat() * f.Layout.NLon() }
 
 // InfCount is how many ±Inf stored values have been read (and masked) so far.
 func (f *Field) InfCount() int64 { return f.infCount.Load() }
+
+// NaNCount is how many stored NaN values have been read (and masked) so far,
+// not counting NaN where the variable declares it as its _FillValue or a
+// missing_value (then NaN is the file's ordinary missing-data marker).
+func (f *Field) NaNCount() int64 { return f.nanCount.Load() }
+
+// PathAt returns the file that holds time step t of the record ("" when t
+// is out of range).
+func (f *Field) PathAt(t int) string {
+	seg, _, err := f.locate(t)
+	if err != nil {
+		return ""
+	}
+	return seg.file.Path()
+}
 
 // Close releases the files.
 func (f *Field) Close() error {
@@ -110,7 +126,7 @@ func Open(paths []string, spec Spec) (*Field, error) {
 		}
 		nf, err := netcdf.Open(p)
 		if err != nil {
-			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+			return fail(fmt.Errorf("role %s: %w%s", spec.Role, err, openHint(err)))
 		}
 		files = append(files, nf)
 		one, err := openOne(nf, spec, kind)
@@ -129,6 +145,17 @@ func Open(paths []string, spec Spec) (*Field, error) {
 		return fail(fmt.Errorf("role %s: %w", spec.Role, err))
 	}
 	return fld, nil
+}
+
+// openHint says what to do about a file netCDF-C could not open.
+func openHint(err error) string {
+	switch {
+	case errors.Is(err, netcdf.ErrHDF5):
+		return " (the NetCDF-4/HDF5 file is damaged or truncated; check it with ncdump -h and copy or download it again)"
+	case errors.Is(err, netcdf.ErrNotNetCDF):
+		return " (the file is not NetCDF, or is truncated or damaged; check it with ncdump -h and copy or download it again)"
+	}
+	return ""
 }
 
 func (fld *Field) appendSegment(o *Field) error {
@@ -442,17 +469,22 @@ func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
 		}
 	}
 	m := &seg.mask
-	var infs int64
+	var infs, nans int64
+	countNaN := !m.nanDeclared()
 	for k, src := range fld.Layout.src {
 		x := a[src]
 		if math.IsInf(x, 0) {
 			infs++
+		} else if x != x && countNaN {
+			nans++
 		}
 		y := m.Decode(x)
 		if interp {
 			x2 := b[src]
 			if math.IsInf(x2, 0) {
 				infs++
+			} else if x2 != x2 && countNaN {
+				nans++
 			}
 			y2 := m.Decode(x2)
 			w := fld.Level.W
@@ -462,6 +494,9 @@ func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
 	}
 	if infs > 0 {
 		fld.infCount.Add(infs)
+	}
+	if nans > 0 {
+		fld.nanCount.Add(nans)
 	}
 	return nil
 }

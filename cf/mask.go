@@ -15,7 +15,9 @@ import (
 //   - A value is missing when it equals _FillValue, equals any of the
 //     missing_value values, or lies outside [valid_min, valid_max]
 //     (valid_range gives both). NaN and ±Inf in floating-point data are
-//     missing too (Inf is counted, so a run can report it).
+//     missing too; both are counted so a run can report them (NaN only
+//     where the variable does not declare NaN as its _FillValue or a
+//     missing_value: then NaN is its ordinary missing-data marker).
 //   - These tests are made on the stored ("packed") values, before
 //     unpacking. If missing_value or a valid-range attribute has the type of
 //     scale_factor rather than of the variable, it is in the unpacked domain
@@ -252,6 +254,20 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 		m.Notes = append(m.Notes, fmt.Sprintf("%s of %s %s the type of scale_factor, not of the stored data: applied to unpacked values", strings.Join(which, " and "), vname, map[bool]string{true: "have", false: "has"}[len(which) > 1]))
 	}
 	return m, nil
+}
+
+// nanDeclared reports whether the variable declares NaN as its _FillValue
+// or as one of its missing_value values.
+func (m *Mask) nanDeclared() bool {
+	if m.FillGiven && math.IsNaN(m.Fill) {
+		return true
+	}
+	for _, v := range m.Missing {
+		if math.IsNaN(v) {
+			return true
+		}
+	}
+	return false
 }
 
 // Decode turns one stored value into a physical value (NaN if missing),

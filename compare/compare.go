@@ -106,6 +106,7 @@ func Mismatches(a, b Run) []string {
 	chk("band", fmt.Sprintf("%g…%g", a.Meta.BandSouth, a.Meta.BandNorth), fmt.Sprintf("%g…%g", b.Meta.BandSouth, b.Meta.BandNorth))
 	chk("period", a.Meta.Period, b.Meta.Period)
 	chk("time steps per year", a.Meta.StepsPerYear, b.Meta.StepsPerYear)
+	chk("cloud field", a.Acc.L.Cloud, b.Acc.L.Cloud)
 	la, lb := a.Acc.L, b.Acc.L
 	if la.NLat != lb.NLat || la.NLon != lb.NLon {
 		out = append(out, fmt.Sprintf("grid differs: %s is %d×%d, %s is %d×%d (put both on one analysis grid)", a.Name, la.NLat, la.NLon, b.Name, lb.NLat, lb.NLon))
@@ -267,7 +268,11 @@ func scalars(r Run) []Scalar {
 	for i, name := range a.L.Quantities {
 		q[name] = i
 	}
-	names := []string{"eis", "lts", "cloud"}
+	cloud := a.L.Cloud
+	if cloud == "" {
+		cloud = "cloud"
+	}
+	names := []string{"eis", "lts", cloud}
 	for _, name := range names {
 		k, ok := q[name]
 		if !ok {
@@ -275,7 +280,7 @@ func scalars(r Run) []Scalar {
 		}
 		for _, rg := range []regimes.Regime{regimes.Subsidence, regimes.Convective} {
 			units := "K"
-			if name == "cloud" {
+			if name == cloud {
 				units = "1"
 			}
 			add(fmt.Sprintf("%s_%s_mean", name, rg), units, bandMean(a, k, rg))

@@ -20,7 +20,7 @@ import (
 func run(t *testing.T, name string, conv []float64) Run {
 	t.Helper()
 	n := len(conv)
-	l := accumulate.Layout{NLat: 1, NLon: n, Lat: []float64{0}, Quantities: []string{"eis", "lts", "cloud"}}
+	l := accumulate.Layout{NLat: 1, NLon: n, Lat: []float64{0}, Quantities: []string{"eis", "lts", "low_cloud"}, Cloud: "low_cloud"}
 	for i := 0; i < n; i++ {
 		l.Lon = append(l.Lon, float64(i*10))
 		l.Area = append(l.Area, 1)

@@ -27,6 +27,7 @@ import (
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/regrid"
+	"lidscope/units"
 )
 
 // Input is one role's files and how to read them.
@@ -108,6 +109,8 @@ type field struct {
 	buf   []float32       // native grid
 	out   []float32       // analysis grid (== buf when w is nil)
 	s     cf.Scratch
+	// recipeUnits is true when the units come from the recipe, not the file.
+	recipeUnits bool
 }
 
 // quantity names accumulated per column, in output order
@@ -116,7 +119,6 @@ const (
 	qT700  = "t700"
 	qLTS   = "lts"
 	qEIS   = "eis"
-	qCloud = "cloud"
 	qECTEI = "ectei"
 )
 
@@ -148,7 +150,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		if err != nil {
 			return nil, err
 		}
-		fd := &field{role: in.Spec.Role, f: f}
+		fd := &field{role: in.Spec.Role, f: f, recipeUnits: in.Spec.Units != ""}
 		opened = append(opened, fd)
 		res.Paths[in.Spec.Role] = append(res.Paths[in.Spec.Role], f.Paths()...)
 		for _, n := range f.Notes {
@@ -242,7 +244,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	res.Sampling = sst.f.Time.Step
 	res.Notes = append(res.Notes, dropped...)
 	if len(steps) == 0 {
-		return nil, fmt.Errorf("no time step is common to every input after the time selection (%s); check the files' periods and the recipe's time range", strings.Join(dropped, "; "))
+		return nil, fmt.Errorf("no time step is common to every input after the time selection (%s); the inputs cover: %s; give files of one period for every role, or a time range (time.start, time.end) that they share", strings.Join(dropped, "; "), coverage(all, maskF))
 	}
 	log.Info("aligned", "dataset", p.Dataset, "steps", len(steps), "grid", target.String())
 
@@ -261,7 +263,10 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	lb := make([][2]float64, target.NLat())
 	copy(lb, target.LatBounds)
 	bandW := p.Band.Weights(lb, area)
-	quantities := []string{qSST, qT700, qLTS, qEIS, qCloud}
+	// The analysis cloud is named by its role (low_cloud or cloud), so
+	// that outputs describe it correctly; Layout.Cloud says which it is.
+	cloudQ := string(p.Cloud.Spec.Role)
+	quantities := []string{qSST, qT700, qLTS, qEIS, cloudQ}
 	if p.Metrics.ECTEI {
 		quantities = append(quantities, qECTEI)
 	}
@@ -269,7 +274,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		quantities = append(quantities, string(e.role))
 	}
 	acc, err := accumulate.New(accumulate.Layout{NLat: target.NLat(), NLon: target.NLon(), Lat: target.Lat, Lon: target.Lon,
-		Area: area, BandWeight: bandW, Quantities: quantities, Regions: p.Regions})
+		Area: area, BandWeight: bandW, Quantities: quantities, Cloud: cloudQ, Regions: p.Regions})
 	if err != nil {
 		return nil, err
 	}
@@ -355,6 +360,14 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		k, b := msg.k/2, msg.k%2
 		st := steps[k]
 		v := bufs[b].vals
+		for _, f := range all {
+			if f == maskF {
+				continue
+			}
+			if err := plausible(f, v[f], st); err != nil {
+				return nil, err
+			}
+		}
 		sstV := v[sst]
 		for i := range oceanNow {
 			oceanNow[i] = ocean[i] && sstV[i] == sstV[i]
@@ -368,7 +381,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		}
 		mean, _, ok := regimes.TropicalMean(sstV, bandW, oceanNow)
 		if !ok {
-			return nil, fmt.Errorf("time step %s: no valid ocean SST inside the band %g…%g°N (all-missing slab?); check the SST file and the ocean mask", st.label, p.Band.South, p.Band.North)
+			return nil, noBandSST(sst, sstV, bandW, ocean, st, p.Band)
 		}
 		regimes.Relative(sstV, mean, oceanNow, rel)
 		p.Classifier.ClassifySlab(rel, reg)
@@ -463,11 +476,91 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		res.Notes = append(res.Notes, fmt.Sprintf("%d column-steps had physically impossible inputs (temperatures outside 123–332 K, …) and were left out of LTS/EIS", rejected))
 	}
 	for _, f := range all {
+		if c := f.f.NaNCount(); c > 0 {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s): %d NaN values (not the declared fill value) treated as missing", f.role, f.f.Var, c))
+		}
 		if c := f.f.InfCount(); c > 0 {
-			res.Notes = append(res.Notes, fmt.Sprintf("%s: %d infinite values treated as missing", f.role, c))
+			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s): %d infinite values treated as missing", f.role, f.f.Var, c))
 		}
 	}
 	return res, nil
+}
+
+// plausible fails when the values of a slab are impossible for the field's
+// quantity: temperatures outside 150–350 K, cloud fractions outside 0–1
+// (with the 0.05 tolerance of cf.CheckValues). Such values mean that the
+// units attribute (or the recipe's units) does not describe the data — SST
+// labelled K that holds degrees Celsius is the common case — or that a
+// fill value is not declared; computing on would give wrong numbers
+// without a word (an SST in °C read as K leaves the regimes unchanged, as
+// they depend on SST differences only, but makes every LTS and EIS
+// impossible).
+func plausible(f *field, vals []float32, st stepRef) error {
+	kind := f.f.Kind
+	cloud := f.role == cf.RoleCloud || f.role == cf.RoleLowCloud
+	if kind != units.Temperature && !cloud {
+		return nil
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	valid := 0
+	for _, x := range vals {
+		if x == x {
+			valid++
+			lo, hi = math.Min(lo, float64(x)), math.Max(hi, float64(x))
+		}
+	}
+	if valid == 0 {
+		return nil
+	}
+	if kind == units.Temperature && lo >= 150 && hi <= 350 || cloud && lo >= -0.05 && hi <= 1.05 {
+		return nil
+	}
+	why := strings.Join(cf.CheckValues(f.role, f.f.Conv, lo, hi, valid, len(vals)), "; ")
+	if why == "" {
+		why = fmt.Sprintf("values %.4g…%.4g %s are impossible for %s", lo, hi, kind.SI(), f.role)
+	}
+	src := fmt.Sprintf("units attribute %q", f.f.Conv.From)
+	if f.recipeUnits {
+		src = fmt.Sprintf("units %q from the recipe, units.%s", f.f.Conv.From, f.role)
+	}
+	if !strings.Contains(why, "units.") {
+		why += fmt.Sprintf("; check the units, and if the file marks missing data with a value it does not declare, add a _FillValue or missing_value attribute (e.g. ncatted -a _FillValue,%s,o,f,VALUE)", f.f.Var)
+	}
+	return fmt.Errorf("role %s, variable %s in %s (%s), time step %s: %s; lidscope stops rather than compute with impossible values",
+		f.role, f.f.Var, f.f.PathAt(st.idx[f]), src, st.label, why)
+}
+
+// noBandSST explains a time step without any valid ocean SST in the band.
+func noBandSST(sst *field, vals []float32, bandW []float64, ocean []bool, st stepRef, band regimes.Band) error {
+	where := fmt.Sprintf("variable %s in %s, time step %s", sst.f.Var, sst.f.PathAt(st.idx[sst]), st.label)
+	present := 0
+	for i, x := range vals {
+		if x == x && bandW[i] > 0 {
+			present++
+		}
+	}
+	if present == 0 {
+		return fmt.Errorf("role sst, %s: every SST value in the band %g…%g°N is missing (an all-missing slab); fix or replace the file, or leave that step out with the recipe's time range (time.start, time.end)", where, band.South, band.North)
+	}
+	oc := 0
+	for i := range ocean {
+		if ocean[i] && bandW[i] > 0 {
+			oc++
+		}
+	}
+	return fmt.Errorf("role sst, %s: no SST value in the band %g…%g°N is over ocean (%d SST values present, %d ocean cells in the band per the ocean mask, none both, or all excluded as sea ice); check the ocean mask (ocean.mask, ocean.min_ocean_fraction) and the sea-ice limit", where, band.South, band.North, present, oc)
+}
+
+// coverage lists the period each time-dependent input covers.
+func coverage(all []*field, maskF *field) string {
+	var parts []string
+	for _, f := range all {
+		if f == maskF || f.f.Time == nil {
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("%s %s (%s)", f.role, f.f.Time.Span(), strings.Join(f.f.Paths(), ", ")))
+	}
+	return strings.Join(parts, "; ")
 }
 
 func sortedKeys[V any](m map[string]V) []string {
@@ -601,7 +694,8 @@ func align(sst *field, all []*field, maskF *field, sel func(y, m int) bool) (flo
 			f.index[timeKey(f.f.Time, t)] = t
 		}
 		if f != sst && f.f.Time.Calendar != ta.Calendar && f.f.Time.Step != cf.StepClimatology {
-			return 0, nil, nil, fmt.Errorf("role %s uses the %s calendar but sst uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar) or declare the calendar in the recipe", f.role, f.f.Time.Calendar, ta.Calendar)
+			return 0, nil, nil, fmt.Errorf("role %s (%s) uses the %s calendar but sst (%s) uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar), or, if a file's calendar attribute is wrong, declare the calendar in the recipe (time.calendar)",
+				f.role, strings.Join(f.f.Paths(), ", "), f.f.Time.Calendar, strings.Join(sst.f.Paths(), ", "), ta.Calendar)
 		}
 	}
 	var steps []stepRef

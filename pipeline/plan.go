@@ -10,7 +10,7 @@ import (
 )
 
 // extraRoles are composited by regime when a dataset gives them.
-var extraRoles = []cf.Role{cf.RoleCloud, cf.RoleLowCloud, cf.RoleSWUp, cf.RoleOLR, cf.RolePrecip}
+var extraRoles = []cf.Role{cf.RoleCloud, cf.RoleLowCloud, cf.RoleSWUp, cf.RoleOLR, cf.RolePrecip, cf.RoleOmega}
 
 // PlanFor builds the plan of one dataset of a loaded recipe.
 func PlanFor(r *config.Recipe, d *config.Dataset) (Plan, error) {
