@@ -84,6 +84,15 @@ type Plan struct {
 	Log     *slog.Logger
 	// Progress, when set, is called after each time step.
 	Progress func(done, total int)
+	// Sinks receive every time step, in time order, after the run's own
+	// accumulator (e.g. relationship statistics). The step's slices are
+	// reused for the next step: a sink must copy what it keeps.
+	Sinks []StepSink
+}
+
+// StepSink consumes the time steps of a run.
+type StepSink interface {
+	AddStep(s *accumulate.Step)
 }
 
 // Result is what a run produces.
@@ -458,6 +467,9 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 			return nil, fmt.Errorf("time step %s: %w", st.label, firstErr)
 		}
 		acc.AddStep(step)
+		for _, sk := range p.Sinks {
+			sk.AddStep(step)
+		}
 		res.Labels = append(res.Labels, st.label)
 		res.Dates = append(res.Dates, st.date)
 		free <- b
