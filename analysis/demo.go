@@ -76,7 +76,12 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 	if opt.Model != nil {
 		mo = *opt.Model
 	}
-	res := filepath.Join(dir, "results")
+	// Absolute: config resolves a relative output.dir against the recipe's
+	// folder (dir/data), not against the working directory.
+	res, err := filepath.Abs(filepath.Join(dir, "results"))
+	if err != nil {
+		return nil, fmt.Errorf("the demo folder %s: %w", dir, err)
+	}
 	dr := &DemoReport{}
 	for k, sc := range []fixtures.Options{so, mo} {
 		sc.Overwrite = opt.Force

@@ -258,6 +258,15 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 	}
 	v, err := nf.Var(name)
 	if err != nil {
+		if errors.Is(err, netcdf.ErrNotVar) && spec.Var != "" {
+			var names []string
+			if vs, verr := nf.Vars(); verr == nil {
+				for _, x := range vs {
+					names = append(names, x.Name)
+				}
+			}
+			return nil, fmt.Errorf("%s has no variable %s, the name the recipe gives for role %s (variables.%s; the file has %s): %w", path, name, spec.Role, spec.Role, strings.Join(names, ", "), err)
+		}
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	if !v.Type.Numeric() {
