@@ -31,6 +31,7 @@ func commands() map[string]command {
 		"merge":   {"join runs over consecutive pieces of a record (merge --out DIR RUN...)", cmdMerge},
 		"demo":    {"generate the synthetic demo world, analyse it and check the result", cmdDemo},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},
+		"plot":    {"draw the figures of a finished run (plot RUN_DIR)", cmdPlot},
 		"recipe":  {"write a commented starter recipe from NetCDF files (recipe init FILE...)", cmdRecipe},
 		"version": {"print the lidscope version", func(_ []string, w, _ io.Writer) error {
 			_, err := fmt.Fprintln(w, "lidscope", version)

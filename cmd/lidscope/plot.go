@@ -1,0 +1,132 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"lidscope/figures"
+)
+
+// plotOptions are the options of `lidscope plot`.
+type plotOptions struct {
+	RunDir   string
+	Format   string
+	Only     []string
+	Out      string
+	Force    bool
+	DPI      float64
+	Palettes map[string]string
+	List     bool
+}
+
+// listFlag collects repeated or comma-separated values.
+type listFlag []string
+
+func (l *listFlag) String() string { return strings.Join(*l, ",") }
+func (l *listFlag) Set(v string) error {
+	for _, s := range strings.Split(v, ",") {
+		if s = strings.TrimSpace(s); s != "" {
+			*l = append(*l, s)
+		}
+	}
+	return nil
+}
+
+// paletteFlag collects repeated KIND=MAP colour-map choices.
+type paletteFlag map[string]string
+
+func (p paletteFlag) String() string { return fmt.Sprint(map[string]string(p)) }
+func (p paletteFlag) Set(v string) error {
+	k, m, ok := strings.Cut(v, "=")
+	if !ok || strings.TrimSpace(k) == "" || strings.TrimSpace(m) == "" {
+		return fmt.Errorf("--palette wants KIND=MAP (e.g. eis=tide), got %q", v)
+	}
+	p[strings.TrimSpace(k)] = strings.TrimSpace(m)
+	return nil
+}
+
+func cmdPlot(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("plot", stderr)
+	o := plotOptions{Palettes: map[string]string{}}
+	var only listFlag
+	fs.StringVar(&o.Format, "format", "png", "figure format: "+strings.Join(figures.Formats, ", "))
+	fs.Var(&only, "only", "draw only the named figure (repeat the flag or separate names with commas; see --list)")
+	fs.StringVar(&o.Out, "out", "", "directory for the figures (default RUN_DIR/"+figures.DefaultDirName+")")
+	fs.BoolVar(&o.Force, "force", false, "replace figures that exist already")
+	fs.Float64Var(&o.DPI, "dpi", 200, "resolution of PNG figures, dots per inch")
+	fs.Var(paletteFlag(o.Palettes), "palette", "colour map for a kind of quantity, KIND=MAP (repeatable; kinds: "+
+		strings.Join(figures.PaletteKeys(), ", ")+"; maps: "+strings.Join(figures.PaletteNames(), ", ")+", each also NAME-reversed)")
+	fs.BoolVar(&o.List, "list", false, "list the figures and what they show, then exit")
+	fs.Usage = func() {
+		fmt.Fprintln(stderr, "usage: lidscope plot [options] RUN_DIR\n\nDraws the figures of a finished run from its output files (maps.nc, series.nc,\nsummary.json, and the relationship files when present), without recomputing.\nFigures whose inputs the run lacks are skipped unless named with --only.")
+		fs.PrintDefaults()
+	}
+	// Options may come before or after RUN_DIR.
+	var pos []string
+	rest := args
+	for {
+		if err := parseFlags(fs, rest); err != nil {
+			return err
+		}
+		if fs.NArg() == 0 {
+			break
+		}
+		pos = append(pos, fs.Arg(0))
+		rest = fs.Args()[1:]
+	}
+	o.Only = only
+	if o.List {
+		return listFigures(stdout)
+	}
+	if len(pos) != 1 {
+		return usageErr("give exactly one run directory (got %d: %s)", len(pos), strings.Join(pos, " "))
+	}
+	o.RunDir = pos[0]
+	if !plotContains(figures.Formats, strings.ToLower(o.Format)) {
+		return usageErr("--format must be one of %s, not %q", strings.Join(figures.Formats, ", "), o.Format)
+	}
+	for _, n := range o.Only {
+		if !plotContains(figures.Names(), n) {
+			return usageErr("--only: no figure %q; the figures are %s", n, strings.Join(figures.Names(), ", "))
+		}
+	}
+	return runPlot(o, stdout)
+}
+
+func listFigures(w io.Writer) error {
+	names := figures.Names()
+	for _, n := range names {
+		d, _ := figures.Describe(n)
+		if _, err := fmt.Fprintf(w, "%-26s %s\n", n, d); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// runPlot draws the figures and prints the paths written.
+func runPlot(o plotOptions, w io.Writer) error {
+	paths, err := figures.Draw(o.RunDir, figures.Options{
+		Format: o.Format, Only: o.Only, OutDir: o.Out, Force: o.Force, DPI: o.DPI, Palettes: o.Palettes,
+	})
+	for _, p := range paths {
+		fmt.Fprintln(w, p)
+	}
+	if err != nil {
+		return err
+	}
+	if len(paths) == 0 {
+		return fmt.Errorf("no figure could be drawn from %s", o.RunDir)
+	}
+	return nil
+}
+
+func plotContains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}

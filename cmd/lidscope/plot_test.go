@@ -1,0 +1,86 @@
+package main
+
+import (
+	"bytes"
+	"image/png"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"lidscope/figures/figurestest"
+)
+
+func TestPlotCommand(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "run")
+	if _, err := figurestest.Write(dir, figurestest.Spec{}); err != nil {
+		t.Fatal(err)
+	}
+	var out, errb bytes.Buffer
+	// Options after the run directory, --only repeated and comma-separated.
+	code := run([]string{"plot", dir, "--only", "series", "--only", "map_eis,map_cloud", "--dpi", "90"}, &out, &errb)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	lines := strings.Fields(out.String())
+	if len(lines) != 3 {
+		t.Fatalf("printed %q, want three paths", out.String())
+	}
+	for _, p := range lines {
+		if filepath.Dir(p) != filepath.Join(dir, "figures") {
+			t.Errorf("%s is not in RUN_DIR/figures", p)
+		}
+		f, err := os.Open(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		img, err := png.Decode(f)
+		f.Close()
+		if err != nil {
+			t.Fatalf("%s: %v", p, err)
+		}
+		if w := img.Bounds().Dx(); w != 630 { // 7 in at 90 dpi
+			t.Errorf("%s is %d px wide, want 630", p, w)
+		}
+	}
+	// Again without --force: refused, exit 1, nothing printed.
+	out.Reset()
+	errb.Reset()
+	if code := run([]string{"plot", "--only", "series", dir}, &out, &errb); code != 1 || !strings.Contains(errb.String(), "--force") {
+		t.Errorf("second plot: exit %d, stderr %q; want 1 and advice to use --force", code, errb.String())
+	}
+	// SVG into another directory with a palette override.
+	out.Reset()
+	other := filepath.Join(t.TempDir(), "figs")
+	if code := run([]string{"plot", "--format", "svg", "--out", other, "--palette", "eis=dusk", "--only", "map_eis", dir}, &out, &errb); code != 0 {
+		t.Fatalf("svg: exit %d: %s", code, errb.String())
+	}
+	if _, err := os.Stat(filepath.Join(other, "map_eis.svg")); err != nil {
+		t.Error(err)
+	}
+}
+
+func TestPlotUsage(t *testing.T) {
+	cases := []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"plot"}, 2, "exactly one run directory"},
+		{[]string{"plot", "a", "b"}, 2, "exactly one run directory"},
+		{[]string{"plot", "--format", "gif", "d"}, 2, "--format must be one of png, svg, pdf"},
+		{[]string{"plot", "--only", "map_rain", "d"}, 2, `no figure "map_rain"`},
+		{[]string{"plot", "--palette", "eis", "d"}, 2, "KIND=MAP"},
+		{[]string{"plot", filepath.Join(os.TempDir(), "lidscope-no-such-run")}, 1, "summary.json"},
+	}
+	for _, c := range cases {
+		var out, errb bytes.Buffer
+		if code := run(c.args, &out, &errb); code != c.code || !strings.Contains(errb.String(), c.want) {
+			t.Errorf("%v: exit %d, stderr %q; want %d and %q", c.args, code, errb.String(), c.code, c.want)
+		}
+	}
+	var out, errb bytes.Buffer
+	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_fraction") {
+		t.Errorf("--list: exit %d, %q", code, out.String())
+	}
+}
