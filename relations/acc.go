@@ -1,0 +1,705 @@
+package relations
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"lidscope/accumulate"
+	"lidscope/output"
+	"lidscope/regimes"
+	"lidscope/stats"
+)
+
+// nreg is the number of regime slots, indexed by regimes.Regime
+// (subsidence 0, transition 1, convective 2).
+const nreg = 3
+
+// Seasons: index 0 is the whole record.
+var seasonNames = []string{"all", "DJF", "MAM", "JJA", "SON"}
+
+func seasonOf(month int) int {
+	switch month {
+	case 12, 1, 2:
+		return 1
+	case 3, 4, 5:
+		return 2
+	case 6, 7, 8:
+		return 3
+	case 9, 10, 11:
+		return 4
+	}
+	return 0
+}
+
+// Omega composite bins: −100…100 hPa d-1 in 10 hPa d-1 bins (Bony et al.
+// 2004, Clim. Dyn. 22, 71–86, use 10 hPa/day bins of monthly omega500).
+const (
+	omegaLo, omegaHi, omegaStep = -100.0, 100.0, 10.0 // hPa d-1
+	hPaPerDayToPaPerS           = 100.0 / 86400
+)
+
+// unitsOf returns the units of a quantity or predictor name.
+func unitsOf(name string) (string, bool) {
+	switch name {
+	case RelSST:
+		return "K", true
+	case "precipitation":
+		return "kg m-2 s-1", true
+	}
+	return output.QuantityUnits(name)
+}
+
+type domW struct {
+	d int32
+	w float64
+}
+
+type binStat struct {
+	m     stats.Moments
+	steps int32 // distinct time steps that contributed
+	last  int32 // seq of the last contributing step, -1 none
+}
+
+func (b *binStat) add(x, w float64, seq int32) {
+	b.m.Add(x, w)
+	if b.last != seq {
+		b.steps++
+		b.last = seq
+	}
+}
+
+type flipSums struct {
+	inArea, inChanged, inToConv, inFromConv, inConvBefore, inConvAfter       float64
+	outArea, outChanged, outToConv, outFromConv, outConvBefore, outConvAfter float64
+}
+
+type patchAcc struct {
+	p      Patch
+	inside []bool // per cell
+	cells  []int  // cells inside
+	sums   []flipSums
+	fSum   float64
+	fSteps int
+	fMin   float64
+	fMax   float64
+}
+
+// stepRec is what is kept per time step: the co-moments of every
+// (domain, regime, response) and the binned threshold counts.
+type stepRec struct {
+	label       string
+	year, month int
+	tropMean    float64
+	cm          []CoMoments // [(d*nreg+g)*nr + r]
+	thr         []float64   // [convective weights (nthr) | all weights (nthr)]
+}
+
+// Acc accumulates the relationships of a run, one time step at a time.
+type Acc struct {
+	cfg  Config
+	l    Layout
+	clim *Climatology
+
+	preds   []string    // binned predictors, sorted
+	edges   [][]float64 // per predictor
+	boff    []int       // bin offset per predictor
+	nbTot   int
+	xs      []string // regression predictors: preds then the partial ones not among them
+	xq      []int    // layout index of each x (-1 relative SST)
+	predX   []int    // index in xs of each predictor
+	partial [2]int   // indices in xs
+	resp    []string
+	rq      []int
+	K       int
+	ns      int
+	doms    []accumulate.Region // doms[0] is the band
+	cellDom [][]domW
+	cells   []int // cells in any domain
+
+	binned []binStat
+	outCnt []int64 // [(d*ns+s)*nreg+g)*np+p] samples outside the bins
+
+	jointOn                bool
+	jRel, jEIS             int // predictor indices
+	nJ                     int
+	jointM                 []stats.Moments // [((d*ns+s)*nr + r)*nJ + j]
+	jointArea              []float64       // [(d*ns+s)*nJ + j]
+	jointCount             []int64
+	jointTotal             []float64 // [d*ns+s]
+	omegaOn                bool
+	omegaQ                 int
+	nO                     int
+	omegaM                 []stats.Moments // [((d*ns+s)*nr + r)*nO + b]
+	omegaArea, omegaTotal  []float64
+	omegaCount, omegaOut   []int64
+	patches                []patchAcc
+	indQ                   int // layout index of the indicator, -1 none
+	indThr                 float64
+	nthr                   int
+	thrN                   int64
+	thrW                   float64
+	thrOut                 int64
+	steps                  []stepRec
+	scratchX, scratchRaw   []float64
+	scratchR, scratchRawR  []float64
+	scratchVec             []float64
+	layoutQuantitiesString string
+}
+
+// Layout is the accumulate layout (grid, areas, band weights, quantities).
+type Layout = accumulate.Layout
+
+// New returns an accumulator for the configuration and layout. clim is the
+// first-pass climatology in anomaly mode (nil in climatological mode).
+func New(cfg Config, l accumulate.Layout, clim *Climatology) (*Acc, error) {
+	if err := cfg.Validate(); err != nil {
+		return nil, err
+	}
+	n := l.NLat * l.NLon
+	if n == 0 || len(l.Lat) != l.NLat || len(l.Lon) != l.NLon || len(l.Area) != n || len(l.BandWeight) != n {
+		return nil, fmt.Errorf("relations: layout sizes disagree (%d×%d grid, %d lat, %d lon, %d areas, %d band weights); build it as for accumulate.New", l.NLat, l.NLon, len(l.Lat), len(l.Lon), len(l.Area), len(l.BandWeight))
+	}
+	switch {
+	case cfg.Mode == Anomaly && clim == nil:
+		return nil, fmt.Errorf("relations: anomaly mode needs the climatology of a first pass (NewClimatology, AddStep over the record); got nil")
+	case cfg.Mode == Climatological && clim != nil:
+		return nil, fmt.Errorf("relations: climatological mode takes no climatology (pass nil), or set Config.Mode = Anomaly")
+	}
+	if clim != nil && (len(clim.slot) != n || fmt.Sprint(clim.l.Quantities) != fmt.Sprint(l.Quantities)) {
+		return nil, fmt.Errorf("relations: the climatology was built for another layout (%d cells, quantities %v); build it with NewClimatology on this layout", len(clim.slot), clim.l.Quantities)
+	}
+	if clim != nil && clim.steps == 0 {
+		return nil, fmt.Errorf("relations: the climatology is empty; run its pass over the record (Climatology.AddStep) first")
+	}
+	a := &Acc{cfg: cfg, l: l, clim: clim, indQ: -1}
+	qi := map[string]int{}
+	for k, q := range l.Quantities {
+		qi[q] = k
+	}
+	lookup := func(name, what string) (int, error) {
+		if name == RelSST {
+			return -1, nil
+		}
+		k, ok := qi[name]
+		if !ok {
+			return 0, fmt.Errorf("relations: %s %q is not a quantity of the run (layout has %v); add it to the run's inputs or remove it from the relations recipe", what, name, l.Quantities)
+		}
+		return k, nil
+	}
+	bins := cfg.bins()
+	a.preds = sortedKeys(bins)
+	if len(a.preds) == 0 {
+		return nil, fmt.Errorf("relations: Config.Bins names no predictor; give at least one (e.g. eis)")
+	}
+	for _, p := range a.preds {
+		a.edges = append(a.edges, append([]float64(nil), bins[p]...))
+		a.boff = append(a.boff, a.nbTot)
+		a.nbTot += len(bins[p]) - 1
+	}
+	a.xs = append([]string(nil), a.preds...)
+	for k, p := range cfg.Partial {
+		idx := -1
+		for j, x := range a.xs {
+			if x == p {
+				idx = j
+			}
+		}
+		if idx < 0 {
+			idx = len(a.xs)
+			a.xs = append(a.xs, p)
+		}
+		a.partial[k] = idx
+	}
+	for _, x := range a.xs {
+		k, err := lookup(x, "predictor")
+		if err != nil {
+			return nil, err
+		}
+		a.xq = append(a.xq, k)
+	}
+	a.predX = make([]int, len(a.preds))
+	for p := range a.preds {
+		a.predX[p] = p
+	}
+	a.resp = cfg.Responses
+	if a.resp == nil {
+		for _, q := range []string{"cloud", "low_cloud", "toa_sw_up"} {
+			if _, ok := qi[q]; ok {
+				a.resp = append(a.resp, q)
+			}
+		}
+		if len(a.resp) == 0 {
+			return nil, fmt.Errorf("relations: the run has no cloud quantity (layout %v); name the responses in Config.Responses", l.Quantities)
+		}
+	}
+	for _, r := range a.resp {
+		k, err := lookup(r, "response")
+		if err != nil {
+			return nil, err
+		}
+		if k < 0 {
+			return nil, fmt.Errorf("relations: %s cannot be a response", RelSST)
+		}
+		for _, x := range a.xs {
+			if x == r {
+				return nil, fmt.Errorf("relations: %q is both a predictor and a response", r)
+			}
+		}
+		if _, ok := unitsOf(r); !ok {
+			return nil, fmt.Errorf("relations: response %q has no known units; known: %v and precipitation", r, output.KnownQuantities())
+		}
+		a.rq = append(a.rq, k)
+	}
+	a.K = len(a.xs) + 1
+	a.ns = 1
+	if cfg.Seasons {
+		a.ns = len(seasonNames)
+	}
+	a.doms = append([]accumulate.Region{{Name: BandDomain}}, cfg.Regions...)
+	a.cellDom = make([][]domW, n)
+	for i := 0; i < n; i++ {
+		if w := l.BandWeight[i]; w > 0 {
+			a.cellDom[i] = append(a.cellDom[i], domW{0, w})
+		}
+	}
+	for d := 1; d < len(a.doms); d++ {
+		r := a.doms[d]
+		found := false
+		for j := 0; j < l.NLat; j++ {
+			for i := 0; i < l.NLon; i++ {
+				if c := j*l.NLon + i; r.Contains(l.Lat[j], l.Lon[i]) && l.Area[c] > 0 {
+					a.cellDom[c] = append(a.cellDom[c], domW{int32(d), l.Area[c]})
+					found = true
+					if clim != nil && !clim.cover[c] {
+						return nil, fmt.Errorf("relations: region %q reaches cells outside the climatology (outside the band and the layout's regions); add it to the layout's Regions before building the climatology", r.Name)
+					}
+				}
+			}
+		}
+		if !found {
+			return nil, fmt.Errorf("relations: region %q (%g…%g N, %g…%g E) contains no grid cell centre", r.Name, r.South, r.North, r.West, r.East)
+		}
+	}
+	for i, dl := range a.cellDom {
+		if len(dl) > 0 {
+			a.cells = append(a.cells, i)
+		}
+	}
+	nd := len(a.doms)
+	nr := len(a.resp)
+	a.binned = make([]binStat, nd*a.ns*nreg*nr*a.nbTot)
+	for i := range a.binned {
+		a.binned[i].last = -1
+	}
+	a.outCnt = make([]int64, nd*a.ns*nreg*len(a.preds))
+	a.jRel, a.jEIS = -1, -1
+	for p, name := range a.preds {
+		switch name {
+		case RelSST:
+			a.jRel = p
+		case "eis":
+			a.jEIS = p
+		}
+	}
+	if a.jRel >= 0 && a.jEIS >= 0 {
+		a.jointOn = true
+		a.nJ = (len(a.edges[a.jRel]) - 1) * (len(a.edges[a.jEIS]) - 1)
+		a.jointM = make([]stats.Moments, nd*a.ns*nr*a.nJ)
+		a.jointArea = make([]float64, nd*a.ns*a.nJ)
+		a.jointCount = make([]int64, nd*a.ns*a.nJ)
+		a.jointTotal = make([]float64, nd*a.ns)
+	}
+	if k, ok := qi["omega"]; ok && cfg.OmegaBins {
+		a.omegaOn, a.omegaQ = true, k
+		a.nO = int(math.Round((omegaHi - omegaLo) / omegaStep))
+		a.omegaM = make([]stats.Moments, nd*a.ns*nr*a.nO)
+		a.omegaArea = make([]float64, nd*a.ns*a.nO)
+		a.omegaCount = make([]int64, nd*a.ns*a.nO)
+		a.omegaTotal = make([]float64, nd*a.ns)
+		a.omegaOut = make([]int64, nd*a.ns)
+	}
+	for _, p := range cfg.Patches {
+		pa := patchAcc{p: p, inside: make([]bool, n), sums: make([]flipSums, len(cfg.DeltaT)), fMin: math.Inf(1), fMax: math.Inf(-1)}
+		r := p.region()
+		for j := 0; j < l.NLat; j++ {
+			for i := 0; i < l.NLon; i++ {
+				if r.Contains(l.Lat[j], l.Lon[i]) {
+					c := j*l.NLon + i
+					pa.inside[c] = true
+					pa.cells = append(pa.cells, c)
+				}
+			}
+		}
+		if len(pa.cells) == 0 {
+			return nil, fmt.Errorf("relations: patch %q (%g…%g N, %g…%g E) contains no grid cell centre", p.Name, p.South, p.North, p.West, p.East)
+		}
+		a.patches = append(a.patches, pa)
+	}
+	if cfg.Indicator != "" {
+		k, ok := qi[cfg.Indicator]
+		if !ok {
+			return nil, fmt.Errorf("relations: the convection indicator %q is not a quantity of the run (layout has %v); add it to the run's inputs or set Config.Indicator = \"\"", cfg.Indicator, l.Quantities)
+		}
+		a.indQ = k
+		a.indThr = cfg.indicatorThreshold()
+		a.nthr = int(math.Round((cfg.ThresholdRange[1] - cfg.ThresholdRange[0]) / cfg.ThresholdBinWidth))
+	}
+	a.scratchX = make([]float64, len(a.xs))
+	a.scratchRaw = make([]float64, len(a.xs))
+	a.scratchR = make([]float64, nr)
+	a.scratchRawR = make([]float64, nr)
+	a.scratchVec = make([]float64, a.K)
+	a.layoutQuantitiesString = fmt.Sprint(l.Quantities)
+	return a, nil
+}
+
+// binOf returns the bin of x among edges (lower edge inclusive, the last
+// bin also includes its upper edge), -1 outside.
+func binOf(e []float64, x float64) int {
+	n := len(e) - 1
+	if !(x >= e[0]) || !(x <= e[n]) {
+		return -1
+	}
+	b := sort.SearchFloat64s(e, x) // first edge >= x
+	if b < len(e) && e[b] == x {
+		if b == n {
+			return n - 1
+		}
+		return b
+	}
+	return b - 1
+}
+
+// convective reports whether the indicator marks convection.
+func (a *Acc) convective(v float64) bool {
+	if a.cfg.Indicator == IndicatorPrecip {
+		return v > a.indThr
+	}
+	return v < a.indThr
+}
+
+// AddStep adds one time step. The pipeline calls it serially, in time order.
+func (a *Acc) AddStep(s *accumulate.Step) {
+	seq := int32(len(a.steps))
+	nd, nr := len(a.doms), len(a.resp)
+	rec := stepRec{label: s.Label, year: s.Year, month: s.Month, tropMean: s.TropMean}
+	buf := make([]float64, nd*nreg*nr*(a.K+a.K*a.K))
+	rec.cm = make([]CoMoments, nd*nreg*nr)
+	for k := range rec.cm {
+		o := k * (a.K + a.K*a.K)
+		rec.cm[k] = CoMoments{K: a.K, Mean: buf[o : o+a.K : o+a.K], C: buf[o+a.K : o+a.K+a.K*a.K : o+a.K+a.K*a.K]}
+	}
+	season := seasonOf(s.Month)
+	sl := [2]int{0, season}
+	nsl := 1
+	if a.ns > 1 && season > 0 {
+		nsl = 2
+	}
+	anom := a.cfg.Mode == Anomaly
+	nq := len(a.l.Quantities)
+	xv, xraw, rv, rraw, vec := a.scratchX, a.scratchRaw, a.scratchR, a.scratchRawR, a.scratchVec
+	np := len(a.preds)
+	for _, i := range a.cells {
+		g := s.Regime[i]
+		if g == regimes.Missing {
+			continue
+		}
+		complete := true
+		for k, q := range a.xq {
+			var x float64
+			if q < 0 {
+				x = float64(s.Rel[i])
+			} else {
+				x = float64(s.Values[q][i])
+			}
+			xraw[k] = x
+			if anom {
+				v := q
+				if q < 0 {
+					v = nq
+				}
+				x -= a.clim.Value(i, v, s.Year, s.Month, a.cfg.Detrend)
+			}
+			xv[k] = x
+			if x != x {
+				complete = false
+			}
+		}
+		for k, q := range a.rq {
+			x := float64(s.Values[q][i])
+			rraw[k] = x
+			if anom {
+				x -= a.clim.Value(i, q, s.Year, s.Month, a.cfg.Detrend)
+			}
+			rv[k] = x
+		}
+		copy(vec, xv)
+		for _, dw := range a.cellDom[i] {
+			d, w := int(dw.d), dw.w
+			if complete {
+				for r := 0; r < nr; r++ {
+					if y := rv[r]; y == y {
+						vec[a.K-1] = y
+						rec.cm[(d*nreg+int(g))*nr+r].add(vec, w)
+					}
+				}
+			}
+			for si := 0; si < nsl; si++ {
+				ds := d*a.ns + sl[si]
+				for p := 0; p < np; p++ {
+					x := xv[a.predX[p]]
+					if x != x {
+						continue
+					}
+					b := binOf(a.edges[p], x)
+					if b < 0 {
+						a.outCnt[(ds*nreg+int(g))*np+p]++
+						continue
+					}
+					base := (ds*nreg+int(g))*nr*a.nbTot + a.boff[p] + b
+					for r := 0; r < nr; r++ {
+						if y := rv[r]; y == y {
+							a.binned[base+r*a.nbTot].add(y, w, seq)
+						}
+					}
+				}
+				if a.jointOn {
+					xr, xe := xv[a.predX[a.jRel]], xv[a.predX[a.jEIS]]
+					if xr == xr && xe == xe {
+						a.jointTotal[ds] += w
+						br, be := binOf(a.edges[a.jRel], xr), binOf(a.edges[a.jEIS], xe)
+						if br >= 0 && be >= 0 {
+							j := br*(len(a.edges[a.jEIS])-1) + be
+							a.jointArea[ds*a.nJ+j] += w
+							a.jointCount[ds*a.nJ+j]++
+							for r := 0; r < nr; r++ {
+								a.jointM[(ds*nr+r)*a.nJ+j].Add(rv[r], w)
+							}
+						}
+					}
+				}
+				if a.omegaOn {
+					if om := float64(s.Values[a.omegaQ][i]); om == om {
+						a.omegaTotal[ds] += w
+						b := int(math.Floor((om/hPaPerDayToPaPerS - omegaLo) / omegaStep))
+						if b < 0 || b >= a.nO {
+							a.omegaOut[ds]++
+						} else {
+							a.omegaArea[ds*a.nO+b] += w
+							a.omegaCount[ds*a.nO+b]++
+							for r := 0; r < nr; r++ {
+								a.omegaM[(ds*nr+r)*a.nO+b].Add(rraw[r], w)
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+	a.addFlips(s)
+	if a.indQ >= 0 {
+		rec.thr = make([]float64, 2*a.nthr)
+		lo, wd := a.cfg.ThresholdRange[0], a.cfg.ThresholdBinWidth
+		ind := s.Values[a.indQ]
+		for i, w := range a.l.BandWeight {
+			if w <= 0 || s.Regime[i] == regimes.Missing {
+				continue
+			}
+			x, v := float64(s.Rel[i]), float64(ind[i])
+			if x != x || v != v {
+				continue
+			}
+			b := int(math.Floor((x - lo) / wd))
+			if b < 0 || b >= a.nthr {
+				a.thrOut++
+				continue
+			}
+			a.thrN++
+			a.thrW += w
+			rec.thr[a.nthr+b] += w
+			if a.convective(v) {
+				rec.thr[b] += w
+			}
+		}
+	}
+	a.steps = append(a.steps, rec)
+}
+
+// addFlips adds the step's perturbation flips for every patch and ΔT.
+func (a *Acc) addFlips(s *accumulate.Step) {
+	if len(a.patches) == 0 {
+		return
+	}
+	var band float64
+	for i, w := range a.l.BandWeight {
+		if w > 0 && s.Regime[i] != regimes.Missing {
+			band += w
+		}
+	}
+	if band == 0 {
+		return
+	}
+	cl := a.cfg.Classifier
+	for pi := range a.patches {
+		pa := &a.patches[pi]
+		var in float64
+		for _, i := range pa.cells {
+			if w := a.l.BandWeight[i]; w > 0 && s.Regime[i] != regimes.Missing {
+				in += w
+			}
+		}
+		f := in / band
+		pa.fSum += f
+		pa.fSteps++
+		pa.fMin = math.Min(pa.fMin, f)
+		pa.fMax = math.Max(pa.fMax, f)
+		for k, dt := range a.cfg.DeltaT {
+			fs := &pa.sums[k]
+			shiftIn, shiftOut := dt*(1-f), -dt*f
+			for _, i := range pa.cells {
+				g := s.Regime[i]
+				if g == regimes.Missing {
+					continue
+				}
+				w := a.l.Area[i]
+				g2 := cl.Classify(float64(s.Rel[i]) + shiftIn)
+				fs.inArea += w
+				c0, c1 := g == regimes.Convective, g2 == regimes.Convective
+				if g2 != g {
+					fs.inChanged += w
+				}
+				if c0 {
+					fs.inConvBefore += w
+				}
+				if c1 {
+					fs.inConvAfter += w
+				}
+				if c1 && !c0 {
+					fs.inToConv += w
+				}
+				if c0 && !c1 {
+					fs.inFromConv += w
+				}
+			}
+			for i, w := range a.l.BandWeight {
+				g := s.Regime[i]
+				if w <= 0 || g == regimes.Missing || pa.inside[i] {
+					continue
+				}
+				fs.outArea += w
+				c0 := g == regimes.Convective
+				if c0 {
+					fs.outConvBefore += w
+				}
+				if shiftOut == 0 {
+					if c0 {
+						fs.outConvAfter += w
+					}
+					continue
+				}
+				g2 := cl.Classify(float64(s.Rel[i]) + shiftOut)
+				c1 := g2 == regimes.Convective
+				if g2 != g {
+					fs.outChanged += w
+				}
+				if c1 {
+					fs.outConvAfter += w
+				}
+				if c1 && !c0 {
+					fs.outToConv += w
+				}
+				if c0 && !c1 {
+					fs.outFromConv += w
+				}
+			}
+		}
+	}
+}
+
+// Steps is the number of time steps added (merged ones included).
+func (a *Acc) Steps() int { return len(a.steps) }
+
+// Merge appends b, which must have the same configuration and layout and
+// cover the time steps right after a's.
+func (a *Acc) Merge(b *Acc) error {
+	if b == nil {
+		return fmt.Errorf("relations: cannot merge a nil accumulator")
+	}
+	if a.cfg.Text() != b.cfg.Text() {
+		return fmt.Errorf("relations: cannot merge accumulators with different configurations:\n%s\nvs\n%s", a.cfg.Text(), b.cfg.Text())
+	}
+	if len(a.cellDom) != len(b.cellDom) || a.layoutQuantitiesString != b.layoutQuantitiesString || fmt.Sprint(a.resp) != fmt.Sprint(b.resp) {
+		return fmt.Errorf("relations: cannot merge accumulators of different layouts (%d vs %d cells, quantities %s vs %s)", len(a.cellDom), len(b.cellDom), a.layoutQuantitiesString, b.layoutQuantitiesString)
+	}
+	for k := range a.l.Lat {
+		if a.l.Lat[k] != b.l.Lat[k] {
+			return fmt.Errorf("relations: cannot merge: latitude %d differs (%g vs %g)", k, a.l.Lat[k], b.l.Lat[k])
+		}
+	}
+	for k := range a.l.Lon {
+		if a.l.Lon[k] != b.l.Lon[k] {
+			return fmt.Errorf("relations: cannot merge: longitude %d differs (%g vs %g)", k, a.l.Lon[k], b.l.Lon[k])
+		}
+	}
+	off := int32(len(a.steps))
+	for i := range a.binned {
+		x, y := &a.binned[i], &b.binned[i]
+		x.m.Merge(y.m)
+		x.steps += y.steps
+		if y.last >= 0 {
+			x.last = y.last + off
+		}
+	}
+	for i := range a.outCnt {
+		a.outCnt[i] += b.outCnt[i]
+	}
+	for i := range a.jointM {
+		a.jointM[i].Merge(b.jointM[i])
+	}
+	for i := range a.jointArea {
+		a.jointArea[i] += b.jointArea[i]
+		a.jointCount[i] += b.jointCount[i]
+	}
+	for i := range a.jointTotal {
+		a.jointTotal[i] += b.jointTotal[i]
+	}
+	for i := range a.omegaM {
+		a.omegaM[i].Merge(b.omegaM[i])
+	}
+	for i := range a.omegaArea {
+		a.omegaArea[i] += b.omegaArea[i]
+		a.omegaCount[i] += b.omegaCount[i]
+	}
+	for i := range a.omegaTotal {
+		a.omegaTotal[i] += b.omegaTotal[i]
+		a.omegaOut[i] += b.omegaOut[i]
+	}
+	for p := range a.patches {
+		x, y := &a.patches[p], &b.patches[p]
+		for k := range x.sums {
+			u, v := &x.sums[k], y.sums[k]
+			u.inArea += v.inArea
+			u.inChanged += v.inChanged
+			u.inToConv += v.inToConv
+			u.inFromConv += v.inFromConv
+			u.inConvBefore += v.inConvBefore
+			u.inConvAfter += v.inConvAfter
+			u.outArea += v.outArea
+			u.outChanged += v.outChanged
+			u.outToConv += v.outToConv
+			u.outFromConv += v.outFromConv
+			u.outConvBefore += v.outConvBefore
+			u.outConvAfter += v.outConvAfter
+		}
+		x.fSum += y.fSum
+		x.fSteps += y.fSteps
+		x.fMin = math.Min(x.fMin, y.fMin)
+		x.fMax = math.Max(x.fMax, y.fMax)
+	}
+	a.thrN += b.thrN
+	a.thrW += b.thrW
+	a.thrOut += b.thrOut
+	a.steps = append(a.steps, b.steps...)
+	return nil
+}
