@@ -4,8 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
+	"sync"
 	"sync/atomic"
 
 	"lidscope/netcdf"
@@ -24,11 +26,17 @@ type Spec struct {
 	Overrides
 }
 
-// segment is one file's part of a field's record.
+// segment is one file's part of a field's record. Only the segment being
+// read keeps its file open (see Field.use): an open NetCDF-4 file holds
+// HDF5 chunk caches (up to 16 MiB per variable by netCDF-C's default), so
+// keeping every file of a long record open would make memory grow with the
+// number of files instead of staying bounded.
 type segment struct {
-	file  *netcdf.File
-	v     *netcdf.Var
-	nt    int // time steps in this file (1 for a field without time)
+	path  string
+	file  *netcdf.File // nil while closed
+	v     *netcdf.Var  // nil while closed
+	shape []int        // the variable's shape when first opened
+	nt    int          // time steps in this file (1 for a field without time)
 	times []Date
 	mask  Mask
 }
@@ -48,6 +56,7 @@ type Field struct {
 	Notes []string
 
 	segs []segment
+	mu   sync.Mutex // guards opening and closing the segments' files
 	// index of each axis in the variable's dimension list (-1 if absent)
 	ti, zi, yi, xi int
 	ndim           int
@@ -88,14 +97,16 @@ func (f *Field) PathAt(t int) string {
 	if err != nil {
 		return ""
 	}
-	return seg.file.Path()
+	return seg.path
 }
 
 // Close releases the files.
 func (f *Field) Close() error {
 	var errs []error
-	for _, s := range f.segs {
-		errs = append(errs, s.file.Close())
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	for i := range f.segs {
+		errs = append(errs, f.segs[i].close())
 	}
 	return errors.Join(errs...)
 }
@@ -144,7 +155,53 @@ func Open(paths []string, spec Spec) (*Field, error) {
 	if err := fld.orderSegments(); err != nil {
 		return fail(fmt.Errorf("role %s: %w", spec.Role, err))
 	}
+	// Keep only the first file of the record open; the others are opened
+	// when reading reaches them.
+	for i := 1; i < len(fld.segs); i++ {
+		if err := fld.segs[i].close(); err != nil {
+			fld.Close()
+			return nil, fmt.Errorf("role %s: %w", spec.Role, err)
+		}
+	}
 	return fld, nil
+}
+
+// close closes the segment's file if it is open.
+func (s *segment) close() error {
+	if s.file == nil {
+		return nil
+	}
+	err := s.file.Close()
+	s.file, s.v = nil, nil
+	return err
+}
+
+// use makes seg the one segment of fld whose file is open, reopening it if
+// needed and closing the others. Call with fld.mu held.
+func (fld *Field) use(seg *segment) error {
+	if seg.file == nil {
+		nf, err := netcdf.Open(seg.path)
+		if err != nil {
+			return fmt.Errorf("role %s: reopening %s: %w%s", fld.Role, seg.path, err, openHint(err))
+		}
+		v, err := nf.Var(fld.Var)
+		if err == nil && !slices.Equal(v.Shape(), seg.shape) {
+			err = fmt.Errorf("variable %s has shape %v, not %v as when it was opened: the file changed during the run", fld.Var, v.Shape(), seg.shape)
+		}
+		if err != nil {
+			nf.Close()
+			return fmt.Errorf("role %s: reopening %s: %w", fld.Role, seg.path, err)
+		}
+		seg.file, seg.v = nf, v
+	}
+	for i := range fld.segs {
+		if s := &fld.segs[i]; s != seg {
+			if err := s.close(); err != nil {
+				return fmt.Errorf("role %s: %w", fld.Role, err)
+			}
+		}
+	}
+	return nil
 }
 
 // openHint says what to do about a file netCDF-C could not open.
@@ -159,7 +216,7 @@ func openHint(err error) string {
 }
 
 func (fld *Field) appendSegment(o *Field) error {
-	a, b := fld.segs[0].file.Path(), o.segs[0].file.Path()
+	a, b := fld.segs[0].path, o.segs[0].path
 	if o.Var != fld.Var {
 		return fmt.Errorf("%s has the field as variable %s but %s as %s; name the variable in the recipe", a, fld.Var, b, o.Var)
 	}
@@ -203,7 +260,7 @@ func (fld *Field) orderSegments() error {
 	fld.paths = fld.paths[:0]
 	var all []Date
 	for j, s := range fld.segs {
-		fld.paths = append(fld.paths, s.file.Path())
+		fld.paths = append(fld.paths, s.path)
 		all = append(all, s.times...)
 		if j == 0 {
 			continue
@@ -215,7 +272,7 @@ func (fld *Field) orderSegments() error {
 		if first.After(last) {
 			continue
 		}
-		a, b := prev.file.Path(), s.file.Path()
+		a, b := prev.path, s.path
 		if d, ok := commonDate(prev.times, s.times); ok {
 			return fmt.Errorf("time step %s appears twice, in %s and in %s: remove the duplicate file or limit the time range", d, a, b)
 		}
@@ -378,7 +435,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		}
 	}
 	// Time.
-	seg := segment{file: nf, v: v, nt: 1}
+	seg := segment{path: path, file: nf, v: v, shape: v.Shape(), nt: 1}
 	if fld.ti >= 0 {
 		ta, err := decodeTimeAxis(nf, cs[fld.ti].Var, spec.Overrides)
 		if err != nil {
@@ -538,8 +595,13 @@ func (fld *Field) read(seg *segment, t, z int, dst []float64) error {
 	}
 	count[fld.yi] = len(fld.Layout.storedLat)
 	count[fld.xi] = len(fld.Layout.storedLon)
+	fld.mu.Lock()
+	defer fld.mu.Unlock()
+	if err := fld.use(seg); err != nil {
+		return err
+	}
 	if err := seg.v.ReadFloat64(start, count, dst); err != nil {
-		return fmt.Errorf("%s: reading %s at time step %d: %w (the file may be truncated or damaged)", seg.file.Path(), fld.Var, t, err)
+		return fmt.Errorf("%s: reading %s at time step %d: %w (the file may be truncated or damaged)", seg.path, fld.Var, t, err)
 	}
 	return nil
 }
