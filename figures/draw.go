@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"lidscope/figures/internal/ramp"
+	"lidscope/relations"
 )
 
 // Options choose what Draw draws and where.
@@ -28,6 +29,10 @@ type Options struct {
 	Palettes map[string]string
 	// DPI is the resolution of PNG figures (default 200).
 	DPI float64
+	// Relations are the run's relationship results (package relations);
+	// the relationship, joint-composite, flip and threshold figures are
+	// drawn only when they are given.
+	Relations *relations.Results
 }
 
 // Formats are the output formats.
@@ -135,6 +140,7 @@ func Draw(runDir string, opt Options) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
+	run.relations = opt.Relations
 	want := map[string]bool{}
 	for _, n := range opt.Only {
 		want[n] = true

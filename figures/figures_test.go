@@ -16,12 +16,14 @@ import (
 	"gonum.org/v1/plot/cmpimg"
 
 	"lidscope/figures/figurestest"
+	"lidscope/relations"
 )
 
 var (
 	fixOnce sync.Once
 	fixDir  string
 	fixErr  error
+	fixRel  *relations.Results
 )
 
 // fixture returns the directory of the small invented run (5° grid, 40°S–
@@ -32,6 +34,9 @@ func fixture(t testing.TB) string {
 		fixDir, fixErr = os.MkdirTemp("", "lidscope-figures-test-")
 		if fixErr == nil {
 			_, fixErr = figurestest.Write(filepath.Join(fixDir, "run"), figurestest.Spec{})
+		}
+		if fixErr == nil {
+			fixRel, fixErr = figurestest.Relations(figurestest.Spec{})
 		}
 	})
 	if fixErr != nil {
@@ -55,6 +60,7 @@ func build(t testing.TB, name, format string, dpi float64) (*fig, *page) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	run.relations = fixRel
 	for _, f := range registry {
 		if f.name == name {
 			fg := &fig{run: run, name: name, format: format, dpi: dpi, pdf: format == "pdf"}
@@ -111,15 +117,16 @@ func TestEachFigureRenders(t *testing.T) {
 	run := fixture(t)
 	out := t.TempDir()
 	const dpi = 100
-	pngs, err := Draw(run, Options{OutDir: out, DPI: dpi})
+	pngs, err := Draw(run, Options{OutDir: out, DPI: dpi, Relations: fixRel})
 	if err != nil {
 		t.Fatal(err)
 	}
-	svgs, err := Draw(run, Options{OutDir: out, Format: "svg"})
+	svgs, err := Draw(run, Options{OutDir: out, Format: "svg", Relations: fixRel})
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantNames := []string{"map_convective_fraction", "map_crossings", "map_eis", "map_lts", "map_cloud", "map_relative_sst", "series"}
+	wantNames := []string{"map_convective_fraction", "map_crossings", "map_eis", "map_lts", "map_cloud", "map_relative_sst",
+		"relation_eis", "relation_lts", "relation_rel_sst", "joint_composite", "flips", "threshold", "series"}
 	if len(pngs) != len(wantNames) || len(svgs) != len(wantNames) {
 		t.Fatalf("drew %d PNG and %d SVG figures, want %d each (%v): %v", len(pngs), len(svgs), len(wantNames), wantNames, pngs)
 	}
@@ -151,7 +158,7 @@ func TestEachFigureRenders(t *testing.T) {
 		if !strings.HasPrefix(s, "<?xml") || !strings.Contains(s, "@font-face") {
 			t.Errorf("%s: SVG without embedded fonts", svgs[i])
 		}
-		if strings.HasPrefix(name, "map_") {
+		if strings.HasPrefix(name, "map_") || name == "joint_composite" {
 			if !strings.Contains(s, "<image") {
 				t.Errorf("%s: the heat map is not an embedded image", svgs[i])
 			}
@@ -267,7 +274,7 @@ func absDiff(a uint32, b uint8) uint32 {
 // `go test ./figures -run Golden -regen` to rewrite them after an intended
 // change, and look at them before committing.
 func TestGolden(t *testing.T) {
-	for _, name := range []string{"map_eis", "series"} {
+	for _, name := range []string{"map_eis", "relation_eis", "series"} {
 		fg, pg := build(t, name, "png", 80)
 		got := renderBytes(t, fg, pg)
 		path := filepath.Join("testdata", "golden", name+".png")
@@ -293,5 +300,24 @@ func TestGolden(t *testing.T) {
 			os.WriteFile(bad, got, 0o644)
 			t.Errorf("%s differs from %s (new rendering in %s); if the change is intended, look at it and run with -regen", name, path, bad)
 		}
+	}
+}
+
+// Without relationship results the relationship figures are skipped, and
+// asking for one by name is an error.
+func TestRelationFiguresNeedResults(t *testing.T) {
+	run := fixture(t)
+	out := t.TempDir()
+	paths, err := Draw(run, Options{OutDir: out, DPI: 60})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range paths {
+		if b := filepath.Base(p); strings.HasPrefix(b, "relation_") || b == "flips.png" || b == "threshold.png" || b == "joint_composite.png" {
+			t.Errorf("drew %s without relationship results", b)
+		}
+	}
+	if _, err := Draw(run, Options{OutDir: out, Only: []string{"threshold"}}); !errors.Is(err, ErrUnavailable) {
+		t.Errorf("threshold without results: %v, want ErrUnavailable", err)
 	}
 }

@@ -112,7 +112,7 @@ type window struct{ west, span, south, north float64 }
 func chooseWindow(fl *Field) window {
 	n := len(fl.Lon)
 	w := window{south: fl.LatEdges[0], north: fl.LatEdges[len(fl.LatEdges)-1]}
-	west, east := fl.LonEdges[:n], fl.LonEdges[1:]
+	west, east := fl.LonWest, fl.LonEast
 	gap, after := west[0]+360-east[n-1], n-1
 	for i := 0; i+1 < n; i++ {
 		if g := west[i+1] - east[i]; g > gap {
@@ -148,7 +148,7 @@ func chooseWindow(fl *Field) window {
 // cell holds it, or −1.
 func cellIndex(fl *Field, lon float64) int {
 	n := len(fl.Lon)
-	west, east := fl.LonEdges[:n], fl.LonEdges[1:]
+	west, east := fl.LonWest, fl.LonEast
 	l := west[0] + math.Mod(math.Mod(lon-west[0], 360)+360, 360)
 	i := sort.SearchFloat64s(east, l) // first east edge ≥ l
 	if i < n && l >= west[i] && l <= east[i] {

@@ -117,6 +117,7 @@ func (f *fig) newPlot() *plot.Plot {
 	p.Y.Tick.Marker = signedTicks{}
 	p.Legend.TextStyle = style(sizeLegend, false)
 	p.Legend.ThumbnailWidth = 0.3 * vg.Inch
+	p.Legend.Padding = 2
 	return p
 }
 

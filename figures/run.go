@@ -13,6 +13,7 @@ import (
 	"lidscope/calendar"
 	"lidscope/netcdf"
 	"lidscope/output"
+	"lidscope/relations"
 )
 
 // Run is what the figures read from a run directory written by package
@@ -27,8 +28,9 @@ type Run struct {
 	Delta, HalfWidth                    float64 // K
 	BandSouth, BandNorth                float64 // degrees_north
 
-	maps   *mapsFile
-	series *seriesFile
+	maps      *mapsFile
+	series    *seriesFile
+	relations *relations.Results
 }
 
 // summaryJSON is the part of summary.json the figures use.
@@ -89,18 +91,22 @@ func Load(dir string) (*Run, error) {
 }
 
 // Field is a lat–lon map: Values[j*len(Lon)+i] at Lat[j], Lon[i] (NaN where
-// missing), with the cell edges.
+// missing), with the cell edges: LatEdges (len(Lat)+1, ascending) and each
+// column's west and east edge (ascending, not overlapping; a regional grid
+// stored −180…180 across the dateline has a gap between its columns).
 type Field struct {
 	Name, LongName, Units string
 	Lat, Lon              []float64
-	LatEdges, LonEdges    []float64 // len(Lat)+1, len(Lon)+1, ascending
+	LatEdges              []float64
+	LonWest, LonEast      []float64
 	Values                []float64
 }
 
 type mapsFile struct {
-	lat, lon           []float64
-	latEdges, lonEdges []float64
-	vars               map[string]bool
+	lat, lon         []float64
+	latEdges         []float64
+	lonWest, lonEast []float64
+	vars             map[string]bool
 }
 
 // ncVar reads a whole numeric variable, turning _FillValue and
@@ -161,6 +167,25 @@ func edges(b []float64, n int, what, path string) ([]float64, error) {
 	return e, nil
 }
 
+// cellBounds returns each longitude cell's west and east edge from a (n, 2)
+// bounds variable, checking that the cells ascend without overlapping.
+func cellBounds(b []float64, n int, path string) (west, east []float64, err error) {
+	if len(b) != 2*n || n == 0 {
+		return nil, nil, fmt.Errorf("figures: %s: longitude bounds have %d values for %d cells", path, len(b), n)
+	}
+	for i := 0; i < n; i++ {
+		w, e := math.Min(b[2*i], b[2*i+1]), math.Max(b[2*i], b[2*i+1])
+		if i > 0 && w < east[i-1]-1e-9 {
+			return nil, nil, fmt.Errorf("figures: %s: longitude cell %d (%g…%g) overlaps the one before it (lidscope writes longitudes ascending)", path, i, w, e)
+		}
+		west, east = append(west, w), append(east, e)
+	}
+	if east[n-1]-west[0] > 360+1e-9 {
+		return nil, nil, fmt.Errorf("figures: %s: longitude cells span %g° (more than 360°)", path, east[n-1]-west[0])
+	}
+	return west, east, nil
+}
+
 func (r *Run) openMaps() (*netcdf.File, error) {
 	p := filepath.Join(r.Dir, output.MapsNC)
 	f, err := netcdf.Open(p)
@@ -187,7 +212,7 @@ func (r *Run) openMaps() (*netcdf.File, error) {
 		m.latEdges, err = edges(lb, len(m.lat), "latitude", p)
 	}
 	if err == nil {
-		m.lonEdges, err = edges(xb, len(m.lon), "longitude", p)
+		m.lonWest, m.lonEast, err = cellBounds(xb, len(m.lon), p)
 	}
 	if err != nil {
 		f.Close()
@@ -236,7 +261,7 @@ func (r *Run) Map(name string) (*Field, error) {
 func (r *Run) field(name, long, units string, vals []float64) *Field {
 	m := r.maps
 	return &Field{Name: name, LongName: long, Units: units, Lat: m.lat, Lon: m.lon,
-		LatEdges: m.latEdges, LonEdges: m.lonEdges, Values: vals}
+		LatEdges: m.latEdges, LonWest: m.lonWest, LonEast: m.lonEast, Values: vals}
 }
 
 // QuantityMean is the mean of quantity q over all of a column's valid time

@@ -12,6 +12,7 @@ import (
 	"lidscope/grid"
 	"lidscope/output"
 	"lidscope/regimes"
+	"lidscope/relations"
 )
 
 // Spec chooses the invented run.
@@ -60,6 +61,52 @@ func Land(lat, lon float64) bool {
 
 // Write writes the invented run into dir and returns the files.
 func Write(dir string, spec Spec) (output.Files, error) {
+	w, err := build(spec)
+	if err != nil {
+		return nil, err
+	}
+	acc, err := accumulate.New(w.layout)
+	if err != nil {
+		return nil, err
+	}
+	for _, s := range w.steps {
+		acc.AddCells(s, 0, len(s.Rel))
+		acc.AddStep(s)
+	}
+	return output.Write(dir, acc, w.meta, output.Options{Force: true})
+}
+
+// Relations runs the relationship analysis (package relations, default
+// configuration with the run's regime definition, one flip patch and the
+// omega indicator for the threshold) over the invented run.
+func Relations(spec Spec) (*relations.Results, error) {
+	w, err := build(spec)
+	if err != nil {
+		return nil, err
+	}
+	cfg := relations.Defaults()
+	cfg.Classifier = w.cls
+	cfg.Patches = []relations.Patch{{Name: "west_pacific", South: -10, North: 10, West: 140, East: 170}}
+	cfg.Indicator = relations.IndicatorOmega
+	cfg.ThresholdReplicates = 200
+	a, err := relations.New(cfg, w.layout, nil)
+	if err != nil {
+		return nil, err
+	}
+	for _, s := range w.steps {
+		a.AddStep(s)
+	}
+	return a.Results()
+}
+
+type world struct {
+	layout accumulate.Layout
+	steps  []*accumulate.Step
+	meta   output.Meta
+	cls    regimes.Classifier
+}
+
+func build(spec Spec) (*world, error) {
 	spec.defaults()
 	var lat, lon []float64
 	for y := spec.South + spec.DLat/2; y < spec.North; y += spec.DLat {
@@ -74,19 +121,16 @@ func Write(dir string, spec Spec) (output.Files, error) {
 	}
 	area := g.CellAreas()
 	band := regimes.Band{South: -30, North: 30}
-	quantities := []string{"eis", "lts", "cloud"}
+	quantities := []string{"eis", "lts", "cloud", "omega", "sst"}
 	l := accumulate.Layout{
 		NLat: len(lat), NLon: len(lon), Lat: g.Lat, Lon: g.Lon, Area: area,
 		BandWeight: band.Weights(g.LatBounds, area),
 		Quantities: quantities,
 		Regions:    []accumulate.Region{{Name: "east pacific (synthetic)", South: -30, North: 0, West: -130, East: -80}},
 	}
-	acc, err := accumulate.New(l)
-	if err != nil {
-		return nil, err
-	}
 	cls := regimes.Classifier{Delta: 0.5, HalfWidth: 0.25}
 	n := len(lat) * len(lon)
+	w := &world{layout: l, cls: cls}
 	var times [][2]float64
 	var mid []float64
 	day := 0.0
@@ -121,14 +165,17 @@ func Write(dir string, spec Spec) (output.Files, error) {
 				eis := 2 - 2.2*rel + 0.04*math.Abs(y)
 				s.Values[0][k] = float32(eis)                      // K
 				s.Values[1][k] = float32(16 + 0.8*eis + 0.05*x/10) // K
-				s.Values[2][k] = float32(math.Min(0.95, math.Max(0.02, 0.25+0.045*eis)))
+				s.Values[2][k] = float32(math.Min(0.95, math.Max(0.02, 0.25+0.045*eis+0.05*math.Sin(float64(k*7+t*3)))))
+				// Ascent (negative omega, Pa s-1) more likely the warmer
+				// the column is relative to the tropics.
+				s.Values[3][k] = float32(0.04*(0.6-rel) + 0.03*math.Sin(float64(k*13+t*5)))
+				s.Values[4][k] = float32(s.TropMean + rel) // K
 			}
 		}
 		cls.ClassifySlab(s.Rel, s.Regime)
-		acc.AddCells(s, 0, n)
-		acc.AddStep(s)
+		w.steps = append(w.steps, s)
 	}
-	meta := output.Meta{
+	w.meta = output.Meta{
 		Dataset: "lidscope synthetic test world (invented data)", Title: "figures test run",
 		Version: "0.0.0-test", Command: "lidscope test", Recipe: "[regimes]\ndelta = 0.5\n",
 		RecipeHash: "sha256:5e1f0c0ffee2b3a4", MetricsRecipe: "svp = murphy-koop\n",
@@ -138,7 +185,7 @@ func Write(dir string, spec Spec) (output.Files, error) {
 		StepsPerYear: 12, TimeUnits: "days since 2001-01-01", Calendar: "standard",
 		TimeValues: mid, TimeBounds: times, Grid: g,
 	}
-	return output.Write(dir, acc, meta, output.Options{Force: true})
+	return w, nil
 }
 
 func daysIn(year, month int) int {
