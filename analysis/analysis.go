@@ -8,8 +8,10 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"log/slog"
 	"os"
 	"path/filepath"
@@ -17,12 +19,14 @@ import (
 	"strings"
 	"time"
 
+	"lidscope/accumulate"
 	"lidscope/calendar"
 	"lidscope/cf"
 	"lidscope/config"
 	"lidscope/output"
 	"lidscope/pipeline"
 	"lidscope/regimes"
+	"lidscope/relations"
 )
 
 // Options control a run.
@@ -46,6 +50,9 @@ type Report struct {
 	Files   []string
 	Result  *pipeline.Result
 	Meta    output.Meta
+	// Relations are the relationship results (nil for a merged run, whose
+	// pieces' relationship accumulators are not kept).
+	Relations *relations.Results
 }
 
 // Run runs the named datasets of r (all when names is empty), in recipe order.
@@ -107,6 +114,29 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 		}
 	}
 	log.Info("run", "dataset", d.Name, "out", out)
+	relCfg := relationsConfig(r)
+	var clim *relations.Climatology
+	if relCfg.Mode == relations.Anomaly {
+		// Pass 1: the climatology of every cell and calendar month.
+		p1 := plan
+		p1.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
+			clim = relations.NewClimatology(l)
+			return []pipeline.StepSink{clim}, nil
+		}
+		log.Info("pass 1 of 2: climatology for anomaly mode", "dataset", d.Name)
+		if _, err := pipeline.Run(ctx, p1); err != nil {
+			return Report{}, err
+		}
+	}
+	var rel *relations.Acc
+	plan.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
+		a, err := relations.New(relCfg, l, clim)
+		if err != nil {
+			return nil, fmt.Errorf("relationship analysis: %w", err)
+		}
+		rel = a
+		return []pipeline.StepSink{a}, nil
+	}
 	res, err := pipeline.Run(ctx, plan)
 	if err != nil {
 		return Report{}, err
@@ -118,18 +148,64 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	if err != nil {
 		return Report{}, err
 	}
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return Report{}, fmt.Errorf("creating the output folder: %w", err)
+	relRes, err := rel.Results()
+	if err != nil {
+		return Report{}, fmt.Errorf("relationship analysis: %w", err)
 	}
-	files, err := output.Write(out, res.Acc, meta, output.Options{Force: opt.Force})
+	files, err := writeResults(out, res, meta, relRes, opt)
 	if err != nil {
 		return Report{}, err
 	}
-	if err := saveState(out, meta, res.Acc); err != nil {
-		return Report{}, fmt.Errorf("writing the run state: %w", err)
+	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
+}
+
+// relationsConfig is the relationship analysis of the recipe.
+func relationsConfig(r *config.Recipe) relations.Config {
+	c := relations.Defaults()
+	c.Classifier = r.Analysis.Classifier()
+	for _, rg := range r.Analysis.Regions {
+		c.Regions = append(c.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
 	}
-	files = append(files, filepath.Join(out, StateFile))
-	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta}, nil
+	return c
+}
+
+// writeResults writes every result file of a run into out. It creates out
+// when needed and removes it again if it created it and the write failed.
+func writeResults(out string, res *pipeline.Result, meta output.Meta, rel *relations.Results, opt Options) (files []string, err error) {
+	created := false
+	if _, err := os.Stat(out); errors.Is(err, fs.ErrNotExist) {
+		created = true
+	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, fmt.Errorf("creating the output folder: %w", err)
+	}
+	defer func() {
+		if err != nil && created {
+			os.Remove(out) // only succeeds when empty: nothing of ours is left
+		}
+	}()
+	// An earlier run's state must never sit next to new results.
+	if opt.Force {
+		if err := os.Remove(filepath.Join(out, StateFile)); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return nil, err
+		}
+	}
+	files, err = output.Write(out, res.Acc, meta, output.Options{Force: opt.Force})
+	if err != nil {
+		return nil, err
+	}
+	if rel != nil {
+		rf, err := relations.Write(out, rel, relations.Meta{Dataset: meta.Dataset, Title: meta.Title, Version: meta.Version,
+			Command: opt.Command, RecipeHash: meta.RecipeHash, Period: meta.Period, Source: "lidscope " + meta.Version}, relations.WriteOptions{Force: opt.Force})
+		if err != nil {
+			return files, fmt.Errorf("writing the relationship results: %w", err)
+		}
+		files = append(files, rf...)
+	}
+	if err := saveState(out, meta, res.Acc); err != nil {
+		return files, fmt.Errorf("writing the run state: %w", err)
+	}
+	return append(files, filepath.Join(out, StateFile)), nil
 }
 
 // timeUnits is the time axis of the series outputs.

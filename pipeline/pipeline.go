@@ -88,6 +88,9 @@ type Plan struct {
 	// accumulator (e.g. relationship statistics). The step's slices are
 	// reused for the next step: a sink must copy what it keeps.
 	Sinks []StepSink
+	// NewSinks, when set, makes further sinks once the analysis layout is
+	// known (grid, areas, band weights, quantities).
+	NewSinks func(l accumulate.Layout) ([]StepSink, error)
 }
 
 // StepSink consumes the time steps of a run.
@@ -288,6 +291,14 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		return nil, err
 	}
 	res.Acc = acc
+	sinks := append([]StepSink{}, p.Sinks...)
+	if p.NewSinks != nil {
+		more, err := p.NewSinks(acc.L)
+		if err != nil {
+			return nil, err
+		}
+		sinks = append(sinks, more...)
+	}
 
 	workers := p.Workers
 	if workers <= 0 {
@@ -467,7 +478,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 			return nil, fmt.Errorf("time step %s: %w", st.label, firstErr)
 		}
 		acc.AddStep(step)
-		for _, sk := range p.Sinks {
+		for _, sk := range sinks {
 			sk.AddStep(step)
 		}
 		res.Labels = append(res.Labels, st.label)
