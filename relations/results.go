@@ -522,9 +522,12 @@ func (a *Acc) bootstrapRegressions(groups []*group) [][]float64 {
 	for gi := range out {
 		out[gi] = make([]float64, (2*np+2)*n)
 	}
-	pos := map[[4]int]int{}
+	// groups are ordered by (domain, season, regime, response).
+	pos := func(d, s, g, r int) int { return ((d*a.ns+s)*nreg+g)*nr + r }
 	for gi, gr := range groups {
-		pos[[4]int{gr.d, gr.s, gr.g, gr.r}] = gi
+		if pos(gr.d, gr.s, gr.g, gr.r) != gi {
+			panic("relations: group order")
+		}
 	}
 	acc := make([]CoMoments, len(groups))
 	for gi := range acc {
@@ -554,7 +557,7 @@ func (a *Acc) bootstrapRegressions(groups []*group) [][]float64 {
 							continue
 						}
 						for k := 0; k < nss; k++ {
-							acc[pos[[4]int{d, ss[k], g, r}]].Merge(cm)
+							acc[pos(d, ss[k], g, r)].Merge(cm)
 						}
 					}
 				}
