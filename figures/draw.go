@@ -29,9 +29,11 @@ type Options struct {
 	Palettes map[string]string
 	// DPI is the resolution of PNG figures (default 200).
 	DPI float64
-	// Relations are the run's relationship results (package relations);
-	// the relationship, joint-composite, flip and threshold figures are
-	// drawn only when they are given.
+	// Relations are the run's relationship results (package relations).
+	// When nil, Draw reads them from the run's relationships.json (written
+	// by relations.Write) if there is one; the relationship,
+	// joint-composite, flip and threshold figures are drawn only when there
+	// are results.
 	Relations *relations.Results
 }
 
@@ -141,6 +143,11 @@ func Draw(runDir string, opt Options) ([]string, error) {
 		return nil, err
 	}
 	run.relations = opt.Relations
+	if run.relations == nil {
+		if run.relations, err = ReadRelations(runDir); err != nil {
+			return nil, err
+		}
+	}
 	want := map[string]bool{}
 	for _, n := range opt.Only {
 		want[n] = true

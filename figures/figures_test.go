@@ -321,3 +321,36 @@ func TestRelationFiguresNeedResults(t *testing.T) {
 		t.Errorf("threshold without results: %v, want ErrUnavailable", err)
 	}
 }
+
+// Relationship figures re-drawn from relationships.json (relations.Write)
+// are the same images as those drawn from the results in memory.
+func TestRelationsFromFile(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "run")
+	if _, err := figurestest.Write(dir, figurestest.Spec{}); err != nil {
+		t.Fatal(err)
+	}
+	fixture(t)
+	if _, err := relations.Write(dir, fixRel, relations.Meta{Dataset: "test", Version: "test", Command: []string{"test"}}, relations.WriteOptions{Force: true}); err != nil {
+		t.Fatal(err)
+	}
+	names := []string{"relation_eis", "relation_lts", "relation_rel_sst", "joint_composite", "flips", "threshold"}
+	fromFile, err := Draw(dir, Options{Only: names, OutDir: filepath.Join(dir, "a"), DPI: 60})
+	if err != nil {
+		t.Fatal(err)
+	}
+	inMemory, err := Draw(dir, Options{Only: names, OutDir: filepath.Join(dir, "b"), DPI: 60, Relations: fixRel})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range names {
+		a, _ := os.ReadFile(fromFile[i])
+		b, _ := os.ReadFile(inMemory[i])
+		if ok, err := cmpimg.Equal("png", a, b); err != nil || !ok {
+			t.Errorf("%s from relationships.json differs from the one drawn from memory (%v)", names[i], err)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, relations.RelationshipsJSON), []byte(`{"format":"something else"}`), 0o644)
+	if _, err := Draw(dir, Options{OutDir: filepath.Join(dir, "c")}); err == nil || !strings.Contains(err.Error(), "lidscope-relationships") {
+		t.Errorf("a foreign relationships.json: %v", err)
+	}
+}

@@ -2,6 +2,7 @@ package figures
 
 import (
 	"math"
+	"os"
 	"testing"
 )
 
@@ -142,4 +143,27 @@ func TestYearTicks(t *testing.T) {
 	if got := labels(1979, 2020); len(got) > 8 || got[0] != "1980" {
 		t.Errorf("41-year record: %v, want at most eight labels from 1980", got)
 	}
+}
+
+// ReadRelations never panics on arbitrary files, and what it accepts has
+// joint composites of consistent size.
+func FuzzReadRelations(f *testing.F) {
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":1,"mode":"climatological"}`))
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":1,"mode":"anomaly","joint_composites":[{"rel_sst_edges":[0,1],"eis_edges":[0,1],"mean":[{"value":null,"units":"1"}],"frequency":[{"value":0.5}],"count":[{"value":3}]}],"binned":[{"regime":"convective","bins":[{"lower":{"value":1}}]}]}`))
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":1,"mode":"climatological","threshold":{"logistic":{"slope":{"value":2}}},"flips":[{"rows":[{"delta_t":{"value":1}}]}]}`))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		dir := t.TempDir()
+		if err := os.WriteFile(dir+"/relationships.json", b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		r, err := ReadRelations(dir)
+		if err != nil || r == nil {
+			return
+		}
+		for _, j := range r.Joint {
+			if len(j.Mean) != (len(j.RelEdges)-1)*(len(j.EISEdge)-1) {
+				t.Fatalf("accepted a joint composite of %d values for %d×%d bins", len(j.Mean), len(j.RelEdges)-1, len(j.EISEdge)-1)
+			}
+		}
+	})
 }
