@@ -23,6 +23,7 @@ import (
 	"lidscope/calendar"
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/figures"
 	"lidscope/output"
 	"lidscope/pipeline"
 	"lidscope/regimes"
@@ -37,6 +38,9 @@ type Options struct {
 	// datasets each goes to OutDir/<dataset name>.
 	OutDir  string
 	Force   bool // replace existing outputs
+	// NoPlots skips the figures (otherwise drawn when the recipe's
+	// output.plots is true, the default).
+	NoPlots bool
 	Workers int
 	Log     *slog.Logger
 	// Progress, when set, is told about each dataset's time steps.
@@ -155,6 +159,13 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	files, err := writeResults(out, res, meta, relRes, opt)
 	if err != nil {
 		return Report{}, err
+	}
+	if r.Output.Plots && !opt.NoPlots {
+		figs, err := figures.Draw(out, figures.Options{Force: opt.Force, Relations: relRes})
+		if err != nil {
+			return Report{}, fmt.Errorf("drawing the figures (the results are written; redraw with lidscope plot %s): %w", out, err)
+		}
+		files = append(files, figs...)
 	}
 	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
 }

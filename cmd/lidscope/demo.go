@@ -49,7 +49,7 @@ func runDemo(o demoOptions, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	opt := analysis.DemoOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Workers: o.Workers, Log: log}}
+	opt := analysis.DemoOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}}
 	if o.Progress {
 		opt.Progress = progressLine(stderr)
 	}

@@ -111,7 +111,7 @@ func runRun(o runOptions, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, Workers: o.Workers, Log: log}
+	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}
 	if o.Progress {
 		opt.Progress = progressLine(stderr)
 	}
