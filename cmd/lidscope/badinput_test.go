@@ -15,6 +15,7 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -569,17 +570,21 @@ func TestBadForceKeepsEarlierResults(t *testing.T) {
 // snapshot maps each file name in dir to its content.
 func snapshot(t *testing.T, dir string) map[string]string {
 	t.Helper()
-	ents, err := os.ReadDir(dir)
+	m := map[string]string{}
+	err := filepath.WalkDir(dir, func(p string, e fs.DirEntry, err error) error {
+		if err != nil || e.IsDir() {
+			return err
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		m[rel] = string(b)
+		return nil
+	})
 	if err != nil {
 		t.Fatal(err)
-	}
-	m := map[string]string{}
-	for _, e := range ents {
-		b, err := os.ReadFile(filepath.Join(dir, e.Name()))
-		if err != nil {
-			t.Fatal(err)
-		}
-		m[e.Name()] = string(b)
 	}
 	if len(m) < 6 {
 		t.Fatalf("%s holds only %d files", dir, len(m))
