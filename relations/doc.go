@@ -222,9 +222,8 @@
 //   - flips.csv: one row per patch and ΔT.
 //   - thresholds.csv: the record's estimate and one row per year (header
 //     only when no indicator was given).
-//   - relationships.json: everything above (bins and joint cells without
-//     samples left out; they are in relationships.nc), every number as
-//     {"value": x, "units": "K"} ("value": null for none), with format
+//   - relationships.json: everything above, every number as {"value": x,
+//     "units": "K"} ("value": null for none), with format
 //     "lidscope-relationships", format_version 1, the mode and its
 //     description, the regime definition, the uncertainty method and the
 //     configuration text.

@@ -107,11 +107,8 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 
 	binned := []map[string]any{}
 	for _, b := range r.Binned {
-		bins := []map[string]any{}
+		var bins []map[string]any
 		for _, s := range b.Bins {
-			if s.N == 0 {
-				continue // empty bins are in relationships.nc only
-			}
 			bins = append(bins, map[string]any{"lower": num{s.Lower, b.PredUnits}, "upper": num{s.Upper, b.PredUnits},
 				"mean": num{s.Mean, b.RespUnits}, "std": num{s.Std, b.RespUnits}, "stderr": num{s.StdErr, b.RespUnits},
 				"n": cnt(s.N), "steps": cnt(s.Steps), "n_eff": num{s.NEff, "1"}, "area": num{s.Area, "m2"}})
@@ -123,20 +120,15 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 
 	joint := []map[string]any{}
 	for _, j := range r.Joint {
-		ne := len(j.EISEdge) - 1
-		cells := []map[string]any{}
+		mean := make([]num, len(j.Mean))
+		freq := make([]num, len(j.Mean))
+		count := make([]num, len(j.Mean))
 		for k := range j.Mean {
-			if j.Count[k] == 0 {
-				continue // empty cells are in relationships.nc only
-			}
-			a, e := k/ne, k%ne
-			cells = append(cells, map[string]any{
-				"rel_sst_lower": num{j.RelEdges[a], "K"}, "rel_sst_upper": num{j.RelEdges[a+1], "K"},
-				"eis_lower": num{j.EISEdge[e], "K"}, "eis_upper": num{j.EISEdge[e+1], "K"},
-				"mean": num{j.Mean[k], j.Units}, "frequency": num{j.Frequency[k], "1"}, "n": cnt(j.Count[k])})
+			mean[k], freq[k], count[k] = num{j.Mean[k], j.Units}, num{j.Frequency[k], "1"}, cnt(j.Count[k])
 		}
 		joint = append(joint, map[string]any{"mode": r.Mode.String(), "domain": j.Domain, "season": j.Season, "response": j.Response,
-			"rel_sst_edges": j.RelEdges, "eis_edges": j.EISEdge, "cells": cells})
+			"rel_sst_edges": j.RelEdges, "eis_edges": j.EISEdge, "layout": "[rel_sst bin][eis bin], row-major",
+			"mean": mean, "frequency": freq, "count": count})
 	}
 	doc["joint_composites"] = joint
 
@@ -215,11 +207,8 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 
 	omega := []map[string]any{}
 	for _, o := range r.Omega {
-		bins := []map[string]any{}
+		var bins []map[string]any
 		for b, ob := range o.Bins {
-			if ob.N == 0 {
-				continue
-			}
 			m := map[string]any{"lower": num{ob.Lower, "hPa d-1"}, "upper": num{ob.Upper, "hPa d-1"}, "n": cnt(ob.N), "area": num{ob.Area, "m2"},
 				"frequency": num{ob.Frequency, "1"}, "pdf": num{ob.PDF, "d hPa-1"}}
 			resp := map[string]any{}
