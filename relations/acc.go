@@ -224,9 +224,11 @@ func New(cfg Config, l accumulate.Layout, clim *Climatology) (*Acc, error) {
 	}
 	a.resp = cfg.Responses
 	if a.resp == nil {
-		for _, q := range []string{"cloud", "low_cloud", "toa_sw_up"} {
-			if _, ok := qi[q]; ok {
+		seen := map[string]bool{}
+		for _, q := range []string{l.Cloud, "cloud", "low_cloud", "toa_sw_up"} {
+			if _, ok := qi[q]; ok && !seen[q] {
 				a.resp = append(a.resp, q)
+				seen[q] = true
 			}
 		}
 		if len(a.resp) == 0 {

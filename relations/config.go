@@ -91,7 +91,8 @@ type Config struct {
 	// regressions are the keys of Bins.
 	Bins map[string][]float64
 	// Responses are the quantities related to the predictors. Nil means
-	// "cloud" (and "low_cloud") plus "toa_sw_up" when the layout has them.
+	// the layout's cloud quantity (Layout.Cloud), then "cloud",
+	// "low_cloud" and "toa_sw_up", those the layout has.
 	Responses []string
 	// Regions are further domains besides the tropical band.
 	Regions []accumulate.Region

@@ -204,3 +204,16 @@ func TestRegressionBootstrap(t *testing.T) {
 		t.Errorf("bootstrap SE / actual spread = %.2f, want 1 ± 0.2", ratio)
 	}
 }
+
+// Automatic responses: the layout's cloud field first, then the others present.
+func TestAutoResponses(t *testing.T) {
+	l := rowLayout(2, "sst", "lts", "eis", "toa_sw_up", "low_cloud", "cloud")
+	l.Cloud = "low_cloud"
+	acc, err := New(Defaults(), l, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(acc.resp, " "); got != "low_cloud cloud toa_sw_up" {
+		t.Errorf("responses %q", got)
+	}
+}
