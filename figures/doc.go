@@ -46,9 +46,10 @@
 //
 // Text is set in Liberation Sans, compiled into the program by gonum plot,
 // so no system font is needed; SVG files embed the fonts (@font-face) and
-// PDF files embed them as TrueType. PDF text uses the Windows-1252 code
-// page of the PDF writer, so the few characters outside it (the minus sign,
-// Greek letters) are written in ASCII there; PDF titles are not bold (the
+// PDF files embed them as TrueType. PDF text is encoded in the Windows-1252
+// code page the PDF writer expects (degree sign, ellipsis and en dash
+// included); the few characters outside it (the minus sign, Greek letters)
+// are written in ASCII there; PDF titles are not bold (the
 // writer cannot embed a bold face in gonum plot v0.17.0).
 //
 // # Files

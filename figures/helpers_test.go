@@ -167,3 +167,21 @@ func FuzzReadRelations(f *testing.F) {
 		}
 	})
 }
+
+// PDF text is Windows-1252 bytes: ° is 0xB0, … 0x85, – 0x96; the minus sign
+// and Greek letters are written in ASCII first (pdfText).
+func TestPDFText(t *testing.T) {
+	f := &fig{pdf: true}
+	cases := []struct{ in, want string }{
+		{"30°N", "30\xb0N"}, {"2001-01 … 2002-12", "2001-01 \x85 2002-12"}, {"30°S–30°N", "30\xb0S\x9630\xb0N"},
+		{"SST − tropical-mean SST > δ", "SST - tropical-mean SST > delta "}, {"−20", "-20"}, {"ΔT (K)", "Delta T (K)"}, {"日本", "??"},
+	}
+	for _, c := range cases {
+		if got := f.t(c.in); got != c.want {
+			t.Errorf("PDF text of %q = %q, want %q", c.in, got, c.want)
+		}
+	}
+	if got := (&fig{}).t("−20 °C"); got != "−20 °C" {
+		t.Errorf("PNG/SVG text changed: %q", got)
+	}
+}

@@ -305,8 +305,8 @@ func (f *fig) mapPlot(fl *Field, w window, rs *raster) *plot.Plot {
 	p.X.Min, p.X.Max = w.west, w.west+w.span
 	p.Y.Min, p.Y.Max = w.south, w.north
 	p.X.Padding, p.Y.Padding = 0, 0
-	p.X.Tick.Marker = degreeTicks{}
-	p.Y.Tick.Marker = degreeTicks{lat: true}
+	p.X.Tick.Marker = f.ticks(degreeTicks{})
+	p.Y.Tick.Marker = f.ticks(degreeTicks{lat: true})
 	p.X.Label.Text = f.t("Longitude")
 	p.Y.Label.Text = f.t("Latitude")
 	p.Add(rs, coastLayer{box: coast.Box{West: w.west, East: w.west + w.span, South: w.south, North: w.north}})

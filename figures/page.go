@@ -75,7 +75,7 @@ var pdfText = strings.NewReplacer(
 // t prepares text for the output format.
 func (f *fig) t(s string) string {
 	if f.pdf {
-		return pdfText.Replace(s)
+		return cp1252(pdfText.Replace(s))
 	}
 	return s
 }
@@ -113,8 +113,8 @@ func (f *fig) newPlot() *plot.Plot {
 		a.Tick.Width = 0.6
 		a.Label.Padding = 2
 	}
-	p.X.Tick.Marker = signedTicks{}
-	p.Y.Tick.Marker = signedTicks{}
+	p.X.Tick.Marker = f.ticks(plot.DefaultTicks{})
+	p.Y.Tick.Marker = f.ticks(plot.DefaultTicks{})
 	p.Legend.TextStyle = style(sizeLegend, false)
 	p.Legend.ThumbnailWidth = 0.3 * vg.Inch
 	p.Legend.Padding = 2
@@ -309,17 +309,41 @@ func minus(s string) string {
 	return s
 }
 
-// signedTicks is gonum's default ticker with true minus signs.
-type signedTicks struct{ plot.Ticker }
+// fmtTicks writes a ticker's labels with true minus signs, prepared for
+// the output format.
+type fmtTicks struct {
+	plot.Ticker
+	f *fig
+}
 
-func (s signedTicks) Ticks(lo, hi float64) []plot.Tick {
-	inner := s.Ticker
-	if inner == nil {
-		inner = plot.DefaultTicks{}
-	}
-	ts := inner.Ticks(lo, hi)
+func (s fmtTicks) Ticks(lo, hi float64) []plot.Tick {
+	ts := s.Ticker.Ticks(lo, hi)
 	for i := range ts {
-		ts[i].Label = minus(ts[i].Label)
+		ts[i].Label = s.f.t(minus(ts[i].Label))
 	}
 	return ts
+}
+
+// ticks wraps a ticker for the figure's format.
+func (f *fig) ticks(t plot.Ticker) plot.Ticker { return fmtTicks{t, f} }
+
+// cp1252 encodes text for the PDF writer, which reads strings as Windows-1252
+// bytes: ASCII and Latin-1 as themselves, the typographic punctuation of
+// 0x80–0x9F at its code points (Windows-1252 table, from memory), anything
+// else as "?".
+func cp1252(s string) string {
+	special := map[rune]byte{'€': 0x80, '‚': 0x82, '„': 0x84, '…': 0x85, '‘': 0x91, '’': 0x92, '“': 0x93, '”': 0x94,
+		'•': 0x95, '–': 0x96, '—': 0x97, '™': 0x99}
+	b := make([]byte, 0, len(s))
+	for _, r := range s {
+		switch {
+		case r < 0x80 || (r >= 0xA0 && r <= 0xFF):
+			b = append(b, byte(r))
+		case special[r] != 0:
+			b = append(b, special[r])
+		default:
+			b = append(b, '?')
+		}
+	}
+	return string(b)
 }

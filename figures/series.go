@@ -105,7 +105,7 @@ func (f *fig) seriesPage() (*page, error) {
 	mk := func() *plot.Plot {
 		p := f.newPlot()
 		p.X.Min, p.X.Max = lo-pad, hi+pad
-		p.X.Tick.Marker = yearTicks{}
+		p.X.Tick.Marker = f.ticks(yearTicks{})
 		p.Add(lightGrid())
 		return p
 	}
