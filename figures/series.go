@@ -170,13 +170,16 @@ func lightGrid() *plotter.Grid {
 	return g
 }
 
-// unlabelled keeps a ticker's marks and drops their labels.
+// unlabelled keeps a ticker's marks and blanks their labels; major ticks
+// keep a blank label so that they stay major (long marks, grid lines).
 type unlabelled struct{ plot.Ticker }
 
 func (u unlabelled) Ticks(lo, hi float64) []plot.Tick {
 	ts := u.Ticker.Ticks(lo, hi)
 	for i := range ts {
-		ts[i].Label = ""
+		if ts[i].Label != "" {
+			ts[i].Label = " "
+		}
 	}
 	return ts
 }
