@@ -36,13 +36,16 @@ type Options struct {
 	Command []string // the command line, recorded in history
 	// OutDir, when set, replaces the dataset's output folder; with several
 	// datasets each goes to OutDir/<dataset name>.
-	OutDir  string
-	Force   bool // replace existing outputs
+	OutDir string
+	Force  bool // replace existing outputs
 	// NoPlots skips the figures (otherwise drawn when the recipe's
 	// output.plots is true, the default).
 	NoPlots bool
-	Workers int
-	Log     *slog.Logger
+	// NoCoastlines leaves Earth's coastlines off the maps (the demo's
+	// synthetic worlds have invented continents).
+	NoCoastlines bool
+	Workers      int
+	Log          *slog.Logger
 	// Progress, when set, is told about each dataset's time steps.
 	Progress func(dataset string, done, total int)
 }
@@ -161,7 +164,7 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 		return Report{}, err
 	}
 	if r.Output.Plots && !opt.NoPlots {
-		figs, err := figures.Draw(out, figures.Options{Force: opt.Force, Relations: relRes})
+		figs, err := figures.Draw(out, figures.Options{Force: opt.Force, Relations: relRes, NoCoastlines: opt.NoCoastlines})
 		if err != nil {
 			return Report{}, fmt.Errorf("drawing the figures (the results are written; redraw with lidscope plot %s): %w", out, err)
 		}

@@ -101,6 +101,7 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 		}
 		ro := opt.Options
 		ro.OutDir = ""
+		ro.NoCoastlines = true // invented continents: Earth's coastlines would mislead
 		reps, err := Run(ctx, r, nil, ro)
 		if err != nil {
 			return nil, err

@@ -35,6 +35,10 @@ type Options struct {
 	// joint-composite, flip and threshold figures are drawn only when there
 	// are results.
 	Relations *relations.Results
+	// NoCoastlines leaves the Earth's coastlines off the maps: for data that
+	// are not on Earth's geography, such as the synthetic demo worlds,
+	// whose invented continents real coastlines would contradict.
+	NoCoastlines bool
 }
 
 // Formats are the output formats.

@@ -309,7 +309,10 @@ func (f *fig) mapPlot(fl *Field, w window, rs *raster) *plot.Plot {
 	p.Y.Tick.Marker = f.ticks(degreeTicks{lat: true})
 	p.X.Label.Text = f.t("Longitude")
 	p.Y.Label.Text = f.t("Latitude")
-	p.Add(rs, coastLayer{box: coast.Box{West: w.west, East: w.west + w.span, South: w.south, North: w.north}})
+	p.Add(rs)
+	if !f.opt.NoCoastlines {
+		p.Add(coastLayer{box: coast.Box{West: w.west, East: w.west + w.span, South: w.south, North: w.north}})
+	}
 	return p
 }
 

@@ -18,6 +18,8 @@ type plotOptions struct {
 	DPI      float64
 	Palettes map[string]string
 	List     bool
+	// NoCoastlines leaves Earth's coastlines off the maps (synthetic worlds).
+	NoCoastlines bool
 }
 
 // listFlag collects repeated or comma-separated values.
@@ -57,6 +59,7 @@ func cmdPlot(args []string, stdout, stderr io.Writer) error {
 	fs.Float64Var(&o.DPI, "dpi", 200, "resolution of PNG figures, dots per inch")
 	fs.Var(paletteFlag(o.Palettes), "palette", "colour map for a kind of quantity, KIND=MAP (repeatable; kinds: "+
 		strings.Join(figures.PaletteKeys(), ", ")+"; maps: "+strings.Join(figures.PaletteNames(), ", ")+", each also NAME-reversed)")
+	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")
 	fs.BoolVar(&o.List, "list", false, "list the figures and what they show, then exit")
 	fs.Usage = func() {
 		fmt.Fprintln(stderr, "usage: lidscope plot [options] RUN_DIR\n\nDraws the figures of a finished run from its output files (maps.nc, series.nc,\nsummary.json, and the relationship files when present), without recomputing.\nFigures whose inputs the run lacks are skipped unless named with --only.")
@@ -109,6 +112,7 @@ func listFigures(w io.Writer) error {
 func runPlot(o plotOptions, w io.Writer) error {
 	paths, err := figures.Draw(o.RunDir, figures.Options{
 		Format: o.Format, Only: o.Only, OutDir: o.Out, Force: o.Force, DPI: o.DPI, Palettes: o.Palettes,
+		NoCoastlines: o.NoCoastlines,
 	})
 	for _, p := range paths {
 		fmt.Fprintln(w, p)
