@@ -92,6 +92,9 @@ func pickBinned(res *relations.Results, pred string) ([]*relations.Binned, bool)
 		for i := range res.Binned {
 			b := &res.Binned[i]
 			if b.Domain == relations.BandDomain && b.Season == "all" && b.Regime == reg && b.Predictor == pred && b.Response == resp {
+				if reg == regimes.Transition && binnedSamples(b) == 0 {
+					continue // no transition band defined (or none sampled): no empty panel
+				}
 				out = append(out, b)
 			}
 		}
@@ -430,4 +433,13 @@ func setTitleStyle(p *plot.Plot, st text.Style) {
 	st.XAlign, st.YAlign = text.XCenter, text.YTop
 	p.Title.TextStyle = st
 	p.Title.Padding = 4
+}
+
+// binnedSamples counts the samples of a binned relationship.
+func binnedSamples(b *relations.Binned) int64 {
+	n := b.OutOfRange
+	for _, x := range b.Bins {
+		n += x.N
+	}
+	return n
 }
