@@ -51,8 +51,8 @@ type Layout struct {
 	Quantities []string  // names of the per-column quantities, e.g. eis, lts, low_cloud
 	// Cloud names the quantity that is the analysis's cloud field (the
 	// recipe's cloud role: low_cloud or cloud).
-	Cloud string
-	Regions    []Region
+	Cloud   string
+	Regions []Region
 }
 
 // Step is one time step's input to Add. All slices have NLat*NLon cells.

@@ -3,8 +3,8 @@ package accumulate
 import (
 	"bytes"
 	"math"
-	"reflect"
 	"math/rand/v2"
+	"reflect"
 	"testing"
 
 	"lidscope/regimes"
