@@ -1,6 +1,7 @@
 package figures
 
 import (
+	"gonum.org/v1/plot"
 	"math"
 	"os"
 	"testing"
@@ -183,5 +184,17 @@ func TestPDFText(t *testing.T) {
 	}
 	if got := (&fig{}).t("−20 °C"); got != "−20 °C" {
 		t.Errorf("PNG/SVG text changed: %q", got)
+	}
+}
+
+func TestDistinctLabels(t *testing.T) {
+	ts := []plot.Tick{{Value: 297.8, Label: "298"}, {Value: 297.9}, {Value: 298.0, Label: "298"}, {Value: 298.2, Label: "298"}}
+	got := distinctLabels(ts)
+	if got[0].Label != "297.8" || got[2].Label != "298.0" || got[3].Label != "298.2" || got[1].Label != "" {
+		t.Errorf("labels %q %q %q %q", got[0].Label, got[1].Label, got[2].Label, got[3].Label)
+	}
+	ok := []plot.Tick{{Value: 0, Label: "0"}, {Value: 50, Label: "50"}}
+	if g := distinctLabels(ok); g[0].Label != "0" || g[1].Label != "50" {
+		t.Error("distinct labels were rewritten")
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	xfont "golang.org/x/image/font"
@@ -317,9 +318,41 @@ type fmtTicks struct {
 }
 
 func (s fmtTicks) Ticks(lo, hi float64) []plot.Tick {
-	ts := s.Ticker.Ticks(lo, hi)
+	ts := distinctLabels(s.Ticker.Ticks(lo, hi))
 	for i := range ts {
 		ts[i].Label = s.f.t(minus(ts[i].Label))
+	}
+	return ts
+}
+
+// distinctLabels rewrites numeric major-tick labels with as many decimals
+// as their spacing needs when two of them read the same (a narrow range
+// such as 297.6…298.2 K would otherwise be labelled "298" three times).
+func distinctLabels(ts []plot.Tick) []plot.Tick {
+	seen := map[string]bool{}
+	var major []int
+	dup := false
+	for i, t := range ts {
+		if t.Label == "" {
+			continue
+		}
+		if _, err := strconv.ParseFloat(t.Label, 64); err != nil {
+			return ts // not plain numbers (dates, degrees): leave them
+		}
+		dup = dup || seen[t.Label]
+		seen[t.Label] = true
+		major = append(major, i)
+	}
+	if !dup || len(major) < 2 {
+		return ts
+	}
+	step := math.Abs(ts[major[1]].Value - ts[major[0]].Value)
+	if !(step > 0) {
+		return ts
+	}
+	dec := int(math.Max(0, math.Ceil(-math.Log10(step)+1e-9)))
+	for _, i := range major {
+		ts[i].Label = strconv.FormatFloat(ts[i].Value, 'f', dec, 64)
 	}
 	return ts
 }
