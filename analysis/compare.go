@@ -7,6 +7,8 @@ import (
 
 	"lidscope/compare"
 	"lidscope/config"
+	"lidscope/figures"
+	"lidscope/relations"
 )
 
 // CompareOptions control a comparison.
@@ -21,10 +23,16 @@ func LoadRun(dir string) (compare.Run, error) {
 	if err != nil {
 		return compare.Run{}, err
 	}
-	return compare.Run{Name: m.Dataset, Dir: dir, Meta: m, Acc: a}, nil
+	rel, err := relations.ReadResults(dir)
+	if err != nil {
+		return compare.Run{}, fmt.Errorf("reading the relationship results of %s: %w", dir, err)
+	}
+	return compare.Run{Name: m.Dataset, Dir: dir, Meta: m, Acc: a, Relations: rel}, nil
 }
 
 // CompareDirs compares finished runs: the first folder is the reference.
+// It writes comparison.csv, comparison.json and comparison_maps.nc into
+// out and, unless NoPlots, the comparison figures into out/figures.
 func CompareDirs(ref string, cands []string, out string, opt CompareOptions) (*compare.Result, []string, error) {
 	r, err := LoadRun(ref)
 	if err != nil {
@@ -43,7 +51,14 @@ func CompareDirs(ref string, cands []string, out string, opt CompareOptions) (*c
 		return nil, nil, err
 	}
 	files, err := compare.Write(out, res, compare.WriteOptions{Force: opt.Force, Version: opt.Version, Command: opt.Command})
-	return res, files, err
+	if err != nil || opt.NoPlots {
+		return res, files, err
+	}
+	figs, err := figures.DrawComparison(res, figures.CompareOptions{OutDir: filepath.Join(out, figures.DefaultDirName), Force: opt.Force, NoCoastlines: opt.NoCoastlines})
+	if err != nil {
+		return res, files, fmt.Errorf("drawing the comparison figures: %w", err)
+	}
+	return res, append(files, figs...), nil
 }
 
 // CompareRecipe runs every dataset of a recipe into out/<dataset> and

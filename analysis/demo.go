@@ -203,5 +203,6 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%+.3g %s)\n", s.Name, s.Ref, s.Cand, s.Diff, s.Units)
 			}
 		}
+		compare.WriteEstimates(w, d.Comparison, "    ")
 	}
 }

@@ -20,6 +20,7 @@ import (
 	"lidscope/accumulate"
 	"lidscope/output"
 	"lidscope/regimes"
+	"lidscope/relations"
 )
 
 // Run is a finished run.
@@ -28,6 +29,10 @@ type Run struct {
 	Dir  string
 	Meta output.Meta
 	Acc  *accumulate.Acc
+	// Relations are the run's relationship results (relationships.json,
+	// relations.ReadResults); nil when the run has none (a merged run),
+	// when no sensitivities, flips or thresholds are compared.
+	Relations *relations.Results
 }
 
 // Options control a comparison.
@@ -71,6 +76,14 @@ type Candidate struct {
 	Dir     string    `json:"dir"`
 	Maps    []MapStat `json:"maps"`
 	Scalars []Scalar  `json:"scalars"`
+	// Estimates are the subsidence-regime cloud sensitivities (slopes on
+	// EIS and LTS, partial sensitivities) and the convection thresholds,
+	// side by side with the reference's (see CombinedMethod).
+	Estimates []Estimate `json:"-"`
+	// Flips compare the perturbation flip fractions per patch and ΔT.
+	Flips []FlipDiff `json:"-"`
+	// Notes say what could not be compared and why.
+	Notes []string `json:"-"`
 	// Diff holds the difference maps (candidate − reference, NaN where
 	// either is missing), by map name.
 	Diff map[string][]float64 `json:"-"`
@@ -82,7 +95,10 @@ type Result struct {
 	Candidates []Candidate
 	// ReferenceScalars are the reference's own diagnostics (for the table's first row).
 	ReferenceScalars []Scalar
-	Mismatches       []string
+	// ReferenceEstimates are the reference's own sensitivities and
+	// thresholds (in Ref and RefCI).
+	ReferenceEstimates []Estimate
+	Mismatches         []string
 }
 
 // mapNames are the maps compared, with their units.
@@ -107,6 +123,7 @@ func Mismatches(a, b Run) []string {
 	chk("period", a.Meta.Period, b.Meta.Period)
 	chk("time steps per year", a.Meta.StepsPerYear, b.Meta.StepsPerYear)
 	chk("cloud field", a.Acc.L.Cloud, b.Acc.L.Cloud)
+	out = append(out, relationMismatches(a, b)...)
 	la, lb := a.Acc.L, b.Acc.L
 	if la.NLat != lb.NLat || la.NLon != lb.NLon {
 		out = append(out, fmt.Sprintf("grid differs: %s is %d×%d, %s is %d×%d (put both on one analysis grid)", a.Name, la.NLat, la.NLon, b.Name, lb.NLat, lb.NLon))
@@ -132,7 +149,7 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 	if len(cands) == 0 {
 		return nil, fmt.Errorf("give at least one candidate run to compare with the reference %s", ref.Name)
 	}
-	res := &Result{Reference: ref, ReferenceScalars: scalars(ref)}
+	res := &Result{Reference: ref, ReferenceScalars: scalars(ref), ReferenceEstimates: ownEstimates(ref)}
 	for _, c := range cands {
 		mm := Mismatches(ref, c)
 		res.Mismatches = append(res.Mismatches, mm...)
@@ -159,6 +176,16 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 			cs[i] = s
 		}
 		cr.Scalars = cs
+		switch {
+		case ref.Relations == nil:
+			cr.Notes = append(cr.Notes, fmt.Sprintf("the reference %s has no relationship results (relationships.json): sensitivities, flips and thresholds not compared", ref.Name))
+		case c.Relations == nil:
+			cr.Notes = append(cr.Notes, fmt.Sprintf("%s has no relationship results (relationships.json): sensitivities, flips and thresholds not compared", c.Name))
+		default:
+			est, notes := estimates(res.ReferenceEstimates, ownEstimates(c), ref.Name, c.Name)
+			cr.Estimates, cr.Notes = est, append(cr.Notes, notes...)
+			cr.Flips = flipDiffs(ref.Relations, c.Relations)
+		}
 		res.Candidates = append(res.Candidates, cr)
 	}
 	if len(res.Mismatches) > 0 && !opt.AllowMismatch {

@@ -13,6 +13,7 @@ import (
 	"strconv"
 
 	"lidscope/cfwrite"
+	"lidscope/relations"
 )
 
 // Output files of a comparison.
@@ -105,6 +106,15 @@ func csvBytes(res *Result) ([]byte, error) {
 	for _, m := range mapNames {
 		head = append(head, m.name+"_pattern_corr [1]", fmt.Sprintf("%s_centred_rms [%s]", m.name, m.units), fmt.Sprintf("%s_bias [%s]", m.name, m.units))
 	}
+	for _, e := range res.ReferenceEstimates {
+		u := e.Units
+		head = append(head, fmt.Sprintf("%s [%s]", e.Name, u), fmt.Sprintf("%s_ci_lower [%s]", e.Name, u), fmt.Sprintf("%s_ci_upper [%s]", e.Name, u),
+			fmt.Sprintf("%s_diff [%s]", e.Name, u), fmt.Sprintf("%s_combined_half_width [%s]", e.Name, u), e.Name+"_within")
+	}
+	fk := refFlipKeys(res)
+	for _, k := range fk {
+		head = append(head, k.col+"_changed [1]", k.col+"_changed_diff [1]")
+	}
 	w.Write(head)
 	row := []string{res.Reference.Name, "reference"}
 	for _, s := range res.ReferenceScalars {
@@ -112,6 +122,12 @@ func csvBytes(res *Result) ([]byte, error) {
 	}
 	for range mapNames {
 		row = append(row, "1", "0", "0")
+	}
+	for _, e := range res.ReferenceEstimates {
+		row = append(row, num(e.Ref), num(e.RefCI.Lo), num(e.RefCI.Hi), "0", "", "")
+	}
+	for _, k := range fk {
+		row = append(row, num(k.ref), "0")
 	}
 	w.Write(row)
 	for _, c := range res.Candidates {
@@ -122,10 +138,61 @@ func csvBytes(res *Result) ([]byte, error) {
 		for _, m := range c.Maps {
 			row = append(row, num(m.Corr), num(m.CRMS), num(m.Bias))
 		}
+		byName := map[string]Estimate{}
+		for _, e := range c.Estimates {
+			byName[e.Name] = e
+		}
+		for _, re := range res.ReferenceEstimates {
+			e, ok := byName[re.Name]
+			if !ok {
+				row = append(row, "", "", "", "", "", "")
+				continue
+			}
+			row = append(row, num(e.Cand), num(e.CandCI.Lo), num(e.CandCI.Hi), num(e.Diff), num(e.Combined), within(e))
+		}
+		for _, k := range fk {
+			cell := []string{"", ""}
+			for _, f := range c.Flips {
+				if f.Patch == k.patch && f.DeltaT == k.dt {
+					cell = []string{num(f.CandChanged), num(f.DiffChanged)}
+				}
+			}
+			row = append(row, cell...)
+		}
 		w.Write(row)
 	}
 	w.Flush()
 	return buf.Bytes(), w.Error()
+}
+
+// within is "yes", "no" or "untested" (no interval in one of the runs).
+func within(e Estimate) string {
+	switch {
+	case !e.Tested:
+		return "untested"
+	case e.Within:
+		return "yes"
+	}
+	return "no"
+}
+
+// flipKey is one patch and ΔT of the reference's flips.
+type flipKey struct {
+	patch, col string
+	dt, ref    float64
+}
+
+func refFlipKeys(res *Result) []flipKey {
+	var out []flipKey
+	if res.Reference.Relations == nil {
+		return nil
+	}
+	for _, p := range res.Reference.Relations.Flips {
+		for _, r := range p.Rows {
+			out = append(out, flipKey{patch: p.Patch.Name, col: fmt.Sprintf("flip_%s_dT%gK", p.Patch.Name, r.DeltaT), dt: r.DeltaT, ref: r.Changed})
+		}
+	}
+	return out
 }
 
 type jnum struct {
@@ -157,11 +224,41 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		CandidateStd      jnum   `json:"candidate_std"`
 		WeightingAndCells string `json:"weighting"`
 	}
+	type jci struct {
+		Lower jnum `json:"lower"`
+		Upper jnum `json:"upper"`
+	}
+	ci := func(iv relations.Interval, u string) jci { return jci{jv(iv.Lo, u), jv(iv.Hi, u)} }
+	type jest struct {
+		Kind        string `json:"kind"`
+		Description string `json:"description"`
+		Reference   jnum   `json:"reference"`
+		ReferenceCI jci    `json:"reference_ci"`
+		Candidate   jnum   `json:"candidate"`
+		CandidateCI jci    `json:"candidate_ci"`
+		Difference  jnum   `json:"difference"`
+		Combined    jnum   `json:"combined_half_width"`
+		Within      *bool  `json:"within"`
+	}
+	type jflip struct {
+		Patch          string `json:"patch"`
+		DeltaT         jnum   `json:"delta_t"`
+		Reference      jnum   `json:"reference_changed"`
+		Candidate      jnum   `json:"candidate_changed"`
+		Difference     jnum   `json:"changed_difference"`
+		RefConvChange  jnum   `json:"reference_convective_change"`
+		CandConvChange jnum   `json:"candidate_convective_change"`
+		DiffConvChange jnum   `json:"convective_change_difference"`
+	}
 	type jcand struct {
-		Name    string             `json:"name"`
-		Dir     string             `json:"dir"`
-		Scalars map[string]jscalar `json:"scalars"`
-		Maps    map[string]jmap    `json:"maps"`
+		Name          string             `json:"name"`
+		Dir           string             `json:"dir"`
+		Scalars       map[string]jscalar `json:"scalars"`
+		Maps          map[string]jmap    `json:"maps"`
+		Sensitivities map[string]jest    `json:"sensitivities"`
+		Thresholds    map[string]jest    `json:"thresholds"`
+		Flips         []jflip            `json:"flips"`
+		Notes         []string           `json:"notes"`
 	}
 	doc := struct {
 		Format     string          `json:"format"`
@@ -170,7 +267,10 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		Candidates []jcand         `json:"candidates"`
 		Mismatches []string        `json:"mismatches"`
 		Scalars    map[string]jnum `json:"reference_scalars"`
-	}{Format: "lidscope-comparison/1", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{}}
+		Estimates  map[string]any  `json:"reference_estimates"`
+		Method     string          `json:"uncertainty_of_differences"`
+	}{Format: "lidscope-comparison/1", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
+		Estimates: map[string]any{}, Method: CombinedMethod}
 	if doc.Mismatches == nil {
 		doc.Mismatches = []string{}
 	}
@@ -180,8 +280,33 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 	for _, s := range res.ReferenceScalars {
 		doc.Scalars[s.Name] = jv(s.Cand, s.Units)
 	}
+	for _, e := range res.ReferenceEstimates {
+		doc.Estimates[e.Name] = map[string]any{"kind": e.Kind, "description": e.Description, "value": jv(e.Ref, e.Units), "ci": ci(e.RefCI, e.Units)}
+	}
+	if rel := res.Reference.Relations; rel != nil {
+		doc.Reference["relationship_mode"] = rel.Mode.String()
+		doc.Reference["relationship_config"] = rel.Config
+	}
 	for _, c := range res.Candidates {
-		jc := jcand{Name: c.Name, Dir: c.Dir, Scalars: map[string]jscalar{}, Maps: map[string]jmap{}}
+		jc := jcand{Name: c.Name, Dir: c.Dir, Scalars: map[string]jscalar{}, Maps: map[string]jmap{},
+			Sensitivities: map[string]jest{}, Thresholds: map[string]jest{}, Flips: []jflip{}, Notes: append([]string{}, c.Notes...)}
+		for _, e := range c.Estimates {
+			je := jest{Kind: e.Kind, Description: e.Description, Reference: jv(e.Ref, e.Units), ReferenceCI: ci(e.RefCI, e.Units),
+				Candidate: jv(e.Cand, e.Units), CandidateCI: ci(e.CandCI, e.Units), Difference: jv(e.Diff, e.Units), Combined: jv(e.Combined, e.Units)}
+			if e.Tested {
+				w := e.Within
+				je.Within = &w
+			}
+			if e.Kind == "threshold" {
+				jc.Thresholds[e.Name] = je
+			} else {
+				jc.Sensitivities[e.Name] = je
+			}
+		}
+		for _, f := range c.Flips {
+			jc.Flips = append(jc.Flips, jflip{f.Patch, jv(f.DeltaT, "K"), jv(f.RefChanged, "1"), jv(f.CandChanged, "1"), jv(f.DiffChanged, "1"),
+				jv(f.RefConvChange, "1"), jv(f.CandConvChange, "1"), jv(f.DiffConvChange, "1")})
+		}
 		for _, s := range c.Scalars {
 			jc.Scalars[s.Name] = jscalar{jv(s.Ref, s.Units), jv(s.Cand, s.Units), jv(s.Diff, s.Units)}
 		}

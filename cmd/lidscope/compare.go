@@ -19,6 +19,7 @@ type compareOptions struct {
 	Out           string
 	Force         bool
 	AllowMismatch bool
+	NoPlots       bool
 	Set           setFlags
 	Log           logOptions
 }
@@ -30,10 +31,11 @@ func cmdCompare(args []string, stdout, stderr io.Writer) error {
 	fs.StringVar(&o.Reference, "reference", "", "with a recipe: the reference dataset (default: the first)")
 	fs.BoolVar(&o.Force, "force", false, "replace existing results")
 	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different recipes, periods or regime definitions (every mismatch is listed)")
+	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw the comparison figures")
 	fs.Var(o.Set, "set", "with a recipe: override a recipe key, KEY=VALUE (repeatable)")
 	o.Log.register(fs)
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] RECIPE\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud. With a recipe, every dataset is run first into DIR/<name>.")
+		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] RECIPE\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud; subsidence-regime cloud sensitivities to EIS and LTS and the\npartial sensitivities with 95 % intervals and whether each difference lies within the combined\nuncertainty; flip fractions and thresholds when both runs have them. With a recipe, every dataset is run first into DIR/<name>.")
 		fs.PrintDefaults()
 	}
 	if err := parseFlags(fs, args); err != nil {
@@ -54,7 +56,7 @@ func runCompare(o compareOptions, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log}, AllowMismatch: o.AllowMismatch}
+	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log, NoPlots: o.NoPlots}, AllowMismatch: o.AllowMismatch}
 	var res *compare.Result
 	var files []string
 	if fi, err := os.Stat(o.Args[0]); err == nil && !fi.IsDir() && len(o.Args) == 1 {
@@ -109,4 +111,5 @@ func writeComparison(w io.Writer, res *compare.Result) {
 			fmt.Fprintf(w, "%s %s: pattern correlation %.3f, centred RMS difference %.3g %s, bias %+.3g %s (%d band cells)\n", c.Name, m.Name, m.Corr, m.CRMS, m.Units, m.Bias, m.Units, m.N)
 		}
 	}
+	compare.WriteEstimates(w, res, "")
 }

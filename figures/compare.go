@@ -1,0 +1,386 @@
+package figures
+
+import (
+	"errors"
+	"fmt"
+	"image/color"
+	"io/fs"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+
+	"lidscope/compare"
+)
+
+// CompareOptions control DrawComparison.
+type CompareOptions struct {
+	// OutDir is where the figures go (required).
+	OutDir string
+	// Format is "png" (default), "svg" or "pdf"; DPI the PNG resolution
+	// (default 200).
+	Format string
+	DPI    float64
+	// Force allows replacing figures that exist already.
+	Force bool
+	// Palettes and NoCoastlines are as in Options.
+	Palettes     map[string]string
+	NoCoastlines bool
+}
+
+// compareMaps are the maps a comparison draws, with the figures' specs.
+var compareMaps = []struct{ variable, spec string }{
+	{"convective_fraction", "map_convective_fraction"},
+	{"crossings_per_year", "map_crossings"},
+}
+
+// DrawComparison draws the figures of a comparison (package compare) and
+// returns the paths written:
+//
+//   - compare_<map>_<candidate>: for the convective-fraction and
+//     crossings-per-year maps, three panels stacked — the reference, the
+//     candidate (one sequential colour scale for both) and the difference
+//     candidate − reference (the diverging colour map, limits symmetric
+//     about zero) — over the tropical band;
+//   - compare_sensitivities: the subsidence-regime cloud sensitivities (the
+//     slopes on EIS and LTS and the partial sensitivities) of every run in
+//     one panel, one column per sensitivity, the reference first and the
+//     candidates after it, each a point with its 95 % interval, behind them
+//     a grey band across the column marking the reference's interval.
+//
+// The maps are read from each run's maps.nc (Dir of compare.Run), the
+// sensitivities from the comparison. Without Force it refuses, before
+// drawing, when a figure file exists already (errors.Is(err, fs.ErrExist)).
+func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
+	if opt.OutDir == "" {
+		return nil, errors.New("figures: DrawComparison needs an output folder (CompareOptions.OutDir)")
+	}
+	o, err := Options{Format: opt.Format, DPI: opt.DPI, Force: opt.Force, Palettes: opt.Palettes, NoCoastlines: opt.NoCoastlines, OutDir: opt.OutDir}.normalise(opt.OutDir)
+	if err != nil {
+		return nil, err
+	}
+	ref, err := Load(res.Reference.Dir)
+	if err != nil {
+		return nil, fmt.Errorf("figures: the comparison's reference: %w", err)
+	}
+	type job struct {
+		f   figure
+		run *Run
+	}
+	var jobs []job
+	for _, c := range res.Candidates {
+		cand, err := Load(c.Dir)
+		if err != nil {
+			return nil, fmt.Errorf("figures: the comparison's candidate %s: %w", c.Name, err)
+		}
+		for _, m := range compareMaps {
+			m, c := m, c
+			hr := *ref
+			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, ref.Dataset)
+			jobs = append(jobs, job{figure{name: "compare_" + m.variable + "_" + safeName(c.Name),
+				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr})
+		}
+	}
+	if len(res.ReferenceEstimates) > 0 {
+		hr := *ref
+		jobs = append(jobs, job{figure{name: "compare_sensitivities", build: func(f *fig) (*page, error) { return f.sensitivityPage(res) }}, &hr})
+	}
+	var exist []string
+	for _, j := range jobs {
+		p := filepath.Join(o.OutDir, j.f.name+"."+o.Format)
+		if _, err := os.Lstat(p); err == nil {
+			exist = append(exist, p)
+		}
+	}
+	if len(exist) > 0 && !o.Force {
+		sort.Strings(exist)
+		return nil, fmt.Errorf("figures: %s: %w; nothing was drawn. Allow replacing them (--force) or choose another --out", strings.Join(exist, ", "), fs.ErrExist)
+	}
+	if err := os.MkdirAll(o.OutDir, 0o777); err != nil {
+		return nil, fmt.Errorf("figures: cannot create the figure directory: %w", err)
+	}
+	var out []string
+	for _, j := range jobs {
+		p, err := drawOne(j.run, j.f, o)
+		if err != nil {
+			return out, err
+		}
+		out = append(out, p)
+	}
+	return out, nil
+}
+
+// safeName keeps letters, digits, '-' and '_' of a run name for a file name.
+func safeName(s string) string {
+	return strings.Map(func(r rune) rune {
+		if r == '-' || r == '_' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' {
+			return r
+		}
+		return '_'
+	}, s)
+}
+
+func specOf(name string) mapSpec {
+	for _, m := range mapSpecs {
+		if m.name == name {
+			return m
+		}
+	}
+	panic("figures: no map spec " + name)
+}
+
+// comparisonMapPage stacks reference, candidate and difference maps.
+func (f *fig) comparisonMapPage(variable, specName string, ref, cand *Run) (*page, error) {
+	m := specOf(specName)
+	rf, err := ref.Map(variable)
+	if err != nil {
+		return nil, err
+	}
+	cf, err := cand.Map(variable)
+	if err != nil {
+		return nil, err
+	}
+	if len(rf.Values) != len(cf.Values) || len(rf.Lat) != len(cf.Lat) {
+		return nil, fmt.Errorf("%s of %s and %s are on different grids (%d×%d and %d×%d cells)", variable, ref.Dataset, cand.Dataset, len(rf.Lat), len(rf.Lon), len(cf.Lat), len(cf.Lon))
+	}
+	df := *rf
+	df.Values = make([]float64, len(rf.Values))
+	var both, diffs []float64
+	for i := range rf.Values {
+		df.Values[i] = (cf.Values[i] - rf.Values[i]) * m.factor
+		if !math.IsNaN(df.Values[i]) {
+			diffs = append(diffs, df.Values[i])
+		}
+		for _, v := range []float64{rf.Values[i], cf.Values[i]} {
+			if !math.IsNaN(v) {
+				both = append(both, v*m.factor)
+			}
+		}
+	}
+	lo, hi := m.limits(both)
+	dlo, dhi := divergingLimits(diffs)
+	seq := f.scale(m.palette, lo, hi)
+	// The diverging map of anomalies (tide unless overridden).
+	div := f.scale("relative_sst", dlo, dhi)
+	w := chooseWindow(rf)
+	// Show the tropical band (with a margin), where regimes are defined.
+	if s, n := ref.BandSouth, ref.BandNorth; n > s {
+		w.south, w.north = math.Max(w.south, s-5), math.Min(w.north, n+5)
+	}
+	panels := []struct {
+		title string
+		fl    *Field
+		sc    colourScale
+		fac   float64
+		label string
+		vals  []float64
+	}{
+		{"Reference: " + ref.Dataset, rf, seq, m.factor, m.label, both},
+		{"Candidate: " + cand.Dataset, cf, seq, m.factor, m.label, both},
+		{"Difference, candidate − reference", &df, div, 1, "Difference: " + lowerFirst(m.label), diffs},
+	}
+	bw := bodyWidth()
+	aspect := (w.north - w.south) / w.span
+	const bar = 0.11 * vg.Inch
+	barBlock := 0.16*vg.Inch + colourBarHeight(bar)
+	var plots []*plot.Plot
+	var ph, pw vg.Length
+	for _, pn := range panels {
+		p := f.mapPlot(pn.fl, w, &raster{field: pn.fl, factor: pn.fac, scale: pn.sc, dpi: f.rasterDPI()})
+		p.Title.Text = f.t(pn.title)
+		setTitleStyle(p, f.bold(sizeLabel))
+		pw, ph = fitAspect(p, bw, aspect, 2.2*vg.Inch)
+		plots = append(plots, p)
+	}
+	head := f.header(m.title+": reference, candidate and difference", bw)
+	pg := &page{header: head, footer: f.footer(bw), bodyH: 3 * (ph + barBlock)}
+	pg.body = func(c draw.Canvas) {
+		top := c.Max.Y
+		for i, p := range plots {
+			left := c.Min.X + (c.Max.X-c.Min.X-pw)/2
+			pc := c
+			pc.Min = vg.Point{X: left, Y: top - ph}
+			pc.Max = vg.Point{X: left + pw, Y: top}
+			p.Draw(pc)
+			dc := p.DataCanvas(pc)
+			frame(c, dc.Rectangle)
+			f.dataArea = dc.Rectangle
+			dw := dc.Max.X - dc.Min.X
+			bwid := 0.5 * dw
+			bx := dc.Min.X + (dw-bwid)/2
+			by := pc.Min.Y - 0.16*vg.Inch - bar
+			r := vg.Rectangle{Min: vg.Point{X: bx, Y: by}, Max: vg.Point{X: bx + bwid, Y: by + bar}}
+			sc := panels[i].sc
+			mn, mx := math.Inf(1), math.Inf(-1)
+			for _, v := range panels[i].vals {
+				mn, mx = math.Min(mn, v), math.Max(mx, v)
+			}
+			f.colourBar(c, r, sc, panels[i].label, mn < sc.lo-1e-9*(sc.hi-sc.lo), mx > sc.hi+1e-9*(sc.hi-sc.lo))
+			f.missingKey(c, vg.Point{X: r.Max.X + bar + 14, Y: by}, bar, "no data or land")
+			top -= ph + barBlock
+		}
+	}
+	return pg, nil
+}
+
+// runColours: the reference in black, candidates in Wong's colours.
+var runColours = []color.Color{lineBlack, lineOrange, lineBlue, lineGreen, linePurple}
+
+// ciPoints draws the sensitivities of every run with their intervals, and
+// the reference's interval as a band across each column.
+type ciPoints struct {
+	res  *compare.Result
+	spec []compare.Estimate
+}
+
+func (cp ciPoints) runs() int { return 1 + len(cp.res.Candidates) }
+
+// at returns run k's value and interval of estimate i (k 0: the reference).
+func (cp ciPoints) at(i, k int) (v, lo, hi float64, ok bool) {
+	e := cp.spec[i]
+	if k == 0 {
+		return e.Ref, e.RefCI.Lo, e.RefCI.Hi, true
+	}
+	for _, x := range cp.res.Candidates[k-1].Estimates {
+		if x.Name == e.Name {
+			return x.Cand, x.CandCI.Lo, x.CandCI.Hi, true
+		}
+	}
+	return 0, 0, 0, false
+}
+
+func (cp ciPoints) x(i, k int) float64 {
+	n := cp.runs()
+	return float64(i) + (float64(k)-float64(n-1)/2)*0.7/float64(n)
+}
+
+func (cp ciPoints) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	for i, e := range cp.spec {
+		if lo, hi := e.RefCI.Lo, e.RefCI.Hi; !math.IsNaN(lo) && !math.IsNaN(hi) {
+			r := vg.Rectangle{Min: vg.Point{X: trX(float64(i) - 0.45), Y: trY(lo)}, Max: vg.Point{X: trX(float64(i) + 0.45), Y: trY(hi)}}
+			c.SetColor(color.Gray{0xdc})
+			c.Fill(r.Path())
+		}
+		for k := 0; k < cp.runs(); k++ {
+			v, lo, hi, ok := cp.at(i, k)
+			if !ok || math.IsNaN(v) {
+				continue
+			}
+			col := runColours[k%len(runColours)]
+			x := trX(cp.x(i, k))
+			ls := draw.LineStyle{Color: col, Width: 1}
+			if !math.IsNaN(lo) && !math.IsNaN(hi) {
+				c.StrokeLine2(ls, x, trY(lo), x, trY(hi))
+				c.StrokeLine2(ls, x-2, trY(lo), x+2, trY(lo))
+				c.StrokeLine2(ls, x-2, trY(hi), x+2, trY(hi))
+			}
+			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: 2.2, Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: trY(v)})
+		}
+	}
+}
+
+func (cp ciPoints) DataRange() (xmin, xmax, ymin, ymax float64) {
+	ymin, ymax = math.Inf(1), math.Inf(-1)
+	for i := range cp.spec {
+		for k := 0; k < cp.runs(); k++ {
+			v, lo, hi, ok := cp.at(i, k)
+			if !ok {
+				continue
+			}
+			for _, y := range []float64{v, lo, hi} {
+				if !math.IsNaN(y) && !math.IsInf(y, 0) {
+					ymin, ymax = math.Min(ymin, y), math.Max(ymax, y)
+				}
+			}
+		}
+	}
+	if ymin > ymax {
+		ymin, ymax = -1, 1
+	}
+	// Room above the data for the legend.
+	ymax += 0.3 * (ymax - ymin)
+	return -0.5, float64(len(cp.spec)) - 0.5, ymin, ymax
+}
+
+// glyphThumb is a legend entry: a dot of a run's colour.
+type glyphThumb struct{ col color.Color }
+
+func (g glyphThumb) Thumbnail(c *draw.Canvas) {
+	ctr := vg.Point{X: (c.Min.X + c.Max.X) / 2, Y: (c.Min.Y + c.Max.Y) / 2}
+	c.StrokeLine2(draw.LineStyle{Color: g.col, Width: 1}, ctr.X, c.Min.Y, ctr.X, c.Max.Y)
+	c.DrawGlyph(draw.GlyphStyle{Color: g.col, Radius: 2.2, Shape: draw.CircleGlyph{}}, ctr)
+}
+
+type bandThumb struct{}
+
+func (bandThumb) Thumbnail(c *draw.Canvas) {
+	c.SetColor(color.Gray{0xdc})
+	c.Fill(c.Rectangle.Path())
+}
+
+// sensitivityPage is the slopes-with-intervals panel.
+func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
+	var spec []compare.Estimate
+	for _, e := range res.ReferenceEstimates {
+		if e.Kind == "slope" || e.Kind == "partial" {
+			spec = append(spec, e)
+		}
+	}
+	if len(spec) == 0 {
+		return nil, errors.New("the reference has no sensitivities")
+	}
+	cp := ciPoints{res: res, spec: spec}
+	p := f.newPlot()
+	p.Add(lightGrid(), cp)
+	p.Add(hline{0, draw.LineStyle{Color: color.Gray{0x50}, Width: 0.5}})
+	var ticks []plot.Tick
+	for i, e := range spec {
+		lbl := e.Name
+		if i := strings.Index(e.Name, "_on_"); i >= 0 && e.Kind == "slope" {
+			lbl = "slope on " + strings.ToUpper(e.Name[i+4:])
+		} else if i := strings.Index(e.Name, "_partial_"); i >= 0 {
+			lbl = "partial " + strings.Replace(e.Name[i+9:], "_given_", " | ", 1)
+		}
+		ticks = append(ticks, plot.Tick{Value: float64(i), Label: lbl})
+	}
+	p.X.Tick.Marker = plot.ConstantTicks(ticks)
+	p.X.Label.Text = f.t("Sensitivity of " + cloudResponseOf(res) + " (subsidence regime, tropical band, whole record)")
+	u, _ := displayUnits(spec[0].Units)
+	p.Y.Label.Text = f.t("Sensitivity (" + u + "), 95 % interval")
+	p.Legend.Top, p.Legend.Left = true, false
+	p.Legend.Add(f.t(res.Reference.Name+" (reference)"), glyphThumb{runColours[0]})
+	for k, c := range res.Candidates {
+		p.Legend.Add(f.t(c.Name), glyphThumb{runColours[(k+1)%len(runColours)]})
+	}
+	p.Legend.Add(f.t("reference 95 % interval"), bandThumb{})
+	bw := bodyWidth()
+	head := f.header("Cloud sensitivities of the reference and the candidates, with 95 % intervals", bw)
+	const h = 3.6 * vg.Inch
+	pg := &page{header: head, footer: f.footer(bw), bodyH: h}
+	pg.body = func(c draw.Canvas) {
+		p.Draw(c)
+		dc := p.DataCanvas(c)
+		frame(c, dc.Rectangle)
+		f.dataArea = dc.Rectangle
+	}
+	return pg, nil
+}
+
+func cloudResponseOf(res *compare.Result) string {
+	if len(res.ReferenceEstimates) > 0 {
+		n := res.ReferenceEstimates[0].Name
+		if i := strings.Index(n, "_on_"); i > 0 {
+			return n[:i]
+		}
+		if i := strings.Index(n, "_partial_"); i > 0 {
+			return n[:i]
+		}
+	}
+	return "cloud"
+}
