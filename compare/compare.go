@@ -5,10 +5,16 @@
 // bias of the convective-frequency and crossings-per-year maps, with the
 // difference maps), and scalar diagnostics side by side (tropical-mean SST,
 // convective area fraction and its variability, regime-mean EIS, LTS and
-// cloud).
+// cloud). From each run's relationship results it sets side by side the
+// subsidence-regime cloud sensitivities (slopes on EIS and LTS, partial
+// sensitivities) with their 95 % intervals, the difference to the
+// reference and whether it lies within the combined uncertainty
+// (CombinedMethod), the flip fractions per patch and ΔT, and the
+// estimated thresholds.
 //
 // Runs made with different metrics recipes, regime definitions, bands,
-// periods or grids measure different things; Compare refuses them unless
+// periods, grids or relationship configurations (anomaly against
+// climatological slopes) measure different things; Compare refuses them unless
 // told to allow the mismatch, and then lists every mismatch.
 package compare
 
