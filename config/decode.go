@@ -15,6 +15,7 @@ import (
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/regrid"
+	"lidscope/relations"
 	"lidscope/units"
 )
 
@@ -34,6 +35,10 @@ const (
 )
 
 var nameRE = regexp.MustCompile(`^[A-Za-z0-9_.-]+$`)
+
+// boxNameRE is the form of region and patch names: they become flag
+// meanings of the relationship files, which must start with a letter.
+var boxNameRE = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_.-]*$`)
 
 // where turns a key path into a Problem located by line or origin.
 type where struct {
@@ -336,6 +341,7 @@ func (d *decoder) decode(tree map[string]any, r *Recipe) {
 		r.Datasets = append(r.Datasets, ds)
 	}
 	d.checkGridTarget(r)
+	d.relationships(sub(tree, "relationships"), r)
 }
 
 func (d *decoder) analysis(m map[string]any, r *Recipe) {
@@ -362,41 +368,8 @@ func (d *decoder) analysis(m map[string]any, r *Recipe) {
 	}
 	a.CloudChoice, _ = d.choice(m, "analysis", "cloud", "auto", "auto", "low_cloud", "cloud")
 
-	regs, _ := m["regions"].([]any)
-	names := map[string]int{}
-	for i, x := range regs {
-		rm, _ := x.(map[string]any)
-		if rm == nil {
-			continue
-		}
-		p := "analysis.regions." + strconv.Itoa(i)
-		reg := Region{Name: d.str(rm, p, "name", "")}
-		if reg.Name == "" {
-			d.fail(p, "a region needs a name ([A-Za-z0-9_.-])")
-		} else if !nameRE.MatchString(reg.Name) {
-			d.fail(join(p, "name"), "%q: region names may contain only letters, digits and _ . -", reg.Name)
-		} else if j, dup := names[reg.Name]; dup {
-			d.fail(join(p, "name"), "region name %q is used twice (also analysis.regions.%d)", reg.Name, j)
-		} else {
-			names[reg.Name] = i
-		}
-		need := func(k string) float64 {
-			v, set := d.num(rm, p, k, 0)
-			if !set {
-				d.fail(p, "region %q needs %s", reg.Name, k)
-			}
-			return v
-		}
-		reg.South, reg.North, reg.West, reg.East = need("south"), need("north"), need("west"), need("east")
-		switch {
-		case reg.South < -90 || reg.North > 90 || reg.South >= reg.North:
-			d.fail(p, "south %v° and north %v° must lie within −90…90 with south < north", reg.South, reg.North)
-		case reg.West < -180 || reg.West > 360 || reg.East < -180 || reg.East > 360:
-			d.fail(p, "west %v° and east %v° must be longitudes in −180…360", reg.West, reg.East)
-		case reg.West == reg.East:
-			d.fail(p, "west and east are both %v°: a region needs a width (west > east crosses the 0°/180° meridian)", reg.West)
-		}
-		a.Regions = append(a.Regions, reg)
+	for _, b := range d.boxes(m, "analysis", "regions", "region") {
+		a.Regions = append(a.Regions, Region(b))
 	}
 
 	g := sub(m, "grid")
@@ -440,6 +413,61 @@ func (d *decoder) analysis(m map[string]any, r *Recipe) {
 	}
 	a.Grid.MinCoverage, _ = d.fraction(g, "analysis.grid", "min_coverage", DefaultMinCoverage)
 	a.Grid.MaskThreshold, _ = d.fraction(g, "analysis.grid", "mask_threshold", DefaultMaskThreshold)
+}
+
+// namedBox is a decoded region or patch.
+type namedBox struct {
+	Name                     string
+	South, North, West, East float64
+}
+
+// boxes decodes the list key k of m (at path): named lat–lon boxes, each
+// {name, south, north, west, east}; what ("region", "patch") names them
+// in messages.
+func (d *decoder) boxes(m map[string]any, path, k, what string) []namedBox {
+	var out []namedBox
+	list, _ := m[k].([]any)
+	names := map[string]int{}
+	for i, x := range list {
+		rm, _ := x.(map[string]any)
+		if rm == nil {
+			continue // checkKeys reported it
+		}
+		p := join(path, k) + "." + strconv.Itoa(i)
+		b := namedBox{Name: d.str(rm, p, "name", "")}
+		switch {
+		case b.Name == "":
+			d.fail(p, "a %s needs a name (a letter, then letters, digits and _ . -)", what)
+		case !boxNameRE.MatchString(b.Name):
+			d.fail(join(p, "name"), "%q: %s names start with a letter and contain only letters, digits and _ . -", b.Name, what)
+		case b.Name == relations.BandDomain:
+			d.fail(join(p, "name"), "%q is the name of the whole tropical band in the results; choose another %s name", b.Name, what)
+		default:
+			if j, dup := names[b.Name]; dup {
+				d.fail(join(p, "name"), "%s name %q is used twice (also %s.%d)", what, b.Name, join(path, k), j)
+			} else {
+				names[b.Name] = i
+			}
+		}
+		need := func(key string) float64 {
+			v, set := d.num(rm, p, key, 0)
+			if !set {
+				d.fail(p, "%s %q needs %s", what, b.Name, key)
+			}
+			return v
+		}
+		b.South, b.North, b.West, b.East = need("south"), need("north"), need("west"), need("east")
+		switch {
+		case b.South < -90 || b.North > 90 || b.South >= b.North:
+			d.fail(p, "south %v° and north %v° must lie within −90…90 with south < north", b.South, b.North)
+		case b.West < -180 || b.West > 360 || b.East < -180 || b.East > 360:
+			d.fail(p, "west %v° and east %v° must be longitudes in −180…360", b.West, b.East)
+		case b.West == b.East:
+			d.fail(p, "west and east are both %v°: a %s needs a width (west > east crosses the 0°/180° meridian)", b.West, what)
+		}
+		out = append(out, b)
+	}
+	return out
 }
 
 // checkGridTarget: a role named as the target grid must be read by every dataset.

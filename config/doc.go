@@ -136,7 +136,8 @@
 //     cloud. [Dataset].Cloud holds the role used. Low cloud is preferred
 //     because the cloud–inversion relationships concern low cloud (Klein &
 //     Hartmann 1993; Wood & Bretherton 2006).
-//   - regions: a list of named boxes {name, south, north, west, east}.
+//   - regions: a list of named boxes {name, south, north, west, east};
+//     names start with a letter (then letters, digits and _ . -).
 //     Longitudes in either convention (−180…180 or 0…360); west > east
 //     (after putting both in 0…360) crosses the 0° or 180° meridian. See
 //     [Region.Contains].
@@ -154,6 +155,82 @@
 //   - dir (default "out", relative to the recipe's folder): each dataset
 //     writes into dir/<dataset name> ([Dataset].OutputDir).
 //   - plots (default true).
+//
+// relationships (shared by all datasets; the regime-conditioned
+// cloud–inversion relationships of package relations, run with every
+// dataset). [Recipe].Relations holds the typed result, starting from
+// relations.Defaults(), with the regime definition of analysis
+// (threshold, transition) as its Classifier and analysis.regions as its
+// Regions; [Recipe.RelationsFor] gives a dataset's configuration with
+// its responses resolved. What each setting means is documented in
+// package relations.
+//
+//   - mode: climatological (default: composites of the values) or anomaly
+//     (deseasonalised monthly anomalies, a second pass over the record).
+//     The two give slopes that are not comparable.
+//   - detrend (default false): also remove a linear trend per cell and
+//     calendar month; needs mode: anomaly.
+//   - bins: predictor → bin edges, K, as a list of increasing edges
+//     ([-8, -6, -4, -2, 0, 2, 4]) or a table {min, max, width} whose width
+//     divides max − min. The predictors are eis, lts, rel_sst (SST minus
+//     the tropical-mean SST), sst, t700 and ectei (which needs
+//     metrics.ectei: true in every dataset). The keys given are the
+//     predictors of the binned relationships and single-predictor
+//     regressions: a bins table replaces the defaults as a whole. Default
+//     (no bins): relations.DefaultBins of the mode (climatological: eis
+//     −6…14 K and lts 6…30 K in 1 K bins, rel_sst −8…4 K in 0.5 K bins;
+//     anomaly: eis and lts −3…3 K in 0.5 K, rel_sst −2…2 K in 0.25 K).
+//     At most 10000 bins per predictor. An empty bins table (or one whose
+//     predictors are all empty) is no table: the defaults apply.
+//   - responses: the quantities related to the predictors, by role name:
+//     low_cloud, cloud, toa_sw_up, olr, precipitation, omega, or
+//     analysis_cloud ([AnalysisCloud]: each dataset's analysis cloud,
+//     [Dataset].Cloud). "cloud" is always the total cloud (role cloud),
+//     never the low cloud: a dataset whose analysis cloud is low_cloud
+//     needs a cloud input for it. Each response must be read in every
+//     dataset: the dataset's analysis cloud, or an input of that role
+//     (inputs.all counts; the role is then read from those files).
+//     Default: per dataset, its analysis cloud, plus toa_sw_up when the
+//     dataset names a toa_sw_up input. [Dataset].RelationResponses holds
+//     the resolved list (analysis_cloud replaced, a quantity named twice
+//     through it kept once).
+//   - seasons (default false): also DJF, MAM, JJA and SON subsets.
+//   - patches: named boxes {name, south, north, west, east} (as regions)
+//     whose SST is perturbed in the flip analysis; default none.
+//   - delta_t: the SST changes of the flip analysis, K (default −4, −3,
+//     −2, −1, 1, 2, 3, 4); non-zero, distinct, within ±50 K.
+//   - bootstrap: replicates (default 0: no bootstrap intervals for the
+//     regressions; at most 100000), block_length (time steps, default 12;
+//     also used for the threshold interval) and seed (a whole number
+//     0…2^53, default 20040101, recorded in every output) of the circular
+//     block bootstrap over time steps.
+//   - threshold: the estimation of the convective threshold. indicator is
+//     "" or none (default: off), omega (omega500 < value, ascent),
+//     precipitation (> value) or olr (< value); it needs an input of that
+//     role in every dataset (omega is read at 500 hPa). value: the
+//     threshold with units ("-10 hPa day-1", "5 mm day-1", "240 W m-2"; a
+//     bare number is SI: Pa s-1, kg m-2 s-1, W m-2); absent or null: the
+//     default of relations.DefaultIndicatorThreshold (0 Pa s-1,
+//     5 mm day-1, 240 W m-2). Values beyond |omega| 1 Pa s-1,
+//     precipitation 0…0.01 kg m-2 s-1 or OLR 0…500 W m-2 are taken as
+//     units mistakes. bin_width: the relative-SST bin of the logistic fit
+//     (K, default 0.05, at most 1); range: [lowest, highest] relative SST
+//     of the fit (K, default [-12, 8]); replicates: bootstrap replicates
+//     of its interval (default 1000, 0 = none). value, bin_width, range
+//     and replicates need an indicator.
+//   - omega_regimes (default false): composites in omega500 bins (Bony et
+//     al. 2004, Clim. Dyn. 22); needs an omega input in every dataset.
+//   - decorrelation_length: the length L of the independent-area count of
+//     the effective sample size, with units (default 1000km; a bare number
+//     is m; 0 counts every cell as independent; at most 20000 km).
+//   - partial: the two predictors of the two-predictor regression
+//     (default [eis, sst]); different, among the predictors above.
+//
+// Everything is checked here with its line; relations.Config.Validate of
+// every dataset's configuration is then asked too, and anything it still
+// finds is reported against the relationships key. Region and patch names
+// start with a letter (they become flag meanings of the relationship
+// files), and "tropical_band" is reserved for the whole band.
 //
 // # Defaults and why
 //

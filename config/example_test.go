@@ -149,3 +149,24 @@ func ExampleStarter() {
 	// sst: "tos"
 	// low_cloud: "cll"
 }
+
+// RelationsFor gives relations.New the relationship analysis of one
+// dataset, with the responses resolved for it.
+func ExampleRecipe_RelationsFor() {
+	r, err := config.Load("testdata/example.yaml", config.LoadOptions{LookupEnv: config.NoEnvironment})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println("as written:", r.Relations.Responses)
+	for i := range r.Datasets {
+		d := &r.Datasets[i]
+		c := r.RelationsFor(d)
+		fmt.Printf("%s: %v, responses %v, indicator %s, L = %g m, %d patch(es), regime %v\n",
+			d.Name, c.Mode, c.Responses, c.Indicator, c.DecorrelationLength, len(c.Patches), c.Classifier)
+	}
+	// Output:
+	// as written: [analysis_cloud toa_sw_up]
+	// obs-synthetic: climatological, responses [low_cloud toa_sw_up], indicator omega, L = 1e+06 m, 1 patch(es), regime convective where SST − tropical-mean SST > 1.5 K, subsidence otherwise
+	// model-synthetic: climatological, responses [low_cloud toa_sw_up], indicator omega, L = 1e+06 m, 1 patch(es), regime convective where SST − tropical-mean SST > 1.5 K, subsidence otherwise
+}

@@ -27,6 +27,8 @@ func FuzzLoad(f *testing.F) {
 	f.Add([]byte("[[datasets]]\nname = 1979-01-01\n"), uint8(1))
 	f.Add([]byte(`{"datasets": [{"name": 1e400}]}`), uint8(2))
 	f.Add([]byte("analysis: {threshold: .nan, band: [1, 2]}\n"), uint8(0))
+	f.Add([]byte(head+"relationships:\n  bins: {eis: {min: 0, max: 1e308, width: 1e-308}, lts: [1, 2]}\n  threshold: {indicator: olr, value: 240 W m-2}\n  bootstrap: {seed: 9007199254740993}\n"), uint8(0))
+	f.Add([]byte("[[datasets]]\nname = \"x\"\ninputs = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n[relationships.bins]\neis = { min = -1, max = 1, width = 0.1 }\n"), uint8(1))
 	exts := []string{".yaml", ".toml", ".json"}
 	dir := f.TempDir()
 	// the example's data files, so that valid recipes can load

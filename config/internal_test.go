@@ -121,15 +121,25 @@ func TestEveryKeyDocumented(t *testing.T) {
 	var walk func(k *key, path string)
 	walk = func(k *key, path string) {
 		switch k.kind {
-		case kTable:
+		case kTable, kEdges, kNamed:
 			for _, n := range k.names() {
 				if !strings.Contains(string(doc), n) {
 					t.Errorf("key %s is not described in doc.go", join(path, n))
 				}
-				if k.keys[n].kind == kTable && !strings.Contains(string(example), n+":") {
+				c := k.child(n)
+				if k.kind == kTable && c.kind == kTable && !strings.Contains(string(example), n+":") {
 					t.Errorf("table %s is not in testdata/example.yaml", join(path, n))
 				}
-				walk(k.keys[n], join(path, n))
+				if k.kind == kNamed {
+					if n == "" {
+						t.Errorf("%s accepts an empty name", path)
+					}
+					if c == k.elem && n == k.choices[0] {
+						walk(c, join(path, "<"+k.what+">"))
+					}
+					continue
+				}
+				walk(c, join(path, n))
 			}
 		case kRoles, kList:
 			walk(k.elem, path)

@@ -164,6 +164,16 @@ func (ds *Dataset) needed(r *Recipe) []cf.Role {
 	if ds.SeaIce.Use {
 		out = append(out, cf.RoleSeaIce)
 	}
+	// the relationship analysis: responses, indicator, omega regimes
+	for _, q := range ds.RelationResponses {
+		out = append(out, cf.Role(q))
+	}
+	if role, ok := indicatorRoles[r.Relations.Indicator]; ok {
+		out = append(out, role)
+	}
+	if r.Relations.OmegaBins {
+		out = append(out, cf.RoleOmega)
+	}
 	return out
 }
 

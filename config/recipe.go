@@ -13,6 +13,7 @@ import (
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/regrid"
+	"lidscope/relations"
 )
 
 // Recipe is a loaded recipe: typed, validated, with every default applied
@@ -31,6 +32,14 @@ type Recipe struct {
 	Analysis Analysis
 	// Output says where results go.
 	Output Output
+	// Relations is the relationship analysis (the relationships section),
+	// shared by all datasets: relations.Defaults() with the recipe's
+	// settings, the regime definition of Analysis as Classifier and
+	// Analysis.Regions as Regions. Its Responses are the responses as
+	// written (nil when the recipe lists none; they may contain
+	// AnalysisCloud): give relations.New the configuration of
+	// [Recipe.RelationsFor], whose responses are resolved per dataset.
+	Relations relations.Config
 	// Overrides lists the values set by flags and environment variables,
 	// in the order applied (environment first, then flags).
 	Overrides []Override
@@ -89,6 +98,11 @@ type Dataset struct {
 	Metrics metrics.Recipe
 	// OutputDir is where this dataset's results go: Output.Dir/Name.
 	OutputDir string
+	// RelationResponses are the responses of the relationship analysis
+	// for this dataset, as quantity (role) names: relationships.responses
+	// with analysis_cloud replaced by Cloud, or by default Cloud plus
+	// toa_sw_up when the dataset names a toa_sw_up input.
+	RelationResponses []string
 }
 
 // Coordinates are coordinate overrides for one role. Empty fields mean:

@@ -9,7 +9,7 @@ import (
 
 // ResolvedFormat is the version tag at the start of Resolved(); it changes
 // only when the text's layout does.
-const ResolvedFormat = "lidscope-recipe-resolved/1"
+const ResolvedFormat = "lidscope-recipe-resolved/2"
 
 type resolvedRecipe struct {
 	Format   string            `json:"format"`
@@ -33,6 +33,8 @@ type resolvedDataset struct {
 	Cloud       string                       `json:"cloud"`
 	Metrics     string                       `json:"metrics"`
 	OutputDir   string                       `json:"output_dir"`
+	// Relationships is relations.Config.Text() of RelationsFor, by line.
+	Relationships []string `json:"relationships"`
 }
 
 type resolvedAnalysis struct {
@@ -73,7 +75,9 @@ func (r *Recipe) rel(path string) string {
 // metrics recipe text; the analysis and output settings. Recipes that
 // decide the same give the same text, whatever their format, key order,
 // comments or spelling of defaults. It does not contain the recipe's own
-// path or text.
+// path or text. Per dataset it also holds the relationship analysis of
+// that dataset (relations.Config.Text of [Recipe.RelationsFor], one line
+// per entry).
 func (r *Recipe) Resolved() string {
 	out := resolvedRecipe{Format: ResolvedFormat}
 	for i := range r.Datasets {
@@ -87,6 +91,7 @@ func (r *Recipe) Resolved() string {
 			Metrics:     d.Metrics.Text(),
 			OutputDir:   r.rel(d.OutputDir),
 		}
+		rd.Relationships = strings.Split(strings.TrimSuffix(r.RelationsFor(d).Text(), "\n"), "\n")
 		for _, role := range sortedRoles(d.Inputs) {
 			// files of one role, as written
 			files := make([]string, len(d.Inputs[role]))

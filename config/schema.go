@@ -4,6 +4,7 @@ import (
 	"sort"
 
 	"lidscope/cf"
+	"lidscope/relations"
 )
 
 // kind is the shape of a recipe value.
@@ -19,6 +20,8 @@ const (
 	kStrings                 // a string or a list of strings
 	kNumbers                 // a number or a list of numbers
 	kScalar                  // a number or a string (e.g. "1000hPa", "field")
+	kNamed                   // a table keyed by a fixed list of names (choices; values: elem)
+	kEdges                   // a list of numbers, or a table with fixed keys (keys)
 )
 
 func (k kind) String() string {
@@ -39,6 +42,10 @@ func (k kind) String() string {
 		return "a number or a list of numbers"
 	case kScalar:
 		return "a number or a string"
+	case kNamed:
+		return "a table"
+	case kEdges:
+		return "a list of numbers or a table"
 	}
 	return "?"
 }
@@ -47,10 +54,12 @@ func (k kind) String() string {
 // it holds. The schema is the single list of valid keys: unknown-key
 // checks, suggestions, override keys and environment names all come from it.
 type key struct {
-	kind kind
-	keys map[string]*key // kTable
-	elem *key            // kRoles, kList
-	all  bool            // kRoles: the key "all" is accepted too
+	kind    kind
+	keys    map[string]*key // kTable, kEdges (its table form)
+	elem    *key            // kRoles, kList, kNamed
+	all     bool            // kRoles: the key "all" is accepted too
+	choices []string        // kNamed: the names accepted as keys
+	what    string          // kNamed: what a key names, for messages ("predictor")
 }
 
 func table(keys map[string]*key) *key { return &key{kind: kTable, keys: keys} }
@@ -114,7 +123,33 @@ var schema = table(map[string]*key{
 		}),
 	}),
 	"output": table(map[string]*key{"dir": str, "plots": boolean}),
+	"relationships": table(map[string]*key{
+		"mode":    str,
+		"detrend": boolean,
+		"bins": {kind: kNamed, what: "predictor", choices: predictorNames, elem: &key{kind: kEdges, keys: map[string]*key{
+			"min": number, "max": number, "width": number,
+		}}},
+		"responses": strs,
+		"seasons":   boolean,
+		"patches": {kind: kList, elem: table(map[string]*key{
+			"name": str, "south": number, "north": number, "west": number, "east": number,
+		})},
+		"delta_t": numbers,
+		"bootstrap": table(map[string]*key{
+			"replicates": number, "block_length": number, "seed": number,
+		}),
+		"threshold": table(map[string]*key{
+			"indicator": str, "value": scalar, "bin_width": number, "replicates": number, "range": numbers,
+		}),
+		"omega_regimes":        boolean,
+		"decorrelation_length": scalar,
+		"partial":              strs,
+	}),
 })
+
+// predictorNames are the predictors the relationship analysis bins and
+// regresses on (package relations; all in K).
+var predictorNames = []string{"eis", "lts", relations.RelSST, "sst", "t700", "ectei"}
 
 // roleNames lists the role keys a kRoles table accepts.
 func roleNames(k *key) []string {
@@ -141,8 +176,13 @@ func isRole(k *key, name string) bool {
 
 // names returns the valid keys of a table, sorted.
 func (k *key) names() []string {
-	if k.kind == kRoles {
+	switch k.kind {
+	case kRoles:
 		return roleNames(k)
+	case kNamed:
+		out := append([]string(nil), k.choices...)
+		sort.Strings(out)
+		return out
 	}
 	out := make([]string, 0, len(k.keys))
 	for n := range k.keys {
@@ -155,11 +195,17 @@ func (k *key) names() []string {
 // child returns the description of key name inside k, or nil.
 func (k *key) child(name string) *key {
 	switch k.kind {
-	case kTable:
+	case kTable, kEdges:
 		return k.keys[name]
 	case kRoles:
 		if isRole(k, name) {
 			return k.elem
+		}
+	case kNamed:
+		for _, c := range k.choices {
+			if c == name {
+				return k.elem
+			}
 		}
 	}
 	return nil

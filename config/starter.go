@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"lidscope/cf"
+	"lidscope/relations"
 )
 
 // Starter returns a commented starter recipe (YAML) for the files that
@@ -283,7 +284,63 @@ func (s *starter) text() string {
 	w("output:")
 	w("  dir: %s  # results go to <dir>/<dataset name>", quote(DefaultOutputDir))
 	w("  plots: true")
+	s.relationshipsSection(w)
 	return b.String()
+}
+
+// relationshipsSection writes the relationships section commented out,
+// every value its default: uncommented once, it decides what no section
+// decides (a test checks that).
+func (s *starter) relationshipsSection(w func(string, ...any)) {
+	def := relations.Defaults()
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	nums := func(xs []float64) string {
+		out := make([]string, len(xs))
+		for i, x := range xs {
+			out[i] = num(x)
+		}
+		return "[" + strings.Join(out, ", ") + "]"
+	}
+	w("")
+	w("# The relationship analysis (cloud against EIS, LTS and relative SST per regime,")
+	w("# regressions, regime flips, convective threshold) runs with these defaults;")
+	w("# uncomment the section to change them.")
+	w("# relationships:")
+	w("#   mode: %s  # climatological (composites) | anomaly (deseasonalised monthly anomalies)", def.Mode)
+	w("#   detrend: false  # anomaly mode only: also remove a linear trend")
+	w("#   bins:  # predictor -> {min, max, width} or a list of edges, K; replaces the defaults")
+	bins := relations.DefaultBins(def.Mode)
+	for _, p := range []string{"eis", "lts", relations.RelSST} {
+		e := bins[p]
+		w("#     %s: {min: %s, max: %s, width: %s}", p, num(e[0]), num(e[len(e)-1]), num(e[1]-e[0]))
+	}
+	resp := []string{AnalysisCloud}
+	if s.has(cf.RoleSWUp) {
+		resp = append(resp, string(cf.RoleSWUp))
+	}
+	w("#   responses: [%s]  # roles: low_cloud, cloud, toa_sw_up, olr, precipitation, omega", strings.Join(resp, ", "))
+	w("#   seasons: false  # true: also DJF, MAM, JJA and SON")
+	w("#   # patches:  # boxes whose SST is perturbed by delta_t (none by default), e.g.")
+	w("#   #   - {name: east_pacific, south: -10, north: 10, west: -130, east: -80}")
+	w("#   delta_t: %s  # K", nums(def.DeltaT))
+	w("#   bootstrap: {replicates: %d, block_length: %d, seed: %d}  # replicates 0 = no bootstrap intervals",
+		def.Bootstrap.N, def.Bootstrap.BlockLength, def.Bootstrap.Seed)
+	w("#   threshold:  # estimation of the convective threshold in relative SST")
+	ind := ""
+	for _, i := range []string{relations.IndicatorOmega, relations.IndicatorPrecip, relations.IndicatorOLR} {
+		if s.has(indicatorRoles[i]) {
+			ind = i
+			break
+		}
+	}
+	if ind == "" {
+		w("#     indicator: \"\"  # off; omega, precipitation or olr need that input")
+	} else {
+		w("#     indicator: \"\"  # off; CHECK: %s is given, so indicator: %s would estimate it", indicatorRoles[ind], ind)
+	}
+	w("#   omega_regimes: false  # true: omega500 composites (needs an omega input)")
+	w("#   decorrelation_length: %skm  # 0 = every cell independent", num(def.DecorrelationLength/1000))
+	w("#   partial: [%s, %s]  # the two predictors of the two-predictor regression", def.Partial[0], def.Partial[1])
 }
 
 func dedupe(lines []string) []string {

@@ -70,7 +70,7 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 	for i, part := range parts {
 		last := i == len(parts)-1
 		switch k.kind {
-		case kTable, kRoles:
+		case kTable, kRoles, kNamed, kEdges:
 			m, ok := node.(map[string]any)
 			if !ok {
 				return fmt.Errorf("%s is not a table in the recipe, so %s cannot be set", done, path)
@@ -140,10 +140,16 @@ func envPaths(tree map[string]any) []string {
 	var gen func(k *key, path string, node any)
 	gen = func(k *key, path string, node any) {
 		switch k.kind {
-		case kTable, kRoles:
+		case kTable, kRoles, kNamed:
 			m, _ := node.(map[string]any)
 			for _, n := range k.names() {
 				gen(k.child(n), join(path, n), m[n])
+			}
+		case kEdges:
+			// the whole value (a list or a table), then the table's keys
+			out = append(out, path)
+			for _, n := range k.names() {
+				out = append(out, join(path, n))
 			}
 		case kList:
 			if path != "datasets" {
@@ -232,8 +238,11 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 			return // "key:" with nothing after it is the same as no key
 		}
 		switch k.kind {
-		case kTable, kRoles:
+		case kTable, kRoles, kNamed, kEdges:
 			m, ok := node.(map[string]any)
+			if k.kind == kEdges && !ok {
+				return // a list: its numbers are checked when it is decoded
+			}
 			if !ok {
 				probs = append(probs, w.problem(path, fmt.Sprintf("must be a table of keys, not %s", describe(node))))
 				return
@@ -248,8 +257,11 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 				child := k.child(n)
 				if child == nil {
 					what := "key"
-					if k.kind == kRoles {
+					switch {
+					case k.kind == kRoles:
 						what = "role"
+					case k.what != "":
+						what = k.what
 					}
 					where := "at the top of the recipe"
 					if path != "" {
