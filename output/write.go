@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"lidscope/accumulate"
+	"lidscope/stage"
 )
 
 // Test hooks: called after each file is staged and before each file is
@@ -59,11 +60,11 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 			os.Remove(dir) // only if still empty
 		}
 	}()
-	stage, err := os.MkdirTemp(dir, ".lidscope-output-")
+	sd, err := stage.New(dir, ".lidscope-output-")
 	if err != nil {
 		return nil, fmt.Errorf("output: cannot write in %s (the directory must be writable): %w", dir, err)
 	}
-	defer os.RemoveAll(stage)
+	defer sd.Remove()
 
 	notes := c.notes
 	if _, _, _, _, note := c.periodAxis(); note != "" {
@@ -71,7 +72,7 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 	}
 	var outs []provOutput
 	stageFile := func(name string, write func(path string) error) error {
-		p := filepath.Join(stage, name)
+		p := sd.Path(name)
 		if err := write(p); err != nil {
 			return fmt.Errorf("output: writing %s in %s: %w", name, dir, err)
 		}
@@ -89,33 +90,40 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 		}
 		return nil
 	}
-	bytesTo := func(get func() ([]byte, error)) func(string) error {
-		return func(p string) error {
-			b, err := get()
-			if err != nil {
-				return err
-			}
-			return writeFileSync(p, b)
-		}
-	}
+	// Each file is made by write (given the staged path) or by bytes.
 	steps := []struct {
 		name  string
-		write func(string) error
+		write func(path string) error
+		bytes func() ([]byte, error)
 	}{
-		{MapsNC, func(p string) error { return c.writeMaps(p, notes) }},
-		{SeriesNC, func(p string) error { return c.writeSeriesNC(p, notes) }},
-		{SeriesCSV, bytesTo(c.seriesCSV)},
-		{RegionsCSV, bytesTo(c.regionsCSV)},
-		{SummaryJSON, bytesTo(func() ([]byte, error) { return marshalJSON(c.summary(notes)) })},
-		{ProvenanceJSON, bytesTo(func() ([]byte, error) { return marshalJSON(c.provenance(notes, outs)) })},
+		{name: MapsNC, write: func(p string) error { return c.writeMaps(p, notes) }},
+		{name: SeriesNC, write: func(p string) error { return c.writeSeriesNC(p, notes) }},
+		{name: SeriesCSV, bytes: c.seriesCSV},
+		{name: RegionsCSV, bytes: c.regionsCSV},
+		{name: SummaryJSON, bytes: func() ([]byte, error) { return marshalJSON(c.summary(notes)) }},
+		{name: ProvenanceJSON, bytes: func() ([]byte, error) { return marshalJSON(c.provenance(notes, outs)) }},
 	}
 	for _, s := range steps {
-		if err := stageFile(s.name, s.write); err != nil {
+		write := s.write
+		if s.bytes != nil {
+			write = func(string) error {
+				b, err := s.bytes()
+				if err != nil {
+					return err
+				}
+				return sd.WriteFile(s.name, b)
+			}
+		}
+		if err := stageFile(s.name, write); err != nil {
 			return nil, err
 		}
 	}
-	if err := commit(dir, stage, OutputNames(), opt.Force); err != nil {
-		return nil, err
+	sd.BeforeMove = hookCommit
+	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
+		if !opt.Force && errors.Is(err, fs.ErrExist) {
+			return nil, fmt.Errorf("output: %w. Allow replacing it (Options.Force) or choose another directory", err)
+		}
+		return nil, fmt.Errorf("output: %w", err)
 	}
 	var files Files
 	for _, n := range OutputNames() {
@@ -127,109 +135,15 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 // preflight refuses, without Force, when an output exists already, and
 // always when an output name is taken by something that is not a file.
 func preflight(dir string, force bool) error {
-	var exist []string
-	for _, n := range OutputNames() {
-		st, err := os.Lstat(filepath.Join(dir, n))
-		if errors.Is(err, fs.ErrNotExist) {
-			continue
-		}
-		if err != nil {
-			return fmt.Errorf("output: %w", err)
-		}
-		if !st.Mode().IsRegular() {
-			return fmt.Errorf("output: %s exists and is not a regular file; remove it or choose another output directory", filepath.Join(dir, n))
-		}
-		exist = append(exist, n)
+	exist, err := stage.Existing(dir, OutputNames())
+	if err != nil {
+		return fmt.Errorf("output: %w", err)
 	}
 	if len(exist) > 0 && !force {
 		return fmt.Errorf("output: %s already holds outputs of a run (%s): %w; nothing was written. Choose another directory, remove them, or allow replacing them (Options.Force)",
 			dir, strings.Join(exist, ", "), fs.ErrExist)
 	}
 	return nil
-}
-
-// commit moves the staged files to their final names in dir. Without force
-// a file that appeared meanwhile is not replaced (hard link, which fails on
-// an existing name; rename after a check where links are unsupported). With
-// force an existing output is first moved into the staging directory. On
-// any error the files moved so far are removed and the replaced ones put
-// back.
-func commit(dir, stage string, names []string, force bool) (err error) {
-	var moved, backedUp []string
-	defer func() {
-		if err == nil {
-			return
-		}
-		for i := len(moved) - 1; i >= 0; i-- {
-			os.Remove(filepath.Join(dir, moved[i]))
-		}
-		for _, n := range backedUp {
-			os.Rename(filepath.Join(stage, ".previous-"+n), filepath.Join(dir, n))
-		}
-	}()
-	for _, n := range names {
-		if hookCommit != nil {
-			if err := hookCommit(n); err != nil {
-				return fmt.Errorf("output: moving %s into %s: %w", n, dir, err)
-			}
-		}
-		src, dst := filepath.Join(stage, n), filepath.Join(dir, n)
-		if force {
-			if _, err := os.Lstat(dst); err == nil {
-				if err := os.Rename(dst, filepath.Join(stage, ".previous-"+n)); err != nil {
-					return fmt.Errorf("output: cannot move the earlier %s aside: %w", dst, err)
-				}
-				backedUp = append(backedUp, n)
-			}
-			if err := os.Rename(src, dst); err != nil {
-				return fmt.Errorf("output: %w", err)
-			}
-			moved = append(moved, n)
-			continue
-		}
-		switch lerr := os.Link(src, dst); {
-		case lerr == nil:
-			moved = append(moved, n)
-		case errors.Is(lerr, fs.ErrExist):
-			return fmt.Errorf("output: %s appeared while the outputs were being written: %w; nothing was written. Allow replacing it (Options.Force) or choose another directory", dst, fs.ErrExist)
-		default:
-			if _, serr := os.Lstat(dst); serr == nil {
-				return fmt.Errorf("output: %s appeared while the outputs were being written: %w; nothing was written", dst, fs.ErrExist)
-			}
-			if err := os.Rename(src, dst); err != nil {
-				return fmt.Errorf("output: %w", err)
-			}
-			moved = append(moved, n)
-		}
-	}
-	syncDir(dir)
-	return nil
-}
-
-// writeFileSync writes b to a new file at p and syncs it.
-func writeFileSync(p string, b []byte) error {
-	f, err := os.OpenFile(p, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
-	if err != nil {
-		return err
-	}
-	if _, err := f.Write(b); err != nil {
-		f.Close()
-		return err
-	}
-	if err := f.Sync(); err != nil {
-		f.Close()
-		return err
-	}
-	return f.Close()
-}
-
-// syncDir flushes a directory's entries (best effort: not every file
-// system supports it).
-func syncDir(dir string) {
-	if d, err := os.Open(dir); err == nil {
-		d.Sync()
-		d.Close()
-	}
 }
 
 // digest returns the size and SHA-256 of a staged file.

@@ -15,6 +15,7 @@ import (
 
 	"lidscope/cfwrite"
 	"lidscope/regimes"
+	"lidscope/stage"
 )
 
 // Output file names, in the order Write returns them.
@@ -71,19 +72,9 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 	if st, err := os.Stat(dir); err == nil && !st.IsDir() {
 		return nil, fmt.Errorf("relations: %s is a file, not a directory; give a directory for the outputs", dir)
 	}
-	var exist []string
-	for _, n := range OutputNames() {
-		st, err := os.Lstat(filepath.Join(dir, n))
-		if errors.Is(err, fs.ErrNotExist) {
-			continue
-		}
-		if err != nil {
-			return nil, fmt.Errorf("relations: %w", err)
-		}
-		if !st.Mode().IsRegular() {
-			return nil, fmt.Errorf("relations: %s exists and is not a regular file; remove it or choose another directory", filepath.Join(dir, n))
-		}
-		exist = append(exist, n)
+	exist, err := stage.Existing(dir, OutputNames())
+	if err != nil {
+		return nil, fmt.Errorf("relations: %w", err)
 	}
 	if len(exist) > 0 && !opt.Force {
 		return nil, fmt.Errorf("relations: %s already holds relationship outputs (%s): %w; nothing was written. Choose another directory, remove them, or allow replacing them (WriteOptions.Force)", dir, strings.Join(exist, ", "), fs.ErrExist)
@@ -91,15 +82,15 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 	if err := os.MkdirAll(dir, 0o777); err != nil {
 		return nil, fmt.Errorf("relations: cannot create the output directory: %w", err)
 	}
-	stage, err := os.MkdirTemp(dir, ".lidscope-relations-")
+	sd, err := stage.New(dir, ".lidscope-relations-")
 	if err != nil {
 		return nil, fmt.Errorf("relations: cannot write in %s (the directory must be writable): %w", dir, err)
 	}
-	defer os.RemoveAll(stage)
+	defer sd.Remove()
 	if meta.Period == "" {
 		meta.Period = r.First + " … " + r.Last
 	}
-	if err := writeNC(filepath.Join(stage, RelationshipsNC), r, meta); err != nil {
+	if err := writeNC(sd.Path(RelationshipsNC), r, meta); err != nil {
 		return nil, fmt.Errorf("relations: writing %s in %s: %w", RelationshipsNC, dir, err)
 	}
 	files := []struct {
@@ -114,95 +105,21 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 	for _, f := range files {
 		b, err := f.get()
 		if err == nil {
-			err = writeFileSync(filepath.Join(stage, f.name), b)
+			err = sd.WriteFile(f.name, b)
 		}
 		if err != nil {
 			return nil, fmt.Errorf("relations: writing %s in %s: %w", f.name, dir, err)
 		}
 	}
-	if err := commit(dir, stage, OutputNames(), opt.Force); err != nil {
-		return nil, err
+	sd.BeforeMove = hookCommit
+	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
+		return nil, fmt.Errorf("relations: %w", err)
 	}
 	var out []string
 	for _, n := range OutputNames() {
 		out = append(out, filepath.Join(dir, n))
 	}
 	return out, nil
-}
-
-// commit moves the staged files into dir. Without force a file that
-// appeared meanwhile is not replaced (hard link fails on an existing
-// name). With force the earlier file is first moved into the staging
-// directory and put back if a later move fails.
-func commit(dir, stage string, names []string, force bool) (err error) {
-	var moved, backedUp []string
-	defer func() {
-		if err == nil {
-			return
-		}
-		for i := len(moved) - 1; i >= 0; i-- {
-			os.Remove(filepath.Join(dir, moved[i]))
-		}
-		for _, n := range backedUp {
-			os.Rename(filepath.Join(stage, ".previous-"+n), filepath.Join(dir, n))
-		}
-	}()
-	for _, n := range names {
-		if hookCommit != nil {
-			if err := hookCommit(n); err != nil {
-				return fmt.Errorf("relations: moving %s into %s: %w", n, dir, err)
-			}
-		}
-		src, dst := filepath.Join(stage, n), filepath.Join(dir, n)
-		if force {
-			if _, err := os.Lstat(dst); err == nil {
-				if err := os.Rename(dst, filepath.Join(stage, ".previous-"+n)); err != nil {
-					return fmt.Errorf("relations: cannot move the earlier %s aside: %w", dst, err)
-				}
-				backedUp = append(backedUp, n)
-			}
-			if err := os.Rename(src, dst); err != nil {
-				return fmt.Errorf("relations: %w", err)
-			}
-			moved = append(moved, n)
-			continue
-		}
-		switch lerr := os.Link(src, dst); {
-		case lerr == nil:
-			moved = append(moved, n)
-		case errors.Is(lerr, fs.ErrExist):
-			return fmt.Errorf("relations: %s appeared while the outputs were being written: %w; nothing was written", dst, fs.ErrExist)
-		default:
-			if _, serr := os.Lstat(dst); serr == nil {
-				return fmt.Errorf("relations: %s appeared while the outputs were being written: %w; nothing was written", dst, fs.ErrExist)
-			}
-			if err := os.Rename(src, dst); err != nil {
-				return fmt.Errorf("relations: %w", err)
-			}
-			moved = append(moved, n)
-		}
-	}
-	if d, err := os.Open(dir); err == nil {
-		d.Sync()
-		d.Close()
-	}
-	return nil
-}
-
-func writeFileSync(p string, b []byte) error {
-	f, err := os.OpenFile(p, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
-	if err != nil {
-		return err
-	}
-	if _, err := f.Write(b); err != nil {
-		f.Close()
-		return err
-	}
-	if err := f.Sync(); err != nil {
-		f.Close()
-		return err
-	}
-	return f.Close()
 }
 
 // ---- NetCDF ----
