@@ -121,7 +121,7 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 		}
 	}
 	log.Info("run", "dataset", d.Name, "out", out)
-	relCfg := relationsConfig(r)
+	relCfg := r.RelationsFor(d)
 	var clim *relations.Climatology
 	if relCfg.Mode == relations.Anomaly {
 		// Pass 1: the climatology of every cell and calendar month.
@@ -171,16 +171,6 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 		files = append(files, figs...)
 	}
 	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
-}
-
-// relationsConfig is the relationship analysis of the recipe.
-func relationsConfig(r *config.Recipe) relations.Config {
-	c := relations.Defaults()
-	c.Classifier = r.Analysis.Classifier()
-	for _, rg := range r.Analysis.Regions {
-		c.Regions = append(c.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
-	}
-	return c
 }
 
 // writeResults writes every result file of a run into out. It creates out
