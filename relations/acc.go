@@ -100,6 +100,9 @@ type Acc struct {
 	cfg  Config
 	l    Layout
 	clim *Climatology
+	// climID identifies the climatology of a decoded anomaly-mode
+	// accumulator, which keeps no climatology (state.go).
+	climID *climIdentity
 
 	preds   []string    // binned predictors, sorted
 	edges   [][]float64 // per predictor
@@ -153,6 +156,12 @@ type Layout = accumulate.Layout
 // New returns an accumulator for the configuration and layout. clim is the
 // first-pass climatology in anomaly mode (nil in climatological mode).
 func New(cfg Config, l accumulate.Layout, clim *Climatology) (*Acc, error) {
+	return build(cfg, l, clim, false)
+}
+
+// build is New; decoded (DecodeAcc) allows an anomaly-mode accumulator
+// without its climatology.
+func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*Acc, error) {
 	if err := cfg.Validate(); err != nil {
 		return nil, err
 	}
@@ -161,7 +170,7 @@ func New(cfg Config, l accumulate.Layout, clim *Climatology) (*Acc, error) {
 		return nil, fmt.Errorf("relations: layout sizes disagree (%d×%d grid, %d lat, %d lon, %d areas, %d band weights); build it as for accumulate.New", l.NLat, l.NLon, len(l.Lat), len(l.Lon), len(l.Area), len(l.BandWeight))
 	}
 	switch {
-	case cfg.Mode == Anomaly && clim == nil:
+	case cfg.Mode == Anomaly && clim == nil && !decoded:
 		return nil, fmt.Errorf("relations: anomaly mode needs the climatology of a first pass (NewClimatology, AddStep over the record); got nil")
 	case cfg.Mode == Climatological && clim != nil:
 		return nil, fmt.Errorf("relations: climatological mode takes no climatology (pass nil), or set Config.Mode = Anomaly")
@@ -383,6 +392,9 @@ func (a *Acc) convective(v float64) bool {
 
 // AddStep adds one time step. The pipeline calls it serially, in time order.
 func (a *Acc) AddStep(s *accumulate.Step) {
+	if a.cfg.Mode == Anomaly && a.clim == nil {
+		panic("relations: AddStep on a decoded anomaly-mode accumulator, which keeps only a fingerprint of its climatology (DecodeAcc): it can Merge and give Results; for more steps build an accumulator with New and the climatology")
+	}
 	seq := int32(len(a.steps))
 	nd, nr := len(a.doms), len(a.resp)
 	rec := stepRec{label: s.Label, year: s.Year, month: s.Month, tropMean: s.TropMean}
@@ -623,7 +635,11 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 func (a *Acc) Steps() int { return len(a.steps) }
 
 // Merge appends b, which must have the same configuration and layout and
-// cover the time steps right after a's.
+// cover the time steps right after a's. In anomaly mode both must have
+// taken their anomalies against the same climatology (the same pointer, or
+// identical contents: see DecodeAcc); Merge refuses pieces whose
+// climatologies differ, since their merged anomalies would not be those of
+// one pass over the record.
 func (a *Acc) Merge(b *Acc) error {
 	if b == nil {
 		return fmt.Errorf("relations: cannot merge a nil accumulator")
@@ -643,6 +659,9 @@ func (a *Acc) Merge(b *Acc) error {
 		if a.l.Lon[k] != b.l.Lon[k] {
 			return fmt.Errorf("relations: cannot merge: longitude %d differs (%g vs %g)", k, a.l.Lon[k], b.l.Lon[k])
 		}
+	}
+	if err := a.sameClimatology(b); err != nil {
+		return err
 	}
 	off := int32(len(a.steps))
 	for i := range a.binned {

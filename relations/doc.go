@@ -24,6 +24,15 @@
 // every statistic). Values arrive in SI units (K, fraction 1, W m-2,
 // Pa s-1, kg m-2 s-1), as package accumulate delivers them.
 //
+// Acc.Encode saves an accumulator and DecodeAcc reads it back, so runs
+// over pieces of a record can be merged later (lidscope merge). In anomaly
+// mode only a fingerprint of the climatology is saved, and Merge refuses
+// pieces whose anomalies are against different climatologies — which is
+// always the case for pieces run on their own, each against the
+// climatology of its own period — rather than return relationships that
+// no single run gives; such a record must be run in one piece (or every
+// piece against one climatology of the whole record).
+//
 // # Samples, domains, seasons, regimes
 //
 // A sample is one cell at one time step whose regime is not Missing
