@@ -5,6 +5,7 @@ import (
 	"runtime"
 	"time"
 
+	"lidscope/jsonnum"
 	"lidscope/netcdf"
 )
 
@@ -83,22 +84,22 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 		Recipe:        provRecipe{Text: m.Recipe, SHA256: m.RecipeHash},
 		MetricsRecipe: m.MetricsRecipe,
 		Inputs:        []provInput{},
-		Run:           provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{math.NaN(), "s"}},
+		Run:           provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}},
 		Host: provHost{OS: runtime.GOOS, Arch: runtime.GOARCH, GoVersion: runtime.Version(),
-			CPUs: count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
-		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: count(len(c.acc.Series)), Bounds: "none"},
+			CPUs: jsonnum.Count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
+		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: jsonnum.Count(len(c.acc.Series)), Bounds: "none"},
 		Outputs: outs,
 		Notes:   append([]string{}, notes...),
 	}
 	p.Regime = c.summaryRegime()
 	if !m.Start.IsZero() && !m.End.IsZero() {
-		p.Run.Duration = num{m.End.Sub(m.Start).Seconds(), "s"}
+		p.Run.Duration = num{Value: m.End.Sub(m.Start).Seconds(), Units: "s"}
 	}
 	if m.TimeBounds != nil {
 		p.Time.Bounds = "given by the run"
 	}
 	for _, f := range m.Inputs {
-		p.Inputs = append(p.Inputs, provInput{Role: f.Role, Path: f.Path, Size: num{float64(f.Size), "byte"}, Modified: rfc3339(f.ModTime), SHA256: f.SHA256})
+		p.Inputs = append(p.Inputs, provInput{Role: f.Role, Path: f.Path, Size: num{Value: float64(f.Size), Units: "byte"}, Modified: rfc3339(f.ModTime), SHA256: f.SHA256})
 	}
 	return p
 }
@@ -106,8 +107,8 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 func (c *checked) summaryRegime() sumRegime {
 	m := c.meta
 	return sumRegime{
-		Text: m.RegimeDefinition, Delta: num{m.Delta, "K"}, HalfWidth: num{m.HalfWidth, "K"},
-		Band:  sumBand{South: num{m.BandSouth, "degrees_north"}, North: num{m.BandNorth, "degrees_north"}},
+		Text: m.RegimeDefinition, Delta: num{Value: m.Delta, Units: "K"}, HalfWidth: num{Value: m.HalfWidth, Units: "K"},
+		Band:  sumBand{South: num{Value: m.BandSouth, Units: "degrees_north"}, North: num{Value: m.BandNorth, Units: "degrees_north"}},
 		Index: regimeIndexText(),
 	}
 }

@@ -3,6 +3,7 @@ package output
 import (
 	"math"
 
+	"lidscope/jsonnum"
 	"lidscope/regimes"
 	"lidscope/stats"
 )
@@ -87,7 +88,7 @@ type sumRegion struct {
 
 // momentsOf returns the mean, population standard deviation and size of m.
 func momentsOf(m stats.Moments, units string) meanStd {
-	return meanStd{Mean: num{m.MeanOrNaN(), units}, Std: num{m.Std(), units}, N: count(m.N)}
+	return meanStd{Mean: num{Value: m.MeanOrNaN(), Units: units}, Std: num{Value: m.Std(), Units: units}, N: jsonnum.Count(m.N)}
 }
 
 // seriesStats is the mean and population standard deviation over the time
@@ -138,7 +139,7 @@ func (c *checked) crossingsMean() (float64, int) {
 }
 
 func (c *checked) step(t int) sumStep {
-	return sumStep{Label: c.acc.Series[t].Label, Date: c.dates[t].String(), Time: num{c.meta.TimeValues[t], c.meta.TimeUnits}}
+	return sumStep{Label: c.acc.Series[t].Label, Date: c.dates[t].String(), Time: num{Value: c.meta.TimeValues[t], Units: c.meta.TimeUnits}}
 }
 
 // summary builds summary.json.
@@ -151,7 +152,7 @@ func (c *checked) summary(notes []string) summary {
 		Dataset: m.Dataset, Title: m.Title, LidscopeVersion: m.Version, RecipeHash: m.RecipeHash,
 		Period: sumPeriod{
 			Label: c.period(), First: c.step(0), Last: c.step(nt - 1),
-			Steps: count(nt), StepsPerYear: num{m.StepsPerYear, "yr-1"}, Calendar: m.Calendar,
+			Steps: jsonnum.Count(nt), StepsPerYear: num{Value: m.StepsPerYear, Units: "yr-1"}, Calendar: m.Calendar,
 		},
 		Regime:       c.summaryRegime(),
 		AreaFraction: map[string]meanStd{},
@@ -180,19 +181,19 @@ func (c *checked) summary(notes []string) summary {
 		s.RegimeMeans[name] = mr
 	}
 	cm, cn := c.crossingsMean()
-	s.Crossings = sumCrossings{Mean: num{cm, "yr-1"}, Cells: count(cn)}
+	s.Crossings = sumCrossings{Mean: num{Value: cm, Units: "yr-1"}, Cells: jsonnum.Count(cn)}
 	for k := range acc.Regions {
 		rs := &acc.Regions[k]
 		g := rs.Region
 		sh := areaTimeShares(rs)
 		sr := sumRegion{
 			Name:    g.Name,
-			Box:     sumBox{South: num{g.South, "degrees_north"}, North: num{g.North, "degrees_north"}, West: num{g.West, "degrees_east"}, East: num{g.East, "degrees_east"}},
+			Box:     sumBox{South: num{Value: g.South, Units: "degrees_north"}, North: num{Value: g.North, Units: "degrees_north"}, West: num{Value: g.West, Units: "degrees_east"}, East: num{Value: g.East, Units: "degrees_east"}},
 			RelSST:  momentsOf(rs.Rel, "K"),
 			Regimes: map[string]sumRegionRegime{},
 		}
 		for _, r := range regimes.All {
-			rr := sumRegionRegime{AreaTimeShare: num{sh[r], "1"}, Quantities: map[string]meanStd{}}
+			rr := sumRegionRegime{AreaTimeShare: num{Value: sh[r], Units: "1"}, Quantities: map[string]meanStd{}}
 			for qi, name := range acc.L.Quantities {
 				rr.Quantities[name] = momentsOf(rs.Values[qi][r], c.qs[qi].Units)
 			}

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"lidscope/accumulate"
+	"lidscope/jsonnum"
 	"lidscope/stage"
 )
 
@@ -100,8 +101,8 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 		{name: SeriesNC, write: func(p string) error { return c.writeSeriesNC(p, notes) }},
 		{name: SeriesCSV, bytes: c.seriesCSV},
 		{name: RegionsCSV, bytes: c.regionsCSV},
-		{name: SummaryJSON, bytes: func() ([]byte, error) { return marshalJSON(c.summary(notes)) }},
-		{name: ProvenanceJSON, bytes: func() ([]byte, error) { return marshalJSON(c.provenance(notes, outs)) }},
+		{name: SummaryJSON, bytes: func() ([]byte, error) { return jsonnum.Marshal(c.summary(notes)) }},
+		{name: ProvenanceJSON, bytes: func() ([]byte, error) { return jsonnum.Marshal(c.provenance(notes, outs)) }},
 	}
 	for _, s := range steps {
 		write := s.write
@@ -158,5 +159,5 @@ func digest(p, name string) (provOutput, error) {
 	if err != nil {
 		return provOutput{}, err
 	}
-	return provOutput{Name: name, Size: num{float64(n), "byte"}, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+	return provOutput{Name: name, Size: num{Value: float64(n), Units: "byte"}, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
 }

@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"lidscope/cfwrite"
+	"lidscope/jsonnum"
 	"lidscope/regimes"
 	"lidscope/stage"
 )
@@ -100,7 +101,7 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 		{RegressionsCSV, func() ([]byte, error) { return regressionsCSV(r) }},
 		{FlipsCSV, func() ([]byte, error) { return flipsCSV(r) }},
 		{ThresholdsCSV, func() ([]byte, error) { return thresholdsCSV(r) }},
-		{RelationshipsJSON, func() ([]byte, error) { return marshalJSON(jsonDoc(r, meta)) }},
+		{RelationshipsJSON, func() ([]byte, error) { return jsonnum.Marshal(jsonDoc(r, meta)) }},
 	}
 	for _, f := range files {
 		b, err := f.get()
