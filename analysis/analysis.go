@@ -57,8 +57,8 @@ type Report struct {
 	Files   []string
 	Result  *pipeline.Result
 	Meta    output.Meta
-	// Relations are the relationship results (nil for a merged run, whose
-	// pieces' relationship accumulators are not kept).
+	// Relations are the relationship results (of the merged accumulators
+	// for a merged run).
 	Relations *relations.Results
 }
 
@@ -159,7 +159,7 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	if err != nil {
 		return Report{}, fmt.Errorf("relationship analysis: %w", err)
 	}
-	files, err := writeResults(out, res, meta, relRes, opt)
+	files, err := writeResults(out, res.Acc, meta, relRes, rel, opt)
 	if err != nil {
 		return Report{}, err
 	}
@@ -173,9 +173,11 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
 }
 
-// writeResults writes every result file of a run into out. It creates out
-// when needed and removes it again if it created it and the write failed.
-func writeResults(out string, res *pipeline.Result, meta output.Meta, rel *relations.Results, opt Options) (files []string, err error) {
+// writeResults writes every result file of a run (or of a merge) into
+// out: the regime outputs of acc, the relationship outputs of rel, and the
+// run state with both accumulators (acc and relAcc). It creates out when
+// needed and removes it again if it created it and the write failed.
+func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relations.Results, relAcc *relations.Acc, opt Options) (files []string, err error) {
 	created := false
 	if _, err := os.Stat(out); errors.Is(err, fs.ErrNotExist) {
 		created = true
@@ -194,7 +196,7 @@ func writeResults(out string, res *pipeline.Result, meta output.Meta, rel *relat
 			return nil, err
 		}
 	}
-	files, err = output.Write(out, res.Acc, meta, output.Options{Force: opt.Force})
+	files, err = output.Write(out, acc, meta, output.Options{Force: opt.Force})
 	if err != nil {
 		return nil, err
 	}
@@ -206,7 +208,7 @@ func writeResults(out string, res *pipeline.Result, meta output.Meta, rel *relat
 		}
 		files = append(files, rf...)
 	}
-	if err := saveState(out, meta, res.Acc); err != nil {
+	if err := saveState(out, meta, acc, relAcc); err != nil {
 		return files, fmt.Errorf("writing the run state: %w", err)
 	}
 	return append(files, filepath.Join(out, StateFile)), nil

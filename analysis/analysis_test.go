@@ -11,6 +11,7 @@ import (
 	"lidscope/config"
 	"lidscope/fixtures"
 	"lidscope/output"
+	"lidscope/relations"
 )
 
 // smallWorld is a coarse, short synthetic world (invented data) for tests.
@@ -111,6 +112,45 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 				}
 			}
 		}
+	}
+	// The relationships: the merged accumulators give the single run's
+	// results for every statistic (to the merge's rounding), in the report
+	// and in the files written next to the regime outputs.
+	if m.Relations == nil || whole.Relations == nil {
+		t.Fatalf("relationship results: merged %v, whole %v", m.Relations != nil, whole.Relations != nil)
+	}
+	if len(whole.Relations.Regressions) == 0 || len(whole.Relations.Binned) == 0 || len(whole.Relations.Flips) == 0 {
+		t.Fatal("the single run has no relationships to compare")
+	}
+	if d := diffResults(whole.Relations, m.Relations, 1e-9); len(d) > 0 {
+		t.Errorf("merged relationships differ from the single run: %v", d)
+	}
+	if d := diffResults(whole.Relations, a.Relations, 1e-9); len(d) == 0 {
+		t.Error("the first piece's relationships compare equal to the whole record's")
+	}
+	for _, n := range relations.OutputNames() {
+		if _, err := os.Stat(filepath.Join(m.OutDir, n)); err != nil {
+			t.Errorf("merged run lacks %s: %v", n, err)
+		}
+	}
+	fw, err := relations.ReadResults(whole.OutDir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fm, err := relations.ReadResults(m.OutDir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := diffResults(fw, fm, 1e-9); len(d) > 0 {
+		t.Errorf("merged %s differs from the single run's: %v", relations.OutputNames(), d)
+	}
+	// The merged state holds the merged relationship accumulator.
+	s, err := loadState(m.OutDir, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.rel.Steps() != len(whole.Meta.TimeValues) {
+		t.Errorf("merged state: %d relationship steps, want %d", s.rel.Steps(), len(whole.Meta.TimeValues))
 	}
 	// Overlapping runs are refused.
 	if _, err := Merge([]string{whole.OutDir, a.OutDir}, filepath.Join(dir, "bad"), Options{}); err == nil || !strings.Contains(err.Error(), "overlap") {

@@ -14,29 +14,40 @@ import (
 
 	"lidscope/accumulate"
 	"lidscope/output"
+	"lidscope/relations"
 )
 
-// StateFile holds a finished run's complete accumulator and provenance, so
-// that runs over consecutive pieces of a record (split by time range or by
-// file set) can be merged later into exactly what one run over the whole
-// record gives (see Merge).
+// StateFile holds a finished run's complete accumulators (regime
+// statistics and relationships) and provenance, so that runs over
+// consecutive pieces of a record (split by time range or by file set) can
+// be merged later into exactly what one run over the whole record gives
+// (see Merge).
 const StateFile = "run-state.gob"
 
-const stateFormat = "lidscope-run-state/1"
+// stateFormat tags the run state; bump it whenever runState changes.
+// Version 2 added the relationship accumulator.
+const stateFormat = "lidscope-run-state/2"
 
 type runState struct {
 	Format string
 	Meta   output.Meta
-	Acc    []byte
+	Acc    []byte // accumulate.Acc.Encode
+	Rel    []byte // relations.Acc.Encode
 }
 
-func saveState(dir string, meta output.Meta, acc *accumulate.Acc) error {
-	var ab bytes.Buffer
+func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc) error {
+	if rel == nil {
+		return fmt.Errorf("writing the run state in %s: no relationship accumulator to save", dir)
+	}
+	var ab, rb bytes.Buffer
 	if err := acc.Encode(&ab); err != nil {
 		return err
 	}
+	if err := rel.Encode(&rb); err != nil {
+		return err
+	}
 	var buf bytes.Buffer
-	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes()}); err != nil {
+	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes()}); err != nil {
 		return fmt.Errorf("encoding the run state: %w", err)
 	}
 	final := filepath.Join(dir, StateFile)
@@ -59,31 +70,60 @@ func saveState(dir string, meta output.Meta, acc *accumulate.Acc) error {
 	return os.Rename(tmp.Name(), final)
 }
 
-// LoadState reads the state a run left in dir.
-func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
+// loadedState is a decoded run state; rel is nil unless asked for.
+type loadedState struct {
+	meta output.Meta
+	acc  *accumulate.Acc
+	rel  *relations.Acc
+}
+
+// loadState reads the state a run left in dir, with the relationship
+// accumulator when withRel is set.
+func loadState(dir string, withRel bool) (loadedState, error) {
 	p := filepath.Join(dir, StateFile)
 	b, err := os.ReadFile(p)
 	if err != nil {
-		return output.Meta{}, nil, fmt.Errorf("%w (is %s a lidscope run folder?)", err, dir)
+		return loadedState{}, fmt.Errorf("%w (is %s a lidscope run folder?)", err, dir)
 	}
 	var s runState
 	if err := gob.NewDecoder(bytes.NewReader(b)).Decode(&s); err != nil {
-		return output.Meta{}, nil, fmt.Errorf("%s: %w", p, err)
+		return loadedState{}, fmt.Errorf("%s: %w", p, err)
 	}
 	if s.Format != stateFormat {
-		return output.Meta{}, nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: re-run with this version", p, s.Format, stateFormat)
+		return loadedState{}, fmt.Errorf("%s: run state format %q, this lidscope reads %q: re-run the analysis of %s with this version", p, s.Format, stateFormat, dir)
 	}
 	acc, err := accumulate.Decode(bytes.NewReader(s.Acc))
 	if err != nil {
-		return output.Meta{}, nil, fmt.Errorf("%s: %w", p, err)
+		return loadedState{}, fmt.Errorf("%s: %w", p, err)
 	}
-	return s.Meta, acc, nil
+	ls := loadedState{meta: s.Meta, acc: acc}
+	if withRel {
+		if len(s.Rel) == 0 {
+			return loadedState{}, fmt.Errorf("%s: the run state holds no relationship accumulator (the file is damaged): re-run the analysis of %s", p, dir)
+		}
+		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(s.Rel)); err != nil {
+			return loadedState{}, fmt.Errorf("%s: %w", p, err)
+		}
+	}
+	return ls, nil
+}
+
+// LoadState reads the provenance and the regime accumulator of the state
+// a run left in dir.
+func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
+	s, err := loadState(dir, false)
+	return s.meta, s.acc, err
 }
 
 // Merge joins finished runs over consecutive, non-overlapping pieces of one
-// dataset's record and writes the merged results to out. The runs must
-// agree on everything but the period: dataset, metrics recipe, regime
-// definition, grid, quantities, regions, calendar and sampling.
+// dataset's record and writes the merged results to out: the regime
+// outputs, the relationship outputs (relations.Write) and the merged run
+// state. The runs must agree on everything but the period: dataset,
+// metrics recipe, regime definition, grid, quantities, regions, calendar,
+// sampling and the relationship configuration. Runs whose relationships
+// are anomalies (relations.Anomaly) are refused: each piece took its
+// anomalies against the climatology of its own period, so no merge gives
+// what one run over the record gives; run such a record in one piece.
 func Merge(dirs []string, out string, opt Options) (Report, error) {
 	if len(dirs) < 2 {
 		return Report{}, fmt.Errorf("give at least two run folders to merge")
@@ -92,17 +132,25 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		dir  string
 		meta output.Meta
 		acc  *accumulate.Acc
+		rel  *relations.Acc
+	}
+	if !opt.Force {
+		for _, n := range append(append(output.OutputNames(), relations.OutputNames()...), StateFile) {
+			if _, err := os.Stat(filepath.Join(out, n)); err == nil {
+				return Report{}, fmt.Errorf("%s already holds results (%s); use --force to replace them or choose another --out", out, n)
+			}
+		}
 	}
 	var runs []run
 	for _, d := range dirs {
-		m, a, err := LoadState(d)
+		s, err := loadState(d, true)
 		if err != nil {
 			return Report{}, err
 		}
-		if len(m.TimeValues) == 0 {
+		if len(s.meta.TimeValues) == 0 {
 			return Report{}, fmt.Errorf("%s: the run has no time steps", d)
 		}
-		runs = append(runs, run{d, m, a})
+		runs = append(runs, run{d, s.meta, s.acc, s.rel})
 	}
 	sort.SliceStable(runs, func(i, j int) bool { return runs[i].meta.TimeValues[0] < runs[j].meta.TimeValues[0] })
 	first := runs[0]
@@ -130,7 +178,13 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
-	acc := first.acc
+	if first.rel.Mode() == relations.Anomaly {
+		// relations.Acc.Merge would refuse too (the climatologies differ);
+		// say what to do at the level of lidscope's runs.
+		return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and each of %s took its anomalies against the climatology of its own period, so no merge gives what one run over the whole record gives; "+
+			"run the whole record in one run, or use relationships.mode: %s for runs meant to be merged", relations.Anomaly, strings.Join(dirs, ", "), relations.Climatological)
+	}
+	acc, rel := first.acc, first.rel
 	meta := first.meta
 	hashes := []string{}
 	recipes := []string{}
@@ -142,6 +196,9 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		}
 		if err := acc.Merge(r.acc); err != nil {
 			return Report{}, fmt.Errorf("merging %s: %w", r.dir, err)
+		}
+		if err := rel.Merge(r.rel); err != nil {
+			return Report{}, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
 		}
 		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)
 		if meta.TimeBounds != nil && r.meta.TimeBounds != nil {
@@ -163,17 +220,18 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return Report{}, err
+	if n, m := rel.Steps(), len(meta.TimeValues); n != m {
+		return Report{}, fmt.Errorf("the merged relationship analysis has %d time steps, the merged record %d: a run state is damaged; re-run the pieces", n, m)
 	}
-	files, err := output.Write(out, acc, meta, output.Options{Force: opt.Force})
+	relRes, err := rel.Results()
+	if err != nil {
+		return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
+	}
+	files, err := writeResults(out, acc, meta, relRes, rel, opt)
 	if err != nil {
 		return Report{}, err
 	}
-	if err := saveState(out, meta, acc); err != nil {
-		return Report{}, err
-	}
-	return Report{Dataset: meta.Dataset, OutDir: out, Files: append(files, filepath.Join(out, StateFile)), Meta: meta}, nil
+	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
 }
 
 func lastOf(period string) string {

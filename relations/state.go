@@ -165,6 +165,9 @@ func (a *Acc) sameClimatology(b *Acc) error {
 	return nil
 }
 
+// Mode is the mode of the accumulator's configuration.
+func (a *Acc) Mode() Mode { return a.cfg.Mode }
+
 // Encode writes the complete accumulator (Go's encoding/gob of an exported
 // mirror, tagged with a format string), so that runs over consecutive
 // pieces of a record can be merged later (DecodeAcc, Merge) into what one
