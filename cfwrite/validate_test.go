@@ -104,7 +104,7 @@ func TestDeclarationErrors(t *testing.T) {
 		}, `calendar "lunar" is not one of`},
 		{"date not in calendar", func(w *cfwrite.Writer) error {
 			return w.SetTime(cfwrite.TimeAxis{Units: "days since 1979-02-29", Calendar: "standard"})
-		}, "does not exist in the standard calendar"},
+		}, "1979-02 has 28 days in the standard calendar"},
 		{"bounded step on unbounded axis", func(w *cfwrite.Writer) error {
 			if err := w.SetTime(tax); err != nil {
 				return err
