@@ -114,7 +114,7 @@ func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out st
 	}
 	// Refuse to overwrite before spending time on the run.
 	if !opt.Force {
-		for _, n := range append(output.OutputNames(), StateFile) {
+		for _, n := range append(append(output.OutputNames(), relations.OutputNames()...), StateFile) {
 			if _, err := os.Stat(filepath.Join(out, n)); err == nil {
 				return Report{}, fmt.Errorf("%s already holds results (%s); use --force to replace them or choose another --out", out, n)
 			}
