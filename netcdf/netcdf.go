@@ -375,7 +375,7 @@ func (f *File) varLocked(id C.int, unl map[C.int]bool) (*Var, error) {
 	return v, nil
 }
 
-// countOf checks start/count against the variable rank and the destination length.
+// sizes checks start/count against the variable rank and the destination length.
 func (v *Var) sizes(start, count []int, n int) ([]C.size_t, []C.size_t, error) {
 	if len(start) != len(v.Dims) || len(count) != len(v.Dims) {
 		return nil, nil, fmt.Errorf("netcdf: %s variable %s has %d dimensions, got start %v count %v", v.f.h.path, v.Name, len(v.Dims), start, count)
@@ -397,38 +397,37 @@ func (v *Var) sizes(start, count []int, n int) ([]C.size_t, []C.size_t, error) {
 	return cs, cc, nil
 }
 
+// slab transfers n values between Go memory and the hyperslab start/count:
+// it checks the sizes, does nothing for an empty slab, and otherwise runs
+// call (one nc_get_vara_* or nc_put_vara_*, named op in errors) on the
+// netCDF thread with the C start and count arrays.
+func (v *Var) slab(start, count []int, n int, op string, call func(start, count *C.size_t) C.int) error {
+	cs, cc, err := v.sizes(start, count, n)
+	if err != nil {
+		return err
+	}
+	if n == 0 {
+		return nil
+	}
+	var status C.int
+	do(func() { status = call(&cs[0], &cc[0]) })
+	return check(status, op, v.f.h.path, v.Name)
+}
+
 // ReadFloat64 reads the hyperslab start/count into dst (len(dst) must equal
 // the product of count), converting from the variable's type. Values are raw:
 // no unpacking or fill masking is done here (see package cf).
 func (v *Var) ReadFloat64(start, count []int, dst []float64) error {
-	cs, cc, err := v.sizes(start, count, len(dst))
-	if err != nil {
-		return err
-	}
-	if len(dst) == 0 {
-		return nil
-	}
-	var status C.int
-	do(func() {
-		status = C.nc_get_vara_double(v.f.ncid(), v.id, &cs[0], &cc[0], (*C.double)(unsafe.Pointer(&dst[0])))
+	return v.slab(start, count, len(dst), "nc_get_vara_double", func(cs, cc *C.size_t) C.int {
+		return C.nc_get_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&dst[0])))
 	})
-	return check(status, "nc_get_vara_double", v.f.h.path, v.Name)
 }
 
 // ReadFloat32 reads the hyperslab start/count into dst, like ReadFloat64.
 func (v *Var) ReadFloat32(start, count []int, dst []float32) error {
-	cs, cc, err := v.sizes(start, count, len(dst))
-	if err != nil {
-		return err
-	}
-	if len(dst) == 0 {
-		return nil
-	}
-	var status C.int
-	do(func() {
-		status = C.nc_get_vara_float(v.f.ncid(), v.id, &cs[0], &cc[0], (*C.float)(unsafe.Pointer(&dst[0])))
+	return v.slab(start, count, len(dst), "nc_get_vara_float", func(cs, cc *C.size_t) C.int {
+		return C.nc_get_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&dst[0])))
 	})
-	return check(status, "nc_get_vara_float", v.f.h.path, v.Name)
 }
 
 // ReadAllFloat64 reads the whole variable (for coordinates and small variables).
@@ -444,34 +443,16 @@ func (v *Var) ReadAllFloat64() ([]float64, error) {
 
 // WriteFloat64 writes src to the hyperslab start/count (file in data mode).
 func (v *Var) WriteFloat64(start, count []int, src []float64) error {
-	cs, cc, err := v.sizes(start, count, len(src))
-	if err != nil {
-		return err
-	}
-	if len(src) == 0 {
-		return nil
-	}
-	var status C.int
-	do(func() {
-		status = C.nc_put_vara_double(v.f.ncid(), v.id, &cs[0], &cc[0], (*C.double)(unsafe.Pointer(&src[0])))
+	return v.slab(start, count, len(src), "nc_put_vara_double", func(cs, cc *C.size_t) C.int {
+		return C.nc_put_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&src[0])))
 	})
-	return check(status, "nc_put_vara_double", v.f.h.path, v.Name)
 }
 
 // WriteFloat32 writes src to the hyperslab start/count (file in data mode).
 func (v *Var) WriteFloat32(start, count []int, src []float32) error {
-	cs, cc, err := v.sizes(start, count, len(src))
-	if err != nil {
-		return err
-	}
-	if len(src) == 0 {
-		return nil
-	}
-	var status C.int
-	do(func() {
-		status = C.nc_put_vara_float(v.f.ncid(), v.id, &cs[0], &cc[0], (*C.float)(unsafe.Pointer(&src[0])))
+	return v.slab(start, count, len(src), "nc_put_vara_float", func(cs, cc *C.size_t) C.int {
+		return C.nc_put_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&src[0])))
 	})
-	return check(status, "nc_put_vara_float", v.f.h.path, v.Name)
 }
 
 // Unlimited is the length to pass to DefDim for an unlimited dimension.

@@ -412,3 +412,78 @@ func ExampleOpen() {
 	fmt.Println(t.Name, t.Shape(), units, vals)
 	// Output: t [3] "K" [280 290 300]
 }
+
+// TestSlabTransfers runs each read and write method on an empty slab (a
+// no-op), a buffer of the wrong length and a wrong rank (errors naming the
+// file and variable), and a whole variable, which reading back
+// in the other precision returns unchanged (the values are exact in
+// both float32 and float64).
+func TestSlabTransfers(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "slab.nc")
+	f, err := Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.DefDim("y", 2)
+	f.DefDim("x", 3)
+	v32, err := f.DefVar("f32", Float, []string{"y", "x"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v64, err := f.DefVar("f64", Double, []string{"y", "x"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := f.EndDef(); err != nil {
+		t.Fatal(err)
+	}
+	want := []float64{1.5, -2, 3.25, 1e6, 0, -0.125}
+	want32 := make([]float32, len(want))
+	for i, x := range want {
+		want32[i] = float32(x)
+	}
+	type op struct {
+		name string
+		call func(start, count []int, n int) error
+	}
+	ops := []op{
+		{"WriteFloat32", func(s, c []int, n int) error { return v32.WriteFloat32(s, c, append([]float32(nil), want32[:n]...)) }},
+		{"WriteFloat64", func(s, c []int, n int) error { return v64.WriteFloat64(s, c, append([]float64(nil), want[:n]...)) }},
+		{"ReadFloat32", func(s, c []int, n int) error { return v64.ReadFloat32(s, c, make([]float32, n)) }},
+		{"ReadFloat64", func(s, c []int, n int) error { return v32.ReadFloat64(s, c, make([]float64, n)) }},
+	}
+	for _, o := range ops {
+		if err := o.call([]int{0, 0}, []int{0, 3}, 0); err != nil {
+			t.Errorf("%s of an empty slab: %v", o.name, err)
+		}
+		if err := o.call([]int{0, 0}, []int{2, 3}, 5); err == nil || !strings.Contains(err.Error(), "buffer holds 5 values") || !strings.Contains(err.Error(), path) {
+			t.Errorf("%s with a short buffer: err = %v", o.name, err)
+		}
+		if err := o.call([]int{0}, []int{3}, 3); err == nil || !strings.Contains(err.Error(), "has 2 dimensions") {
+			t.Errorf("%s with the wrong rank: err = %v", o.name, err)
+		}
+		if o.name[0] == 'W' {
+			if err := o.call([]int{0, 0}, []int{2, 3}, 6); err != nil {
+				t.Fatalf("%s: %v", o.name, err)
+			}
+		}
+	}
+	got64 := make([]float64, 6)
+	if err := v32.ReadFloat64([]int{0, 0}, []int{2, 3}, got64); err != nil {
+		t.Fatal(err)
+	}
+	got32 := make([]float32, 6)
+	if err := v64.ReadFloat32([]int{0, 0}, []int{2, 3}, got32); err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(got64, want) || !reflect.DeepEqual(got32, want32) {
+		t.Errorf("read back %v and %v, want %v", got64, got32, want)
+	}
+	// A slab past the end is netCDF-C's error, named by the C call.
+	if err := v64.ReadFloat64([]int{1, 0}, []int{2, 3}, make([]float64, 6)); err == nil || !strings.Contains(err.Error(), "nc_get_vara_double") {
+		t.Errorf("read past the end: err = %v", err)
+	}
+	if err := f.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
