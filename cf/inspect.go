@@ -47,6 +47,9 @@ type VarReport struct {
 	SIUnits    string   `json:"si_units,omitempty"`
 	Notes      []string `json:"notes,omitempty"`
 	Problems   []string `json:"problems,omitempty"`
+	// Spec is how Inspect opened the field (variable and level), so that
+	// callers can open it again the same way.
+	Spec Spec `json:"-"`
 }
 
 // levelFor is the pressure inspect uses for a role with a vertical axis.
@@ -142,7 +145,8 @@ func inspectVar(path string, m RoleMatch) VarReport {
 	if m.NLevels > 1 {
 		level = levelFor(m.Role)
 	}
-	fld, err := Open([]string{path}, Spec{Role: m.Role, Var: m.Var, Level: level})
+	vr.Spec = Spec{Role: m.Role, Var: m.Var, Level: level}
+	fld, err := Open([]string{path}, vr.Spec)
 	if err != nil {
 		vr.Problems = append(vr.Problems, err.Error())
 		// still say what the units are, if we can

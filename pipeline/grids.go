@@ -55,7 +55,7 @@ func CompareGrids(reports []*cf.FileReport) (GridReport, error) {
 			if len(vr.Problems) > 0 {
 				continue
 			}
-			f, err := cf.Open([]string{fr.Path}, cf.Spec{Role: vr.Role, Var: vr.Var, Level: levelOf(vr.Role)})
+			f, err := cf.Open([]string{fr.Path}, vr.Spec)
 			if err != nil {
 				continue
 			}
@@ -83,16 +83,6 @@ func CompareGrids(reports []*cf.FileReport) (GridReport, error) {
 		}
 	}
 	return rep, nil
-}
-
-func levelOf(r cf.Role) float64 {
-	switch r {
-	case cf.RoleAirTemp, cf.RoleSpecHum:
-		return 70000
-	case cf.RoleOmega:
-		return 50000
-	}
-	return 0
 }
 
 // sameCentres reports whether two grids have the same cell centres within
