@@ -4,16 +4,16 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io/fs"
-	"math"
 	"os"
 	"path/filepath"
 	"strconv"
 
 	"lidscope/cfwrite"
+	"lidscope/jsonnum"
 	"lidscope/relations"
+	"lidscope/stage"
 )
 
 // Output files of a comparison.
@@ -31,61 +31,58 @@ type WriteOptions struct {
 }
 
 // Write writes comparison.csv, comparison.json and comparison_maps.nc
-// into dir. Each file is written under a temporary name and renamed.
+// into dir, as one unit (package stage): every file is written into a
+// hidden staging folder first and moved into place only when all are
+// complete, so a failure leaves no file of this call under a final name.
 func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
-	names := []string{CSVFile, JSONFile, MapsFile}
+	names := []string{CSVFile, JSONFile}
+	if len(res.Candidates) > 0 {
+		names = append(names, MapsFile)
+	}
 	if !opt.Force {
-		for _, n := range names {
-			if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
-				return nil, fmt.Errorf("%s already exists: use --force to replace it or choose another --out: %w", filepath.Join(dir, n), fs.ErrExist)
-			} else if !errors.Is(err, fs.ErrNotExist) {
-				return nil, err
-			}
+		have, err := stage.Existing(dir, []string{CSVFile, JSONFile, MapsFile})
+		if err != nil {
+			return nil, err
+		}
+		if len(have) > 0 {
+			return nil, fmt.Errorf("%s already exists: use --force to replace it or choose another --out: %w", filepath.Join(dir, have[0]), fs.ErrExist)
 		}
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
 	}
-	var out []string
+	st, err := stage.New(dir, ".lidscope-compare-*")
+	if err != nil {
+		return nil, err
+	}
+	defer st.Remove()
 	csvb, err := csvBytes(res)
 	if err != nil {
 		return nil, err
 	}
-	if err := atomicWrite(filepath.Join(dir, CSVFile), csvb); err != nil {
-		return out, err
+	if err := st.WriteFile(CSVFile, csvb); err != nil {
+		return nil, err
 	}
-	out = append(out, filepath.Join(dir, CSVFile))
 	jb, err := jsonBytes(res, opt)
 	if err != nil {
-		return out, err
+		return nil, err
 	}
-	if err := atomicWrite(filepath.Join(dir, JSONFile), jb); err != nil {
-		return out, err
+	if err := st.WriteFile(JSONFile, jb); err != nil {
+		return nil, err
 	}
-	out = append(out, filepath.Join(dir, JSONFile))
 	if len(res.Candidates) > 0 {
-		if err := writeMaps(filepath.Join(dir, MapsFile), res, opt); err != nil {
-			return out, err
+		if err := writeMaps(st.Path(MapsFile), res, opt); err != nil {
+			return nil, err
 		}
-		out = append(out, filepath.Join(dir, MapsFile))
+	}
+	if err := st.Commit(names, opt.Force); err != nil {
+		return nil, err
+	}
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = filepath.Join(dir, n)
 	}
 	return out, nil
-}
-
-func atomicWrite(path string, b []byte) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	defer os.Remove(tmp.Name())
-	if _, err := tmp.Write(b); err != nil {
-		tmp.Close()
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return err
-	}
-	return os.Rename(tmp.Name(), path)
 }
 
 func num(x float64) string {
@@ -195,17 +192,11 @@ func refFlipKeys(res *Result) []flipKey {
 	return out
 }
 
-type jnum struct {
-	Value *float64 `json:"value"`
-	Units string   `json:"units"`
-}
+// jnum is the JSON number with units every lidscope JSON file uses (NaN
+// and ±Inf as null).
+type jnum = jsonnum.Num
 
-func jv(x float64, u string) jnum {
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return jnum{nil, u}
-	}
-	return jnum{&x, u}
-}
+func jv(x float64, u string) jnum { return jsonnum.Num{Value: x, Units: u} }
 
 func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 	type jscalar struct {
