@@ -15,6 +15,7 @@ import (
 	"lidscope/accumulate"
 	"lidscope/output"
 	"lidscope/relations"
+	"lidscope/stage"
 )
 
 // StateFile holds a finished run's complete accumulators (regime
@@ -50,24 +51,15 @@ func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations
 	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes()}); err != nil {
 		return fmt.Errorf("encoding the run state: %w", err)
 	}
-	final := filepath.Join(dir, StateFile)
-	tmp, err := os.CreateTemp(dir, "."+StateFile+".tmp-*")
+	st, err := stage.New(dir, ".lidscope-state-*")
 	if err != nil {
 		return err
 	}
-	defer os.Remove(tmp.Name())
-	if _, err := tmp.Write(buf.Bytes()); err != nil {
-		tmp.Close()
-		return fmt.Errorf("writing %s: %w", final, err)
+	defer st.Remove()
+	if err := st.WriteFile(StateFile, buf.Bytes()); err != nil {
+		return fmt.Errorf("writing %s: %w", filepath.Join(dir, StateFile), err)
 	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		return err
-	}
-	return os.Rename(tmp.Name(), final)
+	return st.Commit([]string{StateFile}, true)
 }
 
 // loadedState is a decoded run state; rel is nil unless asked for.
