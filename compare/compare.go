@@ -21,7 +21,6 @@ package compare
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"lidscope/accumulate"
 	"lidscope/output"
@@ -168,7 +167,7 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 		}
 		cr := Candidate{Name: c.Name, Dir: c.Dir, Diff: map[string][]float64{}}
 		rm, cm := maps(ref), maps(c)
-		w := weights(ref.Acc.L)
+		w := ref.Acc.L.BandWeight
 		for _, mn := range mapNames {
 			st, diff := mapStat(rm[mn.name], cm[mn.name], w)
 			st.Name, st.Units = mn.name, mn.units
@@ -210,8 +209,6 @@ func (e *MismatchError) Error() string {
 	}
 	return s
 }
-
-func weights(l accumulate.Layout) []float64 { return l.BandWeight }
 
 func maps(r Run) map[string][]float64 {
 	spy := r.Meta.StepsPerYear
@@ -336,14 +333,4 @@ func bandMean(a *accumulate.Acc, k int, r regimes.Regime) float64 {
 		return math.NaN()
 	}
 	return swx / sw
-}
-
-// SortedMapNames lists the compared maps.
-func SortedMapNames() []string {
-	var out []string
-	for _, m := range mapNames {
-		out = append(out, m.name)
-	}
-	sort.Strings(out)
-	return out
 }

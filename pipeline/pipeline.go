@@ -11,7 +11,6 @@ package pipeline
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"log/slog"
 	"math"
@@ -640,7 +639,6 @@ func analysisGrid(gp GridPlan, all []*field) (*grid.Grid, error) {
 }
 
 func attachWeights(gp GridPlan, target *grid.Grid, all []*field, notes *[]string) error {
-	type key struct{ g string }
 	cache := map[string]*regrid.Weights{}
 	for _, f := range all {
 		g, err := gridOf(f.f)
@@ -844,6 +842,3 @@ func readMask(f *field, o Ocean, gp GridPlan, ocean []bool) error {
 	}
 	return nil
 }
-
-// ErrNoSteps is returned when nothing is left to analyse.
-var ErrNoSteps = errors.New("no time steps")
