@@ -50,7 +50,7 @@ type Layout struct {
 	BandWeight []float64 // area inside the tropical band (0 outside)
 	Quantities []string  // names of the per-column quantities, e.g. eis, lts, low_cloud
 	// Cloud names the quantity that is the analysis's cloud field (the
-	// recipe's cloud role: low_cloud or cloud).
+	// study's cloud role: low_cloud or cloud).
 	Cloud   string
 	Regions []Region
 }

@@ -1,4 +1,4 @@
-// Package analysis runs lidscope's main job for the datasets of a recipe:
+// Package analysis runs lidscope's main job for the datasets of a study:
 // it turns each dataset into a pipeline plan, streams the record through
 // the pipeline, and writes the results with their provenance (package
 // output). It is the library behind `lidscope run` and `lidscope demo`.
@@ -38,7 +38,7 @@ type Options struct {
 	// datasets each goes to OutDir/<dataset name>.
 	OutDir string
 	Force  bool // replace existing outputs
-	// NoPlots skips the figures (otherwise drawn when the recipe's
+	// NoPlots skips the figures (otherwise drawn when the study's
 	// output.plots is true, the default).
 	NoPlots bool
 	// NoCoastlines leaves Earth's coastlines off the maps (the demo's
@@ -62,8 +62,8 @@ type Report struct {
 	Relations *relations.Results
 }
 
-// Run runs the named datasets of r (all when names is empty), in recipe order.
-func Run(ctx context.Context, r *config.Recipe, names []string, opt Options) ([]Report, error) {
+// Run runs the named datasets of r (all when names is empty), in study order.
+func Run(ctx context.Context, r *config.Study, names []string, opt Options) ([]Report, error) {
 	var ds []*config.Dataset
 	if len(names) == 0 {
 		for i := range r.Datasets {
@@ -97,7 +97,7 @@ func Run(ctx context.Context, r *config.Recipe, names []string, opt Options) ([]
 }
 
 // RunDataset runs one dataset and writes its results to out.
-func RunDataset(ctx context.Context, r *config.Recipe, d *config.Dataset, out string, opt Options) (Report, error) {
+func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out string, opt Options) (Report, error) {
 	log := opt.Log
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
@@ -202,7 +202,7 @@ func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relati
 	}
 	if rel != nil {
 		rf, err := relations.Write(out, rel, relations.Meta{Dataset: meta.Dataset, Title: meta.Title, Version: meta.Version,
-			Command: opt.Command, RecipeHash: meta.RecipeHash, Period: meta.Period, Source: "lidscope " + meta.Version}, relations.WriteOptions{Force: opt.Force})
+			Command: opt.Command, StudyHash: meta.StudyHash, Period: meta.Period, Source: "lidscope " + meta.Version}, relations.WriteOptions{Force: opt.Force})
 		if err != nil {
 			return files, fmt.Errorf("writing the relationship results: %w", err)
 		}
@@ -217,28 +217,28 @@ func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relati
 // timeUnits is the time axis of the series outputs.
 const timeUnits = "days since 1850-01-01 00:00:00"
 
-func metaFor(r *config.Recipe, d *config.Dataset, res *pipeline.Result, opt Options, start time.Time) (output.Meta, error) {
+func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Options, start time.Time) (output.Meta, error) {
 	c := r.Analysis.Classifier()
 	b := r.Analysis.Band
 	m := output.Meta{
-		Dataset:          d.Name,
-		Title:            fmt.Sprintf("lidscope regime diagnostics: %s", d.Name),
-		Version:          opt.Version,
-		Command:          strings.Join(opt.Command, " "),
-		Recipe:           r.Resolved(),
-		RecipeHash:       r.Hash(),
-		MetricsRecipe:    d.Metrics.Text(),
-		RegimeDefinition: RegimeText(c, b),
-		Delta:            c.Delta,
-		HalfWidth:        c.HalfWidth,
-		BandSouth:        b.South,
-		BandNorth:        b.North,
-		StepsPerYear:     res.StepsPerYear,
-		Calendar:         res.Calendar,
-		Notes:            res.Notes,
-		Grid:             res.Grid,
-		Start:            start,
-		End:              time.Now(),
+		Dataset:            d.Name,
+		Title:              fmt.Sprintf("lidscope regime diagnostics: %s", d.Name),
+		Version:            opt.Version,
+		Command:            strings.Join(opt.Command, " "),
+		Study:              r.Resolved(),
+		StudyHash:          r.Hash(),
+		MetricsConventions: d.Metrics.Text(),
+		RegimeDefinition:   RegimeText(c, b),
+		Delta:              c.Delta,
+		HalfWidth:          c.HalfWidth,
+		BandSouth:          b.South,
+		BandNorth:          b.North,
+		StepsPerYear:       res.StepsPerYear,
+		Calendar:           res.Calendar,
+		Notes:              res.Notes,
+		Grid:               res.Grid,
+		Start:              start,
+		End:                time.Now(),
 	}
 	if d.Description != "" {
 		m.Title += " — " + d.Description

@@ -58,7 +58,7 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
 		t.Fatal(err)
 	}
-	rp := filepath.Join(data, fixtures.RecipeFile)
+	rp := filepath.Join(data, fixtures.StudyFile)
 	run := func(out string, flags map[string]string) Report {
 		t.Helper()
 		r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: flags})

@@ -2,7 +2,7 @@ package analysis
 
 // Bad input at the library level: the errors analysis.Run returns wrap the
 // cause with %w all the way up, so a program embedding lidscope can tell a
-// damaged file from a recipe problem with errors.Is / errors.As, and a
+// damaged file from a study problem with errors.Is / errors.As, and a
 // failed dataset yields no report. The command-level tests of the same
 // breaks (messages, exit status, no partial outputs) are in
 // cmd/lidscope/badinput_test.go.
@@ -52,7 +52,7 @@ func badLibSST(t *testing.T, dir string) []string {
 func TestBadErrorsWrap(t *testing.T) {
 	cases := []struct {
 		name   string
-		break_ func(t *testing.T, dir string) map[string]string // returns recipe flags
+		break_ func(t *testing.T, dir string) map[string]string // returns study flags
 		is     error
 	}{
 		{"NetCDF-4 file truncated", func(t *testing.T, dir string) map[string]string {
@@ -72,7 +72,7 @@ func TestBadErrorsWrap(t *testing.T) {
 			}
 			return nil
 		}, netcdf.ErrNotNetCDF},
-		{"the recipe names a variable the file lacks", func(t *testing.T, dir string) map[string]string {
+		{"the study names a variable the file lacks", func(t *testing.T, dir string) map[string]string {
 			return map[string]string{"datasets.0.variables": "{sst: tos}"}
 		}, netcdf.ErrNotVar},
 	}
@@ -80,7 +80,7 @@ func TestBadErrorsWrap(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			dir := badLibWorld(t)
 			flags := c.break_(t, dir)
-			r, err := config.Load(filepath.Join(dir, fixtures.RecipeFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: flags})
+			r, err := config.Load(filepath.Join(dir, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: flags})
 			if err != nil {
 				t.Fatalf("config.Load: %v", err)
 			}
@@ -102,9 +102,9 @@ func TestBadErrorsWrap(t *testing.T) {
 			}
 		})
 	}
-	t.Run("recipe typo", func(t *testing.T) {
+	t.Run("study typo", func(t *testing.T) {
 		dir := badLibWorld(t)
-		_, err := config.Load(filepath.Join(dir, fixtures.RecipeFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"analysis.treshold": "1"}})
+		_, err := config.Load(filepath.Join(dir, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"analysis.treshold": "1"}})
 		var ce *config.Error
 		if !errors.As(err, &ce) {
 			t.Fatalf("error %v (%T) is not a *config.Error", err, err)
@@ -114,7 +114,7 @@ func TestBadErrorsWrap(t *testing.T) {
 
 // TestBadDemoRelativeFolder: with a relative folder (the command's default
 // is "lidscope-demo") the demo's results go to FOLDER/results. config
-// resolves a relative output.dir against the recipe's folder, so before
+// resolves a relative output.dir against the study's folder, so before
 // the folder was made absolute they landed in FOLDER/data/FOLDER/results.
 func TestBadDemoRelativeFolder(t *testing.T) {
 	t.Chdir(t.TempDir())

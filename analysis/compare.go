@@ -61,10 +61,10 @@ func CompareDirs(ref string, cands []string, out string, opt CompareOptions) (*c
 	return res, append(files, figs...), nil
 }
 
-// CompareRecipe runs every dataset of a recipe into out/<dataset> and
+// CompareStudy runs every dataset of a study into out/<dataset> and
 // compares the candidates with the reference dataset (the first when
 // reference is empty), writing the comparison into out.
-func CompareRecipe(ctx context.Context, r *config.Recipe, reference, out string, opt CompareOptions) (*compare.Result, []string, error) {
+func CompareStudy(ctx context.Context, r *config.Study, reference, out string, opt CompareOptions) (*compare.Result, []string, error) {
 	if len(r.Datasets) < 2 {
 		return nil, nil, fmt.Errorf("%s has %d dataset(s); a comparison needs a reference and at least one candidate", r.Path, len(r.Datasets))
 	}

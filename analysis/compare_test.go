@@ -23,7 +23,7 @@ func runWorld(t *testing.T, dir string, o fixtures.Options) string {
 	if _, err := fixtures.Generate(data, o); err != nil {
 		t.Fatal(err)
 	}
-	r, err := config.Load(filepath.Join(data, fixtures.RecipeFile), config.LoadOptions{LookupEnv: config.NoEnvironment,
+	r, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment,
 		Flags: map[string]string{"output.dir": filepath.Join(dir, "results")}})
 	if err != nil {
 		t.Fatal(err)

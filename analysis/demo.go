@@ -16,10 +16,10 @@ import (
 // DemoReport is the outcome of the demo: where things went, and how the
 // analysis compares with what the synthetic worlds were built to contain.
 type DemoReport struct {
-	DataDir, RecipePath string
-	Reports             []Report
-	Truth               *fixtures.Truth
-	Checks              []Check
+	DataDir, StudyPath string
+	Reports            []Report
+	Truth              *fixtures.Truth
+	Checks             []Check
 	// The second synthetic world, a "model" with other sensitivities, and
 	// its comparison with the first.
 	ModelDataDir string
@@ -76,7 +76,7 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 	if opt.Model != nil {
 		mo = *opt.Model
 	}
-	// Absolute: config resolves a relative output.dir against the recipe's
+	// Absolute: config resolves a relative output.dir against the study's
 	// folder (dir/data), not against the working directory.
 	res, err := filepath.Abs(filepath.Join(dir, "results"))
 	if err != nil {
@@ -94,7 +94,7 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 		if err != nil {
 			return nil, fmt.Errorf("generating the synthetic world %s: %w", sc.Name, err)
 		}
-		rp := filepath.Join(data, fixtures.RecipeFile)
+		rp := filepath.Join(data, fixtures.StudyFile)
 		r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"output.dir": res}})
 		if err != nil {
 			return nil, err
@@ -112,7 +112,7 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 			dr.Checks = append(dr.Checks, c)
 		}
 		if k == 0 {
-			dr.DataDir, dr.RecipePath, dr.Truth = data, rp, truth
+			dr.DataDir, dr.StudyPath, dr.Truth = data, rp, truth
 		} else {
 			dr.ModelDataDir, dr.ModelTruth = data, truth
 		}

@@ -111,7 +111,7 @@ func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
 // dataset's record and writes the merged results to out: the regime
 // outputs, the relationship outputs (relations.Write) and the merged run
 // state. The runs must agree on everything but the period: dataset,
-// metrics recipe, regime definition, grid, quantities, regions, calendar,
+// metrics conventions, regime definition, grid, quantities, regions, calendar,
 // sampling and the relationship configuration. Runs whose relationships
 // are anomalies (relations.Anomaly) are refused: each piece took its
 // anomalies against the climatology of its own period, so no merge gives
@@ -155,7 +155,7 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 			}
 		}
 		check("dataset", a.Dataset, b.Dataset)
-		check("metrics recipe", a.MetricsRecipe, b.MetricsRecipe)
+		check("metrics conventions", a.MetricsConventions, b.MetricsConventions)
 		check("regime definition", a.RegimeDefinition, b.RegimeDefinition)
 		check("time steps per year", a.StepsPerYear, b.StepsPerYear)
 		check("calendar", a.Calendar, b.Calendar)
@@ -179,10 +179,10 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	acc, rel := first.acc, first.rel
 	meta := first.meta
 	hashes := []string{}
-	recipes := []string{}
+	studies := []string{}
 	for i, r := range runs {
-		hashes = append(hashes, r.meta.RecipeHash)
-		recipes = append(recipes, fmt.Sprintf("# run %d: %s (%s)\n%s", i+1, r.dir, r.meta.Period, r.meta.Recipe))
+		hashes = append(hashes, r.meta.StudyHash)
+		studies = append(studies, fmt.Sprintf("# run %d: %s (%s)\n%s", i+1, r.dir, r.meta.Period, r.meta.Study))
 		if i == 0 {
 			continue
 		}
@@ -206,9 +206,9 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	}
 	meta.Notes = append(meta.Notes, fmt.Sprintf("merged from %d runs: %s", len(runs), strings.Join(dirs, ", ")))
 	meta.Period = strings.SplitN(first.meta.Period, " … ", 2)[0] + " … " + lastOf(runs[len(runs)-1].meta.Period)
-	meta.Recipe = strings.Join(recipes, "\n")
+	meta.Study = strings.Join(studies, "\n")
 	sum := sha256.Sum256([]byte(strings.Join(hashes, "+")))
-	meta.RecipeHash = hex.EncodeToString(sum[:])
+	meta.StudyHash = hex.EncodeToString(sum[:])
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()

@@ -115,7 +115,7 @@ func TestMergeRefusesAnomalyPieces(t *testing.T) {
 	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
 		t.Fatal(err)
 	}
-	rp := filepath.Join(data, fixtures.RecipeFile)
+	rp := filepath.Join(data, fixtures.StudyFile)
 	run := func(out string, flags map[string]string) Report {
 		t.Helper()
 		flags["relationships.mode"] = "anomaly"

@@ -5,7 +5,7 @@
 # deflate, 10 years per file), and runs under /usr/bin/time -v
 #
 #   1. the baseline: bench/readonly reads every slab the run reads, and
-#   2. lidscope run on the world's recipe,
+#   2. lidscope run on the world's study,
 #
 # then prints a table of wall time, CPU time and peak RSS and writes it to
 # bench/out/ (gitignored). Peak RSS must not grow with the record length.
@@ -78,7 +78,7 @@ table="$out/scaling-$stamp.txt"
 rows=()
 for y in $years; do
   data="$work/world-${res}deg-${y}y"
-  if [ ! -f "$data/recipe.yaml" ]; then
+  if [ ! -f "$data/study.yaml" ]; then
     echo "generating $data" >&2
     "$out/bin/gen" -out "$data" -resolution "$res" -years "$y" -years-per-file "$perfile" >&2
   fi
@@ -90,7 +90,7 @@ for y in $years; do
   rows+=("$row")
   results="$work/results-${res}deg-${y}y"
   cat $(find "$data" -name '*.nc') >/dev/null
-  row=$(measure "${y}y" run "$out/run-${y}y" "$out/bin/lidscope" run --quiet --no-plots --force --out "$results" "$data/recipe.yaml") || exit 1
+  row=$(measure "${y}y" run "$out/run-${y}y" "$out/bin/lidscope" run --quiet --no-plots --force --out "$results" "$data/study.yaml") || exit 1
   rows+=("$row")
   [ "${BENCH_KEEP:-0}" = 1 ] || rm -rf "$results"
 done

@@ -69,7 +69,7 @@ func ParseCalendar(name string) (Calendar, error) {
 	}
 	if key == "none" {
 		return 0, fmt.Errorf("%w: calendar %q has no dates (CF-1.10 §4.4.1), so the time steps cannot be matched to months; "+
-			"give the file a real calendar or declare the time axis in the recipe", ErrCalendar, name)
+			"give the file a real calendar or declare the time axis in the study", ErrCalendar, name)
 	}
 	return 0, fmt.Errorf("%w: unknown calendar %q; CF-1.10 §4.4.1 names %s", ErrCalendar, name,
 		strings.Join(CalendarNames(), ", "))
@@ -173,7 +173,7 @@ func (c Calendar) CheckDay(year, month, day int) error {
 	}
 	if !c.HasYearZero() && year < 1 {
 		return fmt.Errorf("%w: year %d does not exist in the %s calendar, whose years start at 1 (CF-1.10 §4.4.1 allows year 0 there only in a deprecated climatology use); "+
-			"use proleptic_gregorian or a model calendar for such dates, or declare the time axis in the recipe", ErrDate, year, c)
+			"use proleptic_gregorian or a model calendar for such dates, or declare the time axis in the study", ErrDate, year, c)
 	}
 	if month < 1 || month > 12 {
 		return fmt.Errorf("%w: month %d is not 1–12", ErrDate, month)

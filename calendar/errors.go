@@ -8,7 +8,7 @@ var (
 	ErrUnits = errors.New("bad time units")
 	// ErrNotCF marks a time units string in a form that CF does not define
 	// (no "since", a date written as a number). The time axis of such a file
-	// can be declared in the recipe instead.
+	// can be declared in the study instead.
 	ErrNotCF = errors.New("time units not in CF form")
 	// ErrCalendar marks an unknown or unusable calendar name.
 	ErrCalendar = errors.New("bad calendar")

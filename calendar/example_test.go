@@ -40,7 +40,7 @@ func ExampleParseUnits_notCF() {
 	fmt.Println(err)
 	// Output:
 	// true
-	// time units not in CF form: time units "Month" name a unit but no reference date (no "since <date>"), so the values cannot be placed in time; CF-1.10 §4.4 time units are "<unit> since <date>", e.g. "days since 1850-01-01"; fix the attribute or declare the time axis in the recipe
+	// time units not in CF form: time units "Month" name a unit but no reference date (no "since <date>"), so the values cannot be placed in time; CF-1.10 §4.4 time units are "<unit> since <date>", e.g. "days since 1850-01-01"; fix the attribute or declare the time axis in the study
 }
 
 func ExampleParse() {

@@ -136,7 +136,7 @@ func Parse(units, calendar string, opt Options) (Units, error) {
 
 // howToFix ends the error messages about units that are not CF.
 const howToFix = `; CF-1.10 §4.4 time units are "<unit> since <date>", e.g. "days since 1850-01-01"; ` +
-	`fix the attribute or declare the time axis in the recipe`
+	`fix the attribute or declare the time axis in the study`
 
 var unitWords = map[string]Unit{
 	"s": Seconds, "sec": Seconds, "secs": Seconds, "second": Seconds, "seconds": Seconds,
@@ -193,7 +193,7 @@ func ParseUnits(units string, cal Calendar, opt Options) (Units, error) {
 	}
 	if unit.monthStep() != 0 && !opt.CalendarMonths {
 		return Units{}, fmt.Errorf("%w: time units %q count %s, which CF-1.10 §4.4 advises against (UDUNITS takes a month as 1/12 of a tropical year, about 30.44 days, not a calendar month); "+
-			"opt in to reading them as calendar %s counted from the reference, or declare the time axis in the recipe", ErrUnits, units, unit, unit)
+			"opt in to reading them as calendar %s counted from the reference, or declare the time axis in the study", ErrUnits, units, unit, unit)
 	}
 	if len(fields) == 2 {
 		return Units{}, fmt.Errorf("%w: time units %q have nothing after \"since\"%s", ErrUnits, units, howToFix)
@@ -234,7 +234,7 @@ func parseNoSince(units string, fields []string, cal Calendar, opt Options) (Uni
 	if lower == "day as %y%m%d.%f" {
 		if !opt.AbsoluteDays {
 			return Units{}, fmt.Errorf("%w: time units %q store each date as a number YYYYMMDD.fraction, which CF does not define; "+
-				"opt in to that form, or declare the time axis in the recipe", ErrNotCF, units)
+				"opt in to that form, or declare the time axis in the study", ErrNotCF, units)
 		}
 		return Units{unit: AbsoluteDay, cal: cal, original: units}, nil
 	}

@@ -66,7 +66,7 @@ func TestParseUnitsAccepted(t *testing.T) {
 }
 
 // Non-CF and malformed units: each error says what was found, and the
-// non-CF ones say the recipe can declare the time axis.
+// non-CF ones say the study can declare the time axis.
 func TestParseUnitsErrors(t *testing.T) {
 	cases := []struct {
 		units string
@@ -75,15 +75,15 @@ func TestParseUnitsErrors(t *testing.T) {
 		want  error
 		text  []string
 	}{
-		{"", Standard, Options{}, ErrNotCF, []string{"empty", "recipe"}},
-		{"Month", Standard, Options{}, ErrNotCF, []string{`"Month" name a unit but no reference date`, "declare the time axis in the recipe"}},
+		{"", Standard, Options{}, ErrNotCF, []string{"empty", "study"}},
+		{"Month", Standard, Options{}, ErrNotCF, []string{`"Month" name a unit but no reference date`, "declare the time axis in the study"}},
 		{"months", Standard, Options{}, ErrNotCF, []string{`"months"`, "no reference date"}},
 		{"days", Standard, Options{}, ErrNotCF, []string{"no reference date"}},
-		{"YYYYMMDD", Standard, Options{}, ErrNotCF, []string{`"YYYYMMDD"`, "dates written as numbers", "recipe"}},
+		{"YYYYMMDD", Standard, Options{}, ErrNotCF, []string{`"YYYYMMDD"`, "dates written as numbers", "study"}},
 		{"yyyymmdd", Standard, Options{}, ErrNotCF, []string{"dates written as numbers"}},
-		{"day as %Y%m%d.%f", Standard, Options{}, ErrNotCF, []string{"YYYYMMDD.fraction", "CF does not define", "opt in", "recipe"}},
+		{"day as %Y%m%d.%f", Standard, Options{}, ErrNotCF, []string{"YYYYMMDD.fraction", "CF does not define", "opt in", "study"}},
 		{"month as %Y%m.%f", Standard, Options{AbsoluteDays: true}, ErrNotCF, []string{`"month as %Y%m.%f"`, `only "day as %Y%m%d.%f"`}},
-		{"months since 1850-01-01", Standard, Options{}, ErrUnits, []string{"advises against", "about 30.44 days", "recipe"}},
+		{"months since 1850-01-01", Standard, Options{}, ErrUnits, []string{"advises against", "about 30.44 days", "study"}},
 		{"years since 0001-01-01", NoLeap, Options{}, ErrUnits, []string{"count years", "advises against"}},
 		{"hours after 1900-01-01", Standard, Options{}, ErrNotCF, []string{`use "after" where CF requires "since"`}},
 		{"days from 1900-01-01", Standard, Options{}, ErrNotCF, []string{`"from"`}},

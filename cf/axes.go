@@ -124,7 +124,7 @@ type coord struct {
 	Length int
 }
 
-// Overrides lets a recipe name coordinate variables that a file does not
+// Overrides lets a study name coordinate variables that a file does not
 // declare in a CF way, and fix non-CF metadata.
 type Overrides struct {
 	Lat, Lon, Level, Time string // coordinate variable names
@@ -140,7 +140,7 @@ type Overrides struct {
 // findCoords identifies the coordinate of each dimension of v: a
 // coordinate variable (a 1-D variable named like its dimension, CF §1.2),
 // or a 1-D auxiliary coordinate named in the coordinates attribute (CF §5),
-// or a recipe override.
+// or a study override.
 func findCoords(f *netcdf.File, v *netcdf.Var, ov Overrides) ([]coord, error) {
 	cs := make([]coord, len(v.Dims))
 	byDim := map[string]*netcdf.Var{}
@@ -176,20 +176,20 @@ func findCoords(f *netcdf.File, v *netcdf.Var, ov Overrides) ([]coord, error) {
 		}
 		cv, err := f.Var(name)
 		if err != nil {
-			return nil, fmt.Errorf("%s: the recipe names %s as the %s coordinate, but it is not in the file: %w", f.Path(), name, ax, err)
+			return nil, fmt.Errorf("%s: the study names %s as the %s coordinate, but it is not in the file: %w", f.Path(), name, ax, err)
 		}
 		if len(cv.Dims) != 1 {
-			return nil, fmt.Errorf("%s: the recipe names %s as the %s coordinate, but it has %d dimensions (need 1)", f.Path(), name, ax, len(cv.Dims))
+			return nil, fmt.Errorf("%s: the study names %s as the %s coordinate, but it has %d dimensions (need 1)", f.Path(), name, ax, len(cv.Dims))
 		}
 		found := false
 		for i, d := range v.Dims {
 			if d.Name == cv.Dims[0].Name {
-				cs[i].Axis, cs[i].Var, cs[i].How = ax, cv, "recipe override"
+				cs[i].Axis, cs[i].Var, cs[i].How = ax, cv, "study override"
 				found = true
 			}
 		}
 		if !found {
-			return nil, fmt.Errorf("%s: the recipe names %s as the %s coordinate, but its dimension %s is not a dimension of %s", f.Path(), name, ax, cv.Dims[0].Name, v.Name)
+			return nil, fmt.Errorf("%s: the study names %s as the %s coordinate, but its dimension %s is not a dimension of %s", f.Path(), name, ax, cv.Dims[0].Name, v.Name)
 		}
 	}
 	for i, d := range v.Dims {
@@ -234,7 +234,7 @@ func findCoords(f *netcdf.File, v *netcdf.Var, ov Overrides) ([]coord, error) {
 			continue
 		}
 		if j, dup := seen[c.Axis]; dup {
-			return nil, fmt.Errorf("%s: variable %s: dimensions %s and %s both look like %s; name the right one in the recipe (the coordinates key)", f.Path(), v.Name, v.Dims[j].Name, v.Dims[i].Name, c.Axis)
+			return nil, fmt.Errorf("%s: variable %s: dimensions %s and %s both look like %s; name the right one in the study (the coordinates key)", f.Path(), v.Name, v.Dims[j].Name, v.Dims[i].Name, c.Axis)
 		}
 		seen[c.Axis] = i
 	}

@@ -67,13 +67,13 @@ func TestFindCoords(t *testing.T) {
 		errHas(t, err, "v_none(y0, x0)", "no latitude/longitude coordinates", "coordinates.sst.lat")
 		// the vertical axis of v_pos has no units: an error that says how to fix it
 		_, err = Open([]string{path}, Spec{Role: RoleSST, Var: "v_pos", Level: 70000})
-		errHas(t, err, "v_pos", "zp", "level units in the recipe", "coordinates.sst.level_units")
+		errHas(t, err, "v_pos", "zp", "level units in the study", "coordinates.sst.level_units")
 	})
 }
 
 func TestCoordOverrides(t *testing.T) {
 	path := fixture(t, "coords", "classic")
-	// v_none has no coordinates; recipe overrides cannot invent them, but
+	// v_none has no coordinates; study overrides cannot invent them, but
 	// naming a coordinate of another dimension is an error that says so.
 	_, err := Open([]string{path}, Spec{Role: RoleSST, Var: "v_none", Overrides: Overrides{Lat: "ya"}})
 	errHas(t, err, "ya", "is not a dimension of v_none")

@@ -218,7 +218,7 @@ func openHint(err error) string {
 func (fld *Field) appendSegment(o *Field) error {
 	a, b := fld.segs[0].path, o.segs[0].path
 	if o.Var != fld.Var {
-		return fmt.Errorf("%s has the field as variable %s but %s as %s; name the variable in the recipe", a, fld.Var, b, o.Var)
+		return fmt.Errorf("%s has the field as variable %s but %s as %s; name the variable in the study", a, fld.Var, b, o.Var)
 	}
 	if same, why := SameGrid(fld.Layout, o.Layout, 1e-4); !same {
 		return fmt.Errorf("files of one record must share a grid: %s and %s differ (%s)", a, b, why)
@@ -322,7 +322,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 					names = append(names, x.Name)
 				}
 			}
-			return nil, fmt.Errorf("%s has no variable %s, the name the recipe gives for role %s (variables.%s; the file has %s): %w", path, name, spec.Role, spec.Role, strings.Join(names, ", "), err)
+			return nil, fmt.Errorf("%s has no variable %s, the name the study gives for role %s (variables.%s; the file has %s): %w", path, name, spec.Role, spec.Role, strings.Join(names, ", "), err)
 		}
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
@@ -358,11 +358,11 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		for _, d := range v.Dims {
 			dn = append(dn, d.Name)
 		}
-		return nil, fmt.Errorf("%s: variable %s(%s): no latitude/longitude coordinates found (looked for axis, standard_name, units degrees_north/degrees_east, the coordinates attribute and common names); name them in the recipe (coordinates.%s.lat and coordinates.%s.lon)", path, name, strings.Join(dn, ", "), spec.Role, spec.Role)
+		return nil, fmt.Errorf("%s: variable %s(%s): no latitude/longitude coordinates found (looked for axis, standard_name, units degrees_north/degrees_east, the coordinates attribute and common names); name them in the study (coordinates.%s.lat and coordinates.%s.lon)", path, name, strings.Join(dn, ", "), spec.Role, spec.Role)
 	}
 	if len(unknown) > 0 {
 		d := v.Dims[unknown[0]]
-		return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0`, or name its coordinate in the recipe (coordinates.%s)", path, name, d.Name, d.Len, d.Name, spec.Role)
+		return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0`, or name its coordinate in the study (coordinates.%s)", path, name, d.Name, d.Len, d.Name, spec.Role)
 	}
 	// Horizontal layout.
 	latV, lonV := cs[fld.yi].Var, cs[fld.xi].Var
@@ -405,7 +405,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		zv := cs[fld.zi].Var
 		if spec.Level == 0 {
 			if v.Dims[fld.zi].Len != 1 {
-				return nil, fmt.Errorf("%s: variable %s has %d vertical levels but role %s is a single-level field; choose a level in the recipe", path, name, v.Dims[fld.zi].Len, spec.Role)
+				return nil, fmt.Errorf("%s: variable %s has %d vertical levels but role %s is a single-level field; choose a level in the study", path, name, v.Dims[fld.zi].Len, spec.Role)
 			}
 		} else {
 			lv, err := readCoord(nf, zv)
@@ -418,7 +418,7 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 			}
 			pick, err := PickLevel(lv, lu, spec.Level)
 			if err != nil {
-				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w (recipe key coordinates.%s.level_units)", path, name, zv.Name, err, spec.Role)
+				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w (study key coordinates.%s.level_units)", path, name, zv.Name, err, spec.Role)
 			}
 			fld.Level = &pick
 		}
@@ -448,21 +448,21 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 			return nil, fmt.Errorf("%s: variable %s has no time steps", path, name)
 		}
 	} else if spec.Climatology {
-		return nil, fmt.Errorf("%s: the recipe declares a 12-month climatology but variable %s has no time axis", path, name)
+		return nil, fmt.Errorf("%s: the study declares a 12-month climatology but variable %s has no time axis", path, name)
 	}
 	// Units.
 	u := spec.Units
-	uSrc := "recipe"
+	uSrc := "study"
 	if u == "" {
 		u = textAttr(v, "units")
 		uSrc = "units attribute"
 		if _, err := v.Attr("units"); err != nil && kind != units.Fraction {
-			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the recipe (units.%s: %s, if that is what it is)", path, name, spec.Role, kind.SI())
+			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the study (units.%s: %s, if that is what it is)", path, name, spec.Role, kind.SI())
 		}
 	}
 	fld.Conv, err = units.Parse(kind, u)
 	if err != nil {
-		return nil, fmt.Errorf("%s: variable %s (%s): %w; set units.%s in the recipe if the file is wrong", path, name, uSrc, err, spec.Role)
+		return nil, fmt.Errorf("%s: variable %s (%s): %w; set units.%s in the study if the file is wrong", path, name, uSrc, err, spec.Role)
 	}
 	if !fld.Conv.Identity() {
 		fld.Notes = append(fld.Notes, "units "+fld.Conv.String())
@@ -627,7 +627,7 @@ func FindRole(nf *netcdf.File, r Role) (string, error) {
 			why = append(why, x.String())
 		}
 	}
-	msg := fmt.Sprintf("%s: no variable found for role %s (by standard_name %s or by name); name it in the recipe (variables.%s: NAME)", nf.Path(), r, strings.Join(specOf(r).StandardNames, " / "), r)
+	msg := fmt.Sprintf("%s: no variable found for role %s (by standard_name %s or by name); name it in the study (variables.%s: NAME)", nf.Path(), r, strings.Join(specOf(r).StandardNames, " / "), r)
 	if len(why) > 0 {
 		msg += "; " + strings.Join(why, "; ")
 	}

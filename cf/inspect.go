@@ -129,7 +129,7 @@ func Inspect(path string) *FileReport {
 		}
 	}
 	if len(rep.Fields) == 0 {
-		rep.Problems = append(rep.Problems, "no variable was recognised for any role; name variables and their roles in the recipe")
+		rep.Problems = append(rep.Problems, "no variable was recognised for any role; name variables and their roles in the study")
 	}
 	return rep
 }
@@ -137,7 +137,7 @@ func Inspect(path string) *FileReport {
 func inspectVar(path string, m RoleMatch) VarReport {
 	vr := VarReport{Var: m.Var, Role: m.Role, How: m.How}
 	if m.ByName {
-		vr.Notes = append(vr.Notes, "recognised by name only (no standard_name): confirm the role in the recipe")
+		vr.Notes = append(vr.Notes, "recognised by name only (no standard_name): confirm the role in the study")
 	}
 	kind, _ := KindOf(m.Role)
 	vr.SIUnits = kind.SI()
@@ -268,7 +268,7 @@ func regular(x []float64, tol float64) bool {
 
 // CheckValues compares the range of SI values of a role with what is
 // physically possible and reports what looks like mislabelled units. It
-// never converts anything: the recipe must confirm or override the units.
+// never converts anything: the study must confirm or override the units.
 func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int) []string {
 	var out []string
 	if total > 0 && valid == 0 {
@@ -283,9 +283,9 @@ func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int
 	case units.Temperature:
 		switch {
 		case conv.Offset != 0 && rawLo > 150 && rawHi < 350:
-			out = append(out, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the recipe")
+			out = append(out, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the study")
 		case conv.Offset == 0 && rawHi < 100 && rawLo > -100:
-			out = append(out, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the recipe")
+			out = append(out, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the study")
 		case lo < 150 || hi > 350:
 			out = append(out, rng+": outside 150…350 K, impossible for "+string(r))
 		}
@@ -296,19 +296,19 @@ func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int
 	case units.Fraction:
 		switch {
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the recipe which values are ocean")
+			out = append(out, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the study which values are ocean")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas? category codes?); convert them to a fraction first, or set units."+string(r)+" in the recipe")
+			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas? category codes?); convert them to a fraction first, or set units."+string(r)+" in the study")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
-			out = append(out, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the recipe")
+			out = append(out, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the study")
 		case hi > 1.05 || lo < -0.05:
 			out = append(out, rng+": a fraction must lie in 0…1")
 		case conv.Scale == 0.01 && rawHi <= 1.0 && rawHi > 0:
-			out = append(out, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the recipe")
+			out = append(out, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the study")
 		}
 	case units.Pressure:
 		if hi < 2000 && hi > 0 {
-			out = append(out, rng+": far too small for Pa; if these are hPa set units."+string(r)+": hPa in the recipe")
+			out = append(out, rng+": far too small for Pa; if these are hPa set units."+string(r)+": hPa in the study")
 		} else if hi > 120000 {
 			out = append(out, rng+": above 1200 hPa; check the units")
 		}

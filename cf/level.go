@@ -35,7 +35,7 @@ func (l LevelPick) Describe() string {
 func PickLevel(levels []float64, levelUnits string, target float64) (LevelPick, error) {
 	conv, err := units.Parse(units.Pressure, levelUnits)
 	if err != nil {
-		return LevelPick{}, fmt.Errorf("vertical coordinate units: %w; lidscope needs a pressure axis (Pa, hPa or mbar) — set the level units in the recipe (coordinates.ROLE.level_units) if the file lacks them", err)
+		return LevelPick{}, fmt.Errorf("vertical coordinate units: %w; lidscope needs a pressure axis (Pa, hPa or mbar) — set the level units in the study (coordinates.ROLE.level_units) if the file lacks them", err)
 	}
 	if len(levels) == 0 {
 		return LevelPick{}, fmt.Errorf("the vertical coordinate has no levels")

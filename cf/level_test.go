@@ -36,7 +36,7 @@ func TestPickLevel(t *testing.T) {
 		{"within 0.01 Pa is exact", []float64{700.00005, 500}, "hPa", 70000, true, 0, 0, 0, ""},
 		{"below the levels", []float64{1000, 925, 850}, "hPa", 70000, false, 0, 0, 0, "outside the file's levels (850…1000 hPa)"},
 		{"above the levels", []float64{500, 300}, "hPa", 70000, false, 0, 0, 0, "does not extrapolate"},
-		{"no units", []float64{1000, 700}, "", 70000, false, 0, 0, 0, "level units in the recipe"},
+		{"no units", []float64{1000, 700}, "", 70000, false, 0, 0, 0, "level units in the study"},
 		{"height units", []float64{1000, 700}, "m", 70000, false, 0, 0, 0, "pressure axis"},
 		{"non-positive", []float64{1000, 0}, "hPa", 70000, false, 0, 0, 0, "not a positive pressure"},
 		{"no levels", nil, "hPa", 70000, false, 0, 0, 0, "no levels"},

@@ -86,7 +86,7 @@ func (l attrList) floats(vname, name string) ([]float64, netcdf.Type, bool, erro
 		}
 		f, ok := a.Float64s()
 		if !ok {
-			return nil, a.Type, true, fmt.Errorf("attribute %s:%s is text (%s), it must be numeric (NUG Appendix A); fix the file (e.g. ncatted) or set the variable's decoding in the recipe", vname, name, a)
+			return nil, a.Type, true, fmt.Errorf("attribute %s:%s is text (%s), it must be numeric (NUG Appendix A); fix the file (e.g. ncatted) or set the variable's decoding in the study", vname, name, a)
 		}
 		return f, a.Type, true, nil
 	}

@@ -182,7 +182,7 @@ func assignRoles(matches []RoleMatch) (map[Role]RoleMatch, []string) {
 			names[i] = m.Var
 		}
 		amb = append(amb, "role "+string(r)+" is ambiguous: variables "+strings.Join(names, ", ")+
-			" all qualify; name the one to use in the recipe (variables."+string(r)+": NAME)")
+			" all qualify; name the one to use in the study (variables."+string(r)+": NAME)")
 	}
 	return out, amb
 }

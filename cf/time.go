@@ -37,7 +37,7 @@ type TimeAxis struct {
 	Calendar string
 	Dates    []Date
 	Step     Step
-	// Declared is true when the recipe declared the axis (overrides).
+	// Declared is true when the study declared the axis (overrides).
 	Declared bool
 	Note     string
 	// Why says what makes an irregular axis irregular.
@@ -207,17 +207,17 @@ func (ta *TimeAxis) Gaps() []string {
 	return out
 }
 
-// decodeTimeAxis decodes the time coordinate cv, applying recipe overrides.
+// decodeTimeAxis decodes the time coordinate cv, applying study overrides.
 func decodeTimeAxis(nf *netcdf.File, cv *netcdf.Var, ov Overrides) (*TimeAxis, error) {
 	path := nf.Path()
 	ta := &TimeAxis{Var: cv.Name}
 	n := cv.Dims[0].Len
 	if ov.Climatology {
 		if n != 12 {
-			return nil, fmt.Errorf("%s: the recipe declares %s a 12-month climatology, but it has %d steps", path, cv.Name, n)
+			return nil, fmt.Errorf("%s: the study declares %s a 12-month climatology, but it has %d steps", path, cv.Name, n)
 		}
 		ta.Declared, ta.Step, ta.Calendar = true, StepClimatology, "standard"
-		ta.Units = "calendar month (declared in the recipe)"
+		ta.Units = "calendar month (declared in the study)"
 		for m := 1; m <= 12; m++ {
 			d, err := calendar.NewDate(calendar.Standard, 1, m, 15, 0, 0, 0)
 			if err != nil {
@@ -225,14 +225,14 @@ func decodeTimeAxis(nf *netcdf.File, cv *netcdf.Var, ov Overrides) (*TimeAxis, e
 			}
 			ta.Dates = append(ta.Dates, d)
 		}
-		ta.Note = "time axis declared in the recipe as a 12-month climatology, January first"
+		ta.Note = "time axis declared in the study as a 12-month climatology, January first"
 		return ta, nil
 	}
 	u := ov.TimeUnits
 	if u == "" {
 		u = textAttr(cv, "units")
 		if _, err := cv.Attr("units"); err != nil {
-			return nil, fmt.Errorf("%s: time coordinate %s has no units attribute (CF-1.10 §4.4 needs \"<unit> since <date>\"); set time.units in the recipe, or time.climatology: true for a 12-month climatology", path, cv.Name)
+			return nil, fmt.Errorf("%s: time coordinate %s has no units attribute (CF-1.10 §4.4 needs \"<unit> since <date>\"); set time.units in the study, or time.climatology: true for a 12-month climatology", path, cv.Name)
 		}
 	} else {
 		ta.Declared = true
@@ -245,16 +245,16 @@ func decodeTimeAxis(nf *netcdf.File, cv *netcdf.Var, ov Overrides) (*TimeAxis, e
 	if err != nil {
 		where := fmt.Sprintf("time coordinate %s, attribute units = %q", cv.Name, u)
 		if ov.TimeUnits != "" {
-			where = fmt.Sprintf("time coordinate %s, time units %q from the recipe", cv.Name, u)
+			where = fmt.Sprintf("time coordinate %s, time units %q from the study", cv.Name, u)
 		}
 		if errors.Is(err, calendar.ErrCalendar) {
 			where = fmt.Sprintf("time coordinate %s, attribute calendar = %q", cv.Name, calName)
 			if ov.Calendar != "" {
-				where = fmt.Sprintf("time coordinate %s, calendar %q from the recipe", cv.Name, calName)
+				where = fmt.Sprintf("time coordinate %s, calendar %q from the study", cv.Name, calName)
 			}
-			return nil, fmt.Errorf("%s: %s: %w; set time.calendar in the recipe (one of %s)", path, where, err, strings.Join(calendar.CalendarNames(), ", "))
+			return nil, fmt.Errorf("%s: %s: %w; set time.calendar in the study (one of %s)", path, where, err, strings.Join(calendar.CalendarNames(), ", "))
 		}
-		hint := "; fix it in the recipe: time.units with CF units for these values (e.g. \"months since 1988-01-01\")"
+		hint := "; fix it in the study: time.units with CF units for these values (e.g. \"months since 1988-01-01\")"
 		if n == 12 {
 			hint += ", or time.climatology: true — the axis has 12 steps, which looks like a 12-month climatology, January first"
 		}

@@ -41,7 +41,7 @@ func TestCalendarsPassedThrough(t *testing.T) {
 		if !errors.Is(err, calendar.ErrCalendar) {
 			t.Errorf("error does not wrap calendar.ErrCalendar: %v", err)
 		}
-		// the recipe's calendar overrides the attribute
+		// the study's calendar overrides the attribute
 		f := mustOpen(t, path, Spec{Role: RoleSST, Var: "v_bad", Overrides: Overrides{Calendar: "360_day"}})
 		if f.Time.Calendar != "360_day" || f.Time.Dates[1].String() != "2000-02-30T00:00:00" {
 			t.Errorf("override: %s %v", f.Time.Calendar, f.Time.Dates)
@@ -50,7 +50,7 @@ func TestCalendarsPassedThrough(t *testing.T) {
 }
 
 // Bare "Month" units (no reference date) are not CF (CF-1.10 §4.4): the
-// error names the attribute and the recipe overrides that fix it.
+// error names the attribute and the study overrides that fix it.
 func TestMonthUnits(t *testing.T) {
 	eachKind(t, "month_units", func(t *testing.T, path string) {
 		_, err := Open([]string{path}, Spec{Role: RoleSST})
@@ -80,7 +80,7 @@ func TestMonthUnits(t *testing.T) {
 			t.Errorf("note %q", f.Time.Note)
 		}
 		_, err = Open([]string{path}, Spec{Role: RoleSST, Overrides: Overrides{TimeUnits: "fortnights"}})
-		errHas(t, err, `time units "fortnights" from the recipe`)
+		errHas(t, err, `time units "fortnights" from the study`)
 	})
 }
 

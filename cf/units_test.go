@@ -44,10 +44,10 @@ func TestUnitsPerRole(t *testing.T) {
 			}
 		}
 		_, err := Open([]string{path}, Spec{Role: RoleSST, Var: "t_furlong"})
-		errHas(t, err, "t_furlong", "furlongs", "set units.sst in the recipe")
+		errHas(t, err, "t_furlong", "furlongs", "set units.sst in the study")
 		_, err = Open([]string{path}, Spec{Role: RoleSST, Var: "t_nounits"})
 		errHas(t, err, "t_nounits", "no units attribute", "units.sst: K")
-		// the recipe's units fix both
+		// the study's units fix both
 		f := mustOpen(t, path, Spec{Role: RoleSST, Var: "t_nounits", Overrides: Overrides{Units: "K"}})
 		sameValues(t, slab(t, f, 0), []float64{273.15, 300.15}, 1e-4)
 		f = mustOpen(t, path, Spec{Role: RoleSST, Var: "t_kelvin_in_C", Overrides: Overrides{Units: "K"}})

@@ -12,7 +12,7 @@
 // (CombinedMethod), the flip fractions per patch and ΔT, and the
 // estimated thresholds.
 //
-// Runs made with different metrics recipes, regime definitions, bands,
+// Runs made with different metrics conventions, regime definitions, bands,
 // periods, grids or relationship configurations (anomaly against
 // climatological slopes) measure different things; Compare refuses them unless
 // told to allow the mismatch, and then lists every mismatch.
@@ -42,7 +42,7 @@ type Run struct {
 
 // Options control a comparison.
 type Options struct {
-	// AllowMismatch compares runs whose recipes, periods or grids differ;
+	// AllowMismatch compares runs whose studies, periods or grids differ;
 	// the mismatches are listed in the result.
 	AllowMismatch bool
 }
@@ -120,7 +120,7 @@ func Mismatches(a, b Run) []string {
 			out = append(out, fmt.Sprintf("%s differs: %s has %v, %s has %v", what, a.Name, x, b.Name, y))
 		}
 	}
-	chk("metrics recipe", a.Meta.MetricsRecipe, b.Meta.MetricsRecipe)
+	chk("metrics conventions", a.Meta.MetricsConventions, b.Meta.MetricsConventions)
 	chk("regime definition", a.Meta.RegimeDefinition, b.Meta.RegimeDefinition)
 	chk("threshold δ (K)", a.Meta.Delta, b.Meta.Delta)
 	chk("transition half-width (K)", a.Meta.HalfWidth, b.Meta.HalfWidth)

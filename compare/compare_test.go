@@ -52,7 +52,7 @@ func run(t *testing.T, name string, conv []float64) Run {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return Run{Name: name, Dir: name, Acc: a, Meta: output.Meta{Grid: g, Dataset: name, MetricsRecipe: "m", RegimeDefinition: "r", Delta: 1.5, BandSouth: -30, BandNorth: 30, Period: "p", StepsPerYear: 12}}
+	return Run{Name: name, Dir: name, Acc: a, Meta: output.Meta{Grid: g, Dataset: name, MetricsConventions: "m", RegimeDefinition: "r", Delta: 1.5, BandSouth: -30, BandNorth: 30, Period: "p", StepsPerYear: 12}}
 }
 
 func TestSelfComparisonIsExact(t *testing.T) {
@@ -106,13 +106,13 @@ func TestMismatchesAreRefusedAndListed(t *testing.T) {
 	b := run(t, "model", []float64{0, 1})
 	b.Meta.Delta = 1.0
 	b.Meta.Period = "q"
-	b.Meta.MetricsRecipe = "other"
+	b.Meta.MetricsConventions = "other"
 	_, err := Compare(a, []Run{b}, Options{})
 	var me *MismatchError
 	if !errors.As(err, &me) || len(me.List) != 3 {
 		t.Fatalf("want 3 listed mismatches, got %v", err)
 	}
-	for _, want := range []string{"threshold", "period", "metrics recipe"} {
+	for _, want := range []string{"threshold", "period", "metrics conventions"} {
 		if !strings.Contains(err.Error(), want) {
 			t.Errorf("message lacks %q: %v", want, err)
 		}

@@ -267,7 +267,7 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 	}
 	m := res.Reference.Meta
 	doc.Reference = map[string]any{"name": res.Reference.Name, "dir": res.Reference.Dir, "period": m.Period,
-		"regime_definition": m.RegimeDefinition, "metrics_recipe": m.MetricsRecipe, "recipe_hash": m.RecipeHash}
+		"regime_definition": m.RegimeDefinition, "metrics_conventions": m.MetricsConventions, "study_hash": m.StudyHash}
 	for _, s := range res.ReferenceScalars {
 		doc.Scalars[s.Name] = jv(s.Cand, s.Units)
 	}
@@ -319,10 +319,10 @@ func writeMaps(path string, res *Result, opt WriteOptions) error {
 		Command:   opt.Command,
 		Overwrite: opt.Force,
 		Attributes: map[string]string{
-			"reference":         res.Reference.Name,
-			"regime_definition": res.Reference.Meta.RegimeDefinition,
-			"metrics_recipe":    res.Reference.Meta.MetricsRecipe,
-			"period":            res.Reference.Meta.Period,
+			"reference":           res.Reference.Name,
+			"regime_definition":   res.Reference.Meta.RegimeDefinition,
+			"metrics_conventions": res.Reference.Meta.MetricsConventions,
+			"period":              res.Reference.Meta.Period,
 		},
 	})
 	if err != nil {

@@ -305,8 +305,8 @@ var seasons = map[string][]int{"DJF": {12, 1, 2}, "MAM": {3, 4, 5}, "JJA": {6, 7
 
 var resolutionRE = regexp.MustCompile(`^([0-9]*\.?[0-9]+)\s*deg$`)
 
-// decode builds the typed recipe from the raw tree. Problems go to d.
-func (d *decoder) decode(tree map[string]any, r *Recipe) {
+// decode builds the typed study from the raw tree. Problems go to d.
+func (d *decoder) decode(tree map[string]any, r *Study) {
 	d.analysis(sub(tree, "analysis"), r)
 	out := sub(tree, "output")
 	dir := d.str(out, "output", "dir", DefaultOutputDir)
@@ -321,7 +321,7 @@ func (d *decoder) decode(tree map[string]any, r *Recipe) {
 
 	list, _ := tree["datasets"].([]any)
 	if _, ok := present(tree, "datasets"); !ok || len(list) == 0 {
-		d.fail("datasets", "the recipe has no datasets: add a list \"datasets:\" with at least one entry (name and inputs)")
+		d.fail("datasets", "the study has no datasets: add a list \"datasets:\" with at least one entry (name and inputs)")
 		return
 	}
 	seen := map[string]int{}
@@ -344,7 +344,7 @@ func (d *decoder) decode(tree map[string]any, r *Recipe) {
 	d.relationships(sub(tree, "relationships"), r)
 }
 
-func (d *decoder) analysis(m map[string]any, r *Recipe) {
+func (d *decoder) analysis(m map[string]any, r *Study) {
 	a := &r.Analysis
 	band := sub(m, "band")
 	s, _ := d.num(band, "analysis.band", "south", DefaultBandSouth)
@@ -471,7 +471,7 @@ func (d *decoder) boxes(m map[string]any, path, k, what string) []namedBox {
 }
 
 // checkGridTarget: a role named as the target grid must be read by every dataset.
-func (d *decoder) checkGridTarget(r *Recipe) {
+func (d *decoder) checkGridTarget(r *Study) {
 	t := r.Analysis.Grid.TargetRole
 	if t == "" {
 		return
@@ -489,7 +489,7 @@ func (ds *Dataset) hasPattern(r cf.Role) bool {
 }
 
 // dataset decodes one dataset. Inputs are expanded later (expandInputs).
-func (d *decoder) dataset(path string, m map[string]any, r *Recipe) Dataset {
+func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 	ds := Dataset{
 		Patterns:    map[string][]string{},
 		Variables:   map[cf.Role]string{},
@@ -769,7 +769,7 @@ var humidityRoles = []cf.Role{cf.RoleRH, cf.RoleDewPoint, cf.RoleSpecHum}
 
 func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, explicit func(cf.Role) bool, ectei bool) {
 	s := &ds.Surface
-	mr := metrics.DefaultRecipe()
+	mr := metrics.DefaultConventions()
 	temp, _ := d.choice(m, path, "temperature", "sst", "sst", "air")
 	if temp == "air" {
 		mr.Surface, s.TemperatureRole = metrics.SurfaceAir, cf.RoleSurfaceAir
@@ -919,16 +919,16 @@ func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(c
 		}
 	}
 	if err := mr.Validate(); err != nil {
-		d.fail(path, "%s", recipeKeys.Replace(err.Error()))
+		d.fail(path, "%s", studyKeys.Replace(err.Error()))
 	}
 }
 
-// recipeKeys names metrics.Recipe fields by their recipe keys in messages.
-var recipeKeys = strings.NewReplacer(
-	"Recipe.LapsePressure", "lapse_pressure (Recipe.LapsePressure)",
-	"Recipe.SurfacePressure", "surface.pressure (Recipe.SurfacePressure)",
-	"Recipe.AssumedRH", "surface.humidity (Recipe.AssumedRH)",
-	"Recipe.ECTEIBeta", "ectei_beta (Recipe.ECTEIBeta)",
-	"Recipe.Constants", "constants (Recipe.Constants)",
-	"; start from metrics.DefaultRecipe()", "",
+// studyKeys names metrics.Conventions fields by their study keys in messages.
+var studyKeys = strings.NewReplacer(
+	"Study.LapsePressure", "lapse_pressure (Study.LapsePressure)",
+	"Study.SurfacePressure", "surface.pressure (Study.SurfacePressure)",
+	"Study.AssumedRH", "surface.humidity (Study.AssumedRH)",
+	"Study.ECTEIBeta", "ectei_beta (Study.ECTEIBeta)",
+	"Study.Constants", "constants (Study.Constants)",
+	"; start from metrics.DefaultConventions()", "",
 )

@@ -1,16 +1,16 @@
-// Package config reads lidscope recipes: the one file a scientist keeps per
+// Package config reads lidscope studies: the one file a scientist keeps per
 // dataset (or per model run, or per comparison of several) that says which
 // files hold which variables, how to read the ones that are not quite CF,
 // which months to use, how to tell ocean from land, how LTS and EIS are
 // computed, and how ocean columns are split into convective and subsidence
 // regimes.
 //
-// [Load] reads a recipe, applies overrides and defaults, checks it and
-// expands the input globs; the pipeline then works from the typed [Recipe]
-// and records [Recipe.Resolved] (a canonical text of everything the recipe
-// decides) and [Recipe.Hash] (its SHA-256) in every output. [Starter]
-// writes a commented starter recipe from what cf.Inspect found in a set of
-// files (`lidscope recipe init FILE…`).
+// [Load] reads a study, applies overrides and defaults, checks it and
+// expands the input globs; the pipeline then works from the typed [Study]
+// and records [Study.Resolved] (a canonical text of everything the study
+// decides) and [Study.Hash] (its SHA-256) in every output. [Starter]
+// writes a commented starter study from what cf.Inspect found in a set of
+// files (`lidscope study init FILE…`).
 //
 // The package is pure Go: it never opens a NetCDF file. It only checks that
 // the input files exist.
@@ -29,7 +29,7 @@
 //
 // Every problem is reported at once, one per line, as
 //
-//	recipe.yaml:12: datasets.0.ocean.mask: mask fraction needs a land_fraction or sea_fraction input …
+//	study.yaml:12: datasets.0.ocean.mask: mask fraction needs a land_fraction or sea_fraction input …
 //
 // Key paths are dotted; list elements are numbered from 0
 // (datasets.0.inputs.sst, analysis.regions.1.west).
@@ -37,7 +37,7 @@
 // # Overrides: flags and environment
 //
 // Values come, highest precedence first, from flags ([LoadOptions].Flags,
-// a map of dotted key paths to values), the environment, the recipe file,
+// a map of dotted key paths to values), the environment, the study file,
 // and the defaults below. Any key may be overridden, including per-dataset
 // keys by their element number:
 //
@@ -53,7 +53,7 @@
 // environment), and empty variables are ignored. Values are read as YAML
 // flow values: "1.0" is a number, "true" a boolean, "[12, 1, 2]" (or, for
 // lists of numbers, "12,1,2") a list, "{south: -20, north: 20}" a table,
-// and "null" removes the key so that its default applies. [Recipe.Overrides]
+// and "null" removes the key so that its default applies. [Study.Overrides]
 // lists what was applied; problems in overridden values name the flag or
 // variable instead of a line.
 //
@@ -65,7 +65,7 @@
 //     in output paths.
 //   - description: free text.
 //   - inputs (required): role → a file, a glob, or a list of files and
-//     globs, relative to the recipe's folder. Several files of one role are
+//     globs, relative to the study's folder. Several files of one role are
 //     one record along time (cf.Open sorts them). The roles are those of
 //     package cf: sst, air_temperature, surface_air_temp, low_cloud, cloud,
 //     toa_sw_up, olr, omega, surface_pressure, sea_level_pressure,
@@ -118,9 +118,9 @@
 //     ectei_surface (air, default; saturated), and constants {rd, rv, cpd,
 //     lv0, lv_slope, g, p0} (SI; defaults of metrics.DefaultConstants).
 //     The mapping of t850, surface.temperature and surface.humidity onto
-//     metrics.Recipe is done here; the other names are parsed by package
+//     metrics.Conventions is done here; the other names are parsed by package
 //     metrics. The result, surface settings included, is [Dataset].Metrics
-//     and must pass metrics.Recipe.Validate.
+//     and must pass metrics.Conventions.Validate.
 //
 // analysis (shared by all datasets):
 //
@@ -152,16 +152,16 @@
 //
 // output:
 //
-//   - dir (default "out", relative to the recipe's folder): each dataset
+//   - dir (default "out", relative to the study's folder): each dataset
 //     writes into dir/<dataset name> ([Dataset].OutputDir).
 //   - plots (default true).
 //
 // relationships (shared by all datasets; the regime-conditioned
 // cloud–inversion relationships of package relations, run with every
-// dataset). [Recipe].Relations holds the typed result, starting from
+// dataset). [Study].Relations holds the typed result, starting from
 // relations.Defaults(), with the regime definition of analysis
 // (threshold, transition) as its Classifier and analysis.regions as its
-// Regions; [Recipe.RelationsFor] gives a dataset's configuration with
+// Regions; [Study.RelationsFor] gives a dataset's configuration with
 // its responses resolved. What each setting means is documented in
 // package relations.
 //
@@ -243,12 +243,12 @@
 // (from memory), so the onset lies about 1.5 K above the tropical mean.
 // Because the threshold is taken relative to the tropical mean, it moves
 // with the tropical mean as the climate warms. δ is a choice, not a
-// constant of nature: every output records it ([Recipe.Resolved]), and
+// constant of nature: every output records it ([Study.Resolved]), and
 // results should be shown for a few values around it (e.g. 1.0–2.0 K).
 //
 // The ocean fraction 0.5 and the mask threshold 0.5 count a cell as ocean
 // when at least half of it is ocean (a choice; recorded). The sea-ice limit
 // 0.15 is the usual ice-edge concentration (common practice). The surface
-// and metrics defaults are those of metrics.DefaultRecipe, documented there
+// and metrics defaults are those of metrics.DefaultConventions, documented there
 // (relative humidity 0.8 is an assumption, not a measurement).
 package config

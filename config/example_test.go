@@ -10,7 +10,7 @@ import (
 	"lidscope/config"
 )
 
-// Load a recipe and read what the pipeline needs from it.
+// Load a study and read what the pipeline needs from it.
 func ExampleLoad() {
 	r, err := config.Load("testdata/example.yaml", config.LoadOptions{LookupEnv: config.NoEnvironment})
 	if err != nil {
@@ -56,9 +56,9 @@ func ExampleLoad_overrides() {
 	// analysis.threshold = 2.0 from flag analysis.threshold
 }
 
-// Every problem of a recipe comes in one error, each with file, line and key.
+// Every problem of a study comes in one error, each with file, line and key.
 func ExampleError() {
-	dir, _ := os.MkdirTemp("", "recipe")
+	dir, _ := os.MkdirTemp("", "study")
 	defer os.RemoveAll(dir)
 	path := filepath.Join(dir, "r.yaml")
 	os.WriteFile(filepath.Join(dir, "sst.nc"), nil, 0o644)
@@ -72,7 +72,7 @@ analysis:
 	_, err := config.Load(path, config.LoadOptions{LookupEnv: config.NoEnvironment})
 	fmt.Println(strings.ReplaceAll(err.Error(), path, "r.yaml"))
 	// Output:
-	// recipe r.yaml has 3 problems:
+	// study r.yaml has 3 problems:
 	//   r.yaml:3: datasets.0.inputs: dataset "test" needs a cloud input: inputs.low_cloud (preferred) or inputs.cloud
 	//   r.yaml:3: datasets.0.inputs: dataset "test" needs an input for role air_temperature (inputs.air_temperature)
 	//   r.yaml:6: analysis.treshold: unknown key "treshold" in analysis; did you mean "threshold"?
@@ -91,12 +91,12 @@ func ExampleDataset_Spec() {
 	// tos degC
 }
 
-func ExampleRecipe_Dataset() {
+func ExampleStudy_Dataset() {
 	r, _ := config.Load("testdata/example.yaml", config.LoadOptions{LookupEnv: config.NoEnvironment})
 	_, err := r.Dataset("obs")
 	fmt.Println(err)
 	// Output:
-	// recipe testdata/example.yaml has no dataset "obs"; its datasets are: obs-synthetic, model-synthetic
+	// study testdata/example.yaml has no dataset "obs"; its datasets are: obs-synthetic, model-synthetic
 }
 
 func ExampleTimeSelection_Selects() {
@@ -127,7 +127,7 @@ func ExampleEnvName() {
 	// LIDSCOPE_DATASETS_0_SURFACE_HUMIDITY
 }
 
-// Starter writes a recipe from what cf.Inspect found.
+// Starter writes a study from what cf.Inspect found.
 func ExampleStarter() {
 	reports := []*cf.FileReport{{
 		Path: "obs.nc",
@@ -152,7 +152,7 @@ func ExampleStarter() {
 
 // RelationsFor gives relations.New the relationship analysis of one
 // dataset, with the responses resolved for it.
-func ExampleRecipe_RelationsFor() {
+func ExampleStudy_RelationsFor() {
 	r, err := config.Load("testdata/example.yaml", config.LoadOptions{LookupEnv: config.NoEnvironment})
 	if err != nil {
 		fmt.Println(err)

@@ -10,7 +10,7 @@ import (
 )
 
 // FuzzLoad feeds random bytes to Load in each format: it must return a
-// recipe or an error, never panic, and a recipe it returns must have a
+// study or an error, never panic, and a study it returns must have a
 // stable resolved text.
 func FuzzLoad(f *testing.F) {
 	for _, p := range exampleFiles {
@@ -31,7 +31,7 @@ func FuzzLoad(f *testing.F) {
 	f.Add([]byte("[[datasets]]\nname = \"x\"\ninputs = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n[relationships.bins]\neis = { min = -1, max = 1, width = 0.1 }\n"), uint8(1))
 	exts := []string{".yaml", ".toml", ".json"}
 	dir := f.TempDir()
-	// the example's data files, so that valid recipes can load
+	// the example's data files, so that valid studies can load
 	for _, n := range []string{"example/sst/a.nc", "example/ta_1979-1998.nc", "example/ta_1999-2018.nc", "example/cloud/cll_1.nc", "example/mask.nc", "example/model_all_1979-2008.nc", "sst.nc", "ta.nc", "cll.nc"} {
 		p := filepath.Join(dir, n)
 		os.MkdirAll(filepath.Dir(p), 0o755)
@@ -50,7 +50,7 @@ func FuzzLoad(f *testing.F) {
 			return
 		}
 		if len(r.Datasets) == 0 {
-			t.Fatal("a recipe without datasets loaded")
+			t.Fatal("a study without datasets loaded")
 		}
 		if a, b := r.Resolved(), r.Resolved(); a != b || !strings.HasPrefix(a, "{") {
 			t.Fatal("unstable resolved text")

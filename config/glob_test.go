@@ -11,7 +11,7 @@ import (
 	"lidscope/config"
 )
 
-// TestGlobs: patterns are expanded relative to the recipe's folder (not
+// TestGlobs: patterns are expanded relative to the study's folder (not
 // the working directory), sorted, without duplicates and without folders.
 func TestGlobs(t *testing.T) {
 	dir := dataDir(t, "sst/sst_2001.nc", "sst/sst_1999.nc", "sst/sst_2000.nc", "sst/readme.txt",
@@ -19,7 +19,7 @@ func TestGlobs(t *testing.T) {
 	if err := os.Mkdir(filepath.Join(dir, "sst", "folder.nc"), 0o755); err != nil {
 		t.Fatal(err)
 	}
-	sub := filepath.Join(dir, "recipes")
+	sub := filepath.Join(dir, "studies")
 	if err := os.Mkdir(sub, 0o755); err != nil {
 		t.Fatal(err)
 	}
@@ -33,7 +33,7 @@ func TestGlobs(t *testing.T) {
       olr: "`+abs+`"
       land_fraction: ../lsm.nc
 `)
-	// run from another folder: the recipe's folder must be used
+	// run from another folder: the study's folder must be used
 	wd, _ := os.Getwd()
 	if err := os.Chdir(t.TempDir()); err != nil {
 		t.Fatal(err)
@@ -59,7 +59,7 @@ func TestGlobs(t *testing.T) {
 	if len(in) != len(want) {
 		t.Errorf("roles %v", r.Datasets[0].Roles())
 	}
-	// the resolved text names files relative to the recipe's folder
+	// the resolved text names files relative to the study's folder
 	res := r.Resolved()
 	if !strings.Contains(res, `"../sst/sst_1999.nc"`) || !strings.Contains(res, `"`+filepath.ToSlash(filepath.Join(dir, "abs/x.nc"))+`"`) {
 		t.Errorf("resolved inputs:\n%s", res)

@@ -91,5 +91,5 @@ func problems(t *testing.T, err error) []config.Problem {
 	return e.Problems
 }
 
-// baseFiles are the files the test recipes name.
+// baseFiles are the files the test studies name.
 var baseFiles = []string{"sst.nc", "ta.nc", "cll.nc", "clt.nc", "lsm.nc", "sftof.nc", "ps.nc", "hurs.nc", "tdps.nc", "hus.nc", "siconc.nc", "tas.nc", "all.nc"}

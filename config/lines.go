@@ -14,7 +14,7 @@ import (
 // 0) to the line where the key or element starts, so that problems can
 // name a line. It is best effort: a path it does not know falls back to
 // its nearest known parent. upper lists keys written with capitals (the
-// loader folds case, the recipe format wants lower case).
+// loader folds case, the study format wants lower case).
 type lineIndex struct {
 	lines map[string]int
 	upper map[string]string // path → key as written
@@ -167,7 +167,7 @@ var (
 )
 
 // toml follows table headers, arrays of tables and "key =" lines, which is
-// how recipes are written; keys inside inline tables get the line of the
+// how studies are written; keys inside inline tables get the line of the
 // table. Multi-line strings and arrays are not followed.
 func (ix *lineIndex) toml(src []byte) {
 	counts := map[string]int{} // array-of-tables path → elements so far

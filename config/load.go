@@ -14,7 +14,7 @@ import (
 	"lidscope/cf"
 )
 
-// LoadOptions are the values that override the recipe file.
+// LoadOptions are the values that override the study file.
 type LoadOptions struct {
 	// Flags maps dotted keys to values, as given on the command line, e.g.
 	// "analysis.threshold": "1.0" or "datasets.0.metrics.svp": "bolton".
@@ -32,7 +32,7 @@ type LoadOptions struct {
 // NoEnvironment is a LookupEnv that finds nothing.
 func NoEnvironment(string) (string, bool) { return "", false }
 
-// formatOf returns the recipe format from the file name extension.
+// formatOf returns the study format from the file name extension.
 func formatOf(path string) (string, error) {
 	switch strings.ToLower(filepath.Ext(path)) {
 	case ".yaml", ".yml":
@@ -42,36 +42,36 @@ func formatOf(path string) (string, error) {
 	case ".json":
 		return "json", nil
 	}
-	return "", fmt.Errorf("recipe %s: unknown format %q: name the file .yaml (or .yml), .toml or .json", path, filepath.Ext(path))
+	return "", fmt.Errorf("study %s: unknown format %q: name the file .yaml (or .yml), .toml or .json", path, filepath.Ext(path))
 }
 
-// Load reads, checks and resolves a recipe. Values come, highest
+// Load reads, checks and resolves a study. Values come, highest
 // precedence first, from opt.Flags, the environment (opt.LookupEnv), the
 // file, and the defaults documented in the package documentation. Input
-// globs are expanded relative to the recipe's folder.
+// globs are expanded relative to the study's folder.
 //
 // Every problem found (unknown keys with the nearest valid key, values out
 // of range, contradictions, globs that match nothing) is reported at once:
 // the error is an *Error listing each problem with its file, line and key.
 // A file that cannot be read or parsed gives a plain error naming it.
-func Load(path string, opt LoadOptions) (*Recipe, error) {
+func Load(path string, opt LoadOptions) (*Study, error) {
 	format, err := formatOf(path)
 	if err != nil {
 		return nil, err
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("reading recipe: %w", err)
+		return nil, fmt.Errorf("reading study: %w", err)
 	}
 	return load(path, format, src, opt)
 }
 
-func load(path, format string, src []byte, opt LoadOptions) (r *Recipe, err error) {
+func load(path, format string, src []byte, opt LoadOptions) (r *Study, err error) {
 	tree, err := parse(path, format, src)
 	if err != nil {
 		return nil, err
 	}
-	r = &Recipe{Path: path, Dir: filepath.Dir(path), Format: format, Source: string(src), shown: map[string]string{}}
+	r = &Study{Path: path, Dir: filepath.Dir(path), Format: format, Source: string(src), shown: map[string]string{}}
 	w := &where{file: path, lines: indexLines(format, src), origins: map[string]string{}}
 	applied, probs := applyOverrides(tree, opt, path, w.origins)
 	for _, o := range applied {
@@ -93,15 +93,15 @@ func load(path, format string, src []byte, opt LoadOptions) (r *Recipe, err erro
 func parse(path, format string, src []byte) (tree map[string]any, err error) {
 	defer func() {
 		// The format parsers viper uses have panicked on some damaged
-		// input in the past; a recipe must give an error, never a crash.
+		// input in the past; a study must give an error, never a crash.
 		if p := recover(); p != nil {
-			tree, err = nil, fmt.Errorf("recipe %s: the %s text cannot be read (%v); check its syntax", path, format, p)
+			tree, err = nil, fmt.Errorf("study %s: the %s text cannot be read (%v); check its syntax", path, format, p)
 		}
 	}()
 	v := viper.NewWithOptions(viper.KeyDelimiter("\x1f"))
 	v.SetConfigType(format)
 	if err := v.ReadConfig(bytes.NewReader(src)); err != nil {
-		return nil, fmt.Errorf("recipe %s is not valid %s: %w", path, strings.ToUpper(format), unwrapParse(err))
+		return nil, fmt.Errorf("study %s is not valid %s: %w", path, strings.ToUpper(format), unwrapParse(err))
 	}
 	return v.AllSettings(), nil
 }
@@ -120,7 +120,7 @@ func unwrapParse(err error) error {
 
 // expandInputs expands the input patterns of every dataset and fills
 // Inputs, including the roles taken from inputs.all.
-func (r *Recipe) expandInputs(w *where) []Problem {
+func (r *Study) expandInputs(w *where) []Problem {
 	var probs []Problem
 	for i := range r.Datasets {
 		ds := &r.Datasets[i]
@@ -151,7 +151,7 @@ func (r *Recipe) expandInputs(w *where) []Problem {
 }
 
 // needed lists the roles the dataset's settings read.
-func (ds *Dataset) needed(r *Recipe) []cf.Role {
+func (ds *Dataset) needed(r *Study) []cf.Role {
 	out := []cf.Role{cf.RoleSST, cf.RoleAirTemp, ds.Cloud, ds.Surface.TemperatureRole}
 	for _, x := range []cf.Role{ds.Surface.PressureRole, ds.Surface.HumidityRole, ds.Ocean.Role, r.Analysis.Grid.TargetRole} {
 		if x != "" {
@@ -219,7 +219,7 @@ func expand(dir string, patterns []string, key, dataset, role string, w *where, 
 		if n == 0 {
 			where := ""
 			if !filepath.IsAbs(pat) {
-				where = fmt.Sprintf(" (relative to the recipe's folder %s)", dir)
+				where = fmt.Sprintf(" (relative to the study's folder %s)", dir)
 			}
 			probs = append(probs, w.problem(k, fmt.Sprintf("dataset %q, role %s: no file matches %q%s; check the path", dataset, role, pat, where)))
 		}

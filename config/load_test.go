@@ -16,7 +16,7 @@ import (
 var exampleFiles = []string{"testdata/example.yaml", "testdata/example.toml", "testdata/example.json"}
 
 // TestExampleFormatsAgree: the commented example in YAML, TOML and JSON
-// gives the same resolved recipe.
+// gives the same resolved study.
 func TestExampleFormatsAgree(t *testing.T) {
 	var first string
 	for _, f := range exampleFiles {
@@ -72,7 +72,7 @@ print("equal", len(y["datasets"]))
 	})
 }
 
-// TestFormatsTable: small recipes written in each format (and with keys in
+// TestFormatsTable: small studies written in each format (and with keys in
 // another order, defaults spelt out, or comments) resolve identically.
 func TestFormatsTable(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
@@ -174,7 +174,7 @@ relative_humidity = "hurs.nc"
 	}
 }
 
-// TestDefaults: a minimal recipe gets the documented defaults.
+// TestDefaults: a minimal study gets the documented defaults.
 func TestDefaults(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
 	p := writeFile(t, dir, "r.yaml", "datasets:\n  - name: m\n    inputs: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc, cloud: clt.nc}\n")
@@ -207,8 +207,8 @@ func TestDefaults(t *testing.T) {
 	if d.Ocean.Method != config.OceanWhereSST || d.SeaIce.Use {
 		t.Errorf("ocean %+v, sea ice %+v", d.Ocean, d.SeaIce)
 	}
-	if d.Metrics.Text() != metrics.DefaultRecipe().Text() {
-		t.Errorf("metrics %s\nwant the metrics defaults %s", d.Metrics.Text(), metrics.DefaultRecipe().Text())
+	if d.Metrics.Text() != metrics.DefaultConventions().Text() {
+		t.Errorf("metrics %s\nwant the metrics defaults %s", d.Metrics.Text(), metrics.DefaultConventions().Text())
 	}
 	if d.Surface.TemperatureRole != cf.RoleSST || d.Surface.PressureRole != "" || d.Surface.HumidityRole != "" {
 		t.Errorf("surface %+v", d.Surface)
@@ -224,8 +224,8 @@ func TestDefaults(t *testing.T) {
 	}
 }
 
-// TestTypedSettings: values reach the typed recipe in SI units and the
-// metrics recipe that the kernels take.
+// TestTypedSettings: values reach the typed study in SI units and the
+// metrics conventions that the kernels take.
 func TestTypedSettings(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
 	p := writeFile(t, dir, "r.yaml", `datasets:

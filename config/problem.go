@@ -6,10 +6,10 @@ import (
 	"strings"
 )
 
-// Problem is one thing wrong with a recipe: where it is (file, line, key)
+// Problem is one thing wrong with a study: where it is (file, line, key)
 // and what to do about it.
 type Problem struct {
-	// File is the recipe file.
+	// File is the study file.
 	File string
 	// Line is the line of the key in File (1-based), 0 when unknown or
 	// when the value came from a flag or the environment.
@@ -43,7 +43,7 @@ func (p Problem) Error() string {
 	return b.String()
 }
 
-// Error is every problem found in a recipe, in file order. Load returns it
+// Error is every problem found in a study, in file order. Load returns it
 // (as error) when any problem was found; errors.As gives the list.
 type Error struct {
 	File     string
@@ -55,9 +55,9 @@ func (e *Error) Error() string {
 	var b strings.Builder
 	n := len(e.Problems)
 	if n == 1 {
-		fmt.Fprintf(&b, "recipe %s has a problem:\n", e.File)
+		fmt.Fprintf(&b, "study %s has a problem:\n", e.File)
 	} else {
-		fmt.Fprintf(&b, "recipe %s has %d problems:\n", e.File, n)
+		fmt.Fprintf(&b, "study %s has %d problems:\n", e.File, n)
 	}
 	for i, p := range e.Problems {
 		if i > 0 {

@@ -51,7 +51,7 @@ var indicatorRange = map[string][2]float64{
 	relations.IndicatorOLR:    {0, 500},
 }
 
-// relKeys names relations.Config fields by their recipe keys in messages.
+// relKeys names relations.Config fields by their study keys in messages.
 var relKeys = strings.NewReplacer(
 	"Config.Mode", "mode (Config.Mode)",
 	"Config.Detrend", "detrend (Config.Detrend)",
@@ -73,7 +73,7 @@ var relKeys = strings.NewReplacer(
 // relationships decodes the relationships section into r.Relations and
 // each dataset's RelationResponses. It runs after the datasets, whose
 // inputs decide which responses, indicators and predictors are available.
-func (d *decoder) relationships(m map[string]any, r *Recipe) {
+func (d *decoder) relationships(m map[string]any, r *Study) {
 	const P = "relationships"
 	c := relations.Defaults()
 	c.Classifier = r.Analysis.Classifier()
@@ -246,7 +246,7 @@ func (d *decoder) words(m map[string]any, path, k string) ([]string, bool) {
 }
 
 // predictor checks a predictor name and that every dataset has it.
-func (d *decoder) predictor(r *Recipe, path, name string) bool {
+func (d *decoder) predictor(r *Study, path, name string) bool {
 	if !slices.Contains(predictorNames, name) {
 		d.fail(path, "%q is not a predictor; %s", name, suggest(name, predictorNames))
 		return false
@@ -263,8 +263,8 @@ func (d *decoder) predictor(r *Recipe, path, name string) bool {
 }
 
 // bins reads the bins table: predictor → a list of edges or {min, max,
-// width}. Nil when the recipe has none (relations.DefaultBins of the mode).
-func (d *decoder) bins(m map[string]any, path string, r *Recipe) map[string][]float64 {
+// width}. Nil when the study has none (relations.DefaultBins of the mode).
+func (d *decoder) bins(m map[string]any, path string, r *Study) map[string][]float64 {
 	t, ok := m["bins"].(map[string]any)
 	if !ok {
 		return nil // absent, or the wrong shape (checkKeys reported it)
@@ -356,7 +356,7 @@ func (d *decoder) bins(m map[string]any, path string, r *Recipe) map[string][]fl
 // responses reads the responses and resolves them for every dataset
 // (Dataset.RelationResponses): the default is the dataset's analysis cloud
 // plus toa_sw_up when the dataset names a toa_sw_up input.
-func (d *decoder) responses(m map[string]any, path string, r *Recipe, c *relations.Config) {
+func (d *decoder) responses(m map[string]any, path string, r *Study, c *relations.Config) {
 	p := join(path, "responses")
 	ws, set := d.words(m, path, "responses")
 	valid := []string{AnalysisCloud}
@@ -424,7 +424,7 @@ var cloudWords = map[cf.Role]string{cf.RoleCloud: "total cloud cover (role cloud
 
 // needRole checks that every dataset reads role (an input of that role,
 // or inputs.all, from which it is then read).
-func (d *decoder) needRole(r *Recipe, path string, role cf.Role, why string) {
+func (d *decoder) needRole(r *Study, path string, role cf.Role, why string) {
 	for _, ds := range r.Datasets {
 		if !ds.hasPattern(role) && !ds.hasPattern(allKey) {
 			d.fail(path, "%s, so every dataset needs an %s input; dataset %q has none (inputs.%s)", why, role, ds.Name, role)
@@ -433,7 +433,7 @@ func (d *decoder) needRole(r *Recipe, path string, role cf.Role, why string) {
 }
 
 // threshold reads the convection-threshold estimation.
-func (d *decoder) threshold(m map[string]any, path string, r *Recipe, c *relations.Config) {
+func (d *decoder) threshold(m map[string]any, path string, r *Study, c *relations.Config) {
 	ind := d.str(m, path, "indicator", "")
 	if ind == "none" {
 		ind = ""
@@ -509,7 +509,7 @@ func example(ind string) string {
 // shared Relations with the responses resolved for d (RelationResponses:
 // analysis_cloud replaced by d.Cloud; by default d.Cloud plus toa_sw_up
 // when d names a toa_sw_up input). The slices and map are copies.
-func (r *Recipe) RelationsFor(d *Dataset) relations.Config {
+func (r *Study) RelationsFor(d *Dataset) relations.Config {
 	c := r.Relations
 	if c.Bins != nil {
 		c.Bins = make(map[string][]float64, len(r.Relations.Bins))

@@ -14,7 +14,7 @@ import (
 	"lidscope/relations"
 )
 
-// relFiles are the files the relationship test recipes name besides baseFiles.
+// relFiles are the files the relationship test studies name besides baseFiles.
 var relFiles = append(append([]string{}, baseFiles...), "om.nc", "pr.nc", "rlut.nc", "rsut.nc")
 
 // TestRelationshipsValidation: each mistake in the relationships section
@@ -243,11 +243,11 @@ analysis:
 			t.Errorf("%s: %v", d.Name, err)
 		}
 	}
-	// RelationsFor returns copies: changing one leaves the recipe alone.
+	// RelationsFor returns copies: changing one leaves the study alone.
 	c := r.RelationsFor(&r.Datasets[0])
 	c.DeltaT[0], c.Regions[0].Name, c.Responses[0] = 99, "changed", "x"
 	if r.Relations.DeltaT[0] != -4 || r.Relations.Regions[0].Name != "box_a" || r.Datasets[0].RelationResponses[0] != "low_cloud" {
-		t.Error("RelationsFor shares slices with the recipe")
+		t.Error("RelationsFor shares slices with the study")
 	}
 }
 
@@ -526,7 +526,7 @@ func TestRelationshipsOverrides(t *testing.T) {
 }
 
 // TestStarterRelationships: the commented relationships block of the
-// starter shows the defaults: uncommented, the recipe decides the same.
+// starter shows the defaults: uncommented, the study decides the same.
 func TestStarterRelationships(t *testing.T) {
 	const std = "standard_name x"
 	for _, c := range []struct {

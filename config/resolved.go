@@ -9,9 +9,9 @@ import (
 
 // ResolvedFormat is the version tag at the start of Resolved(); it changes
 // only when the text's layout does.
-const ResolvedFormat = "lidscope-recipe-resolved/2"
+const ResolvedFormat = "lidscope-study-resolved/2"
 
-type resolvedRecipe struct {
+type resolvedStudy struct {
 	Format   string            `json:"format"`
 	Datasets []resolvedDataset `json:"datasets"`
 	Analysis resolvedAnalysis  `json:"analysis"`
@@ -52,12 +52,12 @@ type resolvedOutput struct {
 	Plots bool   `json:"plots"`
 }
 
-// rel writes a path relative to the recipe's folder (slash-separated):
+// rel writes a path relative to the study's folder (slash-separated):
 // input files as their pattern was written (relative patterns give
 // relative names, absolute patterns absolute ones), other paths relative
 // when they lie inside the folder, so that the text does not depend on
-// where the recipe's folder is.
-func (r *Recipe) rel(path string) string {
+// where the study's folder is.
+func (r *Study) rel(path string) string {
 	if s, ok := r.shown[path]; ok {
 		return s
 	}
@@ -68,18 +68,18 @@ func (r *Recipe) rel(path string) string {
 }
 
 // Resolved returns a stable canonical text (indented JSON with sorted
-// keys, starting with the ResolvedFormat tag) of everything the recipe
+// keys, starting with the ResolvedFormat tag) of everything the study
 // decides once defaults, overrides and globs are applied: per dataset the
-// files of each role (relative to the recipe's folder), the overrides, the
+// files of each role (relative to the study's folder), the overrides, the
 // time selection, masks, surface settings, cloud role and the complete
-// metrics recipe text; the analysis and output settings. Recipes that
+// metrics conventions text; the analysis and output settings. Studies that
 // decide the same give the same text, whatever their format, key order,
-// comments or spelling of defaults. It does not contain the recipe's own
+// comments or spelling of defaults. It does not contain the study's own
 // path or text. Per dataset it also holds the relationship analysis of
-// that dataset (relations.Config.Text of [Recipe.RelationsFor], one line
+// that dataset (relations.Config.Text of [Study.RelationsFor], one line
 // per entry).
-func (r *Recipe) Resolved() string {
-	out := resolvedRecipe{Format: ResolvedFormat}
+func (r *Study) Resolved() string {
+	out := resolvedStudy{Format: ResolvedFormat}
 	for i := range r.Datasets {
 		d := &r.Datasets[i]
 		rd := resolvedDataset{
@@ -193,7 +193,7 @@ func (r *Recipe) Resolved() string {
 	if err := enc.Encode(out); err != nil {
 		// Only strings, finite numbers (Load rejects others), booleans,
 		// lists and maps are encoded: this cannot happen.
-		panic("config: encoding the resolved recipe: " + err.Error())
+		panic("config: encoding the resolved study: " + err.Error())
 	}
 	return b.String()
 }

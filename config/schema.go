@@ -7,7 +7,7 @@ import (
 	"lidscope/relations"
 )
 
-// kind is the shape of a recipe value.
+// kind is the shape of a study value.
 type kind uint8
 
 const (
@@ -50,7 +50,7 @@ func (k kind) String() string {
 	return "?"
 }
 
-// key describes one recipe key: its shape and, for tables and lists, what
+// key describes one study key: its shape and, for tables and lists, what
 // it holds. The schema is the single list of valid keys: unknown-key
 // checks, suggestions, override keys and environment names all come from it.
 type key struct {

@@ -12,7 +12,7 @@ import (
 	"lidscope/relations"
 )
 
-// Starter returns a commented starter recipe (YAML) for the files that
+// Starter returns a commented starter study (YAML) for the files that
 // cf.Inspect reported on: each recognised role with its files and
 // variable, units overrides where inspect found values that contradict
 // their units (commented out, to be confirmed), a 12-month climatology
@@ -23,8 +23,8 @@ import (
 // marked MISSING. When the files cover the required roles (sst,
 // air_temperature, and low_cloud or cloud) the text loads as it is.
 //
-// paths[i] is how the recipe should name the file of reports[i] (e.g.
-// relative to the folder the recipe will be saved in); when paths is
+// paths[i] is how the study should name the file of reports[i] (e.g.
+// relative to the folder the study will be saved in); when paths is
 // shorter, reports[i].Path is used.
 func Starter(reports []*cf.FileReport, paths []string) string {
 	s := newStarter(reports, paths)
@@ -50,8 +50,8 @@ type starter struct {
 }
 
 var (
-	// inspect's advice, "set units: K in the recipe" or "set units.sst: K in the recipe"
-	unitsHint   = regexp.MustCompile(`set units(?:\.[a-z_]+)?: (\S+) in the recipe`)
+	// inspect's advice, "set units: K in the study" or "set units.sst: K in the study"
+	unitsHint   = regexp.MustCompile(`set units(?:\.[a-z_]+)?: (\S+) in the study`)
 	ambigReport = regexp.MustCompile(`^role (\S+) is ambiguous: variables (.+) all qualify`)
 )
 
@@ -177,7 +177,7 @@ func (s *starter) text() string {
 	for _, fs := range s.byRole {
 		nfiles += len(fs)
 	}
-	w("# lidscope recipe: a starter written by `lidscope recipe init` from what")
+	w("# lidscope study: a starter written by `lidscope study init` from what")
 	w("# `lidscope inspect` found. Review every line marked CHECK or MISSING.")
 	w("# Every key is described in the lidscope config package documentation;")
 	w("# relative paths are relative to this file's folder.")
@@ -225,7 +225,7 @@ func (s *starter) text() string {
 
 	// variables
 	if len(roles) > 0 {
-		w("    variables:  # as found by inspect; naming them makes the recipe independent of detection")
+		w("    variables:  # as found by inspect; naming them makes the study independent of detection")
 		for _, r := range roles {
 			fs := s.byRole[r]
 			note := ""

@@ -16,7 +16,7 @@ const (
 	grid2 = "91×181 lat×lon, regular 2° × 2° longitude; lat -90…90, lon -180…180; bounds derived from midpoints"
 	grid1 = "180×360 lat×lon, regular 1° × 1° longitude; lat -89.5…89.5, lon -179.5…179.5; bounds derived from midpoints"
 	// the error cf gives for a time axis with bare "Month" units (see cf/time.go and calendar)
-	monthProblem = `role sst: x.nc: time coordinate time, attribute units = "Month": time units not in CF form: time units "Month" name a unit but no reference date (no "since <date>"); fix the attribute or declare the time axis in the recipe`
+	monthProblem = `role sst: x.nc: time coordinate time, attribute units = "Month": time units not in CF form: time units "Month" name a unit but no reference date (no "since <date>"); fix the attribute or declare the time axis in the study`
 )
 
 func field(role cf.Role, v, how, grid, time string, problems ...string) cf.VarReport {
@@ -59,7 +59,7 @@ func TestStarter(t *testing.T) {
 		loads   bool
 		has     []string // substrings of the text
 		hasNot  []string
-		check   func(t *testing.T, r *config.Recipe)
+		check   func(t *testing.T, r *config.Study)
 	}{
 		{"complete CF set", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{
@@ -68,7 +68,7 @@ func TestStarter(t *testing.T) {
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
 		}, true, []string{`sst: "sst.nc"`, `air_temperature: "tos"`[:0] + `air_temperature: "ta"`, "climatology: false", `target: ""`, "mask: sst", "humidity: 0.8"}, []string{"# CHECK", "# MISSING"},
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if d.Variables[cf.RoleSST] != "tos" || d.Cloud != cf.RoleLowCloud || d.Time.Climatology {
 					t.Errorf("%+v", d)
@@ -82,7 +82,7 @@ func TestStarter(t *testing.T) {
 				report("landsea.nc", 0, field(cf.RoleLandFraction, "LSMASK", byName, grid1, "", unitsProblem(t, cf.RoleLandFraction, units.Fraction, "1", 0, 4))),
 			}
 		}, true, []string{"climatology: true", "#   air_temperature: \"K\"", "#   cloud: \"%\"", "mask: categorical", "ocean_values: [0]", "target: sst", "CHECK: recognised by its name only"}, []string{"# MISSING", "start:"},
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if !d.Time.Climatology || d.Ocean.Method != config.OceanFromCategories || d.Ocean.Role != cf.RoleLandFraction ||
 					len(d.Units) != 0 || d.Cloud != cf.RoleCloud || r.Analysis.Grid.TargetRole != cf.RoleSST {
@@ -99,7 +99,7 @@ func TestStarter(t *testing.T) {
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
 		}, true, []string{"# units: \"days since 1979-01-01\"", "climatology: true", `"Month"`}, []string{"\n      climatology: true"},
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				if r.Datasets[0].Time.Climatology {
 					t.Error("climatology declared for a 480-step axis")
 				}
@@ -123,7 +123,7 @@ func TestStarter(t *testing.T) {
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
 		}, true, []string{`sst: ["sst_a.nc", "sst_b.nc"]`, "# CHECK: sst_other.nc also gives sst (variable analysed_sst)"}, nil,
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				if n := len(r.Datasets[0].Inputs[cf.RoleSST]); n != 2 {
 					t.Errorf("%d sst files", n)
 				}
@@ -140,7 +140,7 @@ func TestStarter(t *testing.T) {
 				report("hus.nc", 480, q),
 			}
 		}, true, []string{"humidity: relative_humidity", "pressure: field", "ectei: true", "max_fraction: 0.15", "or air: the surface_air_temp input", "role: sea_fraction", "mask: fraction"}, nil,
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if !d.Metrics.ECTEI || !d.Metrics.PressureField || d.Surface.HumidityRole != cf.RoleRH || !d.SeaIce.Use || d.Ocean.Role != cf.RoleSeaFraction {
 					t.Errorf("%+v", d)
@@ -151,7 +151,7 @@ func TestStarter(t *testing.T) {
 			}},
 		{"ambiguity and an unusable file", func(t *testing.T) []*cf.FileReport {
 			amb := report("cl.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly))
-			amb.Problems = []string{"role cloud is ambiguous: variables clt, tcc all qualify; name the one to use in the recipe (variables: cloud: NAME)"}
+			amb.Problems = []string{"role cloud is ambiguous: variables clt, tcc all qualify; name the one to use in the study (variables: cloud: NAME)"}
 			bad := &cf.FileReport{Path: "broken.nc", Problems: []string{"cannot open: NetCDF: Unknown file format"}}
 			return []*cf.FileReport{
 				report("sst.nc", 480, field(cf.RoleSST, "tos", byStd, grid2, monthly)),
@@ -166,7 +166,7 @@ func TestStarter(t *testing.T) {
 				report("cll?.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
 		}, true, nil, nil,
-			func(t *testing.T, r *config.Recipe) {
+			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if len(d.Inputs[cf.RoleSST]) != 1 || filepath.Base(d.Inputs[cf.RoleSST][0]) != "sst[1].nc" || len(d.Inputs[cf.RoleAirTemp]) != 1 {
 					t.Errorf("inputs %v", d.Inputs)
@@ -201,7 +201,7 @@ func TestStarter(t *testing.T) {
 					t.Errorf("text has %q:\n%s", s, text)
 				}
 			}
-			p := writeFile(t, dir, "recipe.yaml", text)
+			p := writeFile(t, dir, "study.yaml", text)
 			r, err := config.Load(p, noEnv)
 			if c.loads != (err == nil) {
 				t.Fatalf("loads = %v, want %v: %v\n%s", err == nil, c.loads, err, text)
@@ -216,7 +216,7 @@ func TestStarter(t *testing.T) {
 	}
 }
 
-// TestStarterPaths: paths[i] names the file of reports[i] in the recipe.
+// TestStarterPaths: paths[i] names the file of reports[i] in the study.
 func TestStarterPaths(t *testing.T) {
 	reps := []*cf.FileReport{report("/data/x/sst.nc", 0, field(cf.RoleSST, "tos", "standard_name", grid2, ""))}
 	if txt := config.Starter(reps, []string{"../x/sst.nc"}); !strings.Contains(txt, `sst: "../x/sst.nc"`) {
@@ -233,7 +233,7 @@ func TestStarterPaths(t *testing.T) {
 // "Month" (cdf/sstdata_netcdf.nc) and a categorical 0–4 land-sea mask
 // (cdf/landsea.nc), plus CF climatologies of air temperature and low cloud
 // compiled here with ncgen. The starter must load, and cf must then open
-// every input with the Spec the recipe gives, which for the SST is only
+// every input with the Spec the study gives, which for the SST is only
 // possible through the declared climatology.
 func TestStarterOnRealFiles(t *testing.T) {
 	real := os.Getenv("LIDSCOPE_REALDATA")
@@ -265,7 +265,7 @@ func TestStarterOnRealFiles(t *testing.T) {
 			t.Errorf("starter lacks %q:\n%s", s, text)
 		}
 	}
-	p := writeFile(t, dir, "recipe.yaml", text)
+	p := writeFile(t, dir, "study.yaml", text)
 	r, err := config.Load(p, noEnv)
 	if err != nil {
 		t.Fatalf("%v\n%s", err, text)
@@ -274,7 +274,7 @@ func TestStarterOnRealFiles(t *testing.T) {
 	for _, role := range d.Roles() {
 		fld, err := cf.Open(d.Inputs[role], d.Spec(role))
 		if err != nil {
-			t.Errorf("%s: cf cannot open the input with the recipe's Spec: %v", role, err)
+			t.Errorf("%s: cf cannot open the input with the study's Spec: %v", role, err)
 			continue
 		}
 		if role == cf.RoleSST && (fld.Time == nil || fld.Time.Step != cf.StepClimatology || fld.NT() != 12) {

@@ -73,11 +73,11 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 		case kTable, kRoles, kNamed, kEdges:
 			m, ok := node.(map[string]any)
 			if !ok {
-				return fmt.Errorf("%s is not a table in the recipe, so %s cannot be set", done, path)
+				return fmt.Errorf("%s is not a table in the study, so %s cannot be set", done, path)
 			}
 			child := k.child(part)
 			if child == nil {
-				where := "at the top of the recipe"
+				where := "at the top of the study"
 				if done != "" {
 					where = "in " + done
 				}
@@ -94,7 +94,7 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 			next, ok := m[part]
 			if !ok || next == nil {
 				if child.kind == kList {
-					return fmt.Errorf("%s has no elements in the recipe, so %s cannot be set; set the whole list with %s", join(done, part), path, join(done, part))
+					return fmt.Errorf("%s has no elements in the study, so %s cannot be set; set the whole list with %s", join(done, part), path, join(done, part))
 				}
 				next = map[string]any{}
 				m[part] = next
@@ -103,7 +103,7 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 		case kList:
 			l, ok := node.([]any)
 			if !ok {
-				return fmt.Errorf("%s is not a list in the recipe, so %s cannot be set", done, path)
+				return fmt.Errorf("%s is not a list in the study, so %s cannot be set", done, path)
 			}
 			n, err := strconv.Atoi(part)
 			if err != nil || n < 0 {
@@ -263,7 +263,7 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 					case k.what != "":
 						what = k.what
 					}
-					where := "at the top of the recipe"
+					where := "at the top of the study"
 					if path != "" {
 						where = "in " + path
 					}

@@ -19,7 +19,7 @@ const head = `datasets:
 
 // TestValidation checks that each kind of mistake is reported with the
 // file, the line of the key, the key path and a message saying what to do.
-// Expected lines are counted by hand in the recipe text.
+// Expected lines are counted by hand in the study text.
 func TestValidation(t *testing.T) {
 	cases := []struct {
 		name string
@@ -81,7 +81,7 @@ func TestValidation(t *testing.T) {
 		{"region longitude", "analysis:\n  regions:\n    - {name: a, south: 0, north: 10, west: -200, east: 20}\n", "analysis.regions.0", 9, "−180…360"},
 		{"region missing bound", "analysis:\n  regions:\n    - name: a\n      south: 0\n      north: 10\n      west: 0\n", "analysis.regions.0", 9, "needs east"},
 		{"region twice", "analysis:\n  regions:\n    - {name: a, south: 0, north: 10, west: 0, east: 20}\n    - {name: a, south: 0, north: 10, west: 30, east: 40}\n", "analysis.regions.1.name", 10, "used twice"},
-		{"metrics recipe invalid", "    metrics:\n      lapse_pressure: 600hPa\n", "datasets.0.metrics", 7, "LapsePressure"},
+		{"metrics conventions invalid", "    metrics:\n      lapse_pressure: 600hPa\n", "datasets.0.metrics", 7, "LapsePressure"},
 
 		// contradictions
 		{"months and season", "    time:\n      months: [6, 7, 8]\n      season: JJA\n", "datasets.0.time.season", 9, "not both"},

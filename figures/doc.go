@@ -11,7 +11,7 @@
 // series of the tropical-mean SST and the regimes' area fractions (series).
 // Every figure has a title naming what it shows, the dataset and period,
 // and the regime definition (from summary.json); axis labels and colour
-// bars with units; and a footer with the lidscope version, the recipe hash
+// bars with units; and a footer with the lidscope version, the study hash
 // and the figure's name.
 //
 // # Maps

@@ -203,11 +203,11 @@ func (f *fig) footer(width vg.Length) textBlock {
 	if v == "" {
 		v = "version not recorded"
 	}
-	h := r.RecipeHash
+	h := r.StudyHash
 	if h == "" {
 		h = "not recorded"
 	}
-	s := fmt.Sprintf("lidscope %s · recipe %s · figure %s", v, h, f.name)
+	s := fmt.Sprintf("lidscope %s · study %s · figure %s", v, h, f.name)
 	st := withColour(style(sizeFooter, false), subtleColour)
 	return textBlock{wrap(f.t(s), st, width), st}
 }

@@ -22,11 +22,11 @@ import (
 type Run struct {
 	Dir string
 	// From summary.json.
-	Dataset, Title, Version, RecipeHash string
-	Period                              string // e.g. "2001-01 … 2002-12"
-	RegimeDefinition                    string
-	Delta, HalfWidth                    float64 // K
-	BandSouth, BandNorth                float64 // degrees_north
+	Dataset, Title, Version, StudyHash string
+	Period                             string // e.g. "2001-01 … 2002-12"
+	RegimeDefinition                   string
+	Delta, HalfWidth                   float64 // K
+	BandSouth, BandNorth               float64 // degrees_north
 
 	maps      *mapsFile
 	series    *seriesFile
@@ -35,12 +35,12 @@ type Run struct {
 
 // summaryJSON is the part of summary.json the figures use.
 type summaryJSON struct {
-	Format     string `json:"format"`
-	Dataset    string `json:"dataset"`
-	Title      string `json:"title"`
-	Version    string `json:"lidscope_version"`
-	RecipeHash string `json:"recipe_hash"`
-	Period     struct {
+	Format    string `json:"format"`
+	Dataset   string `json:"dataset"`
+	Title     string `json:"title"`
+	Version   string `json:"lidscope_version"`
+	StudyHash string `json:"study_hash"`
+	Period    struct {
 		Label string `json:"label"`
 	} `json:"period"`
 	Regime struct {
@@ -83,7 +83,7 @@ func Load(dir string) (*Run, error) {
 		return nil, fmt.Errorf("figures: %s has format %q, want %q: it was not written by lidscope", p, s.Format, output.SummaryFormat)
 	}
 	return &Run{
-		Dir: dir, Dataset: s.Dataset, Title: s.Title, Version: s.Version, RecipeHash: s.RecipeHash,
+		Dir: dir, Dataset: s.Dataset, Title: s.Title, Version: s.Version, StudyHash: s.StudyHash,
 		Period: s.Period.Label, RegimeDefinition: s.Regime.Text,
 		Delta: s.Regime.Delta.get(), HalfWidth: s.Regime.HalfWidth.get(),
 		BandSouth: s.Regime.Band.South.get(), BandNorth: s.Regime.Band.North.get(),

@@ -46,7 +46,7 @@ func benchFields(in *SlabInput) {
 
 const benchN = 1 << 16 // one 256 x 256 slab
 
-func runSlabBench(b *testing.B, r Recipe, in SlabInput, out SlabOutput) {
+func runSlabBench(b *testing.B, r Conventions, in SlabInput, out SlabOutput) {
 	k, err := NewKernel(r)
 	if err != nil {
 		b.Fatal(err)
@@ -76,18 +76,18 @@ func runBench(b *testing.B, columns int, slab func() error) {
 }
 
 // BenchmarkSlabLTSEIS is the headline figure: LTS + EIS with the default
-// recipe (Romps LCL, Murphy & Koop, constant 1000 hPa and RH 0.8).
+// conventions (Romps LCL, Murphy & Koop, constant 1000 hPa and RH 0.8).
 func BenchmarkSlabLTSEIS(b *testing.B) {
 	in := benchSlab(benchN)
 	out := SlabOutput{LTS: make([]float32, benchN), EIS: make([]float32, benchN)}
-	runSlabBench(b, DefaultRecipe(), in, out)
+	runSlabBench(b, DefaultConventions(), in, out)
 }
 
 // BenchmarkSlabLTSEISFields uses surface-pressure and RH fields.
 func BenchmarkSlabLTSEISFields(b *testing.B) {
 	in := benchSlab(benchN)
 	benchFields(&in)
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.PressureField = true
 	r.Humidity = HumidityRH
 	out := SlabOutput{LTS: make([]float32, benchN), EIS: make([]float32, benchN)}
@@ -98,7 +98,7 @@ func BenchmarkSlabLTSEISFields(b *testing.B) {
 func BenchmarkSlabLTS(b *testing.B) {
 	in := benchSlab(benchN)
 	out := SlabOutput{LTS: make([]float32, benchN)}
-	runSlabBench(b, DefaultRecipe(), in, out)
+	runSlabBench(b, DefaultConventions(), in, out)
 }
 
 // BenchmarkSlabAll64 writes every output as float64, with ECTEI.
@@ -108,7 +108,7 @@ func BenchmarkSlabAll64(b *testing.B) {
 	for i := range in.Q700 {
 		in.Q700[i] = 0.004
 	}
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.ECTEI = true
 	k, err := NewKernel(r)
 	if err != nil {

@@ -13,7 +13,7 @@ const blockSize = 32
 // blockSize columns, SI units, float64.
 type block struct {
 	n int
-	// inputs; ps already holds the recipe's constant when it is not a field
+	// inputs; ps already holds the conventions' constant when it is not a field
 	ts, t700, ps, hum, t850, q700 [blockSize]float64
 	fault                         [blockSize]fault
 	// intermediates
@@ -82,13 +82,13 @@ func (k *Kernel) check(b *block, i int, w want) fault {
 
 // computeBlock computes the columns of b. It is the single implementation
 // behind Column, Slab and Slab64. b.ps must hold the surface pressure (the
-// recipe's constant when there is no field) and b.t850 the lapse-level
+// conventions' constant when there is no field) and b.t850 the lapse-level
 // temperature when it is a field.
 func (k *Kernel) computeBlock(b *block, w want) {
 	r := &k.r
 	n := b.n
 	// Only surface temperature and T700 need checking when every other
-	// input is a recipe constant: a fast path for that case.
+	// input is a conventions constant: a fast path for that case.
 	simple := !r.PressureField && (r.Humidity == HumidityAssumedRH || !(w.lcl || w.eis || w.ectei)) &&
 		(!r.T850Field || !(w.eis || w.ectei)) && !w.ectei
 	for i := range n {

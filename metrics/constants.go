@@ -35,8 +35,8 @@ const (
 	LinearLCLRate = 125.0
 )
 
-// Constants are the physical constants a [Recipe] uses. All are SI. They are
-// part of the recipe because papers use slightly different values and the
+// Constants are the physical constants a [Conventions] uses. All are SI. They are
+// part of the conventions because papers use slightly different values and the
 // differences show in EIS at the 0.01–0.1 K level.
 //
 // The LCL of Romps (2017) does not use these: it uses the constants of the

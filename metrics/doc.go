@@ -17,9 +17,9 @@
 // Published EIS values differ by a few tenths of a kelvin depending on the
 // constants, the saturation-vapour-pressure formula, the LCL method, where
 // the moist lapse rate is evaluated, and the surface pressure and humidity
-// assumed. Every such choice is a field of [Recipe]; [Recipe.Text] gives a
+// assumed. Every such choice is a field of [Conventions]; [Conventions.Text] gives a
 // stable one-line description to store in output metadata, and
-// [DefaultRecipe] documents the defaults.
+// [DefaultConventions] documents the defaults.
 //
 // # Kernels
 //

@@ -8,10 +8,10 @@ import (
 	"lidscope/metrics"
 )
 
-// One column with the default recipe: SST 290 K, T700 282 K, 1000 hPa,
+// One column with the default conventions: SST 290 K, T700 282 K, 1000 hPa,
 // RH 0.8 assumed (an invented subtropical column).
 func ExampleKernel_Column() {
-	k, err := metrics.NewKernel(metrics.DefaultRecipe())
+	k, err := metrics.NewKernel(metrics.DefaultConventions())
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -27,7 +27,7 @@ func ExampleKernel_Column() {
 // A slab with a surface-pressure field and a missing value: the missing
 // column gets NaN in every output and is counted.
 func ExampleKernel_Slab() {
-	r := metrics.DefaultRecipe()
+	r := metrics.DefaultConventions()
 	r.PressureField = true
 	k, err := metrics.NewKernel(r)
 	if err != nil {
@@ -52,16 +52,16 @@ func ExampleKernel_Slab() {
 	// {Columns:3 Missing:1 Rejected:0}
 }
 
-// The recipe text recorded in output metadata names every choice.
-func ExampleRecipe_Text() {
-	r := metrics.DefaultRecipe()
+// The conventions text recorded in output metadata names every choice.
+func ExampleConventions_Text() {
+	r := metrics.DefaultConventions()
 	r.SVP = metrics.SVPBolton
 	r.LCL = metrics.LCLBolton
 	for _, part := range strings.Split(r.Text(), "; ") {
 		fmt.Println(part)
 	}
 	// Output:
-	// lidscope-metrics-recipe/1
+	// lidscope-metrics-conventions/1
 	// constants Rd=287.04 Rv=461.5 cpd=1005.7 Lv0=2.501e+06 LvSlope=0 g=9.80665 p0=100000
 	// theta=T*(p0/p)^(Rd/cpd)
 	// svp=bolton (Bolton 1980 eq. 10, over liquid)

@@ -6,7 +6,7 @@ import (
 )
 
 // FuzzSlab feeds arbitrary float32 inputs to the kernel under a spread of
-// recipes. It checks: no panic; a NaN in any input the recipe uses gives
+// convention sets. It checks: no panic; a NaN in any input the conventions use gives
 // NaN in every output of that column; every output of a column is either
 // NaN or finite, and all of a column's outputs are NaN together; the
 // neighbouring columns are not disturbed; and the slab agrees with Column.
@@ -18,9 +18,9 @@ func FuzzSlab(f *testing.F) {
 	f.Add(uint8(3), float32(-5), float32(1e30), float32(0), float32(-1), float32(nan), float32(2))
 	f.Add(uint8(7), float32(123), float32(332), float32(70000.01), float32(0), float32(123), float32(0))
 	f.Add(uint8(255), float32(math.Inf(1)), float32(math.Inf(-1)), float32(1e-40), float32(1.05), float32(0), float32(0.0999))
-	recipes := allRecipes()
+	sets := allConventions()
 	f.Fuzz(func(t *testing.T, sel uint8, ts, t700, ps, hum, t850, q700 float32) {
-		r := recipes[int(sel)*37%len(recipes)]
+		r := sets[int(sel)*37%len(sets)]
 		k, err := NewKernel(r)
 		if err != nil {
 			t.Fatal(err)
@@ -92,9 +92,9 @@ func FuzzSlab(f *testing.F) {
 	})
 }
 
-// randomColumnFixed is one fixed valid column for recipe r, as float32:
-// Ts, T700, Ps, humidity of the recipe's kind, T850, q700.
-func randomColumnFixed(r Recipe) [6]float32 {
+// randomColumnFixed is one fixed valid column for conventions r, as float32:
+// Ts, T700, Ps, humidity of the conventions' kind, T850, q700.
+func randomColumnFixed(r Conventions) [6]float32 {
 	hum := float32(0.8)
 	switch r.Humidity {
 	case HumidityDewPoint:

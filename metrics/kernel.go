@@ -6,12 +6,12 @@ import (
 	"math"
 )
 
-// Kernel computes the metrics of a [Recipe] for single columns and for
-// slabs. It holds only the validated recipe and values precomputed from it,
+// Kernel computes the metrics of a [Conventions] for single columns and for
+// slabs. It holds only the validated conventions and values precomputed from it,
 // is never modified after [NewKernel], and is safe for concurrent use (e.g.
 // one goroutine per time slice).
 type Kernel struct {
-	r Recipe
+	r Conventions
 	c Constants
 
 	kappa, eps, rdOverG     float64
@@ -25,7 +25,7 @@ type Kernel struct {
 }
 
 // NewKernel validates r and returns a kernel for it.
-func NewKernel(r Recipe) (*Kernel, error) {
+func NewKernel(r Conventions) (*Kernel, error) {
 	if err := r.Validate(); err != nil {
 		return nil, err
 	}
@@ -48,8 +48,8 @@ func NewKernel(r Recipe) (*Kernel, error) {
 	return k, nil
 }
 
-// Recipe returns the kernel's recipe.
-func (k *Kernel) Recipe() Recipe { return k.r }
+// Conventions returns the kernel's conventions.
+func (k *Kernel) Conventions() Conventions { return k.r }
 
 // fault says why a column gave NaN.
 type fault uint8
@@ -70,7 +70,7 @@ type want struct{ lcl, eis, ectei bool }
 
 func badT(t float64) bool { return !(t >= minTemperature && t <= maxTemperature) }
 
-// lnes returns ln es(T) for the recipe's formula: the log of
+// lnes returns ln es(T) for the conventions' formula: the log of
 // [MurphyKoopSVP] or [BoltonSVP] with the kernel's exp and log, reusing
 // invT = 1/T and lnT = ln T.
 func (k *Kernel) lnes(T, invT, lnT float64) float64 {
@@ -108,18 +108,18 @@ func logOrMinusInf(x float64) float64 {
 
 var lnMaxRH = math.Log(maxRH)
 
-// ColumnInput is one column's input, SI units. Fields the recipe does not
+// ColumnInput is one column's input, SI units. Fields the conventions do not
 // use are ignored.
 type ColumnInput struct {
-	Ts   float64 // surface temperature (SST or air, per Recipe.Surface), K
+	Ts   float64 // surface temperature (SST or air, per Conventions.Surface), K
 	T700 float64 // 700-hPa temperature, K
-	Ps   float64 // surface pressure, Pa; used when Recipe.PressureField
+	Ps   float64 // surface pressure, Pa; used when Conventions.PressureField
 	// Humidity is the relative humidity (fraction), dew point (K) or
-	// specific humidity (kg/kg) per Recipe.Humidity; unused for
+	// specific humidity (kg/kg) per Conventions.Humidity; unused for
 	// HumidityAssumedRH.
 	Humidity float64
-	T850     float64 // temperature at Recipe.LapsePressure, K; used when Recipe.T850Field
-	Q700     float64 // 700-hPa specific humidity, kg/kg; used when Recipe.ECTEI
+	T850     float64 // temperature at Conventions.LapsePressure, K; used when Conventions.T850Field
+	Q700     float64 // 700-hPa specific humidity, kg/kg; used when Conventions.ECTEI
 }
 
 // ColumnResult is every value computed for a column, SI units.
@@ -133,13 +133,13 @@ type ColumnResult struct {
 	LCL             float64 // m above the surface
 	Z700            float64 // m above the surface
 	T850            float64 // temperature where Γ is evaluated, K
-	WSat850         float64 // saturation humidity in Γ (qs or rs per recipe), kg/kg
+	WSat850         float64 // saturation humidity in Γ (qs or rs per conventions), kg/kg
 	LapseRate850    float64 // Γ_T, moist-adiabatic temperature lapse rate, K m-1
 	ThetaGradient   float64 // Γθ of Wood & Bretherton (2006, eq. 5), K m-1
 	EIS             float64 // K
-	QSurface        float64 // kg/kg (NaN unless Recipe.ECTEI)
-	Q700            float64 // kg/kg (NaN unless Recipe.ECTEI)
-	ECTEI           float64 // K (NaN unless Recipe.ECTEI)
+	QSurface        float64 // kg/kg (NaN unless Conventions.ECTEI)
+	Q700            float64 // kg/kg (NaN unless Conventions.ECTEI)
+	ECTEI           float64 // K (NaN unless Conventions.ECTEI)
 }
 
 // ErrImpossibleInput is wrapped by Column's errors for inputs outside
@@ -149,7 +149,7 @@ var (
 	ErrMissingInput    = errors.New("missing input (NaN)")
 )
 
-// wsat is the saturation humidity the recipe uses in the lapse rate at
+// wsat is the saturation humidity the conventions uses in the lapse rate at
 // temperature t and the lapse pressure.
 func (k *Kernel) wsat(t float64) float64 {
 	if k.r.LapseMoisture == LapseRs {
@@ -161,7 +161,7 @@ func (k *Kernel) wsat(t float64) float64 {
 // colIn is one column's raw input, kept for error messages.
 type colIn struct{ ts, t700, ps, hum, t850, q700 float64 }
 
-// load puts column in at index i of b, with the recipe's constants for
+// load puts column in at index i of b, with the conventions' constants for
 // inputs that are not fields.
 func (k *Kernel) load(b *block, i int, in colIn) {
 	b.ts[i], b.t700[i], b.hum[i], b.q700[i] = in.ts, in.t700, in.hum, in.q700
@@ -174,7 +174,7 @@ func (k *Kernel) load(b *block, i int, in colIn) {
 	}
 }
 
-// Column computes every metric of the recipe for one column, with all
+// Column computes every metric of the conventions for one column, with all
 // intermediate values. It returns an error naming the input that is NaN or
 // physically impossible. Column and the slab kernels share one
 // implementation and give the same numbers.

@@ -8,9 +8,9 @@ import (
 	"testing"
 )
 
-// allRecipes returns every combination of the recipe's discrete choices.
-func allRecipes() []Recipe {
-	var out []Recipe
+// allConventions returns every combination of the conventions' discrete choices.
+func allConventions() []Conventions {
+	var out []Conventions
 	for _, svp := range []SVPFormula{SVPMurphyKoop, SVPBolton} {
 		for _, lcl := range []LCLMethod{LCLRomps, LCLBolton, LCLLinear} {
 			for _, hum := range []HumiditySource{HumidityAssumedRH, HumidityRH, HumidityDewPoint, HumiditySpecific} {
@@ -19,7 +19,7 @@ func allRecipes() []Recipe {
 						for _, lm := range []LapseMoisture{LapseQs, LapseRs} {
 							for _, ec := range []int{0, 1, 2} {
 								for _, slope := range []float64{0, BoltonLvSlope} {
-									r := DefaultRecipe()
+									r := DefaultConventions()
 									r.SVP, r.LCL, r.Humidity, r.PressureField, r.T850Field, r.LapseMoisture = svp, lcl, hum, psf, t850f, lm
 									r.Constants.LvSlope = slope
 									r.ECTEI = ec > 0
@@ -44,9 +44,9 @@ func allRecipes() []Recipe {
 
 // randomColumn is an invented, physically possible column (synthetic test
 // data): SST 270–310 K, T700 250–290 K, surface pressure 950–1040 hPa,
-// humidity of the recipe's kind for RH 0.05–1.03, T850 between Ts and T700,
+// humidity of the conventions' kind for RH 0.05–1.03, T850 between Ts and T700,
 // q700 0–10 g/kg.
-func randomColumn(rng *rand.Rand, r Recipe) ColumnInput {
+func randomColumn(rng *rand.Rand, r Conventions) ColumnInput {
 	c := ColumnInput{Ts: 270 + 40*rng.Float64(), T700: 250 + 40*rng.Float64(), Ps: 95000 + 9000*rng.Float64()}
 	rh := 0.05 + 0.98*rng.Float64()
 	switch r.Humidity {
@@ -68,7 +68,7 @@ func randomColumn(rng *rand.Rand, r Recipe) ColumnInput {
 
 // reference computes a column from the exported physics functions alone:
 // the published Romps form through LambertWm1, math.Exp/Log everywhere.
-func reference(r Recipe, in ColumnInput) (lts, lcl, z700, gam, eis, ectei float64) {
+func reference(r Conventions, in ColumnInput) (lts, lcl, z700, gam, eis, ectei float64) {
 	c := r.Constants
 	ps := r.SurfacePressure
 	if r.PressureField {
@@ -114,11 +114,11 @@ func reference(r Recipe, in ColumnInput) (lts, lcl, z700, gam, eis, ectei float6
 }
 
 // The kernel (fast exp/log, log-space Romps LCL, fused divisions) against
-// the composition of the exported reference functions, for every recipe.
+// the composition of the exported reference functions, for every conventions.
 func TestColumnMatchesReference(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
 	worst := 0.0
-	for _, r := range allRecipes() {
+	for _, r := range allConventions() {
 		k, err := NewKernel(r)
 		if err != nil {
 			t.Fatalf("%s: %v", r.Text(), err)
@@ -157,9 +157,9 @@ func TestColumnMatchesReference(t *testing.T) {
 	t.Logf("kernel vs reference: worst difference %.3g (absolute, relative above 1)", worst)
 }
 
-// slabFixture is an invented slab of n columns for recipe r, with
+// slabFixture is an invented slab of n columns for conventions r, with
 // missing values and impossible values at known places.
-func slabFixture(rng *rand.Rand, r Recipe, n int) (SlabInput, []ColumnInput) {
+func slabFixture(rng *rand.Rand, r Conventions, n int) (SlabInput, []ColumnInput) {
 	in := SlabInput{Ts: make([]float32, n), T700: make([]float32, n)}
 	if r.PressureField {
 		in.Ps = make([]float32, n)
@@ -209,8 +209,8 @@ func same(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b))
 // exactly where Column reports an error, and count them.
 func TestSlabMatchesColumn(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 14))
-	for ri, r := range allRecipes() {
-		if ri%7 != 0 { // a spread of recipes is enough here
+	for ri, r := range allConventions() {
+		if ri%7 != 0 { // a spread of convention sets is enough here
 			continue
 		}
 		k, err := NewKernel(r)
@@ -272,7 +272,7 @@ func TestSlabMatchesColumn(t *testing.T) {
 // Asking for fewer outputs changes none of them.
 func TestSlabPartialOutputs(t *testing.T) {
 	rng := rand.New(rand.NewPCG(15, 16))
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	k, _ := NewKernel(r)
 	in, _ := slabFixture(rng, r, 70)
 	full := SlabOutput{LTS: make([]float32, 70), EIS: make([]float32, 70), LCL: make([]float32, 70), Z700: make([]float32, 70)}
@@ -294,7 +294,7 @@ func TestSlabPartialOutputs(t *testing.T) {
 }
 
 func TestSlabNaNPropagation(t *testing.T) {
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.PressureField, r.Humidity, r.T850Field, r.ECTEI = true, HumiditySpecific, true, true
 	k, err := NewKernel(r)
 	if err != nil {
@@ -335,14 +335,14 @@ func TestSlabNaNPropagation(t *testing.T) {
 }
 
 func TestImpossibleInputs(t *testing.T) {
-	k, _ := NewKernel(DefaultRecipe())
-	rRH := DefaultRecipe()
+	k, _ := NewKernel(DefaultConventions())
+	rRH := DefaultConventions()
 	rRH.Humidity = HumidityRH
 	kRH, _ := NewKernel(rRH)
-	rTd := DefaultRecipe()
+	rTd := DefaultConventions()
 	rTd.Humidity = HumidityDewPoint
 	kTd, _ := NewKernel(rTd)
-	rPs := DefaultRecipe()
+	rPs := DefaultConventions()
 	rPs.PressureField = true
 	kPs, _ := NewKernel(rPs)
 	for _, tc := range []struct {
@@ -377,7 +377,7 @@ func TestImpossibleInputs(t *testing.T) {
 }
 
 func TestSlabErrors(t *testing.T) {
-	k, _ := NewKernel(DefaultRecipe())
+	k, _ := NewKernel(DefaultConventions())
 	ts := []float32{290, 291}
 	good := SlabOutput{EIS: make([]float32, 2)}
 	for _, tc := range []struct {
@@ -386,17 +386,17 @@ func TestSlabErrors(t *testing.T) {
 		want string
 	}{
 		{SlabInput{Ts: ts, T700: ts[:1]}, good, "T700 has 1"},
-		{SlabInput{Ts: ts, T700: ts, Ps: ts}, good, "Ps is given but the recipe does not use it"},
+		{SlabInput{Ts: ts, T700: ts, Ps: ts}, good, "Ps is given but the conventions do not use it"},
 		{SlabInput{Ts: ts, T700: ts, Humidity: ts}, good, "Humidity is given"},
 		{SlabInput{Ts: ts, T700: ts}, SlabOutput{}, "no output"},
 		{SlabInput{Ts: ts, T700: ts}, SlabOutput{LTS: make([]float32, 3)}, "output LTS has 3"},
-		{SlabInput{Ts: ts, T700: ts}, SlabOutput{ECTEI: make([]float32, 2)}, "Recipe.ECTEI is false"},
+		{SlabInput{Ts: ts, T700: ts}, SlabOutput{ECTEI: make([]float32, 2)}, "Conventions.ECTEI is false"},
 	} {
 		if _, err := k.Slab(tc.in, tc.out); err == nil || !strings.Contains(err.Error(), tc.want) {
 			t.Errorf("error %v, want %q", err, tc.want)
 		}
 	}
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.PressureField = true
 	kp, _ := NewKernel(r)
 	if _, err := kp.Slab(SlabInput{Ts: ts, T700: ts}, good); err == nil || !strings.Contains(err.Error(), "Ps is nil") {
@@ -406,7 +406,7 @@ func TestSlabErrors(t *testing.T) {
 
 func TestSlabAllocatesNothing(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 18))
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.ECTEI = true
 	k, _ := NewKernel(r)
 	in, _ := slabFixture(rng, r, 1000)

@@ -20,7 +20,7 @@ const (
 	LCLLinear
 )
 
-// String returns the name used on the command line and in recipe text.
+// String returns the name used on the command line and in conventions text.
 func (m LCLMethod) String() string {
 	switch m {
 	case LCLRomps:

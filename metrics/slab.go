@@ -7,27 +7,27 @@ import (
 
 // SlabInput holds one 2-D slab of columns, flattened in any order, all
 // slices of the same length, SI units. Optional slices must be non-nil
-// exactly when the recipe says the input is a field:
+// exactly when the conventions says the input is a field:
 //
-//	Ps        Recipe.PressureField                (nil → Recipe.SurfacePressure)
-//	Humidity  Recipe.Humidity != HumidityAssumedRH (nil → Recipe.AssumedRH)
-//	T850      Recipe.T850Field                    (nil → (Ts + T700)/2)
-//	Q700      Recipe.ECTEI
+//	Ps        Conventions.PressureField                (nil → Conventions.SurfacePressure)
+//	Humidity  Conventions.Humidity != HumidityAssumedRH (nil → Conventions.AssumedRH)
+//	T850      Conventions.T850Field                    (nil → (Ts + T700)/2)
+//	Q700      Conventions.ECTEI
 //
 // A mismatch is an error rather than a silent choice, so that
-// [Recipe.Text] always describes what was computed.
+// [Conventions.Text] always describes what was computed.
 type SlabInput struct {
-	Ts       []float32 // surface temperature, K (SST or air, per Recipe.Surface)
+	Ts       []float32 // surface temperature, K (SST or air, per Conventions.Surface)
 	T700     []float32 // 700-hPa temperature, K
 	Ps       []float32 // surface pressure, Pa
-	Humidity []float32 // RH (fraction), dew point (K) or specific humidity (kg/kg), per Recipe.Humidity
-	T850     []float32 // temperature at Recipe.LapsePressure, K
+	Humidity []float32 // RH (fraction), dew point (K) or specific humidity (kg/kg), per Conventions.Humidity
+	T850     []float32 // temperature at Conventions.LapsePressure, K
 	Q700     []float32 // 700-hPa specific humidity, kg/kg
 }
 
 // SlabOutput receives float32 results. Each slice is either nil (not
 // computed) or as long as the input; at least one must be non-nil. ECTEI
-// needs Recipe.ECTEI. Only what is asked for is computed: LTS and Z700 alone
+// needs Conventions.ECTEI. Only what is asked for is computed: LTS and Z700 alone
 // skip the LCL and the lapse rate.
 type SlabOutput struct {
 	LTS   []float32 // K
@@ -49,13 +49,13 @@ type SlabStats struct {
 	Rejected int // columns with a physically impossible input: every output NaN
 }
 
-// Slab computes the recipe's metrics for every column of in into out,
+// Slab computes the conventions' metrics for every column of in into out,
 // without allocating. A column with a NaN input, or with an input outside
 // physical limits (temperatures outside 123–332 K, surface pressure at or
 // below 700 hPa or above 1200 hPa, RH outside 0–1.05, specific humidity
 // outside 0–0.1 kg/kg), gets NaN in every output; use [Kernel.Column] to
 // learn why. The error reports mismatched slice lengths or slices that do
-// not match the recipe; nothing is written then.
+// not match the conventions; nothing is written then.
 func (k *Kernel) Slab(in SlabInput, out SlabOutput) (SlabStats, error) {
 	return slab(k, in, out.LTS, out.EIS, out.ECTEI, out.LCL, out.Z700)
 }
@@ -74,9 +74,9 @@ func (k *Kernel) checkSlab(in *SlabInput, outs [5]int, anyOut bool) error {
 	opt := func(name string, s []float32, want bool, why string) error {
 		switch {
 		case want && s == nil:
-			return fmt.Errorf("metrics: slab: %s is nil but the recipe has %s", name, why)
+			return fmt.Errorf("metrics: slab: %s is nil but the conventions have %s", name, why)
 		case !want && s != nil:
-			return fmt.Errorf("metrics: slab: %s is given but the recipe does not use it (set %s)", name, why)
+			return fmt.Errorf("metrics: slab: %s is given but the conventions do not use it (set %s)", name, why)
 		case s != nil && len(s) != n:
 			return fmt.Errorf("metrics: slab: %s has %d values, Ts has %d", name, len(s), n)
 		}
@@ -102,7 +102,7 @@ func (k *Kernel) checkSlab(in *SlabInput, outs [5]int, anyOut bool) error {
 		}
 	}
 	if outs[2] >= 0 && !r.ECTEI {
-		return fmt.Errorf("metrics: slab: output ECTEI asked for but Recipe.ECTEI is false")
+		return fmt.Errorf("metrics: slab: output ECTEI asked for but Conventions.ECTEI is false")
 	}
 	return nil
 }

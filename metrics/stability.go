@@ -31,7 +31,7 @@ func EIS(lts, gamma850, z700, zLCL float64) float64 {
 //
 // from eis, K, the specific humidities qSurface and q700, kg/kg, the
 // coefficient beta (0.23 in the paper, [KawaiBeta]), the latent heat lv,
-// J kg-1, and cp, J kg-1 K-1. What q_surface stands for is a recipe choice
+// J kg-1, and cp, J kg-1 K-1. What q_surface stands for is a conventions choice
 // (see [ECTEISurface]).
 func ECTEI(eis, qSurface, q700, beta, lv, cp float64) float64 {
 	return eis - beta*lv/cp*(qSurface-q700)

@@ -9,7 +9,7 @@ import (
 func near(got, want, tol float64) bool { return math.Abs(got-want) <= tol }
 
 // A hand-worked EIS (Wood & Bretherton 2006, eq. 4) for an invented
-// subtropical column with the default recipe, step by step. The
+// subtropical column with the default conventions, step by step. The
 // intermediate values were worked out independently (Python, with SciPy's
 // lambertw for the LCL) from the formulas written in each step.
 //
@@ -51,7 +51,7 @@ func TestEISWorkedExample(t *testing.T) {
 		}
 	}
 	// The kernel gives the same from the raw inputs.
-	k, err := NewKernel(DefaultRecipe())
+	k, err := NewKernel(DefaultConventions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -81,7 +81,7 @@ func TestEISWorkedExample(t *testing.T) {
 //	   ECTEI = EIS − 0.23 (Lv/cp)(q_surface − q700)
 //	         = 1.781130 − 0.23 × (2.501e6/1005.7) × 0.0122211631 = −5.209006 K
 func TestECTEIWorkedExample(t *testing.T) {
-	r := DefaultRecipe()
+	r := DefaultConventions()
 	r.PressureField = true
 	r.Humidity = HumidityDewPoint
 	r.T850Field = true
@@ -123,7 +123,7 @@ func TestECTEIWorkedExample(t *testing.T) {
 // moist-adiabatic correction).
 func TestEISProperties(t *testing.T) {
 	for _, rh := range []float64{0.5, 0.8, 0.95} {
-		r := DefaultRecipe()
+		r := DefaultConventions()
 		r.AssumedRH = rh
 		k, err := NewKernel(r)
 		if err != nil {

@@ -17,7 +17,7 @@ const (
 	SVPBolton
 )
 
-// String returns the name used on the command line and in recipe text.
+// String returns the name used on the command line and in conventions text.
 func (f SVPFormula) String() string {
 	switch f {
 	case SVPMurphyKoop:

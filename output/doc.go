@@ -72,7 +72,7 @@
 //
 // Global attributes (both NetCDF files) besides those cfwrite writes
 // (Conventions, title, source, history from Meta.Command and Meta.End):
-// dataset, lidscope_version, recipe_hash, metrics_recipe, regime_definition,
+// dataset, lidscope_version, study_hash, metrics_conventions, regime_definition,
 // delta_K, transition_half_width_K, band, period, time_steps,
 // time_steps_per_year, regime_index, input_files and processing_notes.
 // Empty ones are left out.
@@ -109,7 +109,7 @@
 // {"mean": N, "std": N, "n": N} with those numbers; std is the population
 // standard deviation. Keys:
 //
-//   - dataset, title, lidscope_version, recipe_hash (strings);
+//   - dataset, title, lidscope_version, study_hash (strings);
 //   - period: label, first and last {label, date, time}, steps,
 //     steps_per_year, calendar;
 //   - regime_definition: text, delta, half_width, band {south, north},
@@ -130,7 +130,7 @@
 // # provenance.json
 //
 // "format": "lidscope-provenance", "format_version": 1; lidscope_version,
-// command, dataset, title, recipe {text, hash}, metrics_recipe,
+// command, dataset, title, study {text, hash}, metrics_conventions,
 // regime_definition, inputs [{role, path, size, modified, sha256}], run
 // {start, end (RFC 3339, UTC), duration}, host {os, arch, go_version,
 // cpus, netcdf_c_library}, time_axis {units, calendar, steps, bounds},

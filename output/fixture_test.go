@@ -140,11 +140,11 @@ func newFixture(t testing.TB) *fixture {
 	t0 := time.Date(2024, 3, 1, 12, 0, 0, 0, time.UTC)
 	f.meta = Meta{
 		Dataset: "synthetic test record", Title: "lidscope output test",
-		Version: "0.0.0-test", Command: "lidscope run --recipe 'my recipe.toml' --out res",
-		Recipe: "[regimes]\ndelta = 0.5\n", RecipeHash: "sha256:0123abcd",
-		MetricsRecipe:    "svp = murphy-koop\nlcl = romps\n",
-		RegimeDefinition: regimes.Classifier{Delta: 0.5, HalfWidth: 0.25}.String() + "; band 30°S–30°N",
-		Delta:            0.5, HalfWidth: 0.25, BandSouth: -30, BandNorth: 30,
+		Version: "0.0.0-test", Command: "lidscope run --study 'my study.toml' --out res",
+		Study: "[regimes]\ndelta = 0.5\n", StudyHash: "sha256:0123abcd",
+		MetricsConventions: "svp = murphy-koop\nlcl = romps\n",
+		RegimeDefinition:   regimes.Classifier{Delta: 0.5, HalfWidth: 0.25}.String() + "; band 30°S–30°N",
+		Delta:              0.5, HalfWidth: 0.25, BandSouth: -30, BandNorth: 30,
 		Inputs: []InputFile{{Role: "sst", Path: "/data/sst.nc", Size: 1234, ModTime: t0.Add(-time.Hour), SHA256: "ab12"}},
 		Start:  t0, End: t0.Add(90 * time.Second),
 		Period: "2001-01 … 2001-06", StepsPerYear: 12,

@@ -191,8 +191,8 @@ func (c *checked) globalAttrs(notes []string) map[string]string {
 	a := map[string]string{
 		"dataset":                 m.Dataset,
 		"lidscope_version":        m.Version,
-		"recipe_hash":             m.RecipeHash,
-		"metrics_recipe":          m.MetricsRecipe,
+		"study_hash":              m.StudyHash,
+		"metrics_conventions":     m.MetricsConventions,
 		"regime_definition":       m.RegimeDefinition,
 		"delta_K":                 formatFloat(m.Delta),
 		"transition_half_width_K": formatFloat(m.HalfWidth),

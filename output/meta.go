@@ -14,12 +14,12 @@ import (
 
 // Meta is what Write records about the run besides its statistics.
 type Meta struct {
-	Dataset, Title string
-	Version        string // lidscope version
-	Command        string // command line, for history
-	Recipe         string // the fully resolved recipe text
-	RecipeHash     string
-	MetricsRecipe  string // metrics.Recipe.Text()
+	Dataset, Title     string
+	Version            string // lidscope version
+	Command            string // command line, for history
+	Study              string // the fully resolved study text
+	StudyHash          string
+	MetricsConventions string // metrics.Conventions.Text()
 	// RegimeDefinition is regimes.Classifier.String() plus the band, e.g.
 	// "δ = 1.5 K; band 30°S–30°N ...".
 	RegimeDefinition     string

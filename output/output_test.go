@@ -254,7 +254,7 @@ func TestMapsMetadata(t *testing.T) {
 	g := func(name string) string { return textAttr(t, nc.Attr, name) }
 	for name, want := range map[string]string{
 		"Conventions": "CF-1.10", "dataset": "synthetic test record", "lidscope_version": "0.0.0-test",
-		"recipe_hash": "sha256:0123abcd", "metrics_recipe": f.meta.MetricsRecipe,
+		"study_hash": "sha256:0123abcd", "metrics_conventions": f.meta.MetricsConventions,
 		"regime_definition": f.meta.RegimeDefinition, "delta_K": "0.5", "transition_half_width_K": "0.25",
 		"band": "-30 to 30 degrees_north", "period": "2001-01 … 2001-06", "time_steps": "6",
 	} {
@@ -262,7 +262,7 @@ func TestMapsMetadata(t *testing.T) {
 			t.Errorf("global %s = %q, want %q", name, got, want)
 		}
 	}
-	if h := g("history"); !strings.HasPrefix(h, "2024-03-01T12:01:30Z: lidscope run --recipe 'my recipe.toml' --out res") {
+	if h := g("history"); !strings.HasPrefix(h, "2024-03-01T12:01:30Z: lidscope run --study 'my study.toml' --out res") {
 		t.Errorf("history = %q", h)
 	}
 	if n := g("processing_notes"); n != f.meta.Notes[0] {
@@ -649,14 +649,14 @@ func TestProvenanceJSON(t *testing.T) {
 	walkNumbers(t, "provenance", p)
 	for k, want := range map[string]string{
 		"format": ProvenanceFormat, "lidscope_version": "0.0.0-test", "command": f.meta.Command,
-		"metrics_recipe": f.meta.MetricsRecipe,
+		"metrics_conventions": f.meta.MetricsConventions,
 	} {
 		if got := get(t, p, k); got != want {
 			t.Errorf("%s = %v, want %q", k, got, want)
 		}
 	}
-	if get(t, p, "recipe", "text") != f.meta.Recipe || get(t, p, "recipe", "hash") != f.meta.RecipeHash {
-		t.Errorf("recipe %v", get(t, p, "recipe"))
+	if get(t, p, "study", "text") != f.meta.Study || get(t, p, "study", "hash") != f.meta.StudyHash {
+		t.Errorf("study %v", get(t, p, "study"))
 	}
 	in := get(t, p, "inputs").([]any)[0]
 	if get(t, in, "sha256") != "ab12" || value(t, in, "size") != 1234 || get(t, in, "modified") != "2024-03-01T11:00:00Z" {

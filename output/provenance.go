@@ -10,24 +10,24 @@ import (
 )
 
 type provenance struct {
-	Format          string       `json:"format"`
-	FormatVersion   int          `json:"format_version"`
-	LidscopeVersion string       `json:"lidscope_version"`
-	Command         string       `json:"command"`
-	Dataset         string       `json:"dataset"`
-	Title           string       `json:"title"`
-	Recipe          provRecipe   `json:"recipe"`
-	MetricsRecipe   string       `json:"metrics_recipe"`
-	Regime          sumRegime    `json:"regime_definition"`
-	Inputs          []provInput  `json:"inputs"`
-	Run             provRun      `json:"run"`
-	Host            provHost     `json:"host"`
-	Time            provTime     `json:"time_axis"`
-	Outputs         []provOutput `json:"outputs"`
-	Notes           []string     `json:"notes"`
+	Format             string       `json:"format"`
+	FormatVersion      int          `json:"format_version"`
+	LidscopeVersion    string       `json:"lidscope_version"`
+	Command            string       `json:"command"`
+	Dataset            string       `json:"dataset"`
+	Title              string       `json:"title"`
+	Study              provStudy    `json:"study"`
+	MetricsConventions string       `json:"metrics_conventions"`
+	Regime             sumRegime    `json:"regime_definition"`
+	Inputs             []provInput  `json:"inputs"`
+	Run                provRun      `json:"run"`
+	Host               provHost     `json:"host"`
+	Time               provTime     `json:"time_axis"`
+	Outputs            []provOutput `json:"outputs"`
+	Notes              []string     `json:"notes"`
 }
 
-type provRecipe struct {
+type provStudy struct {
 	Text   string `json:"text"`
 	SHA256 string `json:"hash"`
 }
@@ -81,10 +81,10 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 	p := provenance{
 		Format: ProvenanceFormat, FormatVersion: FormatVersion,
 		LidscopeVersion: m.Version, Command: m.Command, Dataset: m.Dataset, Title: m.Title,
-		Recipe:        provRecipe{Text: m.Recipe, SHA256: m.RecipeHash},
-		MetricsRecipe: m.MetricsRecipe,
-		Inputs:        []provInput{},
-		Run:           provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}},
+		Study:              provStudy{Text: m.Study, SHA256: m.StudyHash},
+		MetricsConventions: m.MetricsConventions,
+		Inputs:             []provInput{},
+		Run:                provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}},
 		Host: provHost{OS: runtime.GOOS, Arch: runtime.GOARCH, GoVersion: runtime.Version(),
 			CPUs: jsonnum.Count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
 		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: jsonnum.Count(len(c.acc.Series)), Bounds: "none"},

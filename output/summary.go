@@ -22,7 +22,7 @@ type summary struct {
 	Dataset         string                        `json:"dataset"`
 	Title           string                        `json:"title"`
 	LidscopeVersion string                        `json:"lidscope_version"`
-	RecipeHash      string                        `json:"recipe_hash"`
+	StudyHash       string                        `json:"study_hash"`
 	Period          sumPeriod                     `json:"period"`
 	Regime          sumRegime                     `json:"regime_definition"`
 	ConvectiveArea  meanStd                       `json:"band_convective_area_fraction"`
@@ -149,7 +149,7 @@ func (c *checked) summary(notes []string) summary {
 	nt := len(acc.Series)
 	s := summary{
 		Format: SummaryFormat, FormatVersion: FormatVersion,
-		Dataset: m.Dataset, Title: m.Title, LidscopeVersion: m.Version, RecipeHash: m.RecipeHash,
+		Dataset: m.Dataset, Title: m.Title, LidscopeVersion: m.Version, StudyHash: m.StudyHash,
 		Period: sumPeriod{
 			Label: c.period(), First: c.step(0), Last: c.step(nt - 1),
 			Steps: jsonnum.Count(nt), StepsPerYear: num{Value: m.StepsPerYear, Units: "yr-1"}, Calendar: m.Calendar,

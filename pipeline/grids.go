@@ -19,7 +19,7 @@ type GridGroup struct {
 // analysis grid to use.
 type GridReport struct {
 	Groups []GridGroup
-	// Suggest is the analysis grid a recipe should name when the grids
+	// Suggest is the analysis grid a study should name when the grids
 	// differ: the coarsest grid (remapping conservatively from fine to
 	// coarse averages; the other way only copies), as a role name.
 	Suggest     string
@@ -42,7 +42,7 @@ func (r GridReport) String() string {
 	for _, g := range r.Groups {
 		fmt.Fprintf(&b, "  %s: %s\n", g.Grid, strings.Join(g.Fields, ", "))
 	}
-	fmt.Fprintf(&b, "analysis grid: set analysis.grid.target: %s in the recipe (the coarsest grid, %s) to remap the others conservatively onto it", r.Suggest, r.SuggestGrid)
+	fmt.Fprintf(&b, "analysis grid: set analysis.grid.target: %s in the study (the coarsest grid, %s) to remap the others conservatively onto it", r.Suggest, r.SuggestGrid)
 	return b.String()
 }
 

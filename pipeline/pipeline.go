@@ -62,9 +62,9 @@ type Plan struct {
 	T700    Input
 	Cloud   Input
 	// Optional inputs (nil when absent).
-	SurfaceAir      *Input // surface air temperature, when the metrics recipe uses it
+	SurfaceAir      *Input // surface air temperature, when the metrics conventions uses it
 	SurfacePressure *Input
-	Humidity        *Input // RH, dew point or specific humidity, per the metrics recipe
+	Humidity        *Input // RH, dew point or specific humidity, per the metrics conventions
 	T850            *Input
 	Q700            *Input
 	SeaIce          *Input
@@ -72,7 +72,7 @@ type Plan struct {
 	Extras          []Input // further fields composited by regime (e.g. toa_sw_up)
 
 	Ocean      Ocean
-	Metrics    metrics.Recipe
+	Metrics    metrics.Conventions
 	Classifier regimes.Classifier
 	Band       regimes.Band
 	Regions    []accumulate.Region
@@ -120,8 +120,8 @@ type field struct {
 	buf   []float32       // native grid
 	out   []float32       // analysis grid (== buf when w is nil)
 	s     cf.Scratch
-	// recipeUnits is true when the units come from the recipe, not the file.
-	recipeUnits bool
+	// studyUnits is true when the units come from the study, not the file.
+	studyUnits bool
 }
 
 // quantity names accumulated per column, in output order
@@ -147,7 +147,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	}
 	kern, err := metrics.NewKernel(p.Metrics)
 	if err != nil {
-		return nil, fmt.Errorf("metrics recipe: %w", err)
+		return nil, fmt.Errorf("metrics conventions: %w", err)
 	}
 	res := &Result{Paths: map[cf.Role][]string{}}
 	var opened []*field
@@ -161,7 +161,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		if err != nil {
 			return nil, err
 		}
-		fd := &field{role: in.Spec.Role, f: f, recipeUnits: in.Spec.Units != ""}
+		fd := &field{role: in.Spec.Role, f: f, studyUnits: in.Spec.Units != ""}
 		opened = append(opened, fd)
 		res.Paths[in.Spec.Role] = append(res.Paths[in.Spec.Role], f.Paths()...)
 		for _, n := range f.Notes {
@@ -511,7 +511,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 // plausible fails when the values of a slab are impossible for the field's
 // quantity: temperatures outside 150–350 K, cloud fractions outside 0–1
 // (with the 0.05 tolerance of cf.CheckValues). Such values mean that the
-// units attribute (or the recipe's units) does not describe the data — SST
+// units attribute (or the study's units) does not describe the data — SST
 // labelled K that holds degrees Celsius is the common case — or that a
 // fill value is not declared; computing on would give wrong numbers
 // without a word (an SST in °C read as K leaves the regimes unchanged, as
@@ -542,8 +542,8 @@ func plausible(f *field, vals []float32, st stepRef) error {
 		why = fmt.Sprintf("values %.4g…%.4g %s are impossible for %s", lo, hi, kind.SI(), f.role)
 	}
 	src := fmt.Sprintf("units attribute %q", f.f.Conv.From)
-	if f.recipeUnits {
-		src = fmt.Sprintf("units %q from the recipe, units.%s", f.f.Conv.From, f.role)
+	if f.studyUnits {
+		src = fmt.Sprintf("units %q from the study, units.%s", f.f.Conv.From, f.role)
 	}
 	if !strings.Contains(why, "units.") {
 		why += fmt.Sprintf("; check the units, and if the file marks missing data with a value it does not declare, add a _FillValue or missing_value attribute (e.g. ncatted -a _FillValue,%s,o,f,VALUE)", f.f.Var)
@@ -562,7 +562,7 @@ func noBandSST(sst *field, vals []float32, bandW []float64, ocean []bool, st ste
 		}
 	}
 	if present == 0 {
-		return fmt.Errorf("role sst, %s: every SST value in the band %g…%g°N is missing (an all-missing slab); fix or replace the file, or leave that step out with the recipe's time range (time.start, time.end)", where, band.South, band.North)
+		return fmt.Errorf("role sst, %s: every SST value in the band %g…%g°N is missing (an all-missing slab); fix or replace the file, or leave that step out with the study's time range (time.start, time.end)", where, band.South, band.North)
 	}
 	oc := 0
 	for i := range ocean {
@@ -617,7 +617,7 @@ func analysisGrid(gp GridPlan, all []*field) (*grid.Grid, error) {
 				return nil, err
 			}
 			if !sameCentres(sstG, g, 1e-4) {
-				return nil, fmt.Errorf("role %s (%s) is on grid %s but sst (%s) is on grid %s (%s); set an analysis grid in the recipe (analysis.grid.target: sst, or a resolution such as 2deg) to regrid",
+				return nil, fmt.Errorf("role %s (%s) is on grid %s but sst (%s) is on grid %s (%s); set an analysis grid in the study (analysis.grid.target: sst, or a resolution such as 2deg) to regrid",
 					f.role, strings.Join(f.f.Paths(), ", "), g, strings.Join(all[0].f.Paths(), ", "), sstG, grid.Difference(g, sstG, 1e-4))
 			}
 		}
@@ -715,7 +715,7 @@ func align(sst *field, all []*field, maskF *field, sel func(y, m int) bool) (flo
 			f.index[timeKey(f.f.Time, t)] = t
 		}
 		if f != sst && f.f.Time.Calendar != ta.Calendar && f.f.Time.Step != cf.StepClimatology {
-			return 0, nil, nil, fmt.Errorf("role %s (%s) uses the %s calendar but sst (%s) uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar), or, if a file's calendar attribute is wrong, declare the calendar in the recipe (time.calendar)",
+			return 0, nil, nil, fmt.Errorf("role %s (%s) uses the %s calendar but sst (%s) uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar), or, if a file's calendar attribute is wrong, declare the calendar in the study (time.calendar)",
 				f.role, strings.Join(f.f.Paths(), ", "), f.f.Time.Calendar, strings.Join(sst.f.Paths(), ", "), ta.Calendar)
 		}
 	}
@@ -761,7 +761,7 @@ func align(sst *field, all []*field, maskF *field, sel func(y, m int) bool) (flo
 	}
 	var notes []string
 	if unselected > 0 {
-		notes = append(notes, fmt.Sprintf("%d sst time steps outside the recipe's time selection skipped", unselected))
+		notes = append(notes, fmt.Sprintf("%d sst time steps outside the study's time selection skipped", unselected))
 	}
 	for _, r := range cf.Roles() {
 		if m := missing[r]; len(m) > 0 {

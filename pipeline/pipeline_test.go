@@ -86,7 +86,7 @@ func testPlan(t *testing.T) Plan {
 		T700:       Input{Paths: []string{tp}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
 		Cloud:      Input{Paths: []string{cp}, Spec: cf.Spec{Role: cf.RoleLowCloud}},
 		Ocean:      Ocean{Kind: "sst"},
-		Metrics:    metrics.DefaultRecipe(),
+		Metrics:    metrics.DefaultConventions(),
 		Classifier: regimes.Classifier{Delta: 1.5},
 		Band:       regimes.Band{South: -30, North: 30},
 		Regions:    []accumulate.Region{{Name: "pool", South: 0, North: 10, West: 80, East: 100}},
@@ -133,7 +133,7 @@ func TestRunSyntheticTruth(t *testing.T) {
 		t.Errorf("tropical mean %v, hand %v", got, swx/sw)
 	}
 	// EIS of a subsidence column equals the kernel's column value.
-	k, _ := metrics.NewKernel(metrics.DefaultRecipe())
+	k, _ := metrics.NewKernel(metrics.DefaultConventions())
 	col, err := k.Column(metrics.ColumnInput{Ts: float64(float32(sstAt(0, 1, 0))), T700: 285})
 	if err != nil {
 		t.Fatal(err)

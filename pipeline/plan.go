@@ -12,8 +12,8 @@ import (
 // extraRoles are composited by regime when a dataset gives them.
 var extraRoles = []cf.Role{cf.RoleCloud, cf.RoleLowCloud, cf.RoleSWUp, cf.RoleOLR, cf.RolePrecip, cf.RoleOmega}
 
-// PlanFor builds the plan of one dataset of a loaded recipe.
-func PlanFor(r *config.Recipe, d *config.Dataset) (Plan, error) {
+// PlanFor builds the plan of one dataset of a loaded study.
+func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	in := func(role cf.Role) Input { return Input{Paths: d.Inputs[role], Spec: d.Spec(role)} }
 	need := func(role cf.Role) (Input, error) {
 		if len(d.Inputs[role]) == 0 {

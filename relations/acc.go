@@ -192,7 +192,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		}
 		k, ok := qi[name]
 		if !ok {
-			return 0, fmt.Errorf("relations: %s %q is not a quantity of the run (layout has %v); add it to the run's inputs or remove it from the relations recipe", what, name, l.Quantities)
+			return 0, fmt.Errorf("relations: %s %q is not a quantity of the run (layout has %v); add it to the run's inputs or remove it from the relations study", what, name, l.Quantities)
 		}
 		return k, nil
 	}

@@ -223,7 +223,7 @@
 //     relations_mode, relations_mode_description, detrended,
 //     regime_definition, uncertainty_method, relations_config (Text),
 //     period, time_steps, regime_index, dataset, lidscope_version,
-//     recipe_hash; every variable also has relations_mode.
+//     study_hash; every variable also has relations_mode.
 //   - regressions.csv: one row per simple regression (kind "simple") and
 //     two per two-predictor fit (kind "partial": the coefficient of
 //     predictor with controls held fixed); columns with units in brackets,

@@ -15,7 +15,7 @@ import (
 )
 
 // End to end on the demo scenario (package fixtures, invented data): the
-// world is written as CF NetCDF files, read back through the recipe and
+// world is written as CF NetCDF files, read back through the study and
 // the pipeline, and the accumulator receives the pipeline's steps. The
 // regression of cloud on EIS in the band's subsidence regime must pool the
 // same samples as the truth record, land within a few standard errors of
@@ -33,7 +33,7 @@ func TestEndToEndDemoWorld(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	r, err := config.Load(filepath.Join(dir, "recipe.yaml"), config.LoadOptions{})
+	r, err := config.Load(filepath.Join(dir, "study.yaml"), config.LoadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

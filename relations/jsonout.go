@@ -35,7 +35,7 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		"dataset":             meta.Dataset,
 		"title":               meta.Title,
 		"lidscope_version":    meta.Version,
-		"recipe_hash":         meta.RecipeHash,
+		"study_hash":          meta.StudyHash,
 		"mode":                r.Mode.String(),
 		"mode_description":    r.ModeNote,
 		"detrended":           r.Detrended,

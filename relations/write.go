@@ -38,7 +38,7 @@ type Meta struct {
 	Dataset, Title string
 	Version        string   // lidscope version
 	Command        []string // command line for the NetCDF history (nil: os.Args)
-	RecipeHash     string
+	StudyHash      string
 	Period         string // e.g. "2001-01 … 2010-12"; empty: first … last step label
 	Source         string
 	InputHistory   string    // history of the inputs, kept below the new line
@@ -161,7 +161,7 @@ func globalAttrs(r *Results, meta Meta) map[string]string {
 		"time_steps":                 strconv.Itoa(r.Steps),
 		"regime_index":               "regime k is " + regimeOrder(),
 	}
-	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, "recipe_hash": meta.RecipeHash} {
+	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, "study_hash": meta.StudyHash} {
 		if v != "" {
 			m[k] = v
 		}

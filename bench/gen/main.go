@@ -2,7 +2,7 @@
 // (bench/scaling.sh): the demo world of package fixtures — invented data,
 // labelled synthetic in every file — at a chosen resolution and record
 // length, as NetCDF-4 files compressed with deflate (the cfwrite default
-// level), several years per file, with the recipe that analyses it.
+// level), several years per file, with the study that analyses it.
 //
 //	go run ./bench/gen -out DIR [-resolution 1] [-years 40] [-years-per-file 10]
 package main
@@ -26,7 +26,7 @@ func main() {
 
 func run(args []string) error {
 	fs := flag.NewFlagSet("gen", flag.ContinueOnError)
-	out := fs.String("out", "", "folder for the synthetic files and recipe.yaml (required)")
+	out := fs.String("out", "", "folder for the synthetic files and study.yaml (required)")
 	res := fs.Float64("resolution", 1, "grid spacing, degrees")
 	years := fs.Int("years", 40, "record length, years of monthly means")
 	perFile := fs.Int("years-per-file", 10, "years per file")

@@ -52,8 +52,8 @@ func badOptions() fixtures.Options {
 }
 
 // badWorld generates the world of opt (badOptions with changes) into a new
-// temporary directory and returns the directory; its recipe is
-// dir/recipe.yaml.
+// temporary directory and returns the directory; its study is
+// dir/study.yaml.
 func badWorld(t *testing.T, change func(*fixtures.Options)) string {
 	t.Helper()
 	o := badOptions()
@@ -82,12 +82,12 @@ func badFiles(t *testing.T, dir, sub string, want int) []string {
 	return m
 }
 
-// badRecipe rewrites the world's recipe with edit (a text edit of the YAML
+// badStudy rewrites the world's study with edit (a text edit of the YAML
 // the fixtures package wrote) and returns its path. Edits that do not
 // change the text fail the test, so a test cannot pass by editing nothing.
-func badRecipe(t *testing.T, dir string, edit func(string) string) string {
+func badStudy(t *testing.T, dir string, edit func(string) string) string {
 	t.Helper()
-	p := filepath.Join(dir, fixtures.RecipeFile)
+	p := filepath.Join(dir, fixtures.StudyFile)
 	b, err := os.ReadFile(p)
 	if err != nil {
 		t.Fatal(err)
@@ -95,7 +95,7 @@ func badRecipe(t *testing.T, dir string, edit func(string) string) string {
 	if edit != nil {
 		s := edit(string(b))
 		if s == string(b) {
-			t.Fatalf("the recipe edit changed nothing:\n%s", b)
+			t.Fatalf("the study edit changed nothing:\n%s", b)
 		}
 		if err := os.WriteFile(p, []byte(s), 0o644); err != nil {
 			t.Fatal(err)
@@ -108,7 +108,7 @@ func badRecipe(t *testing.T, dir string, edit func(string) string) string {
 // old occurs exactly once.
 func replaceOnce(s, old, new string) string {
 	if n := strings.Count(s, old); n != 1 {
-		panic(fmt.Sprintf("recipe edit: %q occurs %d times", old, n))
+		panic(fmt.Sprintf("study edit: %q occurs %d times", old, n))
 	}
 	return strings.Replace(s, old, new, 1)
 }
@@ -152,13 +152,13 @@ func badNoOutputs(t *testing.T, dir string) {
 	}
 }
 
-// badFails runs the recipe into a fresh output folder and checks the
+// badFails runs the study into a fresh output folder and checks the
 // failure: exit status 1, every wanted text on stderr, nothing on stdout,
 // and no output left behind. It returns stderr.
-func badFails(t *testing.T, recipe string, want ...string) string {
+func badFails(t *testing.T, study string, want ...string) string {
 	t.Helper()
 	out := filepath.Join(t.TempDir(), "results")
-	code, stdout, stderr := badRun(t, "--quiet", "--out", out, recipe)
+	code, stdout, stderr := badRun(t, "--quiet", "--out", out, study)
 	if code != 1 {
 		t.Errorf("exit status %d, want 1\nstdout:\n%s\nstderr:\n%s", code, stdout, stderr)
 	}
@@ -174,13 +174,13 @@ func badFails(t *testing.T, recipe string, want ...string) string {
 	return stderr
 }
 
-// badSucceeds runs the recipe into a fresh output folder, checks exit
+// badSucceeds runs the study into a fresh output folder, checks exit
 // status 0 and that every output exists, and returns stdout and the
 // folder.
-func badSucceeds(t *testing.T, recipe string, args ...string) (string, string) {
+func badSucceeds(t *testing.T, study string, args ...string) (string, string) {
 	t.Helper()
 	out := filepath.Join(t.TempDir(), "results")
-	code, stdout, stderr := badRun(t, append(append([]string{"--quiet", "--out", out}, args...), recipe)...)
+	code, stdout, stderr := badRun(t, append(append([]string{"--quiet", "--out", out}, args...), study)...)
 	if code != 0 {
 		t.Fatalf("exit status %d, want 0\nstdout:\n%s\nstderr:\n%s", code, stdout, stderr)
 	}

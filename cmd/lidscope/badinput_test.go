@@ -3,9 +3,9 @@ package main
 // Bad input, end to end (issue 5: "each gets a test"). Each test starts
 // from the small synthetic world of badWorld (package fixtures: invented
 // data, labelled synthetic), breaks one thing the way real files and
-// recipes break, and runs `lidscope run` through run() in main.go, so the
+// studies break, and runs `lidscope run` through run() in main.go, so the
 // whole command path is exercised. A failure must give exit status 1, a
-// message naming the file, variable or recipe key and what to do, nothing
+// message naming the file, variable or study key and what to do, nothing
 // on stdout, and no output under its final name (maps.nc, series.nc, …,
 // run-state.gob) and no hidden staging directory or temporary file in the
 // output folder (badFails). Input that lidscope can use after a documented
@@ -30,7 +30,7 @@ import (
 // below is caused by its one break and not by the world itself.
 func TestBadInputBaseline(t *testing.T) {
 	d := badWorld(t, nil)
-	stdout, _ := badSucceeds(t, badRecipe(t, d, nil))
+	stdout, _ := badSucceeds(t, badStudy(t, d, nil))
 	for _, want := range []string{"dataset bad-input: 24 time steps (2001-01 … 2002-12) on 36×72 regular 5°×5°", `note: sst (sst): units "degC" → K: x +273.15`} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
@@ -67,22 +67,22 @@ func replaceSST(t *testing.T, d string, only int, format netcdf.Format, edit ncE
 func TestBadMissingRole(t *testing.T) {
 	cases := []struct {
 		name   string
-		break_ func(t *testing.T, d string) string // returns the recipe
+		break_ func(t *testing.T, d string) string // returns the study
 		want   func(d string) []string
 	}{
-		{"no low_cloud input in the recipe", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string {
+		{"no low_cloud input in the study", func(t *testing.T, d string) string {
+			return badStudy(t, d, func(s string) string {
 				return replaceOnce(s, `      low_cloud: "low_cloud/*.nc"`, `      # low cloud left out`)
 			})
 		}, func(d string) []string {
-			return []string{"recipe.yaml:7: datasets.0.inputs:", `analysis.cloud is low_cloud, but dataset "bad-input" has no low_cloud input`}
+			return []string{"study.yaml:7: datasets.0.inputs:", `analysis.cloud is low_cloud, but dataset "bad-input" has no low_cloud input`}
 		}},
-		{"no air_temperature input in the recipe", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string {
+		{"no air_temperature input in the study", func(t *testing.T, d string) string {
+			return badStudy(t, d, func(s string) string {
 				return replaceOnce(s, `      air_temperature: "air_temperature/*.nc"`, `      # air temperature left out`)
 			})
 		}, func(d string) []string {
-			return []string{"recipe.yaml:7: datasets.0.inputs:", "needs an input for role air_temperature (inputs.air_temperature)"}
+			return []string{"study.yaml:7: datasets.0.inputs:", "needs an input for role air_temperature (inputs.air_temperature)"}
 		}},
 		{"the glob matches no file", func(t *testing.T, d string) string {
 			for _, f := range badFiles(t, d, "low_cloud", 2) {
@@ -90,17 +90,17 @@ func TestBadMissingRole(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
-			return badRecipe(t, d, nil)
+			return badStudy(t, d, nil)
 		}, func(d string) []string {
-			return []string{"recipe.yaml:10: datasets.0.inputs.low_cloud:", `role low_cloud: no file matches "low_cloud/*.nc"`, "check the path"}
+			return []string{"study.yaml:10: datasets.0.inputs.low_cloud:", `role low_cloud: no file matches "low_cloud/*.nc"`, "check the path"}
 		}},
 		{"the file does not hold the role", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string { return replaceOnce(s, `low_cloud: "low_cloud/*.nc"`, `low_cloud: "sst/*.nc"`) })
+			return badStudy(t, d, func(s string) string { return replaceOnce(s, `low_cloud: "low_cloud/*.nc"`, `low_cloud: "sst/*.nc"`) })
 		}, func(d string) []string {
 			return []string{"role low_cloud: " + filepath.Join(d, "sst", "sst_200101-200112.nc") + ": no variable found for role low_cloud", "variables.low_cloud: NAME"}
 		}},
-		{"the variable the recipe names is not in the file", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string {
+		{"the variable the study names is not in the file", func(t *testing.T, d string) string {
+			return badStudy(t, d, func(s string) string {
 				return replaceOnce(s, "    ocean:\n", "    variables: {sst: tos}\n    ocean:\n")
 			})
 		}, func(d string) []string {
@@ -129,31 +129,31 @@ func TestBadUnits(t *testing.T) {
 		// so only a check of the values can tell.
 		{"file says K but holds degC", func(t *testing.T, d string) string {
 			replaceSST(t, d, -1, netcdf.FormatNetCDF4Classic, attr("K"))
-			return badRecipe(t, d, nil)
+			return badStudy(t, d, nil)
 		}, func(d string) []string {
 			return []string{"role sst, variable sst in " + first(d) + ` (units attribute "K"), time step 2001-01`,
-				"these look like degrees Celsius, not kelvin; if so set units.sst: degC in the recipe"}
+				"these look like degrees Celsius, not kelvin; if so set units.sst: degC in the study"}
 		}},
-		{"recipe says K over a degC file", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: K}\n    ocean:\n") })
+		{"study says K over a degC file", func(t *testing.T, d string) string {
+			return badStudy(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: K}\n    ocean:\n") })
 		}, func(d string) []string {
-			return []string{"role sst, variable sst in " + first(d) + ` (units "K" from the recipe, units.sst), time step 2001-01`,
+			return []string{"role sst, variable sst in " + first(d) + ` (units "K" from the study, units.sst), time step 2001-01`,
 				"these look like degrees Celsius, not kelvin"}
 		}},
 		{"file units are not a temperature", func(t *testing.T, d string) string {
 			replaceSST(t, d, -1, netcdf.FormatNetCDF4Classic, attr("m s-1"))
-			return badRecipe(t, d, nil)
+			return badStudy(t, d, nil)
 		}, func(d string) []string {
-			return []string{"role sst: " + first(d) + ": variable sst (units attribute)", `"m s-1" is not a temperature unit`, "set units.sst in the recipe"}
+			return []string{"role sst: " + first(d) + ": variable sst (units attribute)", `"m s-1" is not a temperature unit`, "set units.sst in the study"}
 		}},
-		{"recipe units are not a temperature", func(t *testing.T, d string) string {
-			return badRecipe(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: m}\n    ocean:\n") })
+		{"study units are not a temperature", func(t *testing.T, d string) string {
+			return badStudy(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: m}\n    ocean:\n") })
 		}, func(d string) []string {
-			return []string{"recipe.yaml:12: datasets.0.units.sst:", `"m" is not a temperature unit`}
+			return []string{"study.yaml:12: datasets.0.units.sst:", `"m" is not a temperature unit`}
 		}},
 		{"no units attribute", func(t *testing.T, d string) string {
 			replaceSST(t, d, -1, netcdf.FormatNetCDF4Classic, attr(nil))
-			return badRecipe(t, d, nil)
+			return badStudy(t, d, nil)
 		}, func(d string) []string {
 			return []string{first(d) + ": variable sst has no units attribute", "units.sst: K"}
 		}},
@@ -170,10 +170,10 @@ func TestBadUnits(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
-			return badRecipe(t, d, nil)
+			return badStudy(t, d, nil)
 		}, func(d string) []string {
 			return []string{"role low_cloud, variable low_cloud in " + filepath.Join(d, "low_cloud", "low_cloud_200101-200112.nc") + ` (units attribute "1")`,
-				"look like percent; if so set units.low_cloud: % in the recipe"}
+				"look like percent; if so set units.low_cloud: % in the study"}
 		}},
 	}
 	for _, c := range cases {
@@ -185,7 +185,7 @@ func TestBadUnits(t *testing.T) {
 }
 
 // useOtherWorld replaces world d's files of one role directory by those of
-// world o (same names are not needed: the recipe globs the directory).
+// world o (same names are not needed: the study globs the directory).
 func useOtherWorld(t *testing.T, d, o, sub string) {
 	t.Helper()
 	for _, f := range badFiles(t, d, sub, 2) {
@@ -205,17 +205,17 @@ func TestBadGridMismatch(t *testing.T) {
 	d := badWorld(t, nil)
 	o := badWorld(t, func(o *fixtures.Options) { o.Resolution = 10 })
 	useOtherWorld(t, d, o, "low_cloud")
-	recipe := badRecipe(t, d, nil)
+	study := badStudy(t, d, nil)
 	c0, c1 := filepath.Join(d, "low_cloud", "low_cloud_200101-200112.nc"), filepath.Join(d, "low_cloud", "low_cloud_200201-200212.nc")
 	s0 := filepath.Join(d, "sst", "sst_200101-200112.nc")
-	badFails(t, recipe,
+	badFails(t, study,
 		"role low_cloud ("+c0+", "+c1+") is on grid 18×36 regular 10°×10°",
 		"but sst ("+s0, "is on grid 36×72 regular 5°×5°",
-		"set an analysis grid in the recipe (analysis.grid.target: sst, or a resolution such as 2deg) to regrid")
+		"set an analysis grid in the study (analysis.grid.target: sst, or a resolution such as 2deg) to regrid")
 
 	// The fix the message names works.
-	recipe = badRecipe(t, d, func(s string) string { return replaceOnce(s, "  transition: 0.0\n", gridTargetSST) })
-	stdout, _ := badSucceeds(t, recipe)
+	study = badStudy(t, d, func(s string) string { return replaceOnce(s, "  transition: 0.0\n", gridTargetSST) })
+	stdout, _ := badSucceeds(t, study)
 	want := "note: low_cloud regridded from 18×36 regular 10°×10°, lat -85…85, lon -175…175 to 36×72 regular 5°×5°, lat -87.5…87.5, lon -177.5…177.5 (conservative, min coverage 0.5)"
 	if !strings.Contains(stdout, want) {
 		t.Errorf("stdout lacks %q:\n%s", want, stdout)
@@ -238,12 +238,12 @@ func TestBadMaskOtherGrid(t *testing.T) {
 	badCopyFile(t, land, land5)
 	badCopyFile(t, filepath.Join(o, "land_area_fraction.nc"), land)
 
-	badFails(t, badRecipe(t, d, nil),
+	badFails(t, badStudy(t, d, nil),
 		"role land_fraction ("+land+") is on grid 45×90 regular 4°×4°",
 		"but sst ("+filepath.Join(d, "sst", "sst_200101-200112.nc"), "is on grid 36×72 regular 5°×5°",
 		"analysis.grid.target: sst")
 
-	stdout, out := badSucceeds(t, badRecipe(t, d, func(s string) string { return replaceOnce(s, "  transition: 0.0\n", gridTargetSST) }))
+	stdout, out := badSucceeds(t, badStudy(t, d, func(s string) string { return replaceOnce(s, "  transition: 0.0\n", gridTargetSST) }))
 	if want := "note: land_fraction regridded from 45×90 regular 4°×4°"; !strings.Contains(stdout, want) {
 		t.Errorf("stdout lacks %q:\n%s", want, stdout)
 	}
@@ -292,7 +292,7 @@ func TestBadCalendars(t *testing.T) {
 		o := badWorld(t, func(o *fixtures.Options) { o.Calendar = "noleap" })
 		s := badFiles(t, d, "sst", 2)
 		badCopyFile(t, badFiles(t, o, "sst", 2)[1], s[1])
-		badFails(t, badRecipe(t, d, nil), "role sst: files of one record must share a calendar: "+s[0]+" uses standard, "+s[1]+" uses noleap")
+		badFails(t, badStudy(t, d, nil), "role sst: files of one record must share a calendar: "+s[0]+" uses standard, "+s[1]+" uses noleap")
 	})
 	t.Run("between roles", func(t *testing.T) {
 		d := badWorld(t, nil)
@@ -300,7 +300,7 @@ func TestBadCalendars(t *testing.T) {
 		useOtherWorld(t, d, o, "low_cloud")
 		c := badFiles(t, d, "low_cloud", 2)
 		s := badFiles(t, d, "sst", 2)
-		badFails(t, badRecipe(t, d, nil),
+		badFails(t, badStudy(t, d, nil),
 			"role low_cloud ("+c[0]+", "+c[1]+") uses the 360_day calendar but sst ("+s[0]+", "+s[1]+") uses standard",
 			"cdo setcalendar", "time.calendar")
 	})
@@ -311,7 +311,7 @@ func TestBadTimeOverlap(t *testing.T) {
 		d := badWorld(t, nil)
 		o := badWorld(t, func(o *fixtures.Options) { o.StartYear = 1990 })
 		useOtherWorld(t, d, o, "low_cloud")
-		badFails(t, badRecipe(t, d, nil),
+		badFails(t, badStudy(t, d, nil),
 			"no time step is common to every input",
 			"24 sst time steps dropped because low_cloud has no matching step (2001-01, 2001-02, …, 2002-12)",
 			"low_cloud 1990-01-16T12:00:00 … 1991-12-16T12:00:00, 24 monthly steps (standard calendar) ("+filepath.Join(d, "low_cloud", "low_cloud_199001-199012.nc"),
@@ -324,7 +324,7 @@ func TestBadTimeOverlap(t *testing.T) {
 		d := badWorld(t, nil)
 		o := badWorld(t, func(o *fixtures.Options) { o.StartYear = 2002 })
 		useOtherWorld(t, d, o, "low_cloud")
-		stdout, _ := badSucceeds(t, badRecipe(t, d, nil))
+		stdout, _ := badSucceeds(t, badStudy(t, d, nil))
 		for _, want := range []string{"dataset bad-input: 12 time steps (2002-01 … 2002-12)",
 			"note: 12 sst time steps dropped because low_cloud has no matching step (2001-01, 2001-02, …, 2001-12)"} {
 			if !strings.Contains(stdout, want) {
@@ -348,7 +348,7 @@ func TestBadAllMissingSlab(t *testing.T) {
 			v[i] = 1e20 // the variable's _FillValue
 		}
 	}})
-	badFails(t, badRecipe(t, d, nil),
+	badFails(t, badStudy(t, d, nil),
 		"role sst, variable sst in "+files[1]+", time step 2002-04: every SST value in the band -30…30°N is missing (an all-missing slab)",
 		"time.start, time.end")
 }
@@ -397,7 +397,7 @@ func TestBadNaNInf(t *testing.T) {
 	if nNaN < 10 || nInf < 20 {
 		t.Fatalf("only %d NaN and %d Inf values placed", nNaN, nInf)
 	}
-	stdout, out := badSucceeds(t, badRecipe(t, d, nil))
+	stdout, out := badSucceeds(t, badStudy(t, d, nil))
 	notes := []string{
 		fmt.Sprintf("sst (sst): %d NaN values (not the declared fill value) treated as missing", nNaN),
 		fmt.Sprintf("sst (sst): %d infinite values treated as missing", nInf),
@@ -491,7 +491,7 @@ func TestBadTruncated(t *testing.T) {
 			} else {
 				badTruncate(t, s[1], c.keep)
 			}
-			badFails(t, badRecipe(t, d, nil), append([]string{"role sst: "}, prefixFirst(s[1], c.want)...)...)
+			badFails(t, badStudy(t, d, nil), append([]string{"role sst: "}, prefixFirst(s[1], c.want)...)...)
 		})
 	}
 }
@@ -508,21 +508,21 @@ func prefixFirst(path string, want []string) []string {
 	return out
 }
 
-func TestBadRecipeTypo(t *testing.T) {
+func TestBadStudyTypo(t *testing.T) {
 	cases := []struct {
 		old, new string
-		want     string // key path and suggestion, after "recipe.yaml:LINE: "
+		want     string // key path and suggestion, after "study.yaml:LINE: "
 	}{
 		{"  threshold: 1.5", "  thresold: 1.5", `analysis.thresold: unknown key "thresold" in analysis; did you mean "threshold"?`},
 		{"min_ocean_fraction:", "min_ocean_fracton:", `datasets.0.ocean.min_ocean_fracton: unknown key "min_ocean_fracton" in datasets.0.ocean; did you mean "min_ocean_fraction"?`},
 		{`low_cloud: "low_cloud/*.nc"`, `low_clod: "low_cloud/*.nc"`, `datasets.0.inputs.low_clod: unknown role "low_clod" in datasets.0.inputs; did you mean "low_cloud"?`},
-		{"analysis:\n", "analysys:\n", `analysys: unknown key "analysys" at the top of the recipe; did you mean "analysis"?`},
+		{"analysis:\n", "analysys:\n", `analysys: unknown key "analysys" at the top of the study; did you mean "analysis"?`},
 	}
 	for _, c := range cases {
 		t.Run(c.new, func(t *testing.T) {
 			d := badWorld(t, nil)
 			var text string
-			p := badRecipe(t, d, func(s string) string { text = replaceOnce(s, c.old, c.new); return text })
+			p := badStudy(t, d, func(s string) string { text = replaceOnce(s, c.old, c.new); return text })
 			line := 1 + strings.Count(text[:strings.Index(text, c.new)], "\n")
 			badFails(t, p, fmt.Sprintf("%s:%d: %s", p, line, c.want))
 		})
@@ -530,7 +530,7 @@ func TestBadRecipeTypo(t *testing.T) {
 	t.Run("--set", func(t *testing.T) {
 		d := badWorld(t, nil)
 		out := filepath.Join(t.TempDir(), "results")
-		code, stdout, stderr := badRun(t, "--quiet", "--out", out, "--set", "analysis.treshold=1", badRecipe(t, d, nil))
+		code, stdout, stderr := badRun(t, "--quiet", "--out", out, "--set", "analysis.treshold=1", badStudy(t, d, nil))
 		if code != 1 || stdout != "" {
 			t.Errorf("exit status %d (want 1), stdout %q", code, stdout)
 		}
@@ -545,14 +545,14 @@ func TestBadRecipeTypo(t *testing.T) {
 // that holds an earlier run's results leaves them exactly as they were.
 func TestBadForceKeepsEarlierResults(t *testing.T) {
 	d := badWorld(t, nil)
-	recipe := badRecipe(t, d, nil)
+	study := badStudy(t, d, nil)
 	out := filepath.Join(t.TempDir(), "results")
-	if code, stdout, stderr := badRun(t, "--quiet", "--out", out, recipe); code != 0 {
+	if code, stdout, stderr := badRun(t, "--quiet", "--out", out, study); code != 0 {
 		t.Fatalf("first run: exit status %d\n%s\n%s", code, stdout, stderr)
 	}
 	before := snapshot(t, out)
 	badTruncate(t, badFiles(t, d, "sst", 2)[1], 0.5)
-	code, stdout, stderr := badRun(t, "--quiet", "--force", "--out", out, recipe)
+	code, stdout, stderr := badRun(t, "--quiet", "--force", "--out", out, study)
 	if code != 1 || stdout != "" || !strings.Contains(stderr, "HDF error") {
 		t.Fatalf("second run: exit status %d (want 1)\nstdout:\n%s\nstderr:\n%s", code, stdout, stderr)
 	}

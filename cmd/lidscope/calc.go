@@ -14,7 +14,7 @@ import (
 
 // calcOptions are the options of `lidscope calc`: quantities as typed on
 // the command line ("16.85degC", "1013hPa", "80%"; bare numbers are SI) and
-// the recipe choices by name. Empty strings mean "not given".
+// the metrics conventions by name. Empty strings mean "not given".
 type calcOptions struct {
 	SST, TSurf, T700, Ps      string
 	RH, DewPoint, SpecificHum string
@@ -30,7 +30,7 @@ type calcOptions struct {
 const calcUsage = `usage: lidscope calc (--sst T | --tsurf T) --t700 T [options]
 
 Computes LTS, EIS and their ingredients for one column, printing every
-intermediate value with its unit and the recipe used. Quantities take a unit
+intermediate value with its unit and the metrics conventions used. Quantities take a unit
 (290K, 16.85degC, 1013hPa, 80%, 12g/kg); a bare number is in SI units
 (K, Pa, fraction, kg/kg). Without --rh, --dewpoint or --shum the near-surface
 relative humidity is assumed to be 0.8, and the output says so.
@@ -89,7 +89,7 @@ type calcReport struct {
 	Inputs      map[string]calcQuantity `json:"inputs"`
 	Assumptions []string                `json:"assumptions"`
 	Results     []calcNamed             `json:"results"`
-	Recipe      string                  `json:"recipe"`
+	Conventions string                  `json:"conventions"`
 }
 
 type calcNamed struct {
@@ -131,7 +131,7 @@ func oneOf(names ...string) (string, int) {
 
 // runCalc computes one column from o and writes the report to w.
 func runCalc(o calcOptions, w io.Writer) error {
-	r := metrics.DefaultRecipe()
+	r := metrics.DefaultConventions()
 	var err error
 	if r.SVP, err = metrics.ParseSVPFormula(o.SVP); err != nil {
 		return usageErr("--svp: %v", err)
@@ -194,7 +194,7 @@ func runCalc(o calcOptions, w io.Writer) error {
 		q.Note = "default"
 	}
 	rep.Inputs["surface_pressure"] = q
-	r.SurfacePressure = q.Value // one column: the constant of the recipe
+	r.SurfacePressure = q.Value // one column: the constant of the conventions
 	if !(q.Value > metrics.P700 && q.Value <= 120000) {
 		return usageErr("--ps %s is %g Pa: the surface must be below the 700-hPa level (above 70000 Pa) and at most 120000 Pa; give hPa with a unit, e.g. 1013hPa", o.Ps, q.Value)
 	}
@@ -267,7 +267,7 @@ func runCalc(o calcOptions, w io.Writer) error {
 		}
 		return err
 	}
-	rep.Recipe = r.Text()
+	rep.Conventions = r.Text()
 	add := func(name string, v float64, unit, about string) {
 		rep.Results = append(rep.Results, calcNamed{name, calcValue{v, unit, about}})
 	}
@@ -353,8 +353,8 @@ func writeCalcText(w io.Writer, rep calcReport) error {
 	for _, r := range rep.Results {
 		fmt.Fprintf(&b, "  %-14s %14s %-8s %s\n", r.Name, formatCalc(r.Value, r.Units), r.Units, r.About)
 	}
-	b.WriteString("recipe\n  ")
-	b.WriteString(rep.Recipe)
+	b.WriteString("conventions\n  ")
+	b.WriteString(rep.Conventions)
 	b.WriteString("\n")
 	_, err := io.WriteString(w, b.String())
 	return err

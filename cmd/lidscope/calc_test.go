@@ -56,7 +56,7 @@ func TestCalcWorkedExamples(t *testing.T) {
 		o    calcOptions
 		want map[string]float64
 	}{
-		{"column A (default recipe)", a, map[string]float64{
+		{"column A (default conventions)", a, map[string]float64{
 			"theta700": 312.219601, "theta_surface": 290, "lts": 22.219601, "lcl": 440.578190,
 			"z700": 2985.797710, "gamma_theta": 5.10990322, "lapse_rate_t": 4.64116569, "eis": 9.213775,
 		}},
@@ -115,7 +115,7 @@ func TestCalcDefaultsAreStated(t *testing.T) {
 	}
 	out := b.String()
 	for _, want := range []string{
-		"relative humidity 0.8 assumed", "(T_surface + T700)/2", "default", "recipe\n  lidscope-metrics-recipe/1",
+		"relative humidity 0.8 assumed", "(T_surface + T700)/2", "default", "conventions\n  lidscope-metrics-conventions/1",
 		"theta700", "theta_surface", "lts", "lcl", "lapse_rate_t", "gamma_theta", "z700", "eis", "K km-1",
 	} {
 		if !strings.Contains(out, want) {
@@ -128,13 +128,13 @@ func TestCalcDefaultsAreStated(t *testing.T) {
 			t.Errorf("%s reported without --q700", r.Name)
 		}
 	}
-	if rep.Recipe != metrics.DefaultRecipe().Text() {
-		t.Errorf("recipe in JSON:\n%s\nwant the default recipe text", rep.Recipe)
+	if rep.Conventions != metrics.DefaultConventions().Text() {
+		t.Errorf("conventions in JSON:\n%s\nwant the default conventions text", rep.Conventions)
 	}
 }
 
-// The recipe choices reach the computation and the recorded recipe.
-func TestCalcRecipeChoices(t *testing.T) {
+// The metrics conventions reach the computation and the recorded text.
+func TestCalcConventionChoices(t *testing.T) {
 	base := calcDefaults()
 	base.SST, base.T700 = "290K", "282K"
 	ref := calcJSON(t, base)
@@ -153,8 +153,8 @@ func TestCalcRecipeChoices(t *testing.T) {
 		o := base
 		tc.change(&o)
 		rep := calcJSON(t, o)
-		if !strings.Contains(rep.Recipe, tc.inText) {
-			t.Errorf("recipe %q lacks %q", rep.Recipe, tc.inText)
+		if !strings.Contains(rep.Conventions, tc.inText) {
+			t.Errorf("conventions %q lacks %q", rep.Conventions, tc.inText)
 		}
 		if tc.inText != "surface-temperature=air" && result(t, rep, "eis") == result(t, ref, "eis") {
 			t.Errorf("%q did not change EIS", tc.inText)

@@ -14,8 +14,8 @@ import (
 
 // compareOptions are the options of `lidscope compare`.
 type compareOptions struct {
-	Args          []string // a recipe, or run folders (reference first)
-	Reference     string   // recipe mode: the reference dataset (default: the first)
+	Args          []string // a study, or run folders (reference first)
+	Reference     string   // study mode: the reference dataset (default: the first)
 	Out           string
 	Force         bool
 	AllowMismatch bool
@@ -28,14 +28,14 @@ func cmdCompare(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("compare", stderr)
 	o := compareOptions{Set: setFlags{}}
 	fs.StringVar(&o.Out, "out", "", "folder for the comparison (required)")
-	fs.StringVar(&o.Reference, "reference", "", "with a recipe: the reference dataset (default: the first)")
+	fs.StringVar(&o.Reference, "reference", "", "with a study: the reference dataset (default: the first)")
 	fs.BoolVar(&o.Force, "force", false, "replace existing results")
-	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different recipes, periods or regime definitions (every mismatch is listed)")
+	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different studies, periods or regime definitions (every mismatch is listed)")
 	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw the comparison figures")
-	fs.Var(o.Set, "set", "with a recipe: override a recipe key, KEY=VALUE (repeatable)")
+	fs.Var(o.Set, "set", "with a study: override a study key, KEY=VALUE (repeatable)")
 	o.Log.register(fs)
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] RECIPE\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud; subsidence-regime cloud sensitivities to EIS and LTS and the\npartial sensitivities with 95 % intervals and whether each difference lies within the combined\nuncertainty; flip fractions and thresholds when both runs have them. With a recipe, every dataset is run first into DIR/<name>.")
+		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] STUDY\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud; subsidence-regime cloud sensitivities to EIS and LTS and the\npartial sensitivities with 95 % intervals and whether each difference lies within the combined\nuncertainty; flip fractions and thresholds when both runs have them. With a study, every dataset is run first into DIR/<name>.")
 		fs.PrintDefaults()
 	}
 	if err := parseFlags(fs, args); err != nil {
@@ -46,7 +46,7 @@ func cmdCompare(args []string, stdout, stderr io.Writer) error {
 		return usageErr("--out is required")
 	}
 	if len(o.Args) == 0 {
-		return usageErr("give a recipe, or a reference run folder and at least one candidate run folder")
+		return usageErr("give a study, or a reference run folder and at least one candidate run folder")
 	}
 	return runCompare(o, stdout, stderr)
 }
@@ -66,7 +66,7 @@ func runCompare(o compareOptions, stdout, stderr io.Writer) error {
 		}
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 		defer stop()
-		res, files, err = analysis.CompareRecipe(ctx, r, o.Reference, o.Out, opt)
+		res, files, err = analysis.CompareStudy(ctx, r, o.Reference, o.Out, opt)
 		if err != nil {
 			return err
 		}

@@ -29,7 +29,7 @@ func cmdDemo(args []string, stdout, stderr io.Writer) error {
 	fs.IntVar(&o.Workers, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
 	o.Log.register(fs)
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope demo [--out DIR] [--force]\n\nWrites a synthetic world of invented data (SST with a warm pool, a cold tongue and\nupwelling decks; 700-hPa temperature; low cloud that follows EIS) as CF NetCDF files,\nwrites its recipe, runs the full analysis on it and checks the results against the\nworld's known truth.")
+		fmt.Fprintln(stderr, "usage: lidscope demo [--out DIR] [--force]\n\nWrites a synthetic world of invented data (SST with a warm pool, a cold tongue and\nupwelling decks; 700-hPa temperature; low cloud that follows EIS) as CF NetCDF files,\nwrites its study, runs the full analysis on it and checks the results against the\nworld's known truth.")
 		fs.PrintDefaults()
 	}
 	if err := parseFlags(fs, args); err != nil {

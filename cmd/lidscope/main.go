@@ -26,13 +26,13 @@ type command struct {
 func commands() map[string]command {
 	return map[string]command{
 		"calc":    {"compute LTS, EIS and their ingredients for one column", cmdCalc},
-		"run":     {"run the regime analysis of a recipe's datasets (run RECIPE)", cmdRun},
-		"compare": {"set models side by side with observations (compare --out DIR REF_RUN RUN... | RECIPE)", cmdCompare},
+		"run":     {"run the regime analysis of a study's datasets (run STUDY)", cmdRun},
+		"compare": {"set models side by side with observations (compare --out DIR REF_RUN RUN... | STUDY)", cmdCompare},
 		"merge":   {"join runs over consecutive pieces of a record (merge --out DIR RUN...)", cmdMerge},
 		"demo":    {"generate the synthetic demo world, analyse it and check the result", cmdDemo},
 		"inspect": {"report what lidscope recognises in NetCDF files, and every problem", cmdInspect},
 		"plot":    {"draw the figures of a finished run (plot RUN_DIR)", cmdPlot},
-		"recipe":  {"write a commented starter recipe from NetCDF files (recipe init FILE...)", cmdRecipe},
+		"study":   {"write a commented starter study from NetCDF files (study init FILE...)", cmdStudy},
 		"version": {"print the lidscope version", func(_ []string, w, _ io.Writer) error {
 			_, err := fmt.Fprintln(w, "lidscope", version)
 			return err

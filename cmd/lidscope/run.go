@@ -60,7 +60,7 @@ func (s setFlags) Set(v string) error {
 
 // runOptions are the options of `lidscope run`.
 type runOptions struct {
-	Recipe   string
+	Study    string
 	Datasets []string
 	Out      string
 	Force    bool
@@ -76,23 +76,23 @@ func cmdRun(args []string, stdout, stderr io.Writer) error {
 	o := runOptions{Set: setFlags{}}
 	var dataset string
 	fs.StringVar(&dataset, "dataset", "", "run only this dataset (comma-separated names for several)")
-	fs.StringVar(&o.Out, "out", "", "output folder (default: the recipe's output.dir/<dataset>)")
+	fs.StringVar(&o.Out, "out", "", "output folder (default: the study's output.dir/<dataset>)")
 	fs.BoolVar(&o.Force, "force", false, "replace existing results")
 	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw figures")
 	fs.IntVar(&o.Workers, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
-	fs.Var(o.Set, "set", "override a recipe key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
+	fs.Var(o.Set, "set", "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
 	o.Log.register(fs)
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope run [options] RECIPE\n\nRuns the regime analysis of every dataset of RECIPE (or --dataset NAME) in one\nstreaming pass and writes maps, series, tables, summary.json and provenance.json.")
+		fmt.Fprintln(stderr, "usage: lidscope run [options] STUDY\n\nRuns the regime analysis of every dataset of STUDY (or --dataset NAME) in one\nstreaming pass and writes maps, series, tables, summary.json and provenance.json.")
 		fs.PrintDefaults()
 	}
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
 	if fs.NArg() != 1 {
-		return usageErr("give exactly one recipe file")
+		return usageErr("give exactly one study file")
 	}
-	o.Recipe = fs.Arg(0)
+	o.Study = fs.Arg(0)
 	if dataset != "" {
 		o.Datasets = strings.Split(dataset, ",")
 	}
@@ -105,7 +105,7 @@ func runRun(o runOptions, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	r, err := config.Load(o.Recipe, config.LoadOptions{Flags: o.Set})
+	r, err := config.Load(o.Study, config.LoadOptions{Flags: o.Set})
 	if err != nil {
 		return err
 	}

@@ -177,8 +177,8 @@ func build(spec Spec) (*world, error) {
 	}
 	w.meta = output.Meta{
 		Dataset: "lidscope synthetic test world (invented data)", Title: "figures test run",
-		Version: "0.0.0-test", Command: "lidscope test", Recipe: "[regimes]\ndelta = 0.5\n",
-		RecipeHash: "sha256:5e1f0c0ffee2b3a4", MetricsRecipe: "svp = murphy-koop\n",
+		Version: "0.0.0-test", Command: "lidscope test", Study: "[regimes]\ndelta = 0.5\n",
+		StudyHash: "sha256:5e1f0c0ffee2b3a4", MetricsConventions: "svp = murphy-koop\n",
 		RegimeDefinition: cls.String() + "; band 30°S–30°N",
 		Delta:            0.5, HalfWidth: 0.25, BandSouth: -30, BandNorth: 30,
 		Period:       fmt.Sprintf("2001-01 … %d-%02d", 2001+(spec.Steps-1)/12, (spec.Steps-1)%12+1),

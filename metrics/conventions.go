@@ -37,7 +37,7 @@ type HumiditySource int
 // The humidity sources.
 const (
 	// HumidityAssumedRH: no humidity field; relative humidity is
-	// Recipe.AssumedRH everywhere (default 0.8, a documented assumption).
+	// Conventions.AssumedRH everywhere (default 0.8, a documented assumption).
 	HumidityAssumedRH HumiditySource = iota + 1
 	// HumidityRH: a relative-humidity field over liquid water, fraction 0–1.
 	HumidityRH
@@ -47,7 +47,7 @@ const (
 	HumiditySpecific
 )
 
-// String returns the name used in recipe text.
+// String returns the name used in conventions text.
 func (h HumiditySource) String() string {
 	switch h {
 	case HumidityAssumedRH:
@@ -104,7 +104,7 @@ type ECTEISurface int
 // The q_surface choices.
 const (
 	// ECTEIAir: the specific humidity of the near-surface air, from the
-	// recipe's humidity source at the surface temperature and pressure (the
+	// conventions' humidity source at the surface temperature and pressure (the
 	// same air whose LCL is computed). The default.
 	ECTEIAir ECTEISurface = iota + 1
 	// ECTEISaturated: the saturation specific humidity at the surface
@@ -134,15 +134,15 @@ func ParseECTEISurface(s string) (ECTEISurface, error) {
 	return 0, fmt.Errorf("metrics: unknown ECTEI surface humidity %q (use air or saturated)", s)
 }
 
-// Recipe lists every choice that changes LTS, EIS or ECTEI. Start from
-// [DefaultRecipe] and change fields; the zero value is invalid (its enums
-// are unset) so that no choice is made silently. [Recipe.Text] is the stable
+// Conventions lists every choice that changes LTS, EIS or ECTEI. Start from
+// [DefaultConventions] and change fields; the zero value is invalid (its enums
+// are unset) so that no choice is made silently. [Conventions.Text] is the stable
 // description to record in outputs.
 //
-// The recipe also says which optional inputs are fields (PressureField,
+// The conventions also says which optional inputs are fields (PressureField,
 // Humidity, T850Field, ECTEI): [Kernel.Slab] checks that the slices it is
 // given match, so the recorded text is always true of the computation.
-type Recipe struct {
+type Conventions struct {
 	// Constants are the physical constants (default DefaultConstants()).
 	Constants Constants
 	// SVP is the saturation-vapour-pressure formula used for the humidity
@@ -183,14 +183,14 @@ type Recipe struct {
 	ECTEISurface ECTEISurface
 }
 
-// DefaultRecipe returns the default recipe: DefaultConstants, Murphy & Koop
+// DefaultConventions returns the default conventions: DefaultConstants, Murphy & Koop
 // (2005) saturation vapour pressure, Romps (2017) LCL, SST as surface
 // temperature at a constant 1000 hPa, relative humidity 0.8 assumed, Γθ of
 // Wood & Bretherton (2006, eq. 5) at 850 hPa with qs and T850 =
 // (Ts + T700)/2, and no ECTEI (β = 0.23, q_surface of the surface air, when
 // enabled).
-func DefaultRecipe() Recipe {
-	return Recipe{
+func DefaultConventions() Conventions {
+	return Conventions{
 		Constants:       DefaultConstants(),
 		SVP:             SVPMurphyKoop,
 		LCL:             LCLRomps,
@@ -205,52 +205,52 @@ func DefaultRecipe() Recipe {
 	}
 }
 
-const startHint = "; start from metrics.DefaultRecipe()"
+const startHint = "; start from metrics.DefaultConventions()"
 
 // Validate reports the first invalid or unset field, by name.
-func (r Recipe) Validate() error {
+func (r Conventions) Validate() error {
 	if err := r.Constants.Validate(); err != nil {
-		return fmt.Errorf("metrics: Recipe.Constants: %w", err)
+		return fmt.Errorf("metrics: Conventions.Constants: %w", err)
 	}
 	switch {
 	case !r.SVP.valid():
-		return fmt.Errorf("metrics: Recipe.SVP is %v, not a known formula%s", r.SVP, startHint)
+		return fmt.Errorf("metrics: Conventions.SVP is %v, not a known formula%s", r.SVP, startHint)
 	case !r.LCL.valid():
-		return fmt.Errorf("metrics: Recipe.LCL is %v, not a known method%s", r.LCL, startHint)
+		return fmt.Errorf("metrics: Conventions.LCL is %v, not a known method%s", r.LCL, startHint)
 	case r.Surface != SurfaceSST && r.Surface != SurfaceAir:
-		return fmt.Errorf("metrics: Recipe.Surface is %v, not sst or air%s", r.Surface, startHint)
+		return fmt.Errorf("metrics: Conventions.Surface is %v, not sst or air%s", r.Surface, startHint)
 	case r.Humidity < HumidityAssumedRH || r.Humidity > HumiditySpecific:
-		return fmt.Errorf("metrics: Recipe.Humidity is %v, not a known source%s", r.Humidity, startHint)
+		return fmt.Errorf("metrics: Conventions.Humidity is %v, not a known source%s", r.Humidity, startHint)
 	case r.LapseMoisture != LapseQs && r.LapseMoisture != LapseRs:
-		return fmt.Errorf("metrics: Recipe.LapseMoisture is %v, not qs or rs%s", r.LapseMoisture, startHint)
+		return fmt.Errorf("metrics: Conventions.LapseMoisture is %v, not qs or rs%s", r.LapseMoisture, startHint)
 	case r.ECTEISurface != ECTEIAir && r.ECTEISurface != ECTEISaturated:
-		return fmt.Errorf("metrics: Recipe.ECTEISurface is %v, not air or saturated%s", r.ECTEISurface, startHint)
+		return fmt.Errorf("metrics: Conventions.ECTEISurface is %v, not air or saturated%s", r.ECTEISurface, startHint)
 	}
 	if !r.PressureField && !(r.SurfacePressure > P700 && r.SurfacePressure <= maxSurfacePressure) {
-		return fmt.Errorf("metrics: Recipe.SurfacePressure = %g Pa must be above 70000 Pa (700 hPa) and at most %g Pa; give it in Pa (1000 hPa = 100000 Pa)", r.SurfacePressure, float64(maxSurfacePressure))
+		return fmt.Errorf("metrics: Conventions.SurfacePressure = %g Pa must be above 70000 Pa (700 hPa) and at most %g Pa; give it in Pa (1000 hPa = 100000 Pa)", r.SurfacePressure, float64(maxSurfacePressure))
 	}
 	if r.Humidity == HumidityAssumedRH && !(r.AssumedRH > 0 && r.AssumedRH <= 1) {
-		return fmt.Errorf("metrics: Recipe.AssumedRH = %g must be a fraction in (0, 1] (0.8 means 80 %%)", r.AssumedRH)
+		return fmt.Errorf("metrics: Conventions.AssumedRH = %g must be a fraction in (0, 1] (0.8 means 80 %%)", r.AssumedRH)
 	}
 	if !(r.LapsePressure > P700 && r.LapsePressure < maxSurfacePressure) {
-		return fmt.Errorf("metrics: Recipe.LapsePressure = %g Pa must lie between 70000 Pa and %g Pa (default 85000)", r.LapsePressure, float64(maxSurfacePressure))
+		return fmt.Errorf("metrics: Conventions.LapsePressure = %g Pa must lie between 70000 Pa and %g Pa (default 85000)", r.LapsePressure, float64(maxSurfacePressure))
 	}
 	if r.ECTEI && !(r.ECTEIBeta >= 0 && r.ECTEIBeta <= 1) {
-		return fmt.Errorf("metrics: Recipe.ECTEIBeta = %g must be in [0, 1] (Kawai et al. 2017 use 0.23)", r.ECTEIBeta)
+		return fmt.Errorf("metrics: Conventions.ECTEIBeta = %g must be in [0, 1] (Kawai et al. 2017 use 0.23)", r.ECTEIBeta)
 	}
 	return nil
 }
 
 func num(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// Text returns a stable one-line description of the recipe, for output
-// metadata. Equal recipes give equal text; the format changes only with the
-// version tag at its start ("lidscope-metrics-recipe/1"). Fields that have
+// Text returns a stable one-line description of the conventions, for output
+// metadata. Equal convention sets give equal text; the format changes only with the
+// version tag at its start ("lidscope-metrics-conventions/1"). Fields that have
 // no effect (e.g. AssumedRH when a humidity field is used) are left out.
-func (r Recipe) Text() string {
+func (r Conventions) Text() string {
 	c := r.Constants
 	var b strings.Builder
-	b.WriteString("lidscope-metrics-recipe/1")
+	b.WriteString("lidscope-metrics-conventions/1")
 	fmt.Fprintf(&b, "; constants Rd=%s Rv=%s cpd=%s Lv0=%s LvSlope=%s g=%s p0=%s",
 		num(c.Rd), num(c.Rv), num(c.Cpd), num(c.Lv0), num(c.LvSlope), num(c.G), num(c.P0))
 	b.WriteString("; theta=T*(p0/p)^(Rd/cpd)")

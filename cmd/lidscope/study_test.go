@@ -11,10 +11,10 @@ import (
 	"lidscope/config"
 )
 
-// recipeSample compiles the synthetic sample of fixtures/sample (invented
+// studySample compiles the synthetic sample of fixtures/sample (invented
 // values: SST in degC, air temperature on pressure levels, low cloud in
 // percent) into dir/name with ncgen.
-func recipeSample(t *testing.T, dir, name string) string {
+func studySample(t *testing.T, dir, name string) string {
 	t.Helper()
 	ncgen, err := exec.LookPath("ncgen")
 	if err != nil {
@@ -31,10 +31,10 @@ func recipeSample(t *testing.T, dir, name string) string {
 	return out
 }
 
-func TestRecipeInitPrints(t *testing.T) {
-	nc := recipeSample(t, t.TempDir(), "sample.nc")
+func TestStudyInitPrints(t *testing.T) {
+	nc := studySample(t, t.TempDir(), "sample.nc")
 	var out, errb bytes.Buffer
-	if code := run([]string{"recipe", "init", nc}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", nc}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	for _, s := range []string{`sst: "` + nc + `"`, `air_temperature: "ta"`, `low_cloud: "cll"`, "datasets:", "analysis:"} {
@@ -44,17 +44,17 @@ func TestRecipeInitPrints(t *testing.T) {
 	}
 }
 
-func TestRecipeInitWrites(t *testing.T) {
+func TestStudyInitWrites(t *testing.T) {
 	data := t.TempDir()
-	nc := recipeSample(t, data, "sample.nc")
-	recipes := filepath.Join(t.TempDir(), "recipes")
-	if err := os.Mkdir(recipes, 0o755); err != nil {
+	nc := studySample(t, data, "sample.nc")
+	studies := filepath.Join(t.TempDir(), "studies")
+	if err := os.Mkdir(studies, 0o755); err != nil {
 		t.Fatal(err)
 	}
-	outFile := filepath.Join(recipes, "r.yaml")
+	outFile := filepath.Join(studies, "r.yaml")
 	var out, errb bytes.Buffer
 	// flags after the files are accepted too
-	if code := run([]string{"recipe", "init", nc, "--out", outFile}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", nc, "--out", outFile}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	if !strings.Contains(out.String(), "it loads") || errb.Len() != 0 {
@@ -64,16 +64,16 @@ func TestRecipeInitWrites(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// the file is named relative to the recipe's folder
-	rel, _ := filepath.Rel(recipes, nc)
+	// the file is named relative to the study's folder
+	rel, _ := filepath.Rel(studies, nc)
 	if !strings.Contains(string(text), `sst: "`+rel+`"`) {
-		t.Errorf("recipe does not name %s:\n%s", rel, text)
+		t.Errorf("study does not name %s:\n%s", rel, text)
 	}
 	r, err := config.Load(outFile, config.LoadOptions{LookupEnv: config.NoEnvironment})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := r.Datasets[0].Inputs["sst"]; len(got) != 1 || filepath.Clean(got[0]) != filepath.Join(recipes, rel) {
+	if got := r.Datasets[0].Inputs["sst"]; len(got) != 1 || filepath.Clean(got[0]) != filepath.Join(studies, rel) {
 		t.Errorf("sst input %v", got)
 	}
 
@@ -83,23 +83,23 @@ func TestRecipeInitWrites(t *testing.T) {
 	if err := os.WriteFile(outFile, []byte("keep me"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code := run([]string{"recipe", "init", "--out", outFile, nc}, &out, &errb); code != 1 || !strings.Contains(errb.String(), "--force") {
+	if code := run([]string{"study", "init", "--out", outFile, nc}, &out, &errb); code != 1 || !strings.Contains(errb.String(), "--force") {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 	if b, _ := os.ReadFile(outFile); string(b) != "keep me" {
 		t.Error("file overwritten without --force")
 	}
-	if code := run([]string{"recipe", "init", "--force", "--out", outFile, nc}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", "--force", "--out", outFile, nc}, &out, &errb); code != 0 {
 		t.Errorf("--force: exit %d, stderr %q", code, errb.String())
 	}
 	if b, _ := os.ReadFile(outFile); string(b) == "keep me" {
 		t.Error("--force did not overwrite")
 	}
 
-	// recipe check prints the resolved recipe and its hash, with overrides
+	// study check prints the resolved study and its hash, with overrides
 	out.Reset()
 	errb.Reset()
-	if code := run([]string{"recipe", "check", outFile, "--set", "analysis.threshold=1.0"}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "check", outFile, "--set", "analysis.threshold=1.0"}, &out, &errb); code != 0 {
 		t.Fatalf("check: exit %d: %s", code, errb.String())
 	}
 	r, err = config.Load(outFile, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"analysis.threshold": "1.0"}})
@@ -112,9 +112,9 @@ func TestRecipeInitWrites(t *testing.T) {
 	}
 }
 
-// TestRecipeInitIncomplete: a starter that lacks required roles is still
+// TestStudyInitIncomplete: a starter that lacks required roles is still
 // written, with a note naming what is missing.
-func TestRecipeInitIncomplete(t *testing.T) {
+func TestStudyInitIncomplete(t *testing.T) {
 	dir := t.TempDir()
 	// a file with no usable variable
 	bad := filepath.Join(dir, "not-netcdf.nc")
@@ -123,7 +123,7 @@ func TestRecipeInitIncomplete(t *testing.T) {
 	}
 	outFile := filepath.Join(dir, "r.yaml")
 	var out, errb bytes.Buffer
-	if code := run([]string{"recipe", "init", "--out", outFile, bad}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", "--out", outFile, bad}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	if !strings.Contains(errb.String(), "does not load yet") || !strings.Contains(errb.String(), "role air_temperature") {
@@ -131,26 +131,26 @@ func TestRecipeInitIncomplete(t *testing.T) {
 	}
 	text, _ := os.ReadFile(outFile)
 	if !strings.Contains(string(text), "# not used: not-netcdf.nc") || !strings.Contains(string(text), "# MISSING: no file gave sst") {
-		t.Errorf("recipe:\n%s", text)
+		t.Errorf("study:\n%s", text)
 	}
 }
 
-func TestRecipeUsage(t *testing.T) {
+func TestStudyUsage(t *testing.T) {
 	dir := t.TempDir()
 	for _, c := range []struct {
 		args []string
 		code int
 		msg  string
 	}{
-		{[]string{"recipe"}, 2, "give a subcommand"},
-		{[]string{"recipe", "make"}, 2, "unknown subcommand"},
-		{[]string{"recipe", "init"}, 2, "at least one NetCDF file"},
-		{[]string{"recipe", "init", "--out", "r.toml", "x.nc"}, 2, "name the file .yaml"},
-		{[]string{"recipe", "init", "--bogus", "x.nc"}, 2, "flag provided but not defined"},
-		{[]string{"recipe", "check"}, 2, "exactly one recipe"},
-		{[]string{"recipe", "check", "--set", "novalue", "r.yaml"}, 2, "KEY=VALUE"},
-		{[]string{"recipe", "check", filepath.Join(dir, "missing.yaml")}, 1, "missing.yaml"},
-		{[]string{"recipe", "init", "-h"}, 0, "usage: lidscope recipe init"},
+		{[]string{"study"}, 2, "give a subcommand"},
+		{[]string{"study", "make"}, 2, "unknown subcommand"},
+		{[]string{"study", "init"}, 2, "at least one NetCDF file"},
+		{[]string{"study", "init", "--out", "r.toml", "x.nc"}, 2, "name the file .yaml"},
+		{[]string{"study", "init", "--bogus", "x.nc"}, 2, "flag provided but not defined"},
+		{[]string{"study", "check"}, 2, "exactly one study"},
+		{[]string{"study", "check", "--set", "novalue", "r.yaml"}, 2, "KEY=VALUE"},
+		{[]string{"study", "check", filepath.Join(dir, "missing.yaml")}, 1, "missing.yaml"},
+		{[]string{"study", "init", "-h"}, 0, "usage: lidscope study init"},
 	} {
 		var out, errb bytes.Buffer
 		code := run(c.args, &out, &errb)
@@ -158,11 +158,11 @@ func TestRecipeUsage(t *testing.T) {
 			t.Errorf("%v: exit %d, stderr %q; want %d and %q", c.args, code, errb.String(), c.code, c.msg)
 		}
 	}
-	// a recipe with problems: exit 1, every problem listed
+	// a study with problems: exit 1, every problem listed
 	p := filepath.Join(dir, "bad.yaml")
 	os.WriteFile(p, []byte("datasets:\n  - name: x\nanalysis:\n  treshold: 1\n"), 0o644)
 	var out, errb bytes.Buffer
-	if code := run([]string{"recipe", "check", p}, &out, &errb); code != 1 ||
+	if code := run([]string{"study", "check", p}, &out, &errb); code != 1 ||
 		!strings.Contains(errb.String(), p+":4: analysis.treshold") || !strings.Contains(errb.String(), p+":2: datasets.0") {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}

@@ -13,43 +13,43 @@ import (
 	"lidscope/config"
 )
 
-// recipeInitOptions are the options of `lidscope recipe init`.
-type recipeInitOptions struct {
+// studyInitOptions are the options of `lidscope study init`.
+type studyInitOptions struct {
 	Files []string
 	Out   string // "" prints to stdout
 	Force bool
 }
 
-// recipeCheckOptions are the options of `lidscope recipe check`.
-type recipeCheckOptions struct {
-	Recipe string
-	Set    map[string]string
+// studyCheckOptions are the options of `lidscope study check`.
+type studyCheckOptions struct {
+	Study string
+	Set   map[string]string
 }
 
-const recipeUsage = `usage: lidscope recipe init [--out recipe.yaml] [--force] FILE...
-       lidscope recipe check [--set KEY=VALUE]... RECIPE
+const studyUsage = `usage: lidscope study init [--out study.yaml] [--force] FILE...
+       lidscope study check [--set KEY=VALUE]... STUDY
 
-init   inspects the NetCDF files and writes a commented starter recipe: each
+init   inspects the NetCDF files and writes a commented starter study: each
        role with its files and variable, suggested overrides for what inspect
        flagged, and every default written out. Without --out it is printed.
-check  loads a recipe, reports every problem (file:line: key: message), and
-       prints the fully resolved recipe and its SHA-256.`
+check  loads a study, reports every problem (file:line: key: message), and
+       prints the fully resolved study and its SHA-256.`
 
-func cmdRecipe(args []string, stdout, stderr io.Writer) error {
+func cmdStudy(args []string, stdout, stderr io.Writer) error {
 	if len(args) == 0 {
-		fmt.Fprintln(stderr, recipeUsage)
+		fmt.Fprintln(stderr, studyUsage)
 		return usageErr("give a subcommand: init or check")
 	}
 	switch args[0] {
 	case "init":
-		return cmdRecipeInit(args[1:], stdout, stderr)
+		return cmdStudyInit(args[1:], stdout, stderr)
 	case "check":
-		return cmdRecipeCheck(args[1:], stdout, stderr)
+		return cmdStudyCheck(args[1:], stdout, stderr)
 	case "-h", "--help", "help":
-		fmt.Fprintln(stderr, recipeUsage)
+		fmt.Fprintln(stderr, studyUsage)
 		return flag.ErrHelp
 	}
-	fmt.Fprintln(stderr, recipeUsage)
+	fmt.Fprintln(stderr, studyUsage)
 	return usageErr("unknown subcommand %q (use init or check)", args[0])
 }
 
@@ -73,13 +73,13 @@ func parseInterspersed(fs *flag.FlagSet, args []string) ([]string, error) {
 	}
 }
 
-func cmdRecipeInit(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("recipe init", stderr)
-	var o recipeInitOptions
-	fs.StringVar(&o.Out, "out", "", "write the recipe to this file (.yaml) instead of printing it")
+func cmdStudyInit(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("study init", stderr)
+	var o studyInitOptions
+	fs.StringVar(&o.Out, "out", "", "write the study to this file (.yaml) instead of printing it")
 	fs.BoolVar(&o.Force, "force", false, "overwrite the --out file if it exists")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, recipeUsage)
+		fmt.Fprintln(stderr, studyUsage)
 		fs.PrintDefaults()
 	}
 	files, err := parseInterspersed(fs, args)
@@ -94,14 +94,14 @@ func cmdRecipeInit(args []string, stdout, stderr io.Writer) error {
 		switch strings.ToLower(filepath.Ext(o.Out)) {
 		case ".yaml", ".yml":
 		default:
-			return usageErr("--out %s: the starter recipe is YAML; name the file .yaml", o.Out)
+			return usageErr("--out %s: the starter study is YAML; name the file .yaml", o.Out)
 		}
 	}
-	return runRecipeInit(o, stdout, stderr)
+	return runStudyInit(o, stdout, stderr)
 }
 
-// runRecipeInit inspects the files and prints or writes the starter.
-func runRecipeInit(o recipeInitOptions, stdout, stderr io.Writer) error {
+// runStudyInit inspects the files and prints or writes the starter.
+func runStudyInit(o studyInitOptions, stdout, stderr io.Writer) error {
 	reports := make([]*cf.FileReport, len(o.Files))
 	paths := make([]string, len(o.Files))
 	for i, f := range o.Files {
@@ -125,20 +125,20 @@ func runRecipeInit(o recipeInitOptions, stdout, stderr io.Writer) error {
 		return fmt.Errorf("%s exists; lidscope does not overwrite it without --force", o.Out)
 	}
 	if err != nil {
-		return fmt.Errorf("writing the recipe: %w", err)
+		return fmt.Errorf("writing the study: %w", err)
 	}
 	if _, err := io.WriteString(f, text); err != nil {
 		f.Close()
-		return fmt.Errorf("writing the recipe %s: %w", o.Out, err)
+		return fmt.Errorf("writing the study %s: %w", o.Out, err)
 	}
 	if err := f.Close(); err != nil {
-		return fmt.Errorf("writing the recipe %s: %w", o.Out, err)
+		return fmt.Errorf("writing the study %s: %w", o.Out, err)
 	}
 	fmt.Fprintf(stdout, "wrote %s\n", o.Out)
 	if _, err := config.Load(o.Out, config.LoadOptions{LookupEnv: config.NoEnvironment}); err != nil {
 		fmt.Fprintf(stderr, "note: the starter does not load yet; edit it where marked MISSING or CHECK:\n%v\n", err)
 	} else {
-		fmt.Fprintf(stdout, "it loads; review the lines marked CHECK (lidscope recipe check %s)\n", o.Out)
+		fmt.Fprintf(stdout, "it loads; review the lines marked CHECK (lidscope study check %s)\n", o.Out)
 	}
 	return nil
 }
@@ -156,10 +156,10 @@ func relativeTo(dir, path string) string {
 	return ap
 }
 
-func cmdRecipeCheck(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("recipe check", stderr)
-	o := recipeCheckOptions{Set: map[string]string{}}
-	fs.Func("set", "override a recipe key, KEY=VALUE (e.g. analysis.threshold=1.0); repeatable", func(s string) error {
+func cmdStudyCheck(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("study check", stderr)
+	o := studyCheckOptions{Set: map[string]string{}}
+	fs.Func("set", "override a study key, KEY=VALUE (e.g. analysis.threshold=1.0); repeatable", func(s string) error {
 		k, v, ok := strings.Cut(s, "=")
 		if !ok || strings.TrimSpace(k) == "" {
 			return fmt.Errorf("%q is not KEY=VALUE (e.g. analysis.threshold=1.0)", s)
@@ -168,7 +168,7 @@ func cmdRecipeCheck(args []string, stdout, stderr io.Writer) error {
 		return nil
 	})
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, recipeUsage)
+		fmt.Fprintln(stderr, studyUsage)
 		fs.PrintDefaults()
 	}
 	pos, err := parseInterspersed(fs, args)
@@ -176,16 +176,16 @@ func cmdRecipeCheck(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	if len(pos) != 1 {
-		return usageErr("give exactly one recipe file")
+		return usageErr("give exactly one study file")
 	}
-	o.Recipe = pos[0]
-	return runRecipeCheck(o, stdout)
+	o.Study = pos[0]
+	return runStudyCheck(o, stdout)
 }
 
-// runRecipeCheck loads the recipe (with the process environment) and
+// runStudyCheck loads the study (with the process environment) and
 // prints its resolved text and hash.
-func runRecipeCheck(o recipeCheckOptions, w io.Writer) error {
-	r, err := config.Load(o.Recipe, config.LoadOptions{Flags: o.Set})
+func runStudyCheck(o studyCheckOptions, w io.Writer) error {
+	r, err := config.Load(o.Study, config.LoadOptions{Flags: o.Set})
 	if err != nil {
 		return err
 	}

@@ -16,29 +16,29 @@ import (
 	"lidscope/relations"
 )
 
-// Recipe is a loaded recipe: typed, validated, with every default applied
+// Study is a loaded study: typed, validated, with every default applied
 // and every input glob expanded. Build it with [Load].
-type Recipe struct {
-	// Path is the recipe file as given to Load; Dir is its folder, against
+type Study struct {
+	// Path is the study file as given to Load; Dir is its folder, against
 	// which relative input patterns and the output folder are resolved.
 	Path, Dir string
 	// Format is "yaml", "toml" or "json" (from the file name extension).
 	Format string
 	// Source is the text of the file, unchanged.
 	Source string
-	// Datasets are the datasets of the recipe, in file order (at least one).
+	// Datasets are the datasets of the study, in file order (at least one).
 	Datasets []Dataset
 	// Analysis holds the regime and grid settings shared by all datasets.
 	Analysis Analysis
 	// Output says where results go.
 	Output Output
 	// Relations is the relationship analysis (the relationships section),
-	// shared by all datasets: relations.Defaults() with the recipe's
+	// shared by all datasets: relations.Defaults() with the study's
 	// settings, the regime definition of Analysis as Classifier and
 	// Analysis.Regions as Regions. Its Responses are the responses as
-	// written (nil when the recipe lists none; they may contain
+	// written (nil when the study lists none; they may contain
 	// AnalysisCloud): give relations.New the configuration of
-	// [Recipe.RelationsFor], whose responses are resolved per dataset.
+	// [Study.RelationsFor], whose responses are resolved per dataset.
 	Relations relations.Config
 	// Overrides lists the values set by flags and environment variables,
 	// in the order applied (environment first, then flags).
@@ -49,7 +49,7 @@ type Recipe struct {
 	shown map[string]string
 }
 
-// Override is one value set from outside the recipe file.
+// Override is one value set from outside the study file.
 type Override struct {
 	// Key is the dotted key path, e.g. "analysis.threshold".
 	Key string
@@ -61,13 +61,13 @@ type Override struct {
 
 // Dataset is one dataset (observations, a reanalysis or one model run).
 type Dataset struct {
-	// Name is unique within the recipe and made of [A-Za-z0-9_.-]; it is
+	// Name is unique within the study and made of [A-Za-z0-9_.-]; it is
 	// used in output paths.
 	Name        string
 	Description string
 	// Inputs are the files of each role the analysis reads, each list
 	// sorted, with globs expanded and relative patterns resolved against
-	// the recipe's folder. Roles the settings need but the recipe lists
+	// the study's folder. Roles the settings need but the study lists
 	// only under inputs.all get the files of All.
 	Inputs map[cf.Role][]string
 	// All are the files of inputs.all (files that may hold any role),
@@ -92,10 +92,10 @@ type Dataset struct {
 	// Cloud is the role that gives the cloud of the analysis:
 	// cf.RoleLowCloud or cf.RoleCloud.
 	Cloud cf.Role
-	// Metrics is the complete metrics recipe, surface settings included
+	// Metrics is the complete metrics conventions, surface settings included
 	// (Surface, PressureField, SurfacePressure, Humidity, AssumedRH). It
-	// has passed metrics.Recipe.Validate.
-	Metrics metrics.Recipe
+	// has passed metrics.Conventions.Validate.
+	Metrics metrics.Conventions
 	// OutputDir is where this dataset's results go: Output.Dir/Name.
 	OutputDir string
 	// RelationResponses are the responses of the relationship analysis
@@ -182,7 +182,7 @@ const (
 	OceanFromCategories
 )
 
-// String returns the recipe spelling: "sst", "fraction" or "categorical".
+// String returns the study spelling: "sst", "fraction" or "categorical".
 func (m OceanMethod) String() string {
 	switch m {
 	case OceanWhereSST:
@@ -334,7 +334,7 @@ type Grid struct {
 	// grid (when Target is a resolution), else 0.
 	Resolution float64
 	// Method is the remapping method per role, for roles set in the
-	// recipe; [Grid.MethodFor] applies the default.
+	// study; [Grid.MethodFor] applies the default.
 	Method map[cf.Role]regrid.Method
 	// MinCoverage is the smallest valid overlap fraction of a target cell
 	// for conservative remapping (default 0.5).
@@ -355,7 +355,7 @@ func (g Grid) MethodFor(r cf.Role) regrid.Method {
 // Output is where results go.
 type Output struct {
 	// Dir is the output folder (default "out"), resolved against the
-	// recipe's folder; each dataset writes into Dir/<dataset name>.
+	// study's folder; each dataset writes into Dir/<dataset name>.
 	Dir string
 	// Plots is true when figures are drawn (default true).
 	Plots bool
@@ -363,7 +363,7 @@ type Output struct {
 
 // Dataset returns the dataset of the given name; the error lists the
 // names available.
-func (r *Recipe) Dataset(name string) (*Dataset, error) {
+func (r *Study) Dataset(name string) (*Dataset, error) {
 	names := make([]string, len(r.Datasets))
 	for i := range r.Datasets {
 		if r.Datasets[i].Name == name {
@@ -375,7 +375,7 @@ func (r *Recipe) Dataset(name string) (*Dataset, error) {
 	if n := nearest(name, names); n != "" {
 		hint = fmt.Sprintf(" (did you mean %q?)", n)
 	}
-	return nil, fmt.Errorf("recipe %s has no dataset %q%s; its datasets are: %s", r.Path, name, hint, strings.Join(names, ", "))
+	return nil, fmt.Errorf("study %s has no dataset %q%s; its datasets are: %s", r.Path, name, hint, strings.Join(names, ", "))
 }
 
 // levelOf is the pressure, Pa, at which a role is read by default: 700
@@ -430,8 +430,8 @@ func (d *Dataset) Roles() []cf.Role {
 }
 
 // Hash returns the SHA-256 of Resolved(), in hexadecimal: a short
-// provenance identifier of everything the recipe decides.
-func (r *Recipe) Hash() string {
+// provenance identifier of everything the study decides.
+func (r *Study) Hash() string {
 	sum := sha256.Sum256([]byte(r.Resolved()))
 	return hex.EncodeToString(sum[:])
 }
