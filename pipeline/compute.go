@@ -1,0 +1,178 @@
+package pipeline
+
+import (
+	"fmt"
+	"sync"
+
+	"lidscope/accumulate"
+	"lidscope/metrics"
+	"lidscope/regimes"
+)
+
+// Stage 4, step compute: check a step's slabs, find the ocean columns, the
+// tropical-mean SST, the relative SST and the regimes, and assemble the
+// step that the blocks and the sinks consume.
+//
+// Stage 5, block worker: the column metrics and the per-column
+// accumulation, in parallel over fixed blocks of grid rows.
+
+// rowsPerBlock is fixed, so that results do not depend on the worker count.
+const rowsPerBlock = 4
+
+// quantity names accumulated per column, in output order
+const (
+	qSST   = "sst"
+	qT700  = "t700"
+	qLTS   = "lts"
+	qEIS   = "eis"
+	qECTEI = "ectei"
+)
+
+// stepper holds what the step compute and block stages need for every
+// step, and their per-step outputs (reused from step to step).
+type stepper struct {
+	p       *Plan
+	in      *inputs
+	kern    *metrics.Kernel
+	ocean   []bool    // static ocean mask
+	bandW   []float64 // area inside the tropical band
+	blocks  [][2]int  // [lo, hi) cell ranges
+	workers int
+
+	rel      []float32
+	reg      []regimes.Regime
+	lts, eis []float32
+	ectei    []float32 // nil unless the conventions compute ECTEI
+	oceanNow []bool
+}
+
+func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW []float64) *stepper {
+	n := in.grid.Size()
+	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers,
+		rel: make([]float32, n), reg: make([]regimes.Regime, n), lts: make([]float32, n), eis: make([]float32, n), oceanNow: make([]bool, n)}
+	if p.Metrics.ECTEI {
+		s.ectei = make([]float32, n)
+	}
+	if s.workers <= 0 {
+		s.workers = defaultWorkers()
+	}
+	nlat, nlon := in.grid.NLat(), in.grid.NLon()
+	for j := 0; j < nlat; j += rowsPerBlock {
+		s.blocks = append(s.blocks, [2]int{j * nlon, min(j+rowsPerBlock, nlat) * nlon})
+	}
+	return s
+}
+
+// quantities are the names of the per-column quantities, in the order of
+// Step.Values: sst, t700, lts, eis, the analysis cloud (named by its role,
+// low_cloud or cloud, so that outputs describe it correctly), ectei when
+// computed, then the extras.
+func quantities(p *Plan, in *inputs) (names []string, cloud string) {
+	cloud = string(p.Cloud.Spec.Role)
+	names = []string{qSST, qT700, qLTS, qEIS, cloud}
+	if p.Metrics.ECTEI {
+		names = append(names, qECTEI)
+	}
+	for _, e := range in.extras {
+		names = append(names, string(e.role))
+	}
+	return names, cloud
+}
+
+// prepare runs the step compute stage on the slabs v of step st (by field
+// slot) and returns the step and the metrics input; the step's LTS, EIS
+// (and ECTEI) slices are filled by the blocks.
+func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.SlabInput, error) {
+	in := s.in
+	for _, f := range in.timed {
+		if err := plausible(f, v[f.slot], st); err != nil {
+			return nil, metrics.SlabInput{}, err
+		}
+	}
+	sstV := v[in.sst.slot]
+	var ice []float32
+	if in.seaIce != nil {
+		ice = v[in.seaIce.slot]
+	}
+	stepOcean(s.oceanNow, s.ocean, sstV, ice, s.p.MaxSeaIce)
+	mean, _, ok := regimes.TropicalMean(sstV, s.bandW, s.oceanNow)
+	if !ok {
+		return nil, metrics.SlabInput{}, noBandSST(in.sst, sstV, s.bandW, s.ocean, st, s.p.Band)
+	}
+	regimes.Relative(sstV, mean, s.oceanNow, s.rel)
+	s.p.Classifier.ClassifySlab(s.rel, s.reg)
+
+	slot := func(f *field) []float32 {
+		if f == nil {
+			return nil
+		}
+		return v[f.slot]
+	}
+	mi := metrics.SlabInput{Ts: sstV, T700: v[in.t700.slot], Ps: slot(in.surfacePressure),
+		Humidity: slot(in.humidity), T850: slot(in.t850), Q700: slot(in.q700)}
+	if in.surfaceAir != nil {
+		mi.Ts = v[in.surfaceAir.slot]
+	}
+	values := [][]float32{sstV, v[in.t700.slot], s.lts, s.eis, v[in.cloud.slot]}
+	if s.ectei != nil {
+		values = append(values, s.ectei)
+	}
+	for _, e := range in.extras {
+		values = append(values, v[e.slot])
+	}
+	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: s.rel, Regime: s.reg, Values: values}
+	return step, mi, nil
+}
+
+// sub returns the cells [lo, hi) of a slab input.
+func sub(in metrics.SlabInput, lo, hi int) metrics.SlabInput {
+	cut := func(x []float32) []float32 {
+		if x == nil {
+			return nil
+		}
+		return x[lo:hi]
+	}
+	return metrics.SlabInput{Ts: cut(in.Ts), T700: cut(in.T700), Ps: cut(in.Ps), Humidity: cut(in.Humidity), T850: cut(in.T850), Q700: cut(in.Q700)}
+}
+
+// runBlocks runs the block workers over the step: metrics into the step's
+// LTS/EIS/ECTEI slices, then the per-column accumulation of acc. It
+// returns the number of columns with impossible inputs.
+func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, acc *accumulate.Acc) (int, error) {
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	var firstErr error
+	rejected := 0
+	next := make(chan [2]int, len(s.blocks))
+	for _, bl := range s.blocks {
+		next <- bl
+	}
+	close(next)
+	for w := 0; w < s.workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for bl := range next {
+				lo, hi := bl[0], bl[1]
+				out := metrics.SlabOutput{LTS: s.lts[lo:hi], EIS: s.eis[lo:hi]}
+				if s.ectei != nil {
+					out.ECTEI = s.ectei[lo:hi]
+				}
+				st, err := s.kern.Slab(sub(mi, lo, hi), out)
+				mu.Lock()
+				if err != nil && firstErr == nil {
+					firstErr = err
+				}
+				// Impossible inputs over ocean are counted; land/missing are not.
+				rejected += st.Rejected
+				mu.Unlock()
+				acc.AddCells(step, lo, hi)
+			}
+		}()
+	}
+	wg.Wait()
+	if firstErr != nil {
+		return rejected, fmt.Errorf("time step %s: %w", step.Label, firstErr)
+	}
+	return rejected, nil
+}
