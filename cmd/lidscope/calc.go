@@ -8,6 +8,8 @@ import (
 	"math"
 	"strings"
 
+	"github.com/spf13/cobra"
+
 	"lidscope/metrics"
 	"lidscope/units"
 )
@@ -27,19 +29,27 @@ type calcOptions struct {
 	JSON                      bool
 }
 
-const calcUsage = `usage: lidscope calc (--sst T | --tsurf T) --t700 T [options]
+func init() { addCommand(newCalcCmd) }
 
-Computes LTS, EIS and their ingredients for one column, printing every
+func newCalcCmd(e *env) *cobra.Command {
+	var o calcOptions
+	cmd := &cobra.Command{
+		Use:   "calc (--sst T | --tsurf T) --t700 T [flags]",
+		Short: "compute LTS, EIS and their ingredients for one column",
+		Long: `Computes LTS, EIS and their ingredients for one column, printing every
 intermediate value with its unit and the metrics conventions used. Quantities take a unit
 (290K, 16.85degC, 1013hPa, 80%, 12g/kg); a bare number is in SI units
 (K, Pa, fraction, kg/kg). Without --rh, --dewpoint or --shum the near-surface
-relative humidity is assumed to be 0.8, and the output says so.
-
-options:`
-
-func cmdCalc(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("calc", stderr)
-	var o calcOptions
+relative humidity is assumed to be 0.8, and the output says so.`,
+		Example: `  lidscope calc --sst 16.85degC --t700 282K
+  lidscope calc --sst 300K --t700 10.85degC --ps 1015hPa --dewpoint 295K --t850 290K --q700 4g/kg --json`,
+		Args: noArgs("calc takes no arguments, only flags"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runCalc(o, e.stdout)
+		},
+	}
+	fs := cmd.Flags()
+	fs.SortFlags = false
 	fs.StringVar(&o.SST, "sst", "", "sea surface temperature (stands in for the surface air temperature)")
 	fs.StringVar(&o.TSurf, "tsurf", "", "near-surface air temperature, instead of --sst")
 	fs.StringVar(&o.T700, "t700", "", "temperature at 700 hPa (required)")
@@ -57,17 +67,7 @@ func cmdCalc(args []string, stdout, stderr io.Writer) error {
 	fs.StringVar(&o.ECTEISurface, "ectei-qsurf", "air", "q_surface of ECTEI: air (from the humidity input) or saturated (qs at the surface)")
 	fs.Float64Var(&o.Beta, "ectei-beta", metrics.KawaiBeta, "β of ECTEI")
 	fs.BoolVar(&o.JSON, "json", false, "write the result as JSON")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, calcUsage)
-		fs.PrintDefaults()
-	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if fs.NArg() > 0 {
-		return usageErr("calc takes no arguments, only flags (got %q)", fs.Args())
-	}
-	return runCalc(o, stdout)
+	return cmd
 }
 
 // calcQuantity is one input as given and in SI units.

@@ -185,7 +185,7 @@ func TestCalcErrors(t *testing.T) {
 		{[]string{"--sst", "290K", "--t700", "282K", "--lcl", "espy"}, "romps, bolton or linear"},
 		{[]string{"--sst", "290K", "--t700", "282K", "--latent-heat", "kirchhoff"}, "constant or bolton"},
 		{[]string{"--sst", "290K", "--t700", "282K", "extra"}, "no arguments"},
-		{[]string{"--nonsense"}, "not defined"},
+		{[]string{"--nonsense"}, "unknown flag --nonsense"},
 	} {
 		var out, errb bytes.Buffer
 		if code := run(append([]string{"calc"}, tc.args...), &out, &errb); code != 2 {
@@ -215,8 +215,8 @@ func TestCalcViaRun(t *testing.T) {
 		t.Errorf("EIS %v, want 9.213775", got)
 	}
 	out.Reset()
-	if code := run([]string{"help"}, &bytes.Buffer{}, &out); code != 0 || !strings.Contains(out.String(), "calc") {
-		t.Errorf("help does not list calc: %q", out.String())
+	if code := run([]string{"help"}, &out, &bytes.Buffer{}); code != 0 || !strings.Contains(out.String(), "calc") {
+		t.Errorf("help (on stdout) does not list calc: %q", out.String())
 	}
 }
 

@@ -5,12 +5,15 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
+
+	"github.com/spf13/cobra"
 
 	"lidscope/analysis"
 	"lidscope/compare"
 	"lidscope/config"
 )
+
+func init() { addCommand(newCompareCmd) }
 
 // compareOptions are the options of `lidscope compare`.
 type compareOptions struct {
@@ -24,34 +27,42 @@ type compareOptions struct {
 	Log           logOptions
 }
 
-func cmdCompare(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("compare", stderr)
+func newCompareCmd(e *env) *cobra.Command {
 	o := compareOptions{Set: setFlags{}}
-	fs.StringVar(&o.Out, "out", "", "folder for the comparison (required)")
+	cmd := &cobra.Command{
+		Use:   "compare (REFERENCE_RUN CANDIDATE_RUN... | STUDY) --out DIR",
+		Short: "set models side by side with observations",
+		Long: `Sets candidates (models) side by side with a reference (observations): map statistics of
+convective frequency and crossings per year, tropical-mean SST, convective area fraction and
+regime-mean EIS, LTS and cloud; subsidence-regime cloud sensitivities to EIS and LTS and the
+partial sensitivities with 95 % intervals and whether each difference lies within the combined
+uncertainty; flip fractions and thresholds when both runs have them.
+
+Give finished run folders (the reference first), or one study: then every dataset is run
+first into DIR/<name> and the first dataset (or --reference NAME) is the reference.`,
+		Args: minArgs(1, "give a study, or a reference run folder and at least one candidate run folder"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Args = args
+			if o.Out == "" {
+				return usageErr("give the folder for the comparison with --out DIR")
+			}
+			ctx, stop := e.interruptible(cmd.Context())
+			defer stop()
+			return runCompare(ctx, o, e.stdout, e.stderr)
+		},
+	}
+	fs := cmd.Flags()
+	addOutDir(fs, &o.Out, "", "folder for the comparison (required)")
 	fs.StringVar(&o.Reference, "reference", "", "with a study: the reference dataset (default: the first)")
-	fs.BoolVar(&o.Force, "force", false, "replace existing results")
+	addForce(fs, &o.Force, "replace existing results")
 	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different studies, periods or regime definitions (every mismatch is listed)")
-	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw the comparison figures")
-	fs.Var(o.Set, "set", "with a study: override a study key, KEY=VALUE (repeatable)")
+	addNoPlots(fs, &o.NoPlots, "do not draw the comparison figures")
+	addSet(fs, o.Set, "with a study: override a study key, KEY=VALUE (repeatable)")
 	o.Log.register(fs)
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope compare --out DIR REFERENCE_RUN CANDIDATE_RUN...\n       lidscope compare --out DIR [--reference NAME] STUDY\n\nSets candidates (models) side by side with a reference (observations): map statistics of\nconvective frequency and crossings per year, tropical-mean SST, convective area fraction and\nregime-mean EIS, LTS and cloud; subsidence-regime cloud sensitivities to EIS and LTS and the\npartial sensitivities with 95 % intervals and whether each difference lies within the combined\nuncertainty; flip fractions and thresholds when both runs have them. With a study, every dataset is run first into DIR/<name>.")
-		fs.PrintDefaults()
-	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	o.Args = fs.Args()
-	if o.Out == "" {
-		return usageErr("--out is required")
-	}
-	if len(o.Args) == 0 {
-		return usageErr("give a study, or a reference run folder and at least one candidate run folder")
-	}
-	return runCompare(o, stdout, stderr)
+	return cmd
 }
 
-func runCompare(o compareOptions, stdout, stderr io.Writer) error {
+func runCompare(ctx context.Context, o compareOptions, stdout, stderr io.Writer) error {
 	log, err := o.Log.logger(stderr)
 	if err != nil {
 		return err
@@ -64,8 +75,6 @@ func runCompare(o compareOptions, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-		defer stop()
 		res, files, err = analysis.CompareStudy(ctx, r, o.Reference, o.Out, opt)
 		if err != nil {
 			return err

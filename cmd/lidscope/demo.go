@@ -5,10 +5,13 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
+
+	"github.com/spf13/cobra"
 
 	"lidscope/analysis"
 )
+
+func init() { addCommand(newDemoCmd) }
 
 // demoOptions are the options of `lidscope demo`.
 type demoOptions struct {
@@ -20,35 +23,39 @@ type demoOptions struct {
 	Progress bool
 }
 
-func cmdDemo(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("demo", stderr)
+func newDemoCmd(e *env) *cobra.Command {
 	var o demoOptions
-	fs.StringVar(&o.Out, "out", "lidscope-demo", "folder for the synthetic input files (data/) and the results (results/)")
-	fs.BoolVar(&o.Force, "force", false, "replace an earlier demo in the folder")
-	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw figures")
-	fs.IntVar(&o.Workers, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
+	cmd := &cobra.Command{
+		Use:   "demo",
+		Short: "generate the synthetic demo world, analyse it and check the result",
+		Long: `Writes a synthetic world of invented data (SST with a warm pool, a cold tongue and
+upwelling decks; 700-hPa temperature; low cloud that follows EIS) as CF NetCDF files,
+writes its study, runs the full analysis on it and checks the results against the
+world's known truth. A second synthetic world, a "model", is run and compared with it.
+Everything goes into the folder --out: data/, data-model/ and results/.`,
+		Example: `  lidscope demo --out demo-out --force`,
+		Args:    noArgs("demo takes no arguments; give the folder with --out DIR"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Progress = isTerminal(e.stderr) && !o.Log.Quiet
+			ctx, stop := e.interruptible(cmd.Context())
+			defer stop()
+			return runDemo(ctx, o, e.stdout, e.stderr)
+		},
+	}
+	fs := cmd.Flags()
+	addOutDir(fs, &o.Out, "lidscope-demo", "folder for the synthetic input files (data/) and the results (results/)")
+	addForce(fs, &o.Force, "replace an earlier demo in the folder")
+	addNoPlots(fs, &o.NoPlots, "do not draw figures")
+	addWorkers(fs, &o.Workers)
 	o.Log.register(fs)
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope demo [--out DIR] [--force]\n\nWrites a synthetic world of invented data (SST with a warm pool, a cold tongue and\nupwelling decks; 700-hPa temperature; low cloud that follows EIS) as CF NetCDF files,\nwrites its study, runs the full analysis on it and checks the results against the\nworld's known truth.")
-		fs.PrintDefaults()
-	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if fs.NArg() != 0 {
-		return usageErr("demo takes no arguments")
-	}
-	o.Progress = isTerminal(stderr) && !o.Log.Quiet
-	return runDemo(o, stdout, stderr)
+	return cmd
 }
 
-func runDemo(o demoOptions, stdout, stderr io.Writer) error {
+func runDemo(ctx context.Context, o demoOptions, stdout, stderr io.Writer) error {
 	log, err := o.Log.logger(stderr)
 	if err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
 	opt := analysis.DemoOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}}
 	if o.Progress {
 		opt.Progress = progressLine(stderr)

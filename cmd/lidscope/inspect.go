@@ -6,9 +6,13 @@ import (
 	"io"
 	"strings"
 
+	"github.com/spf13/cobra"
+
 	"lidscope/cf"
 	"lidscope/pipeline"
 )
+
+func init() { addCommand(newInspectCmd) }
 
 // inspectOptions are the options of `lidscope inspect`.
 type inspectOptions struct {
@@ -16,22 +20,23 @@ type inspectOptions struct {
 	JSON  bool
 }
 
-func cmdInspect(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("inspect", stderr)
+func newInspectCmd(e *env) *cobra.Command {
 	var o inspectOptions
-	fs.BoolVar(&o.JSON, "json", false, "write the report as JSON")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope inspect [--json] FILE...\n\nReports, for each NetCDF file, which variables lidscope recognises for which role,\nhow they will be decoded (units conversion, packing, fill values, grid, levels, time),\nand every problem found. Exits with status 1 when a file cannot be used.")
-		fs.PrintDefaults()
+	cmd := &cobra.Command{
+		Use:   "inspect FILE...",
+		Short: "report what lidscope recognises in NetCDF files, and every problem",
+		Long: `Reports, for each NetCDF file, which variables lidscope recognises for which role,
+how they will be decoded (units conversion, packing, fill values, grid, levels, time),
+and every problem found; with several files, whether their grids match. Exits with
+status 1 when a file cannot be used.`,
+		Args: minArgs(1, "give at least one file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Files = args
+			return runInspect(o, e.stdout)
+		},
 	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	o.Files = fs.Args()
-	if len(o.Files) == 0 {
-		return usageErr("give at least one file")
-	}
-	return runInspect(o, stdout)
+	cmd.Flags().BoolVar(&o.JSON, "json", false, "write the report as JSON")
+	return cmd
 }
 
 // runInspect writes the inspect report; it returns errFailed when any file

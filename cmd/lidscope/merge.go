@@ -5,8 +5,12 @@ import (
 	"io"
 	"os"
 
+	"github.com/spf13/cobra"
+
 	"lidscope/analysis"
 )
+
+func init() { addCommand(newMergeCmd) }
 
 // mergeOptions are the options of `lidscope merge`.
 type mergeOptions struct {
@@ -15,26 +19,26 @@ type mergeOptions struct {
 	Force bool
 }
 
-func cmdMerge(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("merge", stderr)
+func newMergeCmd(e *env) *cobra.Command {
 	var o mergeOptions
-	fs.StringVar(&o.Out, "out", "", "folder for the merged results (required)")
-	fs.BoolVar(&o.Force, "force", false, "replace existing results in --out")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope merge --out DIR RUN_DIR RUN_DIR...\n\nJoins finished runs of one dataset over consecutive pieces of its record (split by time\nrange or by file set) into the results one run over the whole record gives.")
-		fs.PrintDefaults()
+	cmd := &cobra.Command{
+		Use:   "merge RUN_DIR RUN_DIR... --out DIR",
+		Short: "join runs over consecutive pieces of a record into the result of one run",
+		Long: `Joins finished runs of one dataset over consecutive pieces of its record (split by
+time range or by file set) into the results one run over the whole record gives,
+written into the folder --out.`,
+		Args: minArgs(2, "give at least two run folders"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Runs = args
+			if o.Out == "" {
+				return usageErr("give the folder for the merged results with --out DIR")
+			}
+			return runMerge(o, e.stdout)
+		},
 	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	o.Runs = fs.Args()
-	if o.Out == "" {
-		return usageErr("--out is required")
-	}
-	if len(o.Runs) < 2 {
-		return usageErr("give at least two run folders")
-	}
-	return runMerge(o, stdout)
+	addOutDir(cmd.Flags(), &o.Out, "", "folder for the merged results (required)")
+	addForce(cmd.Flags(), &o.Force, "replace existing results in --out")
+	return cmd
 }
 
 func runMerge(o mergeOptions, stdout io.Writer) error {

@@ -5,8 +5,12 @@ import (
 	"io"
 	"strings"
 
+	"github.com/spf13/cobra"
+
 	"lidscope/figures"
 )
+
+func init() { addCommand(newPlotCmd) }
 
 // plotOptions are the options of `lidscope plot`.
 type plotOptions struct {
@@ -22,79 +26,61 @@ type plotOptions struct {
 	NoCoastlines bool
 }
 
-// listFlag collects repeated or comma-separated values.
-type listFlag []string
-
-func (l *listFlag) String() string { return strings.Join(*l, ",") }
-func (l *listFlag) Set(v string) error {
-	for _, s := range strings.Split(v, ",") {
-		if s = strings.TrimSpace(s); s != "" {
-			*l = append(*l, s)
-		}
-	}
-	return nil
-}
-
 // paletteFlag collects repeated KIND=MAP colour-map choices.
 type paletteFlag map[string]string
 
-func (p paletteFlag) String() string { return fmt.Sprint(map[string]string(p)) }
+func (p paletteFlag) String() string { return "" }
+func (p paletteFlag) Type() string   { return "KIND=MAP" }
 func (p paletteFlag) Set(v string) error {
 	k, m, ok := strings.Cut(v, "=")
 	if !ok || strings.TrimSpace(k) == "" || strings.TrimSpace(m) == "" {
-		return fmt.Errorf("--palette wants KIND=MAP (e.g. eis=tide), got %q", v)
+		return fmt.Errorf("--palette wants KIND=MAP (e.g. eis=tide)")
 	}
 	p[strings.TrimSpace(k)] = strings.TrimSpace(m)
 	return nil
 }
 
-func cmdPlot(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("plot", stderr)
+func newPlotCmd(e *env) *cobra.Command {
 	o := plotOptions{Palettes: map[string]string{}}
 	var only listFlag
+	cmd := &cobra.Command{
+		Use:   "plot RUN_DIR",
+		Short: "draw the figures of a finished run",
+		Long: `Draws the figures of a finished run from its output files (maps.nc, series.nc,
+summary.json, and the relationship files when present), without recomputing, into
+the folder --out (default RUN_DIR/` + figures.DefaultDirName + `). Figures whose inputs the run
+lacks are skipped unless named with --only.`,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Only = only
+			if o.List {
+				return listFigures(e.stdout)
+			}
+			if err := exactArgs(1, "give exactly one run directory")(cmd, args); err != nil {
+				return err
+			}
+			o.RunDir = args[0]
+			if !plotContains(figures.Formats, strings.ToLower(o.Format)) {
+				return usageErr("--format must be one of %s, not %q", strings.Join(figures.Formats, ", "), o.Format)
+			}
+			for _, n := range o.Only {
+				if !plotContains(figures.Names(), n) {
+					return usageErr("--only: no figure %q; the figures are %s", n, strings.Join(figures.Names(), ", "))
+				}
+			}
+			return runPlot(o, e.stdout)
+		},
+	}
+	fs := cmd.Flags()
 	fs.StringVar(&o.Format, "format", "png", "figure format: "+strings.Join(figures.Formats, ", "))
 	fs.Var(&only, "only", "draw only the named figure (repeat the flag or separate names with commas; see --list)")
-	fs.StringVar(&o.Out, "out", "", "directory for the figures (default RUN_DIR/"+figures.DefaultDirName+")")
-	fs.BoolVar(&o.Force, "force", false, "replace figures that exist already")
+	addOutDir(fs, &o.Out, "", "folder for the figures (default RUN_DIR/"+figures.DefaultDirName+")")
+	addForce(fs, &o.Force, "replace figures that exist already")
 	fs.Float64Var(&o.DPI, "dpi", 200, "resolution of PNG figures, dots per inch")
 	fs.Var(paletteFlag(o.Palettes), "palette", "colour map for a kind of quantity, KIND=MAP (repeatable; kinds: "+
 		strings.Join(figures.PaletteKeys(), ", ")+"; maps: "+strings.Join(figures.PaletteNames(), ", ")+", each also NAME-reversed)")
 	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")
 	fs.BoolVar(&o.List, "list", false, "list the figures and what they show, then exit")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope plot [options] RUN_DIR\n\nDraws the figures of a finished run from its output files (maps.nc, series.nc,\nsummary.json, and the relationship files when present), without recomputing.\nFigures whose inputs the run lacks are skipped unless named with --only.")
-		fs.PrintDefaults()
-	}
-	// Options may come before or after RUN_DIR.
-	var pos []string
-	rest := args
-	for {
-		if err := parseFlags(fs, rest); err != nil {
-			return err
-		}
-		if fs.NArg() == 0 {
-			break
-		}
-		pos = append(pos, fs.Arg(0))
-		rest = fs.Args()[1:]
-	}
-	o.Only = only
-	if o.List {
-		return listFigures(stdout)
-	}
-	if len(pos) != 1 {
-		return usageErr("give exactly one run directory (got %d: %s)", len(pos), strings.Join(pos, " "))
-	}
-	o.RunDir = pos[0]
-	if !plotContains(figures.Formats, strings.ToLower(o.Format)) {
-		return usageErr("--format must be one of %s, not %q", strings.Join(figures.Formats, ", "), o.Format)
-	}
-	for _, n := range o.Only {
-		if !plotContains(figures.Names(), n) {
-			return usageErr("--only: no figure %q; the figures are %s", n, strings.Join(figures.Names(), ", "))
-		}
-	}
-	return runPlot(o, stdout)
+	return cmd
 }
 
 func listFigures(w io.Writer) error {

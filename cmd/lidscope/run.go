@@ -2,61 +2,18 @@ package main
 
 import (
 	"context"
-	"flag"
 	"fmt"
 	"io"
-	"log/slog"
 	"os"
-	"os/signal"
 	"strings"
+
+	"github.com/spf13/cobra"
 
 	"lidscope/analysis"
 	"lidscope/config"
 )
 
-// logOptions are the logging flags shared by run and demo.
-type logOptions struct {
-	Format  string // text | json
-	Quiet   bool
-	Verbose bool
-}
-
-func (l *logOptions) register(fs *flag.FlagSet) {
-	fs.StringVar(&l.Format, "log-format", "text", "log format: text or json")
-	fs.BoolVar(&l.Quiet, "quiet", false, "log errors only, and no progress display")
-	fs.BoolVar(&l.Verbose, "verbose", false, "log details (every conversion and note)")
-}
-
-func (l logOptions) logger(w io.Writer) (*slog.Logger, error) {
-	level := slog.LevelWarn
-	switch {
-	case l.Quiet:
-		level = slog.LevelError
-	case l.Verbose:
-		level = slog.LevelInfo
-	}
-	ho := &slog.HandlerOptions{Level: level}
-	switch l.Format {
-	case "text":
-		return slog.New(slog.NewTextHandler(w, ho)), nil
-	case "json":
-		return slog.New(slog.NewJSONHandler(w, ho)), nil
-	}
-	return nil, usageErr("--log-format must be text or json, not %q", l.Format)
-}
-
-// setFlags collects repeated --set key=value overrides.
-type setFlags map[string]string
-
-func (s setFlags) String() string { return fmt.Sprint(map[string]string(s)) }
-func (s setFlags) Set(v string) error {
-	k, val, ok := strings.Cut(v, "=")
-	if !ok || strings.TrimSpace(k) == "" {
-		return fmt.Errorf("--set wants KEY=VALUE (e.g. analysis.threshold=1.0), got %q", v)
-	}
-	s[strings.TrimSpace(k)] = val
-	return nil
-}
+func init() { addCommand(newRunCmd) }
 
 // runOptions are the options of `lidscope run`.
 type runOptions struct {
@@ -71,36 +28,39 @@ type runOptions struct {
 	Progress bool // draw a progress line (terminal only)
 }
 
-func cmdRun(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("run", stderr)
+func newRunCmd(e *env) *cobra.Command {
 	o := runOptions{Set: setFlags{}}
-	var dataset string
-	fs.StringVar(&dataset, "dataset", "", "run only this dataset (comma-separated names for several)")
-	fs.StringVar(&o.Out, "out", "", "output folder (default: the study's output.dir/<dataset>)")
-	fs.BoolVar(&o.Force, "force", false, "replace existing results")
-	fs.BoolVar(&o.NoPlots, "no-plots", false, "do not draw figures")
-	fs.IntVar(&o.Workers, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
-	fs.Var(o.Set, "set", "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
+	var datasets listFlag
+	cmd := &cobra.Command{
+		Use:   "run STUDY",
+		Short: "run the regime analysis of a study's datasets",
+		Long: `Runs the regime analysis of every dataset of STUDY (or --dataset NAME) in one
+streaming pass and writes maps, series, tables, summary.json and provenance.json
+into the folder --out (default: the study's output.dir/<dataset>).`,
+		Example: `  lidscope run obs.yaml
+  lidscope run obs.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet`,
+		Args: exactArgs(1, "give exactly one study file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Study = args[0]
+			o.Datasets = datasets
+			o.Progress = isTerminal(e.stderr) && !o.Log.Quiet
+			ctx, stop := e.interruptible(cmd.Context())
+			defer stop()
+			return runRun(ctx, o, e.stdout, e.stderr)
+		},
+	}
+	fs := cmd.Flags()
+	fs.Var(&datasets, "dataset", "run only this dataset (repeat, or separate names with commas)")
+	addOutDir(fs, &o.Out, "", "folder for the results (default: the study's output.dir/<dataset>)")
+	addForce(fs, &o.Force, "replace existing results")
+	addNoPlots(fs, &o.NoPlots, "do not draw figures")
+	addWorkers(fs, &o.Workers)
+	addSet(fs, o.Set, "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
 	o.Log.register(fs)
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: lidscope run [options] STUDY\n\nRuns the regime analysis of every dataset of STUDY (or --dataset NAME) in one\nstreaming pass and writes maps, series, tables, summary.json and provenance.json.")
-		fs.PrintDefaults()
-	}
-	if err := parseFlags(fs, args); err != nil {
-		return err
-	}
-	if fs.NArg() != 1 {
-		return usageErr("give exactly one study file")
-	}
-	o.Study = fs.Arg(0)
-	if dataset != "" {
-		o.Datasets = strings.Split(dataset, ",")
-	}
-	o.Progress = isTerminal(stderr) && !o.Log.Quiet
-	return runRun(o, stdout, stderr)
+	return cmd
 }
 
-func runRun(o runOptions, stdout, stderr io.Writer) error {
+func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) error {
 	log, err := o.Log.logger(stderr)
 	if err != nil {
 		return err
@@ -109,8 +69,6 @@ func runRun(o runOptions, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
 	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}
 	if o.Progress {
 		opt.Progress = progressLine(stderr)

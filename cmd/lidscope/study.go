@@ -2,12 +2,13 @@ package main
 
 import (
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
+
+	"github.com/spf13/cobra"
 
 	"lidscope/cf"
 	"lidscope/config"
@@ -16,7 +17,7 @@ import (
 // studyInitOptions are the options of `lidscope study init`.
 type studyInitOptions struct {
 	Files []string
-	Out   string // "" prints to stdout
+	Out   string // --output FILE; "" prints to stdout
 	Force bool
 }
 
@@ -26,78 +27,55 @@ type studyCheckOptions struct {
 	Set   map[string]string
 }
 
-const studyUsage = `usage: lidscope study init [--out study.yaml] [--force] FILE...
-       lidscope study check [--set KEY=VALUE]... STUDY
+func init() { addCommand(newStudyCmd) }
 
-init   inspects the NetCDF files and writes a commented starter study: each
-       role with its files and variable, suggested overrides for what inspect
-       flagged, and every default written out. Without --out it is printed.
-check  loads a study, reports every problem (file:line: key: message), and
-       prints the fully resolved study and its SHA-256.`
+func newStudyCmd(e *env) *cobra.Command {
+	cmd := &cobra.Command{
+		Use:   "study (init | check)",
+		Short: "write a starter study from NetCDF files, or check a study",
+		Long: `A study is the file that says which files hold which roles and how to analyse them
+(see the package documentation of config for every key).
 
-func cmdStudy(args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 {
-		fmt.Fprintln(stderr, studyUsage)
-		return usageErr("give a subcommand: init or check")
+  init   inspects NetCDF files and writes a commented starter study
+  check  loads a study, reports every problem and prints its resolved form`,
+		Args: cobra.ArbitraryArgs,
+		RunE: groupRunE,
 	}
-	switch args[0] {
-	case "init":
-		return cmdStudyInit(args[1:], stdout, stderr)
-	case "check":
-		return cmdStudyCheck(args[1:], stdout, stderr)
-	case "-h", "--help", "help":
-		fmt.Fprintln(stderr, studyUsage)
-		return flag.ErrHelp
-	}
-	fmt.Fprintln(stderr, studyUsage)
-	return usageErr("unknown subcommand %q (use init or check)", args[0])
+	cmd.AddCommand(newStudyInitCmd(e), newStudyCheckCmd(e))
+	return cmd
 }
 
-// parseInterspersed parses flags that may come before, between or after
-// the positional arguments, and returns the positional arguments.
-func parseInterspersed(fs *flag.FlagSet, args []string) ([]string, error) {
-	var pos []string
-	for {
-		if err := parseFlags(fs, args); err != nil {
-			return nil, err
-		}
-		rest := fs.Args()
-		if len(rest) == 0 {
-			return pos, nil
-		}
-		if rest[0] == "--" {
-			return append(pos, rest[1:]...), nil
-		}
-		pos = append(pos, rest[0])
-		args = rest[1:]
-	}
-}
-
-func cmdStudyInit(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("study init", stderr)
+func newStudyInitCmd(e *env) *cobra.Command {
 	var o studyInitOptions
-	fs.StringVar(&o.Out, "out", "", "write the study to this file (.yaml) instead of printing it")
-	fs.BoolVar(&o.Force, "force", false, "overwrite the --out file if it exists")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, studyUsage)
-		fs.PrintDefaults()
+	var outDir string
+	cmd := &cobra.Command{
+		Use:   "init FILE... [--output study.yaml]",
+		Short: "write a commented starter study from NetCDF files",
+		Long: `Inspects the NetCDF files and writes a commented starter study: each role with its
+files and variable, suggested overrides for what inspect flagged, and every default
+written out. The study is one file: it is printed, or written to --output FILE (-o FILE),
+with its file names relative to that file's folder.`,
+		Args: minArgs(1, "give at least one NetCDF file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if outDir != "" {
+				return usageErr("study init writes one file: name it with --output FILE (-o FILE); --out always names a folder")
+			}
+			o.Files = args
+			if o.Out != "" {
+				switch strings.ToLower(filepath.Ext(o.Out)) {
+				case ".yaml", ".yml":
+				default:
+					return usageErr("--output %s: the starter study is YAML; name the file .yaml", o.Out)
+				}
+			}
+			return runStudyInit(o, e.stdout, e.stderr)
+		},
 	}
-	files, err := parseInterspersed(fs, args)
-	if err != nil {
-		return err
-	}
-	o.Files = files
-	if len(o.Files) == 0 {
-		return usageErr("give at least one NetCDF file")
-	}
-	if o.Out != "" {
-		switch strings.ToLower(filepath.Ext(o.Out)) {
-		case ".yaml", ".yml":
-		default:
-			return usageErr("--out %s: the starter study is YAML; name the file .yaml", o.Out)
-		}
-	}
-	return runStudyInit(o, stdout, stderr)
+	addOutputFile(cmd.Flags(), &o.Out, "write the study to this file (.yaml) instead of printing it")
+	addForce(cmd.Flags(), &o.Force, "overwrite the --output file if it exists")
+	cmd.Flags().StringVar(&outDir, "out", "", "")
+	_ = cmd.Flags().MarkHidden("out")
+	return cmd
 }
 
 // runStudyInit inspects the files and prints or writes the starter.
@@ -156,30 +134,23 @@ func relativeTo(dir, path string) string {
 	return ap
 }
 
-func cmdStudyCheck(args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("study check", stderr)
-	o := studyCheckOptions{Set: map[string]string{}}
-	fs.Func("set", "override a study key, KEY=VALUE (e.g. analysis.threshold=1.0); repeatable", func(s string) error {
-		k, v, ok := strings.Cut(s, "=")
-		if !ok || strings.TrimSpace(k) == "" {
-			return fmt.Errorf("%q is not KEY=VALUE (e.g. analysis.threshold=1.0)", s)
-		}
-		o.Set[strings.TrimSpace(k)] = v
-		return nil
-	})
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, studyUsage)
-		fs.PrintDefaults()
+func newStudyCheckCmd(e *env) *cobra.Command {
+	o := studyCheckOptions{}
+	set := setFlags{}
+	cmd := &cobra.Command{
+		Use:   "check STUDY",
+		Short: "check a study and print its resolved form",
+		Long: `Loads a study with the LIDSCOPE_* environment and the --set overrides, reports every
+problem (file:line: key: message), and prints the fully resolved study and its SHA-256.`,
+		Args: exactArgs(1, "give exactly one study file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Study = args[0]
+			o.Set = set
+			return runStudyCheck(o, e.stdout)
+		},
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usageErr("give exactly one study file")
-	}
-	o.Study = pos[0]
-	return runStudyCheck(o, stdout)
+	addSet(cmd.Flags(), set, "override a study key, KEY=VALUE (e.g. analysis.threshold=1.0); repeatable")
+	return cmd
 }
 
 // runStudyCheck loads the study (with the process environment) and

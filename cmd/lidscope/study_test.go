@@ -54,7 +54,7 @@ func TestStudyInitWrites(t *testing.T) {
 	outFile := filepath.Join(studies, "r.yaml")
 	var out, errb bytes.Buffer
 	// flags after the files are accepted too
-	if code := run([]string{"study", "init", nc, "--out", outFile}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", nc, "--output", outFile}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	if !strings.Contains(out.String(), "it loads") || errb.Len() != 0 {
@@ -83,13 +83,13 @@ func TestStudyInitWrites(t *testing.T) {
 	if err := os.WriteFile(outFile, []byte("keep me"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code := run([]string{"study", "init", "--out", outFile, nc}, &out, &errb); code != 1 || !strings.Contains(errb.String(), "--force") {
+	if code := run([]string{"study", "init", "-o", outFile, nc}, &out, &errb); code != 1 || !strings.Contains(errb.String(), "--force") {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 	if b, _ := os.ReadFile(outFile); string(b) != "keep me" {
 		t.Error("file overwritten without --force")
 	}
-	if code := run([]string{"study", "init", "--force", "--out", outFile, nc}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", "-f", "--output", outFile, nc}, &out, &errb); code != 0 {
 		t.Errorf("--force: exit %d, stderr %q", code, errb.String())
 	}
 	if b, _ := os.ReadFile(outFile); string(b) == "keep me" {
@@ -123,7 +123,7 @@ func TestStudyInitIncomplete(t *testing.T) {
 	}
 	outFile := filepath.Join(dir, "r.yaml")
 	var out, errb bytes.Buffer
-	if code := run([]string{"study", "init", "--out", outFile, bad}, &out, &errb); code != 0 {
+	if code := run([]string{"study", "init", "--output", outFile, bad}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
 	if !strings.Contains(errb.String(), "does not load yet") || !strings.Contains(errb.String(), "role air_temperature") {
@@ -138,24 +138,30 @@ func TestStudyInitIncomplete(t *testing.T) {
 func TestStudyUsage(t *testing.T) {
 	dir := t.TempDir()
 	for _, c := range []struct {
-		args []string
-		code int
-		msg  string
+		args   []string
+		code   int
+		msg    string
+		stdout bool // msg is on stdout (help), not stderr
 	}{
-		{[]string{"study"}, 2, "give a subcommand"},
-		{[]string{"study", "make"}, 2, "unknown subcommand"},
-		{[]string{"study", "init"}, 2, "at least one NetCDF file"},
-		{[]string{"study", "init", "--out", "r.toml", "x.nc"}, 2, "name the file .yaml"},
-		{[]string{"study", "init", "--bogus", "x.nc"}, 2, "flag provided but not defined"},
-		{[]string{"study", "check"}, 2, "exactly one study"},
-		{[]string{"study", "check", "--set", "novalue", "r.yaml"}, 2, "KEY=VALUE"},
-		{[]string{"study", "check", filepath.Join(dir, "missing.yaml")}, 1, "missing.yaml"},
-		{[]string{"study", "init", "-h"}, 0, "usage: lidscope study init"},
+		{[]string{"study"}, 2, "give a subcommand", false},
+		{[]string{"study", "make"}, 2, "unknown subcommand", false},
+		{[]string{"study", "init"}, 2, "at least one NetCDF file", false},
+		{[]string{"study", "init", "--output", "r.toml", "x.nc"}, 2, "name the file .yaml", false},
+		{[]string{"study", "init", "--out", "r.yaml", "x.nc"}, 2, "--output FILE", false},
+		{[]string{"study", "init", "--bogus", "x.nc"}, 2, "unknown flag --bogus", false},
+		{[]string{"study", "check"}, 2, "exactly one study", false},
+		{[]string{"study", "check", "--set", "novalue", "r.yaml"}, 2, "KEY=VALUE", false},
+		{[]string{"study", "check", filepath.Join(dir, "missing.yaml")}, 1, "missing.yaml", false},
+		{[]string{"study", "init", "-h"}, 0, "lidscope study init FILE...", true},
 	} {
 		var out, errb bytes.Buffer
 		code := run(c.args, &out, &errb)
-		if code != c.code || !strings.Contains(errb.String(), c.msg) {
-			t.Errorf("%v: exit %d, stderr %q; want %d and %q", c.args, code, errb.String(), c.code, c.msg)
+		got := errb.String()
+		if c.stdout {
+			got = out.String()
+		}
+		if code != c.code || !strings.Contains(got, c.msg) {
+			t.Errorf("%v: exit %d, output %q; want %d and %q", c.args, code, got, c.code, c.msg)
 		}
 	}
 	// a study with problems: exit 1, every problem listed

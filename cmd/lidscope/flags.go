@@ -1,0 +1,146 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"log/slog"
+	"strings"
+
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+)
+
+// The flags several commands share, each declared by one function so that
+// its name, short form and meaning are the same everywhere:
+//
+//	--out DIR, -o DIR      a folder the command writes into
+//	--output FILE, -o FILE the one file a command writes (commands that write one file)
+//	--force, -f            replace what an earlier run wrote
+//	--set KEY=VALUE, -s    override a study key (repeatable)
+//	--quiet, -q / --verbose, -v / --log-format   logging
+//	--workers N, --no-plots
+
+// addOutDir declares --out/-o, the folder a command writes into.
+func addOutDir(fs *pflag.FlagSet, p *string, def, usage string) {
+	fs.StringVarP(p, "out", "o", def, usage)
+}
+
+// addOutputFile declares --output/-o, the one file a command writes.
+func addOutputFile(fs *pflag.FlagSet, p *string, usage string) {
+	fs.StringVarP(p, "output", "o", "", usage)
+}
+
+// addForce declares --force/-f.
+func addForce(fs *pflag.FlagSet, p *bool, usage string) {
+	fs.BoolVarP(p, "force", "f", false, usage)
+}
+
+// addSet declares the repeatable --set/-s KEY=VALUE into s.
+func addSet(fs *pflag.FlagSet, s setFlags, usage string) {
+	fs.VarP(s, "set", "s", usage)
+}
+
+// addWorkers declares --workers.
+func addWorkers(fs *pflag.FlagSet, p *int) {
+	fs.IntVar(p, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
+}
+
+// addNoPlots declares --no-plots.
+func addNoPlots(fs *pflag.FlagSet, p *bool, usage string) {
+	fs.BoolVar(p, "no-plots", false, usage)
+}
+
+// logOptions are the logging flags of the commands that log.
+type logOptions struct {
+	Format  string // text | json
+	Quiet   bool
+	Verbose bool
+}
+
+func (l *logOptions) register(fs *pflag.FlagSet) {
+	fs.StringVar(&l.Format, "log-format", "text", "log format: text or json")
+	fs.BoolVarP(&l.Quiet, "quiet", "q", false, "log errors only, and no progress display")
+	fs.BoolVarP(&l.Verbose, "verbose", "v", false, "log details (every conversion and note)")
+}
+
+func (l logOptions) logger(w io.Writer) (*slog.Logger, error) {
+	level := slog.LevelWarn
+	switch {
+	case l.Quiet:
+		level = slog.LevelError
+	case l.Verbose:
+		level = slog.LevelInfo
+	}
+	ho := &slog.HandlerOptions{Level: level}
+	switch l.Format {
+	case "text":
+		return slog.New(slog.NewTextHandler(w, ho)), nil
+	case "json":
+		return slog.New(slog.NewJSONHandler(w, ho)), nil
+	}
+	return nil, usageErr("--log-format must be text or json, not %q", l.Format)
+}
+
+// setFlags collects repeated --set key=value overrides.
+type setFlags map[string]string
+
+func (s setFlags) String() string { return "" }
+func (s setFlags) Type() string   { return "KEY=VALUE" }
+func (s setFlags) Set(v string) error {
+	k, val, ok := strings.Cut(v, "=")
+	if !ok || strings.TrimSpace(k) == "" {
+		return fmt.Errorf("--set wants KEY=VALUE (e.g. analysis.threshold=1.0)")
+	}
+	s[strings.TrimSpace(k)] = val
+	return nil
+}
+
+// listFlag collects repeated or comma-separated values.
+type listFlag []string
+
+func (l *listFlag) String() string { return strings.Join(*l, ",") }
+func (l *listFlag) Type() string   { return "NAME[,NAME]" }
+func (l *listFlag) Set(v string) error {
+	for _, s := range strings.Split(v, ",") {
+		if s = strings.TrimSpace(s); s != "" {
+			*l = append(*l, s)
+		}
+	}
+	return nil
+}
+
+// Positional-argument checks: each says what to give, as a usage error.
+
+// exactArgs wants n arguments; msg says what they are.
+func exactArgs(n int, msg string) cobra.PositionalArgs {
+	return func(_ *cobra.Command, args []string) error {
+		switch {
+		case len(args) == n:
+		case len(args) == 0:
+			return usageErr("%s", msg)
+		default:
+			return usageErr("%s (got %d: %s)", msg, len(args), strings.Join(args, " "))
+		}
+		return nil
+	}
+}
+
+// minArgs wants at least n arguments; msg says what they are.
+func minArgs(n int, msg string) cobra.PositionalArgs {
+	return func(_ *cobra.Command, args []string) error {
+		if len(args) < n {
+			return usageErr("%s", msg)
+		}
+		return nil
+	}
+}
+
+// noArgs refuses arguments; msg says what to give instead.
+func noArgs(msg string) cobra.PositionalArgs {
+	return func(_ *cobra.Command, args []string) error {
+		if len(args) > 0 {
+			return usageErr("%s (got %q)", msg, args)
+		}
+		return nil
+	}
+}

@@ -1,0 +1,90 @@
+package main
+
+import (
+	"bytes"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/spf13/pflag"
+)
+
+// The command line follows the GNU conventions (common practice, GNU
+// Coding Standards §4.8 "Standards for Command Line Interfaces"): --help
+// on stdout with exit status 0, --version, long options before or after
+// the arguments, and one wording for every unknown flag.
+func TestCommandLineConventions(t *testing.T) {
+	missing := filepath.Join(t.TempDir(), "missing")
+	for _, c := range []struct {
+		args       []string
+		code       int
+		out, errs  string // substrings of stdout and stderr ("" = anything)
+		emptyOut   bool
+		emptyError bool
+	}{
+		{args: []string{"--help"}, code: 0, out: "Available Commands:", emptyError: true},
+		{args: []string{"-h"}, code: 0, out: "calc", emptyError: true},
+		{args: []string{"help", "run"}, code: 0, out: "lidscope run STUDY", emptyError: true},
+		{args: []string{"run", "--help"}, code: 0, out: "--set", emptyError: true},
+		{args: []string{"study", "check", "-h"}, code: 0, out: "lidscope study check STUDY", emptyError: true},
+		{args: []string{"--version"}, code: 0, out: "lidscope " + version + "\n", emptyError: true},
+		{args: []string{"version"}, code: 0, out: "lidscope " + version + "\n", emptyError: true},
+		{args: nil, code: 2, errs: "give a command", emptyOut: true},
+		{args: []string{"frobnicate"}, code: 2, errs: `unknown command "frobnicate"`, emptyOut: true},
+		{args: []string{"inpsect"}, code: 2, errs: "inspect", emptyOut: true},
+		// one wording for unknown flags, long or short, in every command
+		{args: []string{"run", "--bogus", "s.yaml"}, code: 2, errs: "lidscope run: unknown flag --bogus\n", emptyOut: true},
+		{args: []string{"inspect", "f.nc", "-x"}, code: 2, errs: "lidscope inspect: unknown flag -x\n", emptyOut: true},
+		{args: []string{"run", "-qx", "s.yaml"}, code: 2, errs: "lidscope run: unknown flag -x\n", emptyOut: true},
+		{args: []string{"study", "init", "--bogus", "f.nc"}, code: 2, errs: "lidscope study init: unknown flag --bogus\n", emptyOut: true},
+		{args: []string{"run", "s.yaml", "--out"}, code: 2, errs: "flag --out (-o) needs a value", emptyOut: true},
+		{args: []string{"run", "--workers", "many", "s.yaml"}, code: 2, errs: `--workers "many": want a whole number`, emptyOut: true},
+		// flags after the arguments reach the command: these fail on the
+		// missing files (status 1), not on the command line (status 2)
+		{args: []string{"run", missing + ".yaml", "--set", "analysis.threshold=1.0", "--out", missing}, code: 1, errs: "missing.yaml"},
+		{args: []string{"run", missing + ".yaml", "-s", "analysis.threshold=1.0", "-o", missing, "-q", "-f"}, code: 1, errs: "missing.yaml"},
+		{args: []string{"inspect", missing + ".nc", "--json"}, code: 1, out: `"usable": false`},
+		{args: []string{"merge", missing + "1", missing + "2", "--out", missing}, code: 1, errs: "missing1"},
+		{args: []string{"merge", missing + "1", missing + "2"}, code: 2, errs: "--out DIR"},
+		{args: []string{"completion", "bash"}, code: 0, out: "bash completion", emptyError: true},
+		{args: []string{"completion", "zsh"}, code: 0, out: "compdef", emptyError: true},
+		{args: []string{"completion", "fish"}, code: 0, out: "complete -c lidscope", emptyError: true},
+	} {
+		var out, errb bytes.Buffer
+		code := run(c.args, &out, &errb)
+		if code != c.code || !strings.Contains(out.String(), c.out) || !strings.Contains(errb.String(), c.errs) ||
+			(c.emptyOut && out.Len() > 0) || (c.emptyError && errb.Len() > 0) {
+			t.Errorf("lidscope %s: exit %d (want %d)\nstdout %q (want %q)\nstderr %q (want %q)",
+				strings.Join(c.args, " "), code, c.code, out.String(), c.out, errb.String(), c.errs)
+		}
+	}
+}
+
+// Every command and flag has a help text, and the flags every command
+// shares keep one name, short form and kind of value.
+func TestCommandTreeHelp(t *testing.T) {
+	root := newRoot(&env{stdout: &bytes.Buffer{}, stderr: &bytes.Buffer{}})
+	shared := map[string]struct{ short, kind string }{
+		"out": {"o", "string"}, "output": {"o", "string"}, "force": {"f", "bool"},
+		"set": {"s", "KEY=VALUE"}, "quiet": {"q", "bool"}, "verbose": {"v", "bool"},
+	}
+	for _, cmd := range allCommands(root) {
+		if cmd.Short == "" {
+			t.Errorf("%s has no short description", cmd.CommandPath())
+		}
+		cmd.LocalFlags().VisitAll(func(f *pflag.Flag) {
+			if f.Hidden {
+				return
+			}
+			if f.Usage == "" {
+				t.Errorf("%s --%s has no help text", cmd.CommandPath(), f.Name)
+			}
+			if s, ok := shared[f.Name]; ok && (f.Shorthand != s.short || f.Value.Type() != s.kind) {
+				t.Errorf("%s --%s: short -%s of type %s, want -%s of type %s", cmd.CommandPath(), f.Name, f.Shorthand, f.Value.Type(), s.short, s.kind)
+			}
+		})
+		if cmd.LocalFlags().Lookup("out") != nil && cmd.LocalFlags().Lookup("output") != nil && !cmd.LocalFlags().Lookup("out").Hidden {
+			t.Errorf("%s has both --out (a folder) and --output (a file)", cmd.CommandPath())
+		}
+	}
+}
