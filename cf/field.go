@@ -500,45 +500,80 @@ func scalarLevel(nf *netcdf.File, v *netcdf.Var) (float64, bool) {
 
 // Scratch holds the buffers ReadSlab needs; one per goroutine.
 type Scratch struct {
-	a, b []float64
+	a, b     []float64
+	a32, b32 []float32
+}
+
+// SlabRange describes the values a read wrote: how many are valid (not
+// NaN), and the smallest and largest of them (+Inf and −Inf when none is).
+type SlabRange struct {
+	Valid    int
+	Min, Max float64
 }
 
 // ReadSlab reads time step t into dst (len Len()), canonical layout, SI
 // units, NaN where missing. s may be nil (buffers are then allocated).
 func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
+	_, err := fld.ReadSlabRange(t, dst, s)
+	return err
+}
+
+// ReadSlabRange is ReadSlab that also returns the range of the values
+// written, found in the same pass (for plausibility checks without a second
+// scan). Variables whose values are exact in float32 (float, byte and short
+// integers) are read in that precision; the values written are the same as
+// when read as double, since every such value converts to float64 exactly.
+func (fld *Field) ReadSlabRange(t int, dst []float32, s *Scratch) (SlabRange, error) {
 	if len(dst) != fld.Len() {
-		return fmt.Errorf("role %s: slab buffer has %d cells, the grid has %d", fld.Role, len(dst), fld.Len())
+		return SlabRange{}, fmt.Errorf("role %s: slab buffer has %d cells, the grid has %d", fld.Role, len(dst), fld.Len())
 	}
 	if s == nil {
 		s = &Scratch{}
 	}
-	if cap(s.a) < fld.nyx {
-		s.a = make([]float64, fld.nyx)
-		s.b = make([]float64, fld.nyx)
-	}
-	a, b := s.a[:fld.nyx], s.b[:fld.nyx]
 	seg, lt, err := fld.locate(t)
 	if err != nil {
-		return err
+		return SlabRange{}, err
 	}
 	zi := 0
 	if fld.Level != nil {
 		zi = fld.Level.Lower
 	}
-	if err := fld.read(seg, lt, zi, a); err != nil {
-		return err
-	}
 	interp := fld.Level != nil && !fld.Level.Exact
+	narrow, err := fld.read(seg, lt, zi, s, false)
+	if err != nil {
+		return SlabRange{}, err
+	}
 	if interp {
-		if err := fld.read(seg, lt, fld.Level.Upper, b); err != nil {
-			return err
+		if _, err := fld.read(seg, lt, fld.Level.Upper, s, true); err != nil {
+			return SlabRange{}, err
 		}
 	}
-	m := &seg.mask
 	var infs, nans int64
+	var r SlabRange
+	if narrow {
+		r, infs, nans = decodeSlab(fld, &seg.mask, dst, s.a32[:fld.nyx], s.b32[:fld.nyx], interp)
+	} else {
+		r, infs, nans = decodeSlab(fld, &seg.mask, dst, s.a[:fld.nyx], s.b[:fld.nyx], interp)
+	}
+	if infs > 0 {
+		fld.infCount.Add(infs)
+	}
+	if nans > 0 {
+		fld.nanCount.Add(nans)
+	}
+	return r, nil
+}
+
+// decodeSlab puts the stored values a (and b, the upper level when
+// interpolating) into dst: canonical order, decoded (fill, missing and
+// valid range, packing), interpolated, converted to SI; the range of the
+// result is found on the way.
+func decodeSlab[T float32 | float64](fld *Field, m *Mask, dst []float32, a, b []T, interp bool) (r SlabRange, infs, nans int64) {
 	countNaN := !m.nanDeclared()
+	lo, hi := float32(math.Inf(1)), float32(math.Inf(-1))
+	valid := 0
 	for k, src := range fld.Layout.src {
-		x := a[src]
+		x := float64(a[src])
 		if math.IsInf(x, 0) {
 			infs++
 		} else if x != x && countNaN {
@@ -546,7 +581,7 @@ func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
 		}
 		y := m.Decode(x)
 		if interp {
-			x2 := b[src]
+			x2 := float64(b[src])
 			if math.IsInf(x2, 0) {
 				infs++
 			} else if x2 != x2 && countNaN {
@@ -556,15 +591,14 @@ func (fld *Field) ReadSlab(t int, dst []float32, s *Scratch) error {
 			w := fld.Level.W
 			y = (1-w)*y + w*y2 // NaN if either is missing
 		}
-		dst[k] = float32(fld.Conv.Apply(y))
+		v := float32(fld.Conv.Apply(y))
+		dst[k] = v
+		if v == v {
+			valid++
+			lo, hi = min(lo, v), max(hi, v)
+		}
 	}
-	if infs > 0 {
-		fld.infCount.Add(infs)
-	}
-	if nans > 0 {
-		fld.nanCount.Add(nans)
-	}
-	return nil
+	return SlabRange{Valid: valid, Min: float64(lo), Max: float64(hi)}, infs, nans
 }
 
 func (fld *Field) locate(t int) (*segment, int, error) {
@@ -581,7 +615,14 @@ func (fld *Field) locate(t int) (*segment, int, error) {
 	return nil, 0, fmt.Errorf("role %s: time step %d out of range (record has %d)", fld.Role, t, fld.NT())
 }
 
-func (fld *Field) read(seg *segment, t, z int, dst []float64) error {
+// readAllAsDouble makes read take every type as double (tests compare the
+// two paths).
+var readAllAsDouble = false
+
+// read reads level z of local step t of seg into s.a (s.b when upper),
+// or, when the variable's values are exact in float32, into s.a32 (s.b32)
+// in the file's precision; narrow says which.
+func (fld *Field) read(seg *segment, t, z int, s *Scratch, upper bool) (narrow bool, err error) {
 	start := make([]int, fld.ndim)
 	count := make([]int, fld.ndim)
 	for i := range count {
@@ -598,12 +639,39 @@ func (fld *Field) read(seg *segment, t, z int, dst []float64) error {
 	fld.mu.Lock()
 	defer fld.mu.Unlock()
 	if err := fld.use(seg); err != nil {
-		return err
+		return false, err
 	}
-	if err := seg.v.ReadFloat64(start, count, dst); err != nil {
-		return fmt.Errorf("%s: reading %s at time step %d: %w (the file may be truncated or damaged)", seg.path, fld.Var, t, err)
+	switch seg.v.Type {
+	case netcdf.Float, netcdf.Byte, netcdf.UByte, netcdf.Short, netcdf.UShort:
+		if readAllAsDouble {
+			break
+		}
+		narrow = true
+		if cap(s.a32) < fld.nyx {
+			s.a32 = make([]float32, fld.nyx)
+			s.b32 = make([]float32, fld.nyx)
+		}
+		dst := s.a32[:fld.nyx]
+		if upper {
+			dst = s.b32[:fld.nyx]
+		}
+		err = seg.v.ReadFloat32(start, count, dst)
 	}
-	return nil
+	if !narrow {
+		if cap(s.a) < fld.nyx {
+			s.a = make([]float64, fld.nyx)
+			s.b = make([]float64, fld.nyx)
+		}
+		dst := s.a[:fld.nyx]
+		if upper {
+			dst = s.b[:fld.nyx]
+		}
+		err = seg.v.ReadFloat64(start, count, dst)
+	}
+	if err != nil {
+		return narrow, fmt.Errorf("%s: reading %s at time step %d: %w (the file may be truncated or damaged)", seg.path, fld.Var, t, err)
+	}
+	return narrow, nil
 }
 
 // FindRole returns the variable of file nf that fills role r, or an error

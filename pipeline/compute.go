@@ -9,7 +9,7 @@ import (
 	"lidscope/regimes"
 )
 
-// Stage 4, step compute: check a step's slabs, find the ocean columns, the
+// Stage 4, step compute: find the ocean columns, the
 // tropical-mean SST, the relative SST and the regimes, and assemble the
 // step that the blocks and the sinks consume.
 //
@@ -80,15 +80,10 @@ func quantities(p *Plan, in *inputs) (names []string, cloud string) {
 }
 
 // prepare runs the step compute stage on the slabs v of step st (by field
-// slot) and returns the step and the metrics input; the step's LTS, EIS
+// slot; the reader has checked them) and returns the step and the metrics input; the step's LTS, EIS
 // (and ECTEI) slices are filled by the blocks.
 func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.SlabInput, error) {
 	in := s.in
-	for _, f := range in.timed {
-		if err := plausible(f, v[f.slot], st); err != nil {
-			return nil, metrics.SlabInput{}, err
-		}
-	}
 	sstV := v[in.sst.slot]
 	var ice []float32
 	if in.seaIce != nil {

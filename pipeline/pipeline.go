@@ -12,8 +12,8 @@
 //
 //	open and align  open.go, align.go  open the inputs, analysis grid, regridding weights, common time steps
 //	masks           masks.go           static ocean mask; per step, the columns that are ocean now
-//	reader          reader.go          one goroutine filling two step buffers, in time order
-//	step compute    compute.go         plausibility, tropical mean, relative SST, regimes
+//	reader          reader.go          one goroutine filling two step buffers in time order; plausibility
+//	step compute    compute.go         ocean now, tropical mean, relative SST, regimes
 //	block worker    compute.go         metrics and per-column accumulation over fixed row blocks
 //	sinks           sinks.go           the run's accumulator and the plan's sinks, in time order
 package pipeline

@@ -12,7 +12,8 @@ import (
 
 // Stage 3, reader: one goroutine reads the time steps in order (netCDF-C
 // is serialised anyway) into two step buffers, so that it fills one while
-// the rest of the run uses the other.
+// the rest of the run uses the other, and checks that the values are
+// plausible while it reads them.
 
 // slabs says that a step buffer holds a time step (or that reading failed).
 type slabs struct {
@@ -42,6 +43,7 @@ func startReader(ctx context.Context, in *inputs) *reader {
 		r.free <- b
 	}
 	go func() {
+		ranges := make([]cf.SlabRange, len(in.timed))
 		defer close(r.done)
 		defer close(r.ready)
 		for k, st := range in.steps {
@@ -51,12 +53,7 @@ func startReader(ctx context.Context, in *inputs) *reader {
 			case <-ctx.Done():
 				return
 			}
-			var err error
-			for _, f := range in.timed {
-				if err = readAligned(f, st.idx[f.slot], r.bufs[b][f.slot]); err != nil {
-					break
-				}
-			}
+			err := readStep(in, st, r.bufs[b], ranges)
 			select {
 			case r.ready <- slabs{step: k, buf: b, err: err}:
 			case <-ctx.Done():
@@ -73,18 +70,52 @@ func startReader(ctx context.Context, in *inputs) *reader {
 // release gives step buffer b back to the reader.
 func (r *reader) release(b int) { r.free <- b }
 
-// readAligned reads step t of f and puts it on the analysis grid in dst.
-func readAligned(f *field, t int, dst []float32) error {
-	if f.w == nil {
-		return f.f.ReadSlab(t, dst, &f.s)
+// readStep reads step st of every timed field into bufs (by slot) and
+// checks that the values are plausible (see plausible); ranges is scratch.
+// Reading and checking are one pass over the values where no regridding is
+// needed (cf.Field.ReadSlabRange).
+func readStep(in *inputs, st stepRef, bufs [][]float32, ranges []cf.SlabRange) error {
+	for _, f := range in.timed {
+		r, err := readAligned(f, st.idx[f.slot], bufs[f.slot])
+		if err != nil {
+			return err
+		}
+		ranges[f.slot] = r
 	}
-	if err := f.f.ReadSlab(t, f.buf, &f.s); err != nil {
-		return err
-	}
-	if err := f.w.Apply(dst, f.buf); err != nil {
-		return fmt.Errorf("regridding %s: %w", f.role, err)
+	for _, f := range in.timed {
+		if err := plausible(f, ranges[f.slot], len(bufs[f.slot]), st); err != nil {
+			return err
+		}
 	}
 	return nil
+}
+
+// readAligned reads step t of f and puts it on the analysis grid in dst;
+// it returns the range of the values in dst.
+func readAligned(f *field, t int, dst []float32) (cf.SlabRange, error) {
+	if f.w == nil {
+		return f.f.ReadSlabRange(t, dst, &f.s)
+	}
+	if err := f.f.ReadSlab(t, f.buf, &f.s); err != nil {
+		return cf.SlabRange{}, err
+	}
+	if err := f.w.Apply(dst, f.buf); err != nil {
+		return cf.SlabRange{}, fmt.Errorf("regridding %s: %w", f.role, err)
+	}
+	return rangeOf(dst), nil
+}
+
+// rangeOf returns the number of valid values of x and their range.
+func rangeOf(x []float32) cf.SlabRange {
+	lo, hi := float32(math.Inf(1)), float32(math.Inf(-1))
+	valid := 0
+	for _, v := range x {
+		if v == v {
+			valid++
+			lo, hi = min(lo, v), max(hi, v)
+		}
+	}
+	return cf.SlabRange{Valid: valid, Min: float64(lo), Max: float64(hi)}
 }
 
 // plausible fails when the values of a slab are impossible for the field's
@@ -96,27 +127,20 @@ func readAligned(f *field, t int, dst []float32) error {
 // without a word (an SST in °C read as K leaves the regimes unchanged, as
 // they depend on SST differences only, but makes every LTS and EIS
 // impossible).
-func plausible(f *field, vals []float32, st stepRef) error {
+func plausible(f *field, r cf.SlabRange, n int, st stepRef) error {
 	kind := f.f.Kind
 	cloud := f.role == cf.RoleCloud || f.role == cf.RoleLowCloud
 	if kind != units.Temperature && !cloud {
 		return nil
 	}
-	lo, hi := math.Inf(1), math.Inf(-1)
-	valid := 0
-	for _, x := range vals {
-		if x == x {
-			valid++
-			lo, hi = math.Min(lo, float64(x)), math.Max(hi, float64(x))
-		}
-	}
+	lo, hi, valid := r.Min, r.Max, r.Valid
 	if valid == 0 {
 		return nil
 	}
 	if kind == units.Temperature && lo >= 150 && hi <= 350 || cloud && lo >= -0.05 && hi <= 1.05 {
 		return nil
 	}
-	why := strings.Join(cf.CheckValues(f.role, f.f.Conv, lo, hi, valid, len(vals)), "; ")
+	why := strings.Join(cf.CheckValues(f.role, f.f.Conv, lo, hi, valid, n), "; ")
 	if why == "" {
 		why = fmt.Sprintf("values %.4g…%.4g %s are impossible for %s", lo, hi, kind.SI(), f.role)
 	}
