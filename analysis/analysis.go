@@ -122,8 +122,11 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 	}
 	log.Info("run", "dataset", d.Name, "out", out)
 	relCfg := r.RelationsFor(d)
+	// The relationship analysis relates cloud to EIS, LTS and relative
+	// SST: it needs both optional inputs.
+	noRel := NoRelations(plan)
 	var clim *relations.Climatology
-	if relCfg.Mode == relations.Anomaly {
+	if noRel == "" && relCfg.Mode == relations.Anomaly {
 		// Pass 1: the climatology of every cell and calendar month.
 		p1 := plan
 		p1.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
@@ -136,13 +139,15 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 		}
 	}
 	var rel *relations.Acc
-	plan.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
-		a, err := relations.New(relCfg, l, clim)
-		if err != nil {
-			return nil, fmt.Errorf("relationship analysis: %w", err)
+	if noRel == "" {
+		plan.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
+			a, err := relations.New(relCfg, l, clim)
+			if err != nil {
+				return nil, fmt.Errorf("relationship analysis: %w", err)
+			}
+			rel = a
+			return []pipeline.StepSink{a}, nil
 		}
-		rel = a
-		return []pipeline.StepSink{a}, nil
 	}
 	res, err := pipeline.Run(ctx, plan)
 	if err != nil {
@@ -155,11 +160,17 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 	if err != nil {
 		return Report{}, err
 	}
-	relRes, err := rel.Results()
-	if err != nil {
-		return Report{}, fmt.Errorf("relationship analysis: %w", err)
+	meta.Absent = plan.Lacks()
+	var relRes *relations.Results
+	if rel != nil {
+		if relRes, err = rel.Results(); err != nil {
+			return Report{}, fmt.Errorf("relationship analysis: %w", err)
+		}
+	} else {
+		meta.Absent = append(meta.Absent, noRel)
+		log.Info("note", "dataset", d.Name, "text", noRel)
 	}
-	files, err := writeResults(out, res.Acc, meta, relRes, rel, opt)
+	files, err := writeResults(out, res.Acc, meta, relRes, rel, noRel, opt)
 	if err != nil {
 		return Report{}, err
 	}
@@ -173,11 +184,29 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
 }
 
+// NoRelations says why a run of plan has no relationship analysis ("" when
+// it has one): the analysis relates cloud to EIS, LTS and relative SST, so
+// it needs the cloud and the 700 hPa temperature inputs.
+func NoRelations(plan pipeline.Plan) string {
+	var miss []string
+	if plan.T700 == nil {
+		miss = append(miss, "air_temperature")
+	}
+	if plan.Cloud == nil {
+		miss = append(miss, "low_cloud or cloud")
+	}
+	if len(miss) == 0 {
+		return ""
+	}
+	return "no relationship analysis (it needs the " + strings.Join(miss, " and the ") + " input)"
+}
+
 // writeResults writes every result file of a run (or of a merge) into
-// out: the regime outputs of acc, the relationship outputs of rel, and the
-// run state with both accumulators (acc and relAcc). It creates out when
-// needed and removes it again if it created it and the write failed.
-func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relations.Results, relAcc *relations.Acc, opt Options) (files []string, err error) {
+// out: the regime outputs of acc, the relationship outputs of rel (none
+// when relAcc is nil: noRel says why), and the run state with both
+// accumulators (acc and relAcc). It creates out when needed and removes it
+// again if it created it and the write failed.
+func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relations.Results, relAcc *relations.Acc, noRel string, opt Options) (files []string, err error) {
 	created := false
 	if _, err := os.Stat(out); errors.Is(err, fs.ErrNotExist) {
 		created = true
@@ -207,8 +236,16 @@ func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relati
 			return files, fmt.Errorf("writing the relationship results: %w", err)
 		}
 		files = append(files, rf...)
+	} else if opt.Force {
+		// An earlier run's relationship results must not sit next to a
+		// run that has none.
+		for _, n := range relations.OutputNames() {
+			if err := os.Remove(filepath.Join(out, n)); err != nil && !errors.Is(err, fs.ErrNotExist) {
+				return files, fmt.Errorf("removing the relationship results of an earlier run: %w", err)
+			}
+		}
 	}
-	if err := saveState(out, meta, acc, relAcc); err != nil {
+	if err := saveState(out, meta, acc, relAcc, noRel); err != nil {
 		return files, fmt.Errorf("writing the run state: %w", err)
 	}
 	return append(files, filepath.Join(out, StateFile)), nil

@@ -34,21 +34,28 @@ type runState struct {
 	Meta   output.Meta
 	Acc    []byte // accumulate.Acc.Encode
 	Rel    []byte // relations.Acc.Encode
+	// NoRelations, when set, says why the run has no relationship
+	// analysis (an optional input absent); Rel is then empty.
+	NoRelations string
 }
 
-func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc) error {
-	if rel == nil {
+// saveState writes the run state; rel is nil exactly when the run has no
+// relationship analysis, and noRel then says why.
+func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) error {
+	if rel == nil && noRel == "" {
 		return fmt.Errorf("writing the run state in %s: no relationship accumulator to save", dir)
 	}
 	var ab, rb bytes.Buffer
 	if err := acc.Encode(&ab); err != nil {
 		return err
 	}
-	if err := rel.Encode(&rb); err != nil {
-		return err
+	if rel != nil {
+		if err := rel.Encode(&rb); err != nil {
+			return err
+		}
 	}
 	var buf bytes.Buffer
-	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes()}); err != nil {
+	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel}); err != nil {
 		return fmt.Errorf("encoding the run state: %w", err)
 	}
 	st, err := stage.New(dir, ".lidscope-state-*")
@@ -62,11 +69,13 @@ func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations
 	return st.Commit([]string{StateFile}, true)
 }
 
-// loadedState is a decoded run state; rel is nil unless asked for.
+// loadedState is a decoded run state; rel is nil unless asked for, or
+// when the run had no relationship analysis (noRel says why).
 type loadedState struct {
-	meta output.Meta
-	acc  *accumulate.Acc
-	rel  *relations.Acc
+	meta  output.Meta
+	acc   *accumulate.Acc
+	rel   *relations.Acc
+	noRel string
 }
 
 // loadState reads the state a run left in dir, with the relationship
@@ -88,8 +97,8 @@ func loadState(dir string, withRel bool) (loadedState, error) {
 	if err != nil {
 		return loadedState{}, fmt.Errorf("%s: %w", p, err)
 	}
-	ls := loadedState{meta: s.Meta, acc: acc}
-	if withRel {
+	ls := loadedState{meta: s.Meta, acc: acc, noRel: s.NoRelations}
+	if withRel && s.NoRelations == "" {
 		if len(s.Rel) == 0 {
 			return loadedState{}, fmt.Errorf("%s: the run state holds no relationship accumulator (the file is damaged): re-run the analysis of %s", p, dir)
 		}
@@ -125,6 +134,8 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		meta output.Meta
 		acc  *accumulate.Acc
 		rel  *relations.Acc
+		// noRel: the run has no relationship analysis, and why
+		noRel string
 	}
 	if !opt.Force {
 		for _, n := range append(append(output.OutputNames(), relations.OutputNames()...), StateFile) {
@@ -142,7 +153,7 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		if len(s.meta.TimeValues) == 0 {
 			return Report{}, fmt.Errorf("%s: the run has no time steps", d)
 		}
-		runs = append(runs, run{d, s.meta, s.acc, s.rel})
+		runs = append(runs, run{d, s.meta, s.acc, s.rel, s.noRel})
 	}
 	sort.SliceStable(runs, func(i, j int) bool { return runs[i].meta.TimeValues[0] < runs[j].meta.TimeValues[0] })
 	first := runs[0]
@@ -160,6 +171,10 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		check("time steps per year", a.StepsPerYear, b.StepsPerYear)
 		check("calendar", a.Calendar, b.Calendar)
 		check("time units", a.TimeUnits, b.TimeUnits)
+		check("quantities", a.Absent, b.Absent)
+		if (first.rel == nil) != (r.rel == nil) {
+			problems = append(problems, fmt.Sprintf("relationship analysis: %s has %s, %s has %s", first.dir, relWord(first.noRel), r.dir, relWord(r.noRel)))
+		}
 	}
 	for i := 1; i < len(runs); i++ {
 		p, q := runs[i-1].meta, runs[i].meta
@@ -170,7 +185,7 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
-	if first.rel.Mode() == relations.Anomaly {
+	if first.rel != nil && first.rel.Mode() == relations.Anomaly {
 		// relations.Acc.Merge would refuse too (the climatologies differ);
 		// say what to do at the level of lidscope's runs.
 		return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and each of %s took its anomalies against the climatology of its own period, so no merge gives what one run over the whole record gives; "+
@@ -189,7 +204,9 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		if err := acc.Merge(r.acc); err != nil {
 			return Report{}, fmt.Errorf("merging %s: %w", r.dir, err)
 		}
-		if err := rel.Merge(r.rel); err != nil {
+		if rel == nil {
+			// no relationship analysis in any piece (checked above)
+		} else if err := rel.Merge(r.rel); err != nil {
 			return Report{}, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
 		}
 		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)
@@ -212,18 +229,29 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()
-	if n, m := rel.Steps(), len(meta.TimeValues); n != m {
-		return Report{}, fmt.Errorf("the merged relationship analysis has %d time steps, the merged record %d: a run state is damaged; re-run the pieces", n, m)
+	var relRes *relations.Results
+	if rel != nil {
+		if n, m := rel.Steps(), len(meta.TimeValues); n != m {
+			return Report{}, fmt.Errorf("the merged relationship analysis has %d time steps, the merged record %d: a run state is damaged; re-run the pieces", n, m)
+		}
+		var err error
+		if relRes, err = rel.Results(); err != nil {
+			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
+		}
 	}
-	relRes, err := rel.Results()
-	if err != nil {
-		return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
-	}
-	files, err := writeResults(out, acc, meta, relRes, rel, opt)
+	files, err := writeResults(out, acc, meta, relRes, rel, first.noRel, opt)
 	if err != nil {
 		return Report{}, err
 	}
 	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
+}
+
+// relWord describes a run's relationship analysis for a merge problem.
+func relWord(noRel string) string {
+	if noRel == "" {
+		return "one"
+	}
+	return "none (" + noRel + ")"
 }
 
 func lastOf(period string) string {

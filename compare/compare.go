@@ -127,7 +127,10 @@ func Mismatches(a, b Run) []string {
 	chk("band", fmt.Sprintf("%g…%g", a.Meta.BandSouth, a.Meta.BandNorth), fmt.Sprintf("%g…%g", b.Meta.BandSouth, b.Meta.BandNorth))
 	chk("period", a.Meta.Period, b.Meta.Period)
 	chk("time steps per year", a.Meta.StepsPerYear, b.Meta.StepsPerYear)
-	chk("cloud field", a.Acc.L.Cloud, b.Acc.L.Cloud)
+	if a.Acc.L.Cloud != "" && b.Acc.L.Cloud != "" {
+		// a run without cloud is compared on what both have (Compare's notes)
+		chk("cloud field", a.Acc.L.Cloud, b.Acc.L.Cloud)
+	}
 	out = append(out, relationMismatches(a, b)...)
 	la, lb := a.Acc.L, b.Acc.L
 	if la.NLat != lb.NLat || la.NLon != lb.NLon {
@@ -174,13 +177,29 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 			cr.Maps = append(cr.Maps, st)
 			cr.Diff[mn.name] = diff
 		}
-		cs := scalars(c)
-		for i, s := range cs {
-			s.Ref = res.ReferenceScalars[i].Cand
-			s.Diff = s.Cand - s.Ref
-			cs[i] = s
+		// Compare what both runs have (a run without T700 has no LTS/EIS,
+		// one without cloud no cloud means); list what could not be.
+		refBy := map[string]Scalar{}
+		for _, s := range res.ReferenceScalars {
+			refBy[s.Name] = s
 		}
-		cr.Scalars = cs
+		candBy := map[string]bool{}
+		for _, s := range scalars(c) {
+			candBy[s.Name] = true
+			r, ok := refBy[s.Name]
+			if !ok {
+				cr.Notes = append(cr.Notes, fmt.Sprintf("%s not compared: only %s has it (the reference %s lacks the input)", s.Name, c.Name, ref.Name))
+				continue
+			}
+			s.Ref = r.Cand
+			s.Diff = s.Cand - s.Ref
+			cr.Scalars = append(cr.Scalars, s)
+		}
+		for _, s := range res.ReferenceScalars {
+			if !candBy[s.Name] {
+				cr.Notes = append(cr.Notes, fmt.Sprintf("%s not compared: only the reference %s has it (%s lacks the input)", s.Name, ref.Name, c.Name))
+			}
+		}
 		switch {
 		case ref.Relations == nil:
 			cr.Notes = append(cr.Notes, fmt.Sprintf("the reference %s has no relationship results (relationships.json): sensitivities, flips and thresholds not compared", ref.Name))
@@ -197,6 +216,17 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 		return nil, &MismatchError{List: res.Mismatches}
 	}
 	return res, nil
+}
+
+// Scalar returns the candidate's scalar of that name; ok is false when
+// the candidate or the reference lacks it (Notes say which).
+func (c Candidate) Scalar(name string) (s Scalar, ok bool) {
+	for _, x := range c.Scalars {
+		if x.Name == name {
+			return x, true
+		}
+	}
+	return Scalar{}, false
 }
 
 // MismatchError lists why runs were not compared.

@@ -129,7 +129,12 @@ func csvBytes(res *Result) ([]byte, error) {
 	w.Write(row)
 	for _, c := range res.Candidates {
 		row := []string{c.Name, "candidate"}
-		for _, s := range c.Scalars {
+		for _, rs := range res.ReferenceScalars {
+			s, ok := c.Scalar(rs.Name)
+			if !ok {
+				row = append(row, "", "")
+				continue
+			}
 			row = append(row, num(s.Cand), num(s.Diff))
 		}
 		for _, m := range c.Maps {

@@ -518,7 +518,7 @@ func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 		}
 	}
 	if _, ok := present(m, "inputs"); !ok || len(inputs) == 0 {
-		d.fail(path, "dataset %q has no inputs: give at least inputs.sst, inputs.air_temperature and inputs.low_cloud (or inputs.cloud)", ds.Name)
+		d.fail(path, "dataset %q has no inputs: give at least inputs.sst (inputs.air_temperature adds LTS and EIS, inputs.low_cloud or inputs.cloud the cloud statistics)", ds.Name)
 	}
 	has := func(r cf.Role) bool { return ds.hasPattern(r) || ds.hasPattern(allKey) }
 	explicit := ds.hasPattern
@@ -611,12 +611,19 @@ func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 		case has(cf.RoleLowCloud):
 			ds.Cloud = cf.RoleLowCloud // from inputs.all: low cloud is preferred
 		default:
-			d.fail(inPath, "dataset %q needs a cloud input: inputs.low_cloud (preferred) or inputs.cloud", ds.Name)
+			// No cloud input: the run has no cloud statistics and no
+			// relationship analysis (Dataset.Lacks says so).
 		}
 	}
-	for _, req := range []cf.Role{cf.RoleSST, cf.RoleAirTemp} {
-		if !has(req) {
-			d.fail(inPath, "dataset %q needs an input for role %s (inputs.%s)", ds.Name, req, req)
+	if !has(cf.RoleSST) {
+		d.fail(inPath, "dataset %q needs an input for role %s (inputs.%s): SST is the minimum lidscope runs on", ds.Name, cf.RoleSST, cf.RoleSST)
+	}
+	if !has(cf.RoleAirTemp) {
+		if ds.Metrics.ECTEI {
+			d.fail(join(path, "metrics"), "metrics.ectei needs 700 hPa temperature, but dataset %q has no %s input; give inputs.%s or remove metrics.ectei", ds.Name, cf.RoleAirTemp, cf.RoleAirTemp)
+		}
+		if ds.Metrics.T850Field {
+			d.fail(join(path, "metrics"), "the metrics conventions read temperature at %g hPa from the %s input, but dataset %q has none; give inputs.%s or choose another lapse-rate convention", ds.Metrics.LapsePressure/100, cf.RoleAirTemp, ds.Name, cf.RoleAirTemp)
 		}
 	}
 	ds.OutputDir = filepath.Join(r.Output.Dir, ds.Name)

@@ -66,16 +66,17 @@ func ExampleError() {
   - name: test
     inputs:
       sst: sst.nc
+    variables:
+      low_cloud: CLDLOW
 analysis:
   treshold: 1.5
 `), 0o644)
 	_, err := config.Load(path, config.LoadOptions{LookupEnv: config.NoEnvironment})
 	fmt.Println(strings.ReplaceAll(err.Error(), path, "r.yaml"))
 	// Output:
-	// study r.yaml has 3 problems:
-	//   r.yaml:3: datasets.0.inputs: dataset "test" needs a cloud input: inputs.low_cloud (preferred) or inputs.cloud
-	//   r.yaml:3: datasets.0.inputs: dataset "test" needs an input for role air_temperature (inputs.air_temperature)
-	//   r.yaml:6: analysis.treshold: unknown key "treshold" in analysis; did you mean "threshold"?
+	// study r.yaml has 2 problems:
+	//   r.yaml:6: datasets.0.variables.low_cloud: role low_cloud has no input (inputs.low_cloud); give one or remove this entry
+	//   r.yaml:8: analysis.treshold: unknown key "treshold" in analysis; did you mean "threshold"?
 }
 
 // Spec gives cf what it needs to read a role.

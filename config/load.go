@@ -152,8 +152,8 @@ func (r *Study) expandInputs(w *where) []Problem {
 
 // needed lists the roles the dataset's settings read.
 func (ds *Dataset) needed(r *Study) []cf.Role {
-	out := []cf.Role{cf.RoleSST, cf.RoleAirTemp, ds.Cloud, ds.Surface.TemperatureRole}
-	for _, x := range []cf.Role{ds.Surface.PressureRole, ds.Surface.HumidityRole, ds.Ocean.Role, r.Analysis.Grid.TargetRole} {
+	out := []cf.Role{cf.RoleSST, cf.RoleAirTemp}
+	for _, x := range []cf.Role{ds.Cloud, ds.Surface.TemperatureRole, ds.Surface.PressureRole, ds.Surface.HumidityRole, ds.Ocean.Role, r.Analysis.Grid.TargetRole} {
 		if x != "" {
 			out = append(out, x)
 		}

@@ -19,9 +19,11 @@ import (
 // declaration where a 12-step time axis has non-CF units, a categorical
 // ocean mask where inspect saw one, the surface and sea-ice settings the
 // inputs allow, and every analysis default written out. Lines that need a
-// decision are marked CHECK; roles that are required but missing are
-// marked MISSING. When the files cover the required roles (sst,
-// air_temperature, and low_cloud or cloud) the text loads as it is.
+// decision are marked CHECK; a missing SST (the one required role) is
+// marked MISSING, and each missing optional input (air_temperature for
+// LTS/EIS, low_cloud or cloud for the cloud statistics) is marked WITHOUT
+// with what the run will lack. When the files give SST the text loads as
+// it is.
 //
 // paths[i] is how the study should name the file of reports[i] (e.g.
 // relative to the folder the study will be saved in); when paths is
@@ -91,6 +93,19 @@ func newStarter(reports []*cf.FileReport, paths []string) *starter {
 		}
 	}
 	return s
+}
+
+// lacks says, for each optional input no file gave, what the run will
+// not have; the study runs without it.
+func (s *starter) lacks() []string {
+	var out []string
+	if !s.has(cf.RoleAirTemp) {
+		out = append(out, fmt.Sprintf("%s: no file gave 700 hPa temperature, so the run will have no LTS, EIS (and no relationship analysis); to add them:  %s: \"FILE_OR_GLOB\"", cf.RoleAirTemp, cf.RoleAirTemp))
+	}
+	if !s.has(cf.RoleLowCloud) && !s.has(cf.RoleCloud) {
+		out = append(out, fmt.Sprintf("cloud: no file gave low_cloud or cloud, so the run will have no cloud statistics and no relationship analysis; to add them:  %s: \"FILE_OR_GLOB\"", cf.RoleLowCloud))
+	}
+	return out
 }
 
 // timeSteps guesses the length of a report's time dimension: a dimension
@@ -214,13 +229,11 @@ func (s *starter) text() string {
 			w("      # (another variable name or grid); to use it instead:  %s: %s", r, quote(literal(f.file)))
 		}
 	}
-	for _, req := range []cf.Role{cf.RoleSST, cf.RoleAirTemp} {
-		if !s.has(req) {
-			w("      # MISSING: no file gave %s (required); add  %s: \"FILE_OR_GLOB\"", req, req)
-		}
+	if !s.has(cf.RoleSST) {
+		w("      # MISSING: no file gave %s (required: SST is the minimum); add  %s: \"FILE_OR_GLOB\"", cf.RoleSST, cf.RoleSST)
 	}
-	if !s.has(cf.RoleLowCloud) && !s.has(cf.RoleCloud) {
-		w("      # MISSING: no file gave low_cloud or cloud (one is required); add  low_cloud: \"FILE_OR_GLOB\"")
+	for _, l := range s.lacks() {
+		w("      # WITHOUT %s", l)
 	}
 
 	// variables
@@ -305,6 +318,10 @@ func (s *starter) relationshipsSection(w func(string, ...any)) {
 	w("# The relationship analysis (cloud against EIS, LTS and relative SST per regime,")
 	w("# regressions, regime flips, convective threshold) runs with these defaults;")
 	w("# uncomment the section to change them.")
+	if len(s.lacks()) > 0 {
+		w("# These files give no 700 hPa temperature or no cloud, so the relationship analysis")
+		w("# will not run until both are added (see WITHOUT above).")
+	}
 	w("# relationships:")
 	w("#   mode: %s  # climatological (composites) | anomaly (deseasonalised monthly anomalies)", def.Mode)
 	w("#   detrend: false  # anomaly mode only: also remove a linear trend")

@@ -113,7 +113,15 @@ func TestStarter(t *testing.T) {
 		}, true, []string{"# or, for 12 monthly means without years: climatology: true"}, []string{"\n      climatology: true"}, nil},
 		{"missing roles", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{report("sst.nc", 480, field(cf.RoleSST, "tos", byStd, grid2, monthly))}
-		}, false, []string{"# MISSING: no file gave air_temperature", "# MISSING: no file gave low_cloud or cloud"}, nil, nil},
+		}, true, []string{"# WITHOUT air_temperature: no file gave 700 hPa temperature, so the run will have no LTS, EIS", "# WITHOUT cloud: no file gave low_cloud or cloud, so the run will have no cloud statistics", "relationship analysis\n# will not run"}, []string{"# MISSING"},
+			func(t *testing.T, r *config.Study) {
+				if d := r.Datasets[0]; d.Cloud != "" || len(d.Inputs[cf.RoleAirTemp]) != 0 {
+					t.Errorf("an SST-only starter should load with no cloud and no air temperature: %+v", d)
+				}
+			}},
+		{"no sst", func(t *testing.T) []*cf.FileReport {
+			return []*cf.FileReport{report("ta.nc", 480, field(cf.RoleAirTemp, "ta", byStd, grid2, monthly))}
+		}, false, []string{"# MISSING: no file gave sst (required: SST is the minimum)"}, nil, nil},
 		{"one record in two files, and another variable", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{
 				report("sst_a.nc", 240, field(cf.RoleSST, "tos", byStd, grid2, monthly)),

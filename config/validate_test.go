@@ -4,6 +4,7 @@ import (
 	"strings"
 	"testing"
 
+	"lidscope/cf"
 	"lidscope/config"
 )
 
@@ -109,7 +110,7 @@ func TestValidation(t *testing.T) {
 		{"bad name", "datasets:\n  - name: a/b\n    inputs: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}\n", "datasets.0.name", 2, "only letters"},
 		{"duplicate name", "  - name: base\n    inputs: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}\n", "datasets.1.name", 7, "used twice"},
 		{"missing sst", "datasets:\n  - name: a\n    inputs:\n      air_temperature: ta.nc\n      cloud: clt.nc\n", "datasets.0.inputs", 3, "role sst"},
-		{"missing cloud", "datasets:\n  - name: a\n    inputs:\n      sst: sst.nc\n      air_temperature: ta.nc\n", "datasets.0.inputs", 3, "needs a cloud input"},
+		{"ectei without air temperature", "datasets:\n  - name: a\n    inputs:\n      sst: sst.nc\n      specific_humidity: ta.nc\n    metrics: {ectei: true}\n", "datasets.0.metrics", 6, "metrics.ectei needs 700 hPa temperature"},
 		{"no inputs", "datasets:\n  - name: a\n", "datasets.0", 2, "has no inputs"},
 		{"glob matches nothing", "      cloud: [clt.nc, \"cloud_*.nc\"]\n", "datasets.0.inputs.cloud.1", 7, `role cloud: no file matches "cloud_*.nc"`},
 		{"missing file", "      sea_ice: missing.nc\n", "datasets.0.inputs.sea_ice", 7, `no file matches "missing.nc"`},
@@ -276,5 +277,36 @@ func TestParseErrors(t *testing.T) {
 	_, err := config.Load(dir+"/missing.yaml", noEnv)
 	if err == nil || !strings.Contains(err.Error(), "missing.yaml") {
 		t.Errorf("missing file: %v", err)
+	}
+}
+
+// SST is the only input a study needs: without air_temperature the run
+// has no LTS/EIS, without a cloud input no cloud statistics (issue 16).
+func TestOptionalInputs(t *testing.T) {
+	dir := dataDir(t, baseFiles...)
+	for _, c := range []struct {
+		name, inputs string
+		airTemp      bool
+	}{
+		{"sst only", "      sst: sst.nc\n", false},
+		{"sst and T700", "      sst: sst.nc\n      air_temperature: ta.nc\n", true},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			path := writeFile(t, dir, "r.yaml", "datasets:\n  - name: a\n    inputs:\n"+c.inputs)
+			r, err := config.Load(path, noEnv)
+			if err != nil {
+				t.Fatal(err)
+			}
+			d := r.Datasets[0]
+			if d.Cloud != "" {
+				t.Errorf("Cloud = %q without a cloud input", d.Cloud)
+			}
+			if got := len(d.Inputs[cf.RoleAirTemp]) > 0; got != c.airTemp {
+				t.Errorf("air temperature input present = %v, want %v", got, c.airTemp)
+			}
+			if len(r.RelationsFor(&d).Responses) != 0 {
+				t.Errorf("relationship responses %v without a cloud input", r.RelationsFor(&d).Responses)
+			}
+		})
 	}
 }

@@ -188,6 +188,24 @@ func Draw(runDir string, opt Options) ([]string, error) {
 	if err := os.MkdirAll(opt.OutDir, 0o777); err != nil {
 		return nil, fmt.Errorf("figures: cannot create the figure directory: %w", err)
 	}
+	if opt.Force && len(want) == 0 {
+		// A figure of an earlier run in this folder whose inputs this run
+		// lacks (e.g. a cloud map after a run without cloud) must not stay
+		// beside the new figures.
+		drawn := map[string]bool{}
+		for _, f := range todo {
+			drawn[f.name] = true
+		}
+		for _, f := range registry {
+			if drawn[f.name] {
+				continue
+			}
+			p := filepath.Join(opt.OutDir, f.name+"."+opt.Format)
+			if err := os.Remove(p); err != nil && !errors.Is(err, fs.ErrNotExist) {
+				return nil, fmt.Errorf("figures: removing %s of an earlier run: %w", p, err)
+			}
+		}
+	}
 	var out []string
 	for _, f := range todo {
 		p, err := drawOne(run, f, opt)

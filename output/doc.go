@@ -74,8 +74,12 @@
 // (Conventions, title, source, history from Meta.Command and Meta.End):
 // dataset, lidscope_version, study_hash, metrics_conventions, regime_definition,
 // delta_K, transition_half_width_K, band, period, time_steps,
-// time_steps_per_year, regime_index, input_files and processing_notes.
-// Empty ones are left out.
+// time_steps_per_year, regime_index, input_files, processing_notes,
+// quantities (the per-column quantities the run has, space-separated) and
+// absent_quantities (what it lacks for want of an optional input: without
+// air_temperature there is no t700, lts, eis; without low_cloud or cloud no
+// cloud quantity). Absent quantities have no variables or columns in any
+// file. Empty attributes are left out.
 //
 // # series.nc and series.csv
 //
@@ -125,7 +129,8 @@
 //     inside the band that were ever valid ocean, and cells, their number;
 //   - regions: [{name, box {south, north, west, east}, rel_sst,
 //     regimes.R {area_time_share, quantities.Q}}];
-//   - notes: what the run converted or dropped, in plain words.
+//   - notes: what the run converted or dropped, in plain words;
+//   - quantities and absent_quantities: as the NetCDF attributes, as lists.
 //
 // # provenance.json
 //

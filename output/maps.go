@@ -215,6 +215,10 @@ func (c *checked) globalAttrs(notes []string) map[string]string {
 	if len(notes) > 0 {
 		a["processing_notes"] = strings.Join(notes, "\n")
 	}
+	a["quantities"] = strings.Join(c.acc.L.Quantities, " ")
+	if len(m.Absent) > 0 {
+		a["absent_quantities"] = strings.Join(m.Absent, "\n")
+	}
 	for k, v := range a {
 		if v == "" {
 			delete(a, k)

@@ -39,8 +39,14 @@ type Meta struct {
 	// the period is inferred from TimeValues (see the package
 	// documentation).
 	TimeBounds [][2]float64
-	Notes      []string   // what the run converted/dropped, in plain words
-	Grid       *grid.Grid // analysis grid (bounds for the NetCDF)
+	Notes      []string // what the run converted/dropped, in plain words
+	// Absent says which quantities the run does not have because an
+	// optional input was not given, in plain words (e.g. "no
+	// air_temperature input: no 700 hPa temperature, LTS or EIS"). The
+	// outputs list the quantities they have (those of the layout) and
+	// these; absent quantities have no variables or columns at all.
+	Absent []string
+	Grid   *grid.Grid // analysis grid (bounds for the NetCDF)
 }
 
 // InputFile identifies one file the run read.

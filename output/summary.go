@@ -32,6 +32,10 @@ type summary struct {
 	Crossings       sumCrossings                  `json:"crossings_per_year"`
 	Regions         []sumRegion                   `json:"regions"`
 	Notes           []string                      `json:"notes"`
+	// Quantities are those the run has (every per-quantity table uses
+	// them); Absent says what it lacks for want of an optional input.
+	Quantities []string `json:"quantities"`
+	Absent     []string `json:"absent_quantities"`
 }
 
 type sumStep struct {
@@ -159,6 +163,8 @@ func (c *checked) summary(notes []string) summary {
 		RegimeMeans:  map[string]map[string]meanStd{},
 		Notes:        append([]string{}, notes...),
 		Regions:      []sumRegion{},
+		Quantities:   append([]string{}, acc.L.Quantities...),
+		Absent:       append([]string{}, m.Absent...),
 	}
 	sst := make([]float64, nt)
 	for t, p := range acc.Series {

@@ -29,12 +29,33 @@ func timeKey(ta *cf.TimeAxis, t int) string {
 	return d.String()[:10]
 }
 
-// align matches the time steps of every timed field to SST's axis and
-// returns the steps per year, the steps every field has, and notes on
-// what was skipped or dropped.
+// axisOf picks the field whose time axis the run follows: SST's, unless
+// SST is a 12-month climatology and another input has a dated record
+// (monthly years, or a single month), whose steps the run then follows,
+// each using the SST of its calendar month.
+func axisOf(in *inputs) *field {
+	sst := in.sst
+	if sst.f.Time == nil || sst.f.Time.Step != cf.StepClimatology {
+		return sst
+	}
+	for _, f := range in.timed {
+		if f != sst && f.f.Time != nil && f.f.Time.Step != cf.StepClimatology {
+			return f
+		}
+	}
+	return sst
+}
+
+// align matches the time steps of every timed field to the axis the run
+// follows (axisOf, kept in in.axis): dated records by year and month
+// (monthly) or date (daily), a 12-month climatology by calendar month
+// (with a note). It returns the steps per year, the steps every field
+// has, and notes on what was aligned, skipped or dropped.
 func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, error) {
 	sst := in.sst
-	ta := sst.f.Time
+	axis := axisOf(in)
+	in.axis = axis
+	ta := axis.f.Time
 	spy := 12.0
 	switch ta.Step {
 	case cf.StepDaily:
@@ -42,8 +63,9 @@ func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, e
 	case cf.StepAnnual:
 		spy = 1
 	case cf.StepIrregular:
-		return 0, nil, nil, fmt.Errorf("role sst: the time axis is irregular (%s); lidscope needs monthly or daily steps", ta.Why)
+		return 0, nil, nil, fmt.Errorf("role %s: the time axis is irregular (%s); lidscope needs monthly or daily steps", axis.role, ta.Why)
 	}
+	var notes []string
 	for _, f := range in.timed {
 		if f.f.Time == nil {
 			if f.f.NT() != 1 {
@@ -55,9 +77,14 @@ func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, e
 		for t := range f.f.Time.Dates {
 			f.index[timeKey(f.f.Time, t)] = t
 		}
-		if f != sst && f.f.Time.Calendar != ta.Calendar && f.f.Time.Step != cf.StepClimatology {
-			return 0, nil, nil, fmt.Errorf("role %s (%s) uses the %s calendar but sst (%s) uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar), or, if a file's calendar attribute is wrong, declare the calendar in the study (time.calendar)",
-				f.role, strings.Join(f.f.Paths(), ", "), f.f.Time.Calendar, strings.Join(sst.f.Paths(), ", "), ta.Calendar)
+		clim := f.f.Time.Step == cf.StepClimatology
+		if f != axis && f.f.Time.Calendar != ta.Calendar && !clim {
+			return 0, nil, nil, fmt.Errorf("role %s (%s) uses the %s calendar but %s (%s) uses %s; lidscope matches time steps by date and will not mix calendars — convert one (e.g. cdo setcalendar), or, if a file's calendar attribute is wrong, declare the calendar in the study (time.calendar)",
+				f.role, strings.Join(f.f.Paths(), ", "), f.f.Time.Calendar, axis.role, strings.Join(axis.f.Paths(), ", "), ta.Calendar)
+		}
+		if f != axis && clim && ta.Step != cf.StepClimatology {
+			notes = append(notes, fmt.Sprintf("%s (%s) is a 12-month climatology; it is aligned with the %s record (%s) by calendar month, so every year of the record uses the same %s of each month",
+				f.role, f.f.Var, axis.role, ta.Span(), f.role))
 		}
 	}
 	var steps []stepRef
@@ -97,9 +124,8 @@ func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, e
 			steps = append(steps, st)
 		}
 	}
-	var notes []string
 	if unselected > 0 {
-		notes = append(notes, fmt.Sprintf("%d sst time steps outside the study's time selection skipped", unselected))
+		notes = append(notes, fmt.Sprintf("%d %s time steps outside the study's time selection skipped", unselected, axis.role))
 	}
 	for _, r := range cf.Roles() {
 		if m := missing[r]; len(m) > 0 {
@@ -107,8 +133,16 @@ func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, e
 			if len(ex) > 4 {
 				ex = append(append([]string{}, m[:2]...), "…", m[len(m)-1])
 			}
-			notes = append(notes, fmt.Sprintf("%d sst time steps dropped because %s has no matching step (%s)", len(m), r, strings.Join(ex, ", ")))
+			notes = append(notes, fmt.Sprintf("%d %s time steps dropped because %s has no matching step (%s)", len(m), axis.role, r, strings.Join(ex, ", ")))
 		}
+	}
+	if axis != sst {
+		what := fmt.Sprintf("its %d steps", len(steps))
+		if len(steps) == 1 {
+			what = "that month"
+		}
+		notes = append(notes, fmt.Sprintf("sst (%s) is a 12-month climatology and %s (%s) a dated record (%s): the run follows %s, each step with the sst of its calendar month, so regimes and crossings describe the climatological SST, sampled at the months of the %s record",
+			sst.f.Var, axis.role, axis.f.Var, ta.Span(), what, axis.role))
 	}
 	return spy, steps, notes, nil
 }

@@ -49,9 +49,12 @@ type stepper struct {
 func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW []float64) *stepper {
 	n := in.grid.Size()
 	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers,
-		rel: make([]float32, n), reg: make([]regimes.Regime, n), lts: make([]float32, n), eis: make([]float32, n), oceanNow: make([]bool, n)}
-	if p.Metrics.ECTEI {
-		s.ectei = make([]float32, n)
+		rel: make([]float32, n), reg: make([]regimes.Regime, n), oceanNow: make([]bool, n)}
+	if in.t700 != nil {
+		s.lts, s.eis = make([]float32, n), make([]float32, n)
+		if p.Metrics.ECTEI {
+			s.ectei = make([]float32, n)
+		}
 	}
 	if s.workers <= 0 {
 		s.workers = defaultWorkers()
@@ -64,19 +67,10 @@ func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW [
 }
 
 // quantities are the names of the per-column quantities, in the order of
-// Step.Values: sst, t700, lts, eis, the analysis cloud (named by its role,
-// low_cloud or cloud, so that outputs describe it correctly), ectei when
-// computed, then the extras.
+// Step.Values (Plan.Quantities: decided by which inputs the plan has), and
+// the analysis cloud's name ("" without a cloud input).
 func quantities(p *Plan, in *inputs) (names []string, cloud string) {
-	cloud = string(p.Cloud.Spec.Role)
-	names = []string{qSST, qT700, qLTS, qEIS, cloud}
-	if p.Metrics.ECTEI {
-		names = append(names, qECTEI)
-	}
-	for _, e := range in.extras {
-		names = append(names, string(e.role))
-	}
-	return names, cloud
+	return p.Quantities(), p.cloudQuantity()
 }
 
 // prepare runs the step compute stage on the slabs v of step st (by field
@@ -103,12 +97,19 @@ func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.
 		}
 		return v[f.slot]
 	}
-	mi := metrics.SlabInput{Ts: sstV, T700: v[in.t700.slot], Ps: slot(in.surfacePressure),
-		Humidity: slot(in.humidity), T850: slot(in.t850), Q700: slot(in.q700)}
-	if in.surfaceAir != nil {
-		mi.Ts = v[in.surfaceAir.slot]
+	var mi metrics.SlabInput    // empty without T700: no metrics to compute
+	values := [][]float32{sstV} // in the order of Plan.Quantities
+	if in.t700 != nil {
+		mi = metrics.SlabInput{Ts: sstV, T700: v[in.t700.slot], Ps: slot(in.surfacePressure),
+			Humidity: slot(in.humidity), T850: slot(in.t850), Q700: slot(in.q700)}
+		if in.surfaceAir != nil {
+			mi.Ts = v[in.surfaceAir.slot]
+		}
+		values = append(values, v[in.t700.slot], s.lts, s.eis)
 	}
-	values := [][]float32{sstV, v[in.t700.slot], s.lts, s.eis, v[in.cloud.slot]}
+	if in.cloud != nil {
+		values = append(values, v[in.cloud.slot])
+	}
 	if s.ectei != nil {
 		values = append(values, s.ectei)
 	}
@@ -149,6 +150,11 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, acc *ac
 			defer wg.Done()
 			for bl := range next {
 				lo, hi := bl[0], bl[1]
+				if s.lts == nil {
+					// no T700: no column metrics, only the accumulation
+					acc.AddCells(step, lo, hi)
+					continue
+				}
 				out := metrics.SlabOutput{LTS: s.lts[lo:hi], EIS: s.eis[lo:hi]}
 				if s.ectei != nil {
 					out.ECTEI = s.ectei[lo:hi]

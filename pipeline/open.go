@@ -30,7 +30,9 @@ type field struct {
 
 // inputs are the opened fields of a run, by what they are used for.
 type inputs struct {
-	sst, t700, cloud *field
+	sst         *field
+	t700, cloud *field // nil when the plan has none
+	axis        *field // the field whose time axis the run follows (align.go)
 	// Optional fields (nil when the plan has none).
 	surfaceAir, surfacePressure, humidity, t850, q700, seaIce *field
 	extras                                                    []*field
@@ -97,11 +99,15 @@ func openInputs(p *Plan) (in *inputs, err error) {
 	if in.sst.f.Time == nil {
 		return nil, fmt.Errorf("role sst: %s has no time axis; lidscope needs a record of time steps (a climatology must be declared with 12 steps)", strings.Join(in.sst.f.Paths(), ", "))
 	}
-	if in.t700, err = open(p.T700); err != nil {
-		return nil, err
+	if p.T700 != nil {
+		if in.t700, err = open(*p.T700); err != nil {
+			return nil, err
+		}
 	}
-	if in.cloud, err = open(p.Cloud); err != nil {
-		return nil, err
+	if p.Cloud != nil {
+		if in.cloud, err = open(*p.Cloud); err != nil {
+			return nil, err
+		}
 	}
 	// Optional inputs, opened and listed in this order (by name).
 	optional := []optionalInput{
@@ -114,6 +120,11 @@ func openInputs(p *Plan) (in *inputs, err error) {
 	}
 	for _, o := range optional {
 		if o.in == nil {
+			continue
+		}
+		if p.T700 == nil && o.name != "sea ice" {
+			// The surface and humidity fields serve LTS/EIS only.
+			in.notes = append(in.notes, fmt.Sprintf("the %s input is not read: without 700 hPa temperature there is no LTS or EIS to use it for", o.name))
 			continue
 		}
 		if *o.dst, err = open(*o.in); err != nil {
@@ -140,7 +151,13 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		return nil, fmt.Errorf("unknown ocean mask kind %q (sst, fraction or categorical)", p.Ocean.Kind)
 	}
 
-	in.all = append([]*field{in.sst, in.t700, in.cloud}, in.extras...)
+	in.all = []*field{in.sst}
+	for _, f := range []*field{in.t700, in.cloud} {
+		if f != nil {
+			in.all = append(in.all, f)
+		}
+	}
+	in.all = append(in.all, in.extras...)
 	for _, o := range optional {
 		if *o.dst != nil {
 			in.all = append(in.all, *o.dst)
@@ -165,7 +182,8 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		f.buf = make([]float32, f.f.Len())
 	}
 
-	// Time alignment on SST's axis.
+	// Time alignment on SST's axis (or the dated record a climatological
+	// SST is aligned with).
 	spy, steps, dropped, err := align(in, p.Select)
 	if err != nil {
 		return nil, err

@@ -62,8 +62,12 @@ type GridPlan struct {
 type Plan struct {
 	Dataset string
 	SST     Input
-	T700    Input
-	Cloud   Input
+	// T700 (nil when absent) adds LTS, EIS (and ECTEI) to the run; Cloud
+	// (nil when absent) adds the cloud statistics. SST is the minimum: a
+	// run without them has the regimes, crossings and series only, and
+	// its outputs leave the absent quantities out (Plan.Quantities).
+	T700  *Input
+	Cloud *Input
 	// Optional inputs (nil when absent).
 	SurfaceAir      *Input // surface air temperature, when the metrics conventions uses it
 	SurfacePressure *Input
@@ -105,13 +109,58 @@ type Result struct {
 	Acc          *accumulate.Acc
 	Grid         *grid.Grid
 	Labels       []string        // kept time steps
-	Dates        []calendar.Date // their SST time stamps
+	Dates        []calendar.Date // their time stamps (SST's, or those of the dated record a climatological SST is aligned with)
 	Sampling     cf.Step         // monthly, daily, climatology, …
 	StepsPerYear float64
 	Calendar     string
 	Notes        []string // conversions, reorderings, drops, in plain words
 	Paths        map[cf.Role][]string
 	Rejected     int // columns with physically impossible inputs (metrics NaN)
+}
+
+// Quantities lists the per-column quantities a run of p accumulates, in
+// the order of accumulate.Step.Values: sst always; t700, lts and eis when
+// p has a T700 input; the analysis cloud (named by its role, low_cloud or
+// cloud, so that outputs describe it correctly) when p has a cloud input;
+// ectei when the metrics conventions compute it (and T700 is present);
+// then the extra fields. Absent inputs give absent quantities, never
+// NaN-filled ones.
+func (p *Plan) Quantities() []string {
+	q := []string{qSST}
+	if p.T700 != nil {
+		q = append(q, qT700, qLTS, qEIS)
+	}
+	if c := p.cloudQuantity(); c != "" {
+		q = append(q, c)
+	}
+	if p.T700 != nil && p.Metrics.ECTEI {
+		q = append(q, qECTEI)
+	}
+	for _, e := range p.Extras {
+		q = append(q, string(e.Spec.Role))
+	}
+	return q
+}
+
+// cloudQuantity is the analysis cloud's quantity name ("" without one).
+func (p *Plan) cloudQuantity() string {
+	if p.Cloud == nil {
+		return ""
+	}
+	return string(p.Cloud.Spec.Role)
+}
+
+// Lacks says, in plain words, what a run of p will not have because an
+// optional input is absent (empty when it has everything).
+func (p *Plan) Lacks() []string {
+	var out []string
+	if p.T700 == nil {
+		out = append(out, "no air_temperature input: no 700 hPa temperature, LTS or EIS")
+	}
+	if p.Cloud == nil {
+		out = append(out, "no low_cloud or cloud input: no cloud statistics")
+	}
+	return out
 }
 
 // Run executes the plan.
@@ -138,7 +187,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	}
 	defer in.close()
 	res := &Result{Grid: in.grid, Paths: in.paths, Notes: in.notes, StepsPerYear: in.stepsPerYear,
-		Calendar: in.sst.f.Time.Calendar, Sampling: in.sst.f.Time.Step}
+		Calendar: in.axis.f.Time.Calendar, Sampling: in.axis.f.Time.Step}
 	log.Info("aligned", "dataset", p.Dataset, "steps", len(in.steps), "grid", in.grid.String())
 
 	// masks

@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -83,8 +84,8 @@ func testPlan(t *testing.T) Plan {
 	return Plan{
 		Dataset:    "tiny",
 		SST:        Input{Paths: []string{sp}, Spec: cf.Spec{Role: cf.RoleSST}},
-		T700:       Input{Paths: []string{tp}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
-		Cloud:      Input{Paths: []string{cp}, Spec: cf.Spec{Role: cf.RoleLowCloud}},
+		T700:       &Input{Paths: []string{tp}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
+		Cloud:      &Input{Paths: []string{cp}, Spec: cf.Spec{Role: cf.RoleLowCloud}},
 		Ocean:      Ocean{Kind: "sst"},
 		Metrics:    metrics.DefaultConventions(),
 		Classifier: regimes.Classifier{Delta: 1.5},
@@ -186,5 +187,78 @@ func TestRunRejectsMismatchedGrids(t *testing.T) {
 	p.Grid.Target = "sst"
 	if _, err := Run(context.Background(), p); err != nil {
 		t.Fatalf("with an analysis grid: %v", err)
+	}
+}
+
+// SST is the minimum input: without T700 the run has no t700/lts/eis,
+// without cloud no cloud quantity; what remains (regimes, crossings,
+// series, the quantities present) equals the full run's exactly
+// (synthetic truth: the full run is the reference).
+func TestRunOptionalInputs(t *testing.T) {
+	full := testPlan(t)
+	ref, err := Run(context.Background(), full)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name        string
+		noT, noC    bool
+		quantities  string
+		lacksPhrase string
+	}{
+		{"sst only", true, true, "sst", "LTS or EIS; no low_cloud or cloud input"},
+		{"sst and T700", false, true, "sst t700 lts eis", "no cloud statistics"},
+		{"sst and cloud", true, false, "sst low_cloud", "no 700 hPa temperature"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			p := testPlan(t)
+			if c.noT {
+				p.T700 = nil
+			}
+			if c.noC {
+				p.Cloud = nil
+			}
+			if got := strings.Join(p.Quantities(), " "); got != c.quantities {
+				t.Errorf("Quantities() = %q, want %q", got, c.quantities)
+			}
+			if l := strings.Join(p.Lacks(), "; "); !strings.Contains(l, c.lacksPhrase) {
+				t.Errorf("Lacks() = %q, want it to mention %q", l, c.lacksPhrase)
+			}
+			res, err := Run(context.Background(), p)
+			if err != nil {
+				t.Fatal(err)
+			}
+			l := res.Acc.L
+			if got := strings.Join(l.Quantities, " "); got != c.quantities {
+				t.Errorf("layout quantities %q, want %q", got, c.quantities)
+			}
+			if c.noC && l.Cloud != "" {
+				t.Errorf("layout cloud %q without a cloud input", l.Cloud)
+			}
+			if len(res.Acc.Cells.Values) != len(l.Quantities) || len(res.Acc.Series[0].Means) != len(l.Quantities) {
+				t.Errorf("%d cell and %d series quantities for %d names", len(res.Acc.Cells.Values), len(res.Acc.Series[0].Means), len(l.Quantities))
+			}
+			for i := range ref.Acc.Cells.Valid {
+				if ref.Acc.Cells.Valid[i] != res.Acc.Cells.Valid[i] || ref.Acc.Cells.Tracks[i] != res.Acc.Cells.Tracks[i] {
+					t.Fatalf("cell %d: regimes or crossings differ from the full run", i)
+				}
+			}
+			for qi, q := range l.Quantities {
+				ri := slices.Index(ref.Acc.L.Quantities, q)
+				for r := 0; r < 3; r++ {
+					for i := range ref.Acc.Cells.Valid {
+						a, b := ref.Acc.Cells.Values[ri][r][i], res.Acc.Cells.Values[qi][r][i]
+						if a != b {
+							t.Fatalf("%s, regime %d, cell %d: %+v, full run %+v", q, r, i, b, a)
+						}
+					}
+				}
+			}
+			for k := range ref.Acc.Series {
+				if ref.Acc.Series[k].TropMean != res.Acc.Series[k].TropMean || ref.Acc.Series[k].AreaFraction != res.Acc.Series[k].AreaFraction {
+					t.Fatalf("series step %d differs from the full run", k)
+				}
+			}
+		})
 	}
 }

@@ -26,12 +26,6 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	if p.SST, err = need(cf.RoleSST); err != nil {
 		return p, err
 	}
-	if p.T700, err = need(cf.RoleAirTemp); err != nil {
-		return p, err
-	}
-	if p.Cloud, err = need(d.Cloud); err != nil {
-		return p, err
-	}
 	opt := func(role cf.Role) *Input {
 		if role == "" || len(d.Inputs[role]) == 0 {
 			return nil
@@ -39,6 +33,10 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		x := in(role)
 		return &x
 	}
+	// T700 and cloud are optional (SST is the minimum); which quantities
+	// the run has follows from which of them are present.
+	p.T700 = opt(cf.RoleAirTemp)
+	p.Cloud = opt(d.Cloud)
 	if d.Surface.TemperatureRole == cf.RoleSurfaceAir {
 		if p.SurfaceAir = opt(cf.RoleSurfaceAir); p.SurfaceAir == nil {
 			return p, fmt.Errorf("dataset %s: the metrics use surface air temperature but no surface_air_temp input is given", d.Name)
@@ -46,7 +44,7 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	}
 	p.SurfacePressure = opt(d.Surface.PressureRole)
 	p.Humidity = opt(d.Surface.HumidityRole)
-	if d.Metrics.T850Field {
+	if d.Metrics.T850Field && p.T700 != nil {
 		x := Input{Paths: d.Inputs[cf.RoleAirTemp], Spec: d.SpecAt(cf.RoleAirTemp, d.Metrics.LapsePressure)}
 		p.T850 = &x
 	}

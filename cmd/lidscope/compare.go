@@ -108,10 +108,14 @@ func writeComparison(w io.Writer, res *compare.Result) {
 		fmt.Fprintf(w, " %12s", c.Name)
 	}
 	fmt.Fprintln(w)
-	for i, s := range res.ReferenceScalars {
+	for _, s := range res.ReferenceScalars {
 		fmt.Fprintf(w, "%-34s %12.5g", s.Name+" ["+s.Units+"]", s.Cand)
 		for _, c := range res.Candidates {
-			fmt.Fprintf(w, " %12.5g", c.Scalars[i].Cand)
+			if cs, ok := c.Scalar(s.Name); ok {
+				fmt.Fprintf(w, " %12.5g", cs.Cand)
+			} else {
+				fmt.Fprintf(w, " %12s", "—")
+			}
 		}
 		fmt.Fprintln(w)
 	}
