@@ -77,12 +77,12 @@ func TestBadMissingRole(t *testing.T) {
 		}, func(d string) []string {
 			return []string{"study.yaml:7: datasets.0.inputs:", `analysis.cloud is low_cloud, but dataset "bad-input" has no low_cloud input`}
 		}},
-		{"no air_temperature input in the study", func(t *testing.T, d string) string {
+		{"no sst input in the study", func(t *testing.T, d string) string {
 			return badStudy(t, d, func(s string) string {
-				return replaceOnce(s, `      air_temperature: "air_temperature/*.nc"`, `      # air temperature left out`)
+				return replaceOnce(s, `      sst: "sst/*.nc"`, `      # sst left out`)
 			})
 		}, func(d string) []string {
-			return []string{"study.yaml:7: datasets.0.inputs:", "needs an input for role air_temperature (inputs.air_temperature)"}
+			return []string{"study.yaml:7: datasets.0.inputs:", "needs an input for role sst (inputs.sst): SST is the minimum"}
 		}},
 		{"the glob matches no file", func(t *testing.T, d string) string {
 			for _, f := range badFiles(t, d, "low_cloud", 2) {
