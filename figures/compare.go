@@ -165,7 +165,7 @@ func (f *fig) comparisonMapPage(variable, specName string, ref, cand *Run) (*pag
 	lo, hi := m.limits(both)
 	dlo, dhi := divergingLimits(diffs)
 	seq := f.scale(m.palette, lo, hi)
-	// The diverging map of anomalies (tide unless overridden).
+	// The diverging map of anomalies (fulcrum unless overridden).
 	div := f.scale("relative_sst", dlo, dhi)
 	w := chooseWindow(rf)
 	// Show the tropical band (with a margin), where regimes are defined.

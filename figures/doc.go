@@ -33,12 +33,16 @@
 // # Colour maps
 //
 // Colour maps are lidscope's own straight CIELAB lightness ramps (package
-// figures/internal/ramp): "dusk" (sequential) for fractions, frequencies,
-// cloud and LTS; "tide" (diverging, centred on zero, symmetric limits at
-// the larger magnitude of the 2nd and 98th percentiles) for EIS and
-// relative SST; "ash" (neutral) for counts. Their perceptual uniformity
-// (CAM02-UCS) and their order under simulated colour-vision deficiency are
-// tested against colorspacious. Options.Palettes overrides the map of a
+// figures/internal/ramp): "fathom" (sequential, deep blue-green through
+// violet and rose to pale peach) for fractions, frequencies, cloud and
+// LTS; "fulcrum" (diverging, blue-green below zero and sand to rust above,
+// centred on zero, symmetric limits at the larger magnitude of the 2nd and
+// 98th percentiles) for EIS and relative SST; "pumice" (neutral grey) for
+// counts. Their perceptual uniformity (CAM02-UCS) and their order under
+// simulated colour-vision deficiency are tested against colorspacious,
+// their lightness is monotone for greyscale printing, and their lightness
+// and hue tracks are tested to follow none of the colour maps of a widely
+// used plotting library. Options.Palettes overrides the map of a
 // kind of quantity (PaletteKeys); "NAME-reversed" runs a map backwards.
 // Line colours are from Wong's (2011) colour-blind-safe set.
 //

@@ -203,7 +203,7 @@ func TestOptionsErrors(t *testing.T) {
 		{Options{Format: "gif"}, "unknown format"},
 		{Options{Only: []string{"map_rainfall"}}, "unknown figure"},
 		{Options{Palettes: map[string]string{"eis": "rainbow"}}, "unknown colour map"},
-		{Options{Palettes: map[string]string{"wind": "dusk"}}, "unknown kind of quantity"},
+		{Options{Palettes: map[string]string{"wind": "fathom"}}, "unknown kind of quantity"},
 		{Options{DPI: 5}, "DPI"},
 		{Options{Only: []string{"map_low_cloud"}, OutDir: t.TempDir()}, "no variable low_cloud_mean"},
 	}

@@ -26,10 +26,17 @@ type mapSpec struct {
 	vars []string
 	// scale multiplies the values for display (100 for fractions shown in
 	// per cent).
-	factor   float64
-	label    string // colour bar label with units
-	palette  string // palette key
-	limits   func(vals []float64) (lo, hi float64)
+	factor  float64
+	label   string // colour bar label with units
+	palette string // palette key
+	limits  func(vals []float64) (lo, hi float64)
+	// inBand takes the limits from the columns inside the regime band
+	// only: relative SST is measured against the tropical mean and is
+	// tens of kelvin negative towards the poles, which would otherwise
+	// stretch the colour range over values the regimes never see (they
+	// are drawn in the end colour and marked by the colour bar's
+	// triangle).
+	inBand   bool
 	describe string
 }
 
@@ -75,7 +82,7 @@ var mapSpecs = []mapSpec{
 		describe: "map of the time-mean low-cloud fraction over each column's valid steps"},
 	{name: "map_relative_sst", title: "Mean relative SST (SST − tropical-mean SST)",
 		read: mapVar("rel_sst_mean"), vars: []string{"rel_sst_mean"}, factor: 1,
-		label: "Relative SST (K)", palette: "relative_sst", limits: divergingLimits,
+		label: "Relative SST (K)", palette: "relative_sst", limits: divergingLimits, inBand: true,
 		describe: "map of the time-mean SST relative to the tropical mean"},
 }
 
@@ -414,7 +421,7 @@ func (f *fig) mapPage(m mapSpec) (*page, error) {
 			minV, maxV = math.Min(minV, shown[i]), math.Max(maxV, shown[i])
 		}
 	}
-	lo, hi := m.limits(shown)
+	lo, hi := m.limits(limitValues(fl, shown, m.inBand, f.run.BandSouth, f.run.BandNorth))
 	sc := f.scale(m.palette, lo, hi)
 	rs := &raster{field: fl, factor: m.factor, scale: sc, dpi: f.rasterDPI()}
 	p := f.mapPlot(fl, w, rs)
@@ -443,6 +450,26 @@ func (f *fig) mapPage(m mapSpec) (*page, error) {
 		f.missingKey(c, vg.Point{X: r.Max.X + bar + 14, Y: by}, bar, "no data or land")
 	}
 	return pg, nil
+}
+
+// limitValues returns the values that set a map's colour limits: all of
+// them, or with inBand those of the rows whose latitude lies in [south,
+// north] (all of them when the band is unknown or holds no row).
+func limitValues(fl *Field, shown []float64, inBand bool, south, north float64) []float64 {
+	if !inBand || !(north > south) {
+		return shown
+	}
+	nlon := len(fl.Lon)
+	var out []float64
+	for j, lat := range fl.Lat {
+		if lat >= south && lat <= north {
+			out = append(out, shown[j*nlon:(j+1)*nlon]...)
+		}
+	}
+	if len(out) == 0 {
+		return shown
+	}
+	return out
 }
 
 // nullCanvas measures layouts without drawing.

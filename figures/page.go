@@ -114,8 +114,8 @@ func (f *fig) newPlot() *plot.Plot {
 		a.Tick.Width = 0.6
 		a.Label.Padding = 2
 	}
-	p.X.Tick.Marker = f.ticks(plot.DefaultTicks{})
-	p.Y.Tick.Marker = f.ticks(plot.DefaultTicks{})
+	p.X.Tick.Marker = f.ticks(roundTicks{})
+	p.Y.Tick.Marker = f.ticks(roundTicks{})
 	p.Legend.TextStyle = style(sizeLegend, false)
 	p.Legend.ThumbnailWidth = 0.3 * vg.Inch
 	p.Legend.Padding = 2

@@ -12,13 +12,13 @@ import (
 // maps for fractions, frequencies and other one-signed quantities,
 // diverging maps centred on zero for quantities of either sign.
 var paletteDefaults = map[string]string{
-	"fraction":     "dusk", // time and area fractions of a regime
-	"frequency":    "dusk", // regime crossings per year, joint-composite frequency
-	"cloud":        "dusk", // cloud fractions
-	"lts":          "dusk", // lower-tropospheric stability
-	"eis":          "tide", // estimated inversion strength (either sign)
-	"relative_sst": "tide", // SST minus tropical-mean SST (an anomaly)
-	"count":        "ash",  // sample counts drawn behind data
+	"fraction":     "fathom",  // time and area fractions of a regime
+	"frequency":    "fathom",  // regime crossings per year, joint-composite frequency
+	"cloud":        "fathom",  // cloud fractions
+	"lts":          "fathom",  // lower-tropospheric stability
+	"eis":          "fulcrum", // estimated inversion strength (either sign)
+	"relative_sst": "fulcrum", // SST minus tropical-mean SST (an anomaly)
+	"count":        "pumice",  // sample counts drawn behind data
 }
 
 // PaletteKeys lists the kinds of quantity whose colour map Options.Palettes
@@ -48,7 +48,7 @@ func (f *fig) scale(key string, lo, hi float64) colourScale {
 	}
 	m, err := ramp.ByName(name)
 	if err != nil { // validated in Options.normalise
-		m, _ = ramp.ByName("dusk")
+		m, _ = ramp.ByName("fathom")
 	}
 	return colourScale{m: m, lo: lo, hi: hi, table: m.Table(256)}
 }

@@ -182,7 +182,11 @@ func (f *fig) jointPage() (*page, error) {
 	}
 	bw := bodyWidth()
 	head := f.header(fmt.Sprintf("Joint composite over relative SST × EIS (tropical band, %s)", modeText(res)), bw)
-	key := textBlock{wrap(f.t("Dashed lines: the regime thresholds of relative SST. Grey: bins without samples."),
+	keyText := "Dashed line: the regime threshold of relative SST. Grey: bins without samples."
+	if h := f.run.HalfWidth; h > 0 && !math.IsNaN(h) {
+		keyText = "Dashed lines: the regime thresholds of relative SST. Grey: bins without samples."
+	}
+	key := textBlock{wrap(f.t(keyText),
 		withColour(style(sizeFooter+0.5, false), subtleColour), bw), withColour(style(sizeFooter+0.5, false), subtleColour)}
 	const panelH = 2.9 * vg.Inch
 	pg := &page{header: head, footer: f.footer(bw), bodyH: panelH + 6 + key.height()}

@@ -111,7 +111,7 @@ func (f *fig) seriesPage() (*page, error) {
 	}
 	top := mk()
 	top.Y.Label.Text = f.t("Tropical-mean SST (K)")
-	top.Y.Tick.Marker = f.ticks(plot.DefaultTicks{})
+	top.Y.Tick.Marker = f.ticks(roundTicks{})
 	if l, err := plotter.NewLine(xys(s.Years, s.TropMeanSST, 1)); err == nil && len(xys(s.Years, s.TropMeanSST, 1)) > 0 {
 		l.Color, l.Width = lineBlack, 1
 		top.Add(l)

@@ -34,7 +34,7 @@ func (p paletteFlag) Type() string   { return "KIND=MAP" }
 func (p paletteFlag) Set(v string) error {
 	k, m, ok := strings.Cut(v, "=")
 	if !ok || strings.TrimSpace(k) == "" || strings.TrimSpace(m) == "" {
-		return fmt.Errorf("--palette wants KIND=MAP (e.g. eis=tide)")
+		return fmt.Errorf("--palette wants KIND=MAP (e.g. eis=fulcrum)")
 	}
 	p[strings.TrimSpace(k)] = strings.TrimSpace(m)
 	return nil

@@ -52,7 +52,7 @@ func TestPlotCommand(t *testing.T) {
 	// SVG into another directory with a palette override.
 	out.Reset()
 	other := filepath.Join(t.TempDir(), "figs")
-	if code := run([]string{"plot", "--format", "svg", "--out", other, "--palette", "eis=dusk", "--only", "map_eis", dir}, &out, &errb); code != 0 {
+	if code := run([]string{"plot", "--format", "svg", "--out", other, "--palette", "eis=fathom", "--only", "map_eis", dir}, &out, &errb); code != 0 {
 		t.Fatalf("svg: exit %d: %s", code, errb.String())
 	}
 	if _, err := os.Stat(filepath.Join(other, "map_eis.svg")); err != nil {

@@ -8,16 +8,26 @@
 // so that the whole path lies inside the sRGB gamut (checked by the tests,
 // so no colour is clipped):
 //
-//   - Dusk (sequential, for fractions, frequencies and other non-negative
-//     quantities): L* 18 → 94, hue 290° → 100° (violet-blue, teal, green,
-//     yellow-green), chroma 25 up to 45 % of the way, then rising to 80.
-//   - Tide (diverging, for anomalies and quantities centred on zero): L* 96
-//     at the centre falling linearly to 35 at both ends; hue 255° (blue) for
-//     negative values, 40° (red-orange) for positive ones; chroma 0 at the
-//     centre rising linearly to a peak at 60 % of each half and easing
-//     towards the end (blue: peak 38, end 27; red: peak 42, end 40).
-//   - Ash (sequential, neutral): L* 25 → 92 with zero chroma, for counts
+//   - Fathom (sequential, for fractions, frequencies and other one-signed
+//     quantities): L* 18 → 94; hue turns from 200° (deep blue-green)
+//     through 274° (slate blue), 314° (violet) and 348° (rose) to 60°
+//     (pale peach); chroma rises from 12 to 42 at the middle and falls to 8
+//     at the light end, the largest the sRGB gamut allows near the dark and
+//     light ends. The hue turns at a rate inversely proportional to the
+//     chroma, so that every step of the map moves the colour by the same
+//     hue difference ΔH* (CIE 15:2004 eq. 8.9) as well as the same ΔL*.
+//   - Fulcrum (diverging, for anomalies and quantities centred on zero):
+//     L* 96 at the centre falling linearly to 33 at both ends; negative
+//     values turn from 195° (pale aqua) to 240° (deep blue-green),
+//     positive ones from 80° (pale sand) to 40° (rust); chroma 0 at the
+//     centre rising linearly to a peak at 60 % of each half and then easing
+//     towards the end (negative: peak 30, end 22; positive: peak 42, end 45).
+//   - Pumice (sequential, neutral): L* 25 → 92 with zero chroma, for counts
 //     drawn behind coloured data.
+//
+// The maps are lidscope's own: a test compares their sampled lightness and
+// hue tracks with every colour map of a widely used plotting library and
+// refuses any that follows one.
 //
 // Conversions follow CIE 15:2004 (CIELAB, D65 white point of the sRGB
 // standard) and IEC 61966-2-1:1999 (the sRGB transfer function and
@@ -213,12 +223,43 @@ func (m Map) Table(n int) []color.RGBA {
 // lerp is linear interpolation.
 func lerp(a, b, t float64) float64 { return a + (b-a)*t }
 
-func dusk(t float64) Lab {
-	c := 25.0
-	if t > 0.45 {
-		c = 25 + 55*math.Pow((t-0.45)/0.55, 1.5)
+// fathomChroma holds the chroma of fathom at t = 0, 1/6, …, 1 (linear in
+// between).
+var fathomChroma = [...]float64{12, 20, 30, 42, 38, 26, 8}
+
+// fathomHue0 and fathomHue1 are fathom's hue angles at t = 0 and t = 1
+// (degrees; 420° is 60°).
+const fathomHue0, fathomHue1 = 200.0, 420.0
+
+// fathomTurn returns G(t) = ∫₀ᵗ ds / C(s) for fathom's piecewise-linear
+// chroma C (exact on each piece: ∫ dt/(c + kt) = ln((c + kt)/c)/k).
+func fathomTurn(t float64) float64 {
+	n := len(fathomChroma) - 1
+	w := 1 / float64(n)
+	g := 0.0
+	for i := 0; i < n; i++ {
+		a, b := fathomChroma[i], fathomChroma[i+1]
+		u := math.Min(w, t-float64(i)*w)
+		if u <= 0 {
+			break
+		}
+		if k := (b - a) / w; k == 0 {
+			g += u / a
+		} else {
+			g += math.Log((a+k*u)/a) / k
+		}
 	}
-	return LCh(lerp(18, 94, t), c, lerp(290, 100, t))
+	return g
+}
+
+var fathomTurnTotal = fathomTurn(1)
+
+func fathom(t float64) Lab {
+	n := float64(len(fathomChroma) - 1)
+	i := math.Min(math.Floor(t*n), n-1)
+	c := lerp(fathomChroma[int(i)], fathomChroma[int(i)+1], t*n-i)
+	h := lerp(fathomHue0, fathomHue1, fathomTurn(t)/fathomTurnTotal)
+	return LCh(lerp(18, 94, t), c, h)
 }
 
 // rise is the chroma of a diverging half at distance s in [0, 1] from the
@@ -230,22 +271,22 @@ func rise(s, peak, end float64) float64 {
 	return lerp(peak, end, (s-0.6)/0.4)
 }
 
-func tide(t float64) Lab {
+func fulcrum(t float64) Lab {
 	s := 2*t - 1
 	a := math.Abs(s)
-	l := lerp(96, 35, a)
+	l := lerp(96, 33, a)
 	if s < 0 {
-		return LCh(l, rise(a, 38, 27), 255)
+		return LCh(l, rise(a, 30, 22), lerp(195, 240, a))
 	}
-	return LCh(l, rise(a, 42, 40), 40)
+	return LCh(l, rise(a, 42, 45), lerp(80, 40, a))
 }
 
-func ash(t float64) Lab { return Lab{lerp(25, 92, t), 0, 0} }
+func pumice(t float64) Lab { return Lab{lerp(25, 92, t), 0, 0} }
 
 var maps = map[string]Map{
-	"dusk": {Name: "dusk", Kind: Sequential, Path: dusk},
-	"tide": {Name: "tide", Kind: Diverging, Path: tide},
-	"ash":  {Name: "ash", Kind: Sequential, Path: ash},
+	"fathom":  {Name: "fathom", Kind: Sequential, Path: fathom},
+	"fulcrum": {Name: "fulcrum", Kind: Diverging, Path: fulcrum},
+	"pumice":  {Name: "pumice", Kind: Sequential, Path: pumice},
 }
 
 // ReversedSuffix, appended to a map's name, names the map run backwards.

@@ -73,9 +73,9 @@ func TestMapsDesign(t *testing.T) {
 		neutralCentre  bool
 		monotoneDarkUp bool
 	}{
-		{"dusk", Sequential, 18, 56, 94, false, true},
-		{"ash", Sequential, 25, 58.5, 92, true, true},
-		{"tide", Diverging, 35, 96, 35, true, false},
+		{"fathom", Sequential, 18, 56, 94, false, true},
+		{"pumice", Sequential, 25, 58.5, 92, true, true},
+		{"fulcrum", Diverging, 33, 96, 33, true, false},
 	}
 	for _, c := range cases {
 		m, err := ByName(c.name)
@@ -116,9 +116,9 @@ func TestMapsDesign(t *testing.T) {
 	if _, err := ByName("rainbow"); err == nil {
 		t.Error("ByName accepted an unknown map")
 	}
-	r, err := ByName("dusk" + ReversedSuffix)
-	if err != nil || r.At(0) != dusk(1) {
-		t.Errorf("reversed dusk: %v, %+v", err, r.At(0))
+	r, err := ByName("fathom" + ReversedSuffix)
+	if err != nil || r.At(0) != fathom(1) {
+		t.Errorf("reversed fathom: %v, %+v", err, r.At(0))
 	}
 }
 
@@ -230,7 +230,7 @@ func TestMapsAgainstColorspacious(t *testing.T) {
 }
 
 func BenchmarkTable(b *testing.B) {
-	m, _ := ByName("dusk")
+	m, _ := ByName("fathom")
 	for b.Loop() {
 		m.Table(256)
 	}
