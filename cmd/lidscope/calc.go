@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -16,57 +17,115 @@ import (
 
 // calcOptions are the options of `lidscope calc`: quantities as typed on
 // the command line ("16.85degC", "1013hPa", "80%"; bare numbers are SI) and
-// the metrics conventions by name. Empty strings mean "not given".
+// the metrics conventions by name, with the names and values of the study
+// keys (calcStudyKeys). Empty strings mean "not given".
 type calcOptions struct {
-	SST, TSurf, T700, Ps      string
+	// the column: values of the input roles
+	SST, SurfaceAirTemp, T700 string
 	RH, DewPoint, SpecificHum string
 	T850, Q700                string
+	SurfaceTemperature        string // surface.temperature: sst | air | "" (from which of SST and SurfaceAirTemp is given)
+	SurfacePressure           string // surface.pressure: a pressure
+	SurfaceHumidity           string // surface.humidity: an assumed RH, "field" or a humidity role
 	SVP, LCL, LapseMoisture   string
 	LapsePressure             string
-	LatentHeat                string // "constant" or "bolton"
+	ECTEI                     bool // metrics.ectei; with ECTEISet false, ECTEI is on when Q700 is given
+	ECTEISet                  bool
 	ECTEISurface              string
 	Beta                      float64
+	Constants                 metrics.Constants
 	JSON                      bool
+}
+
+// calcStudyKeys pairs every calc flag that sets a metrics convention with
+// the study key (package config, under each dataset) of the same setting.
+// The flag is the key with "-" for "_", without "metrics." and
+// "constants." and with "surface." as "surface-", and it takes the same
+// values: a user can copy one to the other. Values that name a field of a
+// file ("field", a humidity role) have their calc counterpart in the flag
+// of that input's value.
+var calcStudyKeys = []struct{ Flag, Key string }{
+	{"surface-temperature", "surface.temperature"},
+	{"surface-pressure", "surface.pressure"},
+	{"surface-humidity", "surface.humidity"},
+	{"svp", "metrics.svp"},
+	{"lcl", "metrics.lcl"},
+	{"t850", "metrics.t850"},
+	{"lapse-pressure", "metrics.lapse_pressure"},
+	{"lapse-moisture", "metrics.lapse_moisture"},
+	{"ectei", "metrics.ectei"},
+	{"ectei-beta", "metrics.ectei_beta"},
+	{"ectei-surface", "metrics.ectei_surface"},
+	{"rd", "metrics.constants.rd"},
+	{"rv", "metrics.constants.rv"},
+	{"cpd", "metrics.constants.cpd"},
+	{"lv0", "metrics.constants.lv0"},
+	{"lv-slope", "metrics.constants.lv_slope"},
+	{"g", "metrics.constants.g"},
+	{"p0", "metrics.constants.p0"},
 }
 
 func init() { addCommand(newCalcCmd) }
 
 func newCalcCmd(e *env) *cobra.Command {
-	var o calcOptions
+	o := calcOptions{Constants: metrics.DefaultConstants()}
 	cmd := &cobra.Command{
-		Use:   "calc (--sst T | --tsurf T) --t700 T [flags]",
+		Use:   "calc (--sst T | --surface-air-temp T) --t700 T [flags]",
 		Short: "compute LTS, EIS and their ingredients for one column",
 		Long: `Computes LTS, EIS and their ingredients for one column, printing every
 intermediate value with its unit and the metrics conventions used. Quantities take a unit
 (290K, 16.85degC, 1013hPa, 80%, 12g/kg); a bare number is in SI units
-(K, Pa, fraction, kg/kg). Without --rh, --dewpoint or --shum the near-surface
-relative humidity is assumed to be 0.8, and the output says so.`,
+(K, Pa, fraction, kg/kg). Without --relative-humidity, --dew-point or
+--specific-humidity the near-surface relative humidity is assumed to be 0.8
+(--surface-humidity), and the output says so.
+
+The flags that choose the metrics conventions have the names and values of the study
+keys of the same settings (--svp bolton is metrics.svp: bolton, --surface-pressure
+1013hPa is surface.pressure: 1013hPa, --lv-slope 2370 is metrics.constants.lv_slope:
+2370), so a column computed here uses what a study with the same keys uses.`,
 		Example: `  lidscope calc --sst 16.85degC --t700 282K
-  lidscope calc --sst 300K --t700 10.85degC --ps 1015hPa --dewpoint 295K --t850 290K --q700 4g/kg --json`,
+  lidscope calc --sst 300K --t700 10.85degC --surface-pressure 1015hPa --dew-point 295K --t850 290K --q700 4g/kg --json
+  lidscope calc --surface-air-temp 289K --t700 281K --svp bolton --lcl bolton --lv-slope 2370`,
 		Args: noArgs("calc takes no arguments, only flags"),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			o.ECTEISet = cmd.Flags().Changed("ectei")
 			return runCalc(o, e.stdout)
 		},
 	}
 	fs := cmd.Flags()
 	fs.SortFlags = false
-	fs.StringVar(&o.SST, "sst", "", "sea surface temperature (stands in for the surface air temperature)")
-	fs.StringVar(&o.TSurf, "tsurf", "", "near-surface air temperature, instead of --sst")
+	d := metrics.DefaultConventions()
+	fs.StringVar(&o.SST, "sst", "", "sea surface temperature (role sst)")
+	fs.StringVar(&o.SurfaceAirTemp, "surface-air-temp", "", "near-surface air temperature (role surface_air_temp), instead of or beside --sst")
 	fs.StringVar(&o.T700, "t700", "", "temperature at 700 hPa (required)")
-	fs.StringVar(&o.Ps, "ps", "1000hPa", "surface pressure")
-	fs.StringVar(&o.RH, "rh", "", "near-surface relative humidity over liquid water (0.8 or 80%)")
-	fs.StringVar(&o.DewPoint, "dewpoint", "", "near-surface dew point")
-	fs.StringVar(&o.SpecificHum, "shum", "", "near-surface specific humidity (kg/kg or g/kg)")
-	fs.StringVar(&o.T850, "t850", "", "temperature at the lapse-rate level (default (T_surface + T700)/2)")
-	fs.StringVar(&o.Q700, "q700", "", "specific humidity at 700 hPa; adds ECTEI")
-	fs.StringVar(&o.SVP, "svp", "murphy-koop", "saturation vapour pressure: murphy-koop or bolton")
-	fs.StringVar(&o.LCL, "lcl", "romps", "lifting condensation level: romps, bolton or linear")
-	fs.StringVar(&o.LapseMoisture, "lapse-moisture", "qs", "saturation humidity in the lapse rate: qs or rs")
-	fs.StringVar(&o.LapsePressure, "lapse-level", "850hPa", "pressure where the moist-adiabat θ gradient is evaluated")
-	fs.StringVar(&o.LatentHeat, "latent-heat", "constant", "latent heat: constant (2.501e6 J/kg) or bolton (Bolton 1980 eq. 2, falls with T)")
-	fs.StringVar(&o.ECTEISurface, "ectei-qsurf", "air", "q_surface of ECTEI: air (from the humidity input) or saturated (qs at the surface)")
-	fs.Float64Var(&o.Beta, "ectei-beta", metrics.KawaiBeta, "β of ECTEI")
+	fs.StringVar(&o.RH, "relative-humidity", "", "near-surface relative humidity over liquid water, 0.8 or 80% (role relative_humidity)")
+	fs.StringVar(&o.DewPoint, "dew-point", "", "near-surface dew point (role dew_point)")
+	fs.StringVar(&o.SpecificHum, "specific-humidity", "", "near-surface specific humidity, kg/kg or g/kg (role specific_humidity)")
+	fs.StringVar(&o.Q700, "q700", "", "specific humidity at 700 hPa; turns --ectei on unless it is given")
+	fs.StringVar(&o.SurfaceTemperature, "surface-temperature", "", "which temperature is the surface's: sst or air (default: the one given, sst when both are)")
+	fs.StringVar(&o.SurfacePressure, "surface-pressure", "1000hPa", "surface pressure")
+	fs.StringVar(&o.SurfaceHumidity, "surface-humidity", calcDefaultRH, "assumed near-surface relative humidity (0.8 or 80%), or the humidity input to use: relative_humidity, dew_point, specific_humidity or field")
+	fs.StringVar(&o.SVP, "svp", d.SVP.String(), "saturation vapour pressure: murphy-koop or bolton")
+	fs.StringVar(&o.LCL, "lcl", d.LCL.String(), "lifting condensation level: romps, bolton or linear")
+	fs.StringVar(&o.T850, "t850", "mean", "temperature at the lapse-rate level: mean ((T_surface + T700)/2) or its value, e.g. 288K")
+	fs.StringVar(&o.LapsePressure, "lapse-pressure", "850hPa", "pressure where the moist-adiabat θ gradient is evaluated")
+	fs.StringVar(&o.LapseMoisture, "lapse-moisture", d.LapseMoisture.String(), "saturation humidity in the lapse rate: qs or rs")
+	fs.BoolVar(&o.ECTEI, "ectei", false, "compute ECTEI (needs --q700)")
+	fs.Float64Var(&o.Beta, "ectei-beta", d.ECTEIBeta, "β of ECTEI")
+	fs.StringVar(&o.ECTEISurface, "ectei-surface", d.ECTEISurface.String(), "q_surface of ECTEI: air (from the humidity input) or saturated (qs at the surface)")
+	c := &o.Constants
+	fs.Float64Var(&c.Rd, "rd", c.Rd, "gas constant of dry air, J kg-1 K-1")
+	fs.Float64Var(&c.Rv, "rv", c.Rv, "gas constant of water vapour, J kg-1 K-1")
+	fs.Float64Var(&c.Cpd, "cpd", c.Cpd, "specific heat of dry air at constant pressure, J kg-1 K-1")
+	fs.Float64Var(&c.Lv0, "lv0", c.Lv0, "latent heat of vaporisation at 0 °C, J kg-1")
+	fs.Float64Var(&c.LvSlope, "lv-slope", c.LvSlope, "fall of the latent heat with temperature, J kg-1 K-1 (2370: Bolton 1980 eq. 2)")
+	fs.Float64Var(&c.G, "g", c.G, "gravitational acceleration, m s-2")
+	fs.Float64Var(&c.P0, "p0", c.P0, "reference pressure of θ, Pa")
 	fs.BoolVar(&o.JSON, "json", false, "write the result as JSON")
+	for _, k := range calcStudyKeys {
+		f := fs.Lookup(k.Flag)
+		f.Usage += " [study key " + k.Key + "]"
+	}
 	return cmd
 }
 
@@ -116,18 +175,77 @@ func parseQ(flag string, kind units.Kind, s string) (calcQuantity, error) {
 	return q, nil
 }
 
-func oneOf(names ...string) (string, int) {
-	n, first := 0, ""
-	for i := 0; i < len(names); i += 2 {
-		if names[i+1] != "" {
-			n++
-			if first == "" {
-				first = names[i]
-			}
+// calcHumidity sets the near-surface humidity of the column: an assumed
+// relative humidity (surface.humidity), or the value of one humidity input.
+func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput, rep *calcReport) error {
+	given := []struct {
+		flag, role, value string
+		kind              units.Kind
+		source            metrics.HumiditySource
+	}{
+		{"relative-humidity", "relative_humidity", o.RH, units.Fraction, metrics.HumidityRH},
+		{"dew-point", "dew_point", o.DewPoint, units.Temperature, metrics.HumidityDewPoint},
+		{"specific-humidity", "specific_humidity", o.SpecificHum, units.MixingRatio, metrics.HumiditySpecific},
+	}
+	var flags []string
+	use := -1
+	for i, g := range given {
+		if g.value != "" {
+			flags = append(flags, "--"+g.flag)
+			use = i
 		}
 	}
-	return first, n
+	if len(flags) > 1 {
+		return usageErr("give one of --relative-humidity, --dew-point and --specific-humidity, not several (%s)", strings.Join(flags, ", "))
+	}
+	choice := o.SurfaceHumidity
+	named := -1
+	for i, g := range given {
+		if choice == g.role {
+			named = i
+		}
+	}
+	switch {
+	case named >= 0:
+		if use != named {
+			return usageErr("--surface-humidity %s needs its value: give --%s", choice, given[named].flag)
+		}
+	case choice == "field":
+		if use < 0 {
+			return usageErr("--surface-humidity field needs a humidity value: give --relative-humidity, --dew-point or --specific-humidity")
+		}
+	case use >= 0 && choice != "" && choice != calcDefaultRH:
+		return usageErr("--surface-humidity %s assumes a relative humidity, and --%s gives one: give one of them", choice, given[use].flag)
+	case use < 0:
+		// an assumed relative humidity, as surface.humidity: 0.8 in a study
+		if choice == "" {
+			choice = calcDefaultRH
+		}
+		rh, _, err := units.ParseQuantity(units.Fraction, choice)
+		if err != nil || !(rh > 0 && rh <= 1) {
+			return usageErr("--surface-humidity %q: give an assumed relative humidity in (0, 1] (0.8 or 80%%), or relative_humidity, dew_point, specific_humidity or field", choice)
+		}
+		r.Humidity = metrics.HumidityAssumedRH
+		r.AssumedRH = rh
+		rep.Assumptions = append(rep.Assumptions, fmt.Sprintf("near-surface relative humidity %g assumed (--surface-humidity; no --relative-humidity, --dew-point or --specific-humidity given)", rh))
+		return nil
+	}
+	g := given[use]
+	q, err := parseQ(g.flag, g.kind, g.value)
+	if err != nil {
+		return err
+	}
+	if g.source == metrics.HumidityRH && !(q.Value >= 0 && q.Value <= 1.05) {
+		return usageErr("--relative-humidity %s is %g: relative humidity must be a fraction in [0, 1.05] (write 0.8 or 80%%)", g.value, q.Value)
+	}
+	r.Humidity = g.source
+	rep.Inputs[g.role] = q
+	in.Humidity = q.Value
+	return nil
 }
+
+// calcDefaultRH is the --surface-humidity default as written.
+var calcDefaultRH = strconv.FormatFloat(metrics.DefaultAssumedRH, 'g', -1, 64)
 
 // runCalc computes one column from o and writes the report to w.
 func runCalc(o calcOptions, w io.Writer) error {
@@ -143,32 +261,36 @@ func runCalc(o calcOptions, w io.Writer) error {
 		return usageErr("--lapse-moisture: %v", err)
 	}
 	if r.ECTEISurface, err = metrics.ParseECTEISurface(o.ECTEISurface); err != nil {
-		return usageErr("--ectei-qsurf: %v", err)
+		return usageErr("--ectei-surface: %v", err)
 	}
-	switch o.LatentHeat {
-	case "constant":
-	case "bolton":
-		r.Constants.LvSlope = metrics.BoltonLvSlope
-	default:
-		return usageErr("--latent-heat: %q is not constant or bolton", o.LatentHeat)
-	}
+	r.Constants = o.Constants
 	r.ECTEIBeta = o.Beta
 
 	rep := calcReport{Inputs: map[string]calcQuantity{}}
 	in := metrics.ColumnInput{}
 
-	// surface temperature
+	// surface temperature: surface.temperature, from --sst or --surface-air-temp
+	which := o.SurfaceTemperature
 	switch {
-	case o.SST != "" && o.TSurf != "":
-		return usageErr("give either --sst or --tsurf, not both")
-	case o.SST == "" && o.TSurf == "":
-		return usageErr("give the surface temperature with --sst (sea surface) or --tsurf (near-surface air)")
+	case o.SST == "" && o.SurfaceAirTemp == "":
+		return usageErr("give the surface temperature with --sst (sea surface) or --surface-air-temp (near-surface air)")
+	case which == "" && o.SST != "":
+		which = metrics.SurfaceSST.String()
+	case which == "":
+		which = metrics.SurfaceAir.String()
 	}
 	flag, s := "sst", o.SST
-	r.Surface = metrics.SurfaceSST
-	if o.TSurf != "" {
-		flag, s = "tsurf", o.TSurf
+	switch which {
+	case metrics.SurfaceSST.String():
+		r.Surface = metrics.SurfaceSST
+	case metrics.SurfaceAir.String():
 		r.Surface = metrics.SurfaceAir
+		flag, s = "surface-air-temp", o.SurfaceAirTemp
+	default:
+		return usageErr("--surface-temperature: %q is not sst or air", o.SurfaceTemperature)
+	}
+	if s == "" {
+		return usageErr("--surface-temperature %s needs its value: give --%s", which, flag)
 	}
 	q, err := parseQ(flag, units.Temperature, s)
 	if err != nil {
@@ -187,71 +309,51 @@ func runCalc(o calcOptions, w io.Writer) error {
 	rep.Inputs["t700"] = q
 	in.T700 = q.Value
 
-	if q, err = parseQ("ps", units.Pressure, o.Ps); err != nil {
+	if o.SurfacePressure == "field" {
+		return usageErr("--surface-pressure field reads a surface_pressure file in a study; for one column give its value, e.g. --surface-pressure 1013hPa")
+	}
+	if q, err = parseQ("surface-pressure", units.Pressure, o.SurfacePressure); err != nil {
 		return err
 	}
-	if o.Ps == "1000hPa" {
+	if o.SurfacePressure == "1000hPa" {
 		q.Note = "default"
 	}
 	rep.Inputs["surface_pressure"] = q
 	r.SurfacePressure = q.Value // one column: the constant of the conventions
 	if !(q.Value > metrics.P700 && q.Value <= 120000) {
-		return usageErr("--ps %s is %g Pa: the surface must be below the 700-hPa level (above 70000 Pa) and at most 120000 Pa; give hPa with a unit, e.g. 1013hPa", o.Ps, q.Value)
+		return usageErr("--surface-pressure %s is %g Pa: the surface must be below the 700-hPa level (above 70000 Pa) and at most 120000 Pa; give hPa with a unit, e.g. 1013hPa", o.SurfacePressure, q.Value)
 	}
 
-	if q, err = parseQ("lapse-level", units.Pressure, o.LapsePressure); err != nil {
+	if q, err = parseQ("lapse-pressure", units.Pressure, o.LapsePressure); err != nil {
 		return err
 	}
 	r.LapsePressure = q.Value
 
-	// humidity
-	switch first, n := oneOf("rh", o.RH, "dewpoint", o.DewPoint, "shum", o.SpecificHum); {
-	case n > 1:
-		return usageErr("give one of --rh, --dewpoint and --shum, not several")
-	case n == 0:
-		r.Humidity = metrics.HumidityAssumedRH
-		rep.Assumptions = append(rep.Assumptions, fmt.Sprintf("near-surface relative humidity %g assumed (no --rh, --dewpoint or --shum given)", r.AssumedRH))
-	case first == "rh":
-		if q, err = parseQ("rh", units.Fraction, o.RH); err != nil {
-			return err
-		}
-		if !(q.Value >= 0 && q.Value <= 1.05) {
-			return usageErr("--rh %s is %g: relative humidity must be a fraction in [0, 1.05] (write 0.8 or 80%%)", o.RH, q.Value)
-		}
-		r.Humidity = metrics.HumidityRH
-		rep.Inputs["relative_humidity"] = q
-		in.Humidity = q.Value
-	case first == "dewpoint":
-		if q, err = parseQ("dewpoint", units.Temperature, o.DewPoint); err != nil {
-			return err
-		}
-		r.Humidity = metrics.HumidityDewPoint
-		rep.Inputs["dew_point"] = q
-		in.Humidity = q.Value
-	case first == "shum":
-		if q, err = parseQ("shum", units.MixingRatio, o.SpecificHum); err != nil {
-			return err
-		}
-		r.Humidity = metrics.HumiditySpecific
-		rep.Inputs["specific_humidity"] = q
-		in.Humidity = q.Value
+	if err := calcHumidity(o, &r, &in, &rep); err != nil {
+		return err
 	}
 
-	if o.T850 != "" {
+	switch o.T850 {
+	case "", "mean":
+		rep.Assumptions = append(rep.Assumptions, "temperature at the lapse-rate level = (T_surface + T700)/2 (Wood & Bretherton 2006; --t850 mean)")
+	case "field":
+		return usageErr("--t850 field reads the air_temperature file at the lapse-rate level in a study; for one column give its value, e.g. --t850 288K")
+	default:
 		if q, err = parseQ("t850", units.Temperature, o.T850); err != nil {
 			return err
 		}
 		r.T850Field = true
 		rep.Inputs["t850"] = q
 		in.T850 = q.Value
-	} else {
-		rep.Assumptions = append(rep.Assumptions, "temperature at the lapse-rate level = (T_surface + T700)/2 (Wood & Bretherton 2006; no --t850 given)")
 	}
-	if o.Q700 != "" {
+	r.ECTEI = o.ECTEI || (!o.ECTEISet && o.Q700 != "")
+	switch {
+	case r.ECTEI && o.Q700 == "":
+		return usageErr("--ectei needs the specific humidity at 700 hPa: give --q700, e.g. --q700 4g/kg")
+	case r.ECTEI:
 		if q, err = parseQ("q700", units.MixingRatio, o.Q700); err != nil {
 			return err
 		}
-		r.ECTEI = true
 		rep.Inputs["q700"] = q
 		in.Q700 = q.Value
 	}

@@ -13,8 +13,9 @@ import (
 
 // calcDefaults are the flag defaults of cmdCalc.
 func calcDefaults() calcOptions {
-	return calcOptions{Ps: "1000hPa", SVP: "murphy-koop", LCL: "romps", LapseMoisture: "qs",
-		LapsePressure: "850hPa", LatentHeat: "constant", ECTEISurface: "air", Beta: metrics.KawaiBeta}
+	return calcOptions{SurfacePressure: "1000hPa", SurfaceHumidity: "0.8", SVP: "murphy-koop", LCL: "romps", T850: "mean",
+		LapseMoisture: "qs", LapsePressure: "850hPa", ECTEISurface: "air", Beta: metrics.KawaiBeta,
+		Constants: metrics.DefaultConstants()}
 }
 
 func calcJSON(t *testing.T, o calcOptions) calcReport {
@@ -50,7 +51,7 @@ func TestCalcWorkedExamples(t *testing.T) {
 	a := calcDefaults()
 	a.SST, a.T700 = "16.85degC", "282K" // 16.85 °C = 290 K
 	b := calcDefaults()
-	b.SST, b.T700, b.Ps, b.DewPoint, b.T850, b.Q700 = "300K", "10.85degC", "1015hPa", "295", "290K", "4g/kg"
+	b.SST, b.T700, b.SurfacePressure, b.DewPoint, b.T850, b.Q700 = "300K", "10.85degC", "1015hPa", "295", "290K", "4g/kg"
 	for _, tc := range []struct {
 		name string
 		o    calcOptions
@@ -79,16 +80,16 @@ func TestCalcWorkedExamples(t *testing.T) {
 // the same column gives the same numbers.
 func TestCalcUnitParsing(t *testing.T) {
 	base := calcDefaults()
-	base.SST, base.T700, base.Ps, base.RH = "290K", "282K", "101300Pa", "0.8"
+	base.SST, base.T700, base.SurfacePressure, base.RH = "290K", "282K", "101300Pa", "0.8"
 	want := result(t, calcJSON(t, base), "eis")
 	for _, change := range []func(*calcOptions){
 		func(o *calcOptions) { o.SST = "16.85degC" },
 		func(o *calcOptions) { o.SST = "16.85 deg_C" },
 		func(o *calcOptions) { o.SST = "290" }, // bare numbers are SI
 		func(o *calcOptions) { o.T700 = "8.85Celsius" },
-		func(o *calcOptions) { o.Ps = "1013hPa" },
-		func(o *calcOptions) { o.Ps = "1013 mbar" },
-		func(o *calcOptions) { o.Ps = "101.3kPa" },
+		func(o *calcOptions) { o.SurfacePressure = "1013hPa" },
+		func(o *calcOptions) { o.SurfacePressure = "1013 mbar" },
+		func(o *calcOptions) { o.SurfacePressure = "101.3kPa" },
 		func(o *calcOptions) { o.RH = "80%" },
 	} {
 		o := base
@@ -102,7 +103,7 @@ func TestCalcUnitParsing(t *testing.T) {
 	o1.RH, o2.RH = "", ""
 	o1.SpecificHum, o2.SpecificHum = "11g/kg", "0.011"
 	if e1, e2 := result(t, calcJSON(t, o1), "eis"), result(t, calcJSON(t, o2), "eis"); e1 != e2 {
-		t.Errorf("--shum 11g/kg gives EIS %v, 0.011 gives %v", e1, e2)
+		t.Errorf("--specific-humidity 11g/kg gives EIS %v, 0.011 gives %v", e1, e2)
 	}
 }
 
@@ -147,8 +148,9 @@ func TestCalcConventionChoices(t *testing.T) {
 		{func(o *calcOptions) { o.LCL = "linear" }, "lcl=linear"},
 		{func(o *calcOptions) { o.LapseMoisture = "rs" }, ", rs,"},
 		{func(o *calcOptions) { o.LapsePressure = "800hPa" }, "at 80000 Pa"},
-		{func(o *calcOptions) { o.LatentHeat = "bolton" }, "LvSlope=2370"},
-		{func(o *calcOptions) { o.TSurf, o.SST = o.SST, "" }, "surface-temperature=air"},
+		{func(o *calcOptions) { o.Constants.LvSlope = metrics.BoltonLvSlope }, "LvSlope=2370"},
+		{func(o *calcOptions) { o.SurfaceAirTemp, o.SST = o.SST, "" }, "surface-temperature=air"},
+		{func(o *calcOptions) { o.SurfaceAirTemp, o.SurfaceTemperature = o.SST, "air" }, "surface-temperature=air"},
 	} {
 		o := base
 		tc.change(&o)
@@ -169,21 +171,29 @@ func TestCalcErrors(t *testing.T) {
 		args []string
 		want string
 	}{
-		{[]string{"--sst", "290K", "--t700", "282K", "--rh", "1.2"}, "[0, 1.05]"},
-		{[]string{"--sst", "290K", "--t700", "282K", "--rh", "120%"}, "[0, 1.05]"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--relative-humidity", "1.2"}, "[0, 1.05]"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--relative-humidity", "120%"}, "[0, 1.05]"},
 		{[]string{"--sst", "-5K", "--t700", "282K"}, "absolute zero"},
 		{[]string{"--sst", "290K", "--t700", "-3"}, "absolute zero"},
 		{[]string{"--sst", "17", "--t700", "282K"}, "°C"},
-		{[]string{"--sst", "290K", "--t700", "282K", "--dewpoint", "300K"}, "dew point 300 K is above"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--dew-point", "300K"}, "dew point 300 K is above"},
 		{[]string{"--sst", "290K"}, "--t700"},
 		{[]string{"--t700", "282K"}, "--sst"},
-		{[]string{"--sst", "290K", "--tsurf", "290K", "--t700", "282K"}, "not both"},
-		{[]string{"--sst", "290K", "--t700", "282K", "--rh", "0.8", "--dewpoint", "285K"}, "not several"},
+		{[]string{"--sst", "290K", "--surface-temperature", "air", "--t700", "282K"}, "give --surface-air-temp"},
+		{[]string{"--sst", "290K", "--surface-temperature", "skin", "--t700", "282K"}, "not sst or air"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--relative-humidity", "0.8", "--dew-point", "285K"}, "not several"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-humidity", "dew_point"}, "give --dew-point"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-humidity", "field"}, "needs a humidity value"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-humidity", "1.2"}, "(0, 1]"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-humidity", "0.7", "--dew-point", "285K"}, "give one of them"},
 		{[]string{"--sst", "290F", "--t700", "282K"}, "not a temperature unit"},
-		{[]string{"--sst", "290K", "--t700", "282K", "--ps", "1013"}, "1013hPa"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-pressure", "1013"}, "1013hPa"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--surface-pressure", "field"}, "give its value"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--t850", "field"}, "give its value"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--ectei"}, "give --q700"},
 		{[]string{"--sst", "290K", "--t700", "282K", "--svp", "goff-gratch"}, "murphy-koop or bolton"},
 		{[]string{"--sst", "290K", "--t700", "282K", "--lcl", "espy"}, "romps, bolton or linear"},
-		{[]string{"--sst", "290K", "--t700", "282K", "--latent-heat", "kirchhoff"}, "constant or bolton"},
+		{[]string{"--sst", "290K", "--t700", "282K", "--lv-slope", "bolton"}, "want a number"},
 		{[]string{"--sst", "290K", "--t700", "282K", "extra"}, "no arguments"},
 		{[]string{"--nonsense"}, "unknown flag --nonsense"},
 	} {
@@ -229,7 +239,7 @@ func FuzzCalc(f *testing.F) {
 	f.Add("nan", "NaN K", "inf", "", "0x1p3")
 	f.Fuzz(func(t *testing.T, sst, t700, ps, rh, q700 string) {
 		o := calcDefaults()
-		o.SST, o.T700, o.Ps, o.RH, o.Q700, o.JSON = sst, t700, ps, rh, q700, true
+		o.SST, o.T700, o.SurfacePressure, o.RH, o.Q700, o.JSON = sst, t700, ps, rh, q700, true
 		var b bytes.Buffer
 		if err := runCalc(o, &b); err != nil {
 			return
