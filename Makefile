@@ -5,6 +5,7 @@
 #   make build   build bin/lidscope
 #   make deps    install the Debian packages lidscope and its tests need (when missing)
 #   make bench   run the Go benchmarks
+#   make man     write the man pages of every command into man/man1 (not committed)
 #
 # `make deps` needs root (or sudo) on a Debian/Ubuntu machine; it installs only
 # packages that are missing.
@@ -19,7 +20,7 @@ DEB_TEST  := cdo python3-xarray python3-cftime python3-netcdf4 python3-scipy pyt
 # unpacked into a temporary folder for the tests; never committed.
 REALDATA  ?= $(or $(TMPDIR),/tmp)/lidscope-realdata
 
-.PHONY: all build deps deps-build realdata test vet demo bench clean sample
+.PHONY: all build deps deps-build realdata test vet demo bench clean sample man
 
 all: build
 
@@ -48,8 +49,14 @@ demo: build
 bench: deps-build
 	$(GO) test -run '^$$' -bench . -benchmem ./...
 
+# Man pages from the command tree (cobra's doc package); `make test` checks
+# that they build (TestManPages in cmd/lidscope). Read with: man -l man/man1/lidscope.1
+MANDIR := man/man1
+man: build
+	./$(BIN) man-pages --out $(MANDIR)
+
 clean:
-	rm -rf bin demo-out
+	rm -rf bin demo-out man
 
 # A small synthetic sample (fixtures/sample/sample.cdl) compiled with ncgen and inspected.
 SAMPLE := $(or $(TMPDIR),/tmp)/lidscope-sample.nc

@@ -36,7 +36,7 @@ func newRunCmd(e *env) *cobra.Command {
 		Short: "run the regime analysis of a study's datasets",
 		Long: `Runs the regime analysis of every dataset of STUDY (or --dataset NAME) in one
 streaming pass and writes maps, series, tables, summary.json and provenance.json
-into the folder --out (default: the study's output.dir/<dataset>).`,
+into the folder --out (default: the study's output.dir/DATASET).`,
 		Example: `  lidscope run obs.yaml
   lidscope run obs.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet`,
 		Args: exactArgs(1, "give exactly one study file"),
@@ -51,7 +51,7 @@ into the folder --out (default: the study's output.dir/<dataset>).`,
 	}
 	fs := cmd.Flags()
 	fs.Var(&datasets, "dataset", "run only this dataset (repeat, or separate names with commas)")
-	addOutDir(fs, &o.Out, "", "folder for the results (default: the study's output.dir/<dataset>)")
+	addOutDir(fs, &o.Out, "", "folder for the results (default: the study's output.dir/DATASET)")
 	addForce(fs, &o.Force, "replace existing results")
 	addNoPlots(fs, &o.NoPlots, "do not draw figures")
 	addWorkers(fs, &o.Workers)
