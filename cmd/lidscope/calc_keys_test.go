@@ -19,7 +19,7 @@ func keysWorld(t *testing.T) string {
 	t.Helper()
 	o := fixtures.DefaultOptions()
 	o.Name = "keys"
-	o.Resolution = 10
+	o.Resolution = 5
 	o.Years = 1
 	o.YearsPerFile = 1
 	o.Command = []string{"lidscope-test", "calc-keys"}

@@ -40,7 +40,8 @@ uncertainty; flip fractions and thresholds when both runs have them.
 
 Give finished run folders (the reference first), or one study: then every dataset is run
 first into DIR/NAME and the first dataset (or --reference NAME) is the reference.`,
-		Args: minArgs(1, "give a study, or a reference run folder and at least one candidate run folder"),
+		Example: `  lidscope compare demo-out/results/synthetic-demo demo-out/results/synthetic-model --out out/comparison --no-plots`,
+		Args:    minArgs(1, "give a study, or a reference run folder and at least one candidate run folder"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Args = args
 			if o.Out == "" {

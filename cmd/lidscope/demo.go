@@ -33,8 +33,7 @@ upwelling decks; 700-hPa temperature; low cloud that follows EIS) as CF NetCDF f
 writes its study, runs the full analysis on it and checks the results against the
 world's known truth. A second synthetic world, a "model", is run and compared with it.
 Everything goes into the folder --out: data/, data-model/ and results/.`,
-		Example: `  lidscope demo --out demo-out --force`,
-		Args:    noArgs("demo takes no arguments; give the folder with --out DIR"),
+		Args: noArgs("demo takes no arguments; give the folder with --out DIR"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Progress = isTerminal(e.stderr) && !o.Log.Quiet
 			ctx, stop := e.interruptible(cmd.Context())

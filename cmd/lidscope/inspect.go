@@ -29,6 +29,8 @@ func newInspectCmd(e *env) *cobra.Command {
 how they will be decoded (units conversion, packing, fill values, grid, levels, time),
 and every problem found; with several files, whether their grids match. Exits with
 status 1 when a file cannot be used.`,
+		Example: `  lidscope inspect obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc
+  lidscope inspect obs/sst/*.nc --json`,
 		Args: minArgs(1, "give at least one file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Files = args

@@ -50,6 +50,9 @@ func newPlotCmd(e *env) *cobra.Command {
 summary.json, and the relationship files when present), without recomputing, into
 the folder --out (default RUN_DIR/` + figures.DefaultDirName + `). Figures whose inputs the run
 lacks are skipped unless named with --only.`,
+		Example: `  lidscope plot --list
+  lidscope plot demo-out/results/synthetic-demo --no-coastlines --out figures
+  lidscope plot demo-out/results/synthetic-demo --no-coastlines --format svg --only map_eis,series --out figures-svg`,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Only = only
 			if o.List {

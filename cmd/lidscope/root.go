@@ -113,9 +113,24 @@ func execute(ctx context.Context, args []string, e *env) int {
 		}
 		return 2
 	}
-	fmt.Fprintf(e.stderr, "%s: %v\n", name, err)
+	fmt.Fprintf(e.stderr, "%s: %s\n", name, flagWords.Replace(err.Error()))
 	return 1
 }
+
+// flagWords names, in the library's messages, the command-line flag of a
+// Go option (the library speaks to Go callers too): a user reads --force,
+// not Options.Force.
+var flagWords = strings.NewReplacer(
+	"(--force, Options.Force)", "(--force)",
+	"set Options.Overwrite to replace", "use --force to replace",
+	"allow replacing them (WriteOptions.Force)", "use --force to replace them",
+	"Allow replacing it (Options.Force)", "Use --force to replace it",
+	"allow overwriting (Options.Overwrite)", "use --force to replace it",
+	"(Options.Force)", "(--force)",
+	"(Options.Overwrite)", "(--force)",
+	"Options.Force", "--force",
+	"Options.Overwrite", "--force",
+)
 
 // isCobraUsage reports the usage mistakes cobra finds itself (an unknown
 // command, before any of ours runs).

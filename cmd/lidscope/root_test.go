@@ -2,11 +2,14 @@ package main
 
 import (
 	"bytes"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/spf13/pflag"
+
+	"lidscope/figures/figurestest"
 )
 
 // The command line follows the GNU conventions (common practice, GNU
@@ -86,5 +89,50 @@ func TestCommandTreeHelp(t *testing.T) {
 		if cmd.LocalFlags().Lookup("out") != nil && cmd.LocalFlags().Lookup("output") != nil && !cmd.LocalFlags().Lookup("out").Hidden {
 			t.Errorf("%s has both --out (a folder) and --output (a file)", cmd.CommandPath())
 		}
+	}
+}
+
+// A refusal to replace earlier results names the command-line flag that
+// allows it (--force), never the Go option behind it.
+func TestRefusalsNameFlags(t *testing.T) {
+	study := keysWorld(t)
+	out := filepath.Join(t.TempDir(), "res")
+	demo := t.TempDir()
+	if err := os.MkdirAll(filepath.Join(demo, "data"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(demo, "data", "study.yaml"), []byte("# an earlier demo\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	runDir := filepath.Join(t.TempDir(), "run")
+	if _, err := figurestest.Write(runDir, figurestest.Spec{}); err != nil {
+		t.Fatal(err)
+	}
+	steps := [][]string{
+		{"run", study, "--out", out, "-q", "--no-plots"},
+		{"run", study, "--out", out, "-q", "--no-plots"},
+		{"merge", out, out, "--out", out},
+		{"demo", "--out", demo, "-q"},
+		{"plot", runDir, "--only", "series"},
+		{"plot", runDir, "--only", "series"},
+	}
+	refusals := 0
+	for i, args := range steps {
+		var stdout, stderr bytes.Buffer
+		code := run(args, &stdout, &stderr)
+		msg := stderr.String()
+		if i == 0 || i == 4 {
+			if code != 0 {
+				t.Fatalf("lidscope %s: exit %d: %s", strings.Join(args, " "), code, msg)
+			}
+			continue
+		}
+		refusals++
+		if code != 1 || !strings.Contains(msg, "--force") || strings.Contains(msg, "Options") {
+			t.Errorf("lidscope %s: exit %d, stderr %q; want 1 and a message naming --force and no Go option", strings.Join(args, " "), code, msg)
+		}
+	}
+	if refusals != 4 {
+		t.Fatalf("%d refusals checked", refusals)
 	}
 }

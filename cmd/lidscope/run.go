@@ -37,8 +37,8 @@ func newRunCmd(e *env) *cobra.Command {
 		Long: `Runs the regime analysis of every dataset of STUDY (or --dataset NAME) in one
 streaming pass and writes maps, series, tables, summary.json and provenance.json
 into the folder --out (default: the study's output.dir/DATASET).`,
-		Example: `  lidscope run obs.yaml
-  lidscope run obs.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet`,
+		Example: `  lidscope run obs/study.yaml --out out/obs
+  lidscope run obs/study.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet --no-plots`,
 		Args: exactArgs(1, "give exactly one study file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Study = args[0]

@@ -55,6 +55,8 @@ func newStudyInitCmd(e *env) *cobra.Command {
 files and variable, suggested overrides for what inspect flagged, and every default
 written out. The study is one file: it is printed, or written to --output FILE (-o FILE),
 with its file names relative to that file's folder.`,
+		Example: `  lidscope study init obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc
+  lidscope study init obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc --output obs.yaml`,
 		Args: minArgs(1, "give at least one NetCDF file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if outDir != "" {
@@ -142,6 +144,8 @@ func newStudyCheckCmd(e *env) *cobra.Command {
 		Short: "check a study and print its resolved form",
 		Long: `Loads a study with the LIDSCOPE_* environment and the --set overrides, reports every
 problem (file:line: key: message), and prints the fully resolved study and its SHA-256.`,
+		Example: `  lidscope study check obs/study.yaml
+  lidscope study check obs/study.yaml --set analysis.threshold=1.0`,
 		Args: exactArgs(1, "give exactly one study file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Study = args[0]
