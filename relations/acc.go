@@ -147,6 +147,9 @@ type Acc struct {
 	scratchX, scratchRaw   []float64
 	scratchR, scratchRawR  []float64
 	scratchVec             []float64
+	scratchShiftIn         []float64 // per ΔT
+	scratchShiftOut        []float64
+	bandCells              []int // cells with band weight > 0, in grid order
 	layoutQuantitiesString string
 }
 
@@ -361,6 +364,13 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 	a.scratchR = make([]float64, nr)
 	a.scratchRawR = make([]float64, nr)
 	a.scratchVec = make([]float64, a.K)
+	a.scratchShiftIn = make([]float64, len(cfg.DeltaT))
+	a.scratchShiftOut = make([]float64, len(cfg.DeltaT))
+	for i, w := range l.BandWeight {
+		if w > 0 {
+			a.bandCells = append(a.bandCells, i)
+		}
+	}
 	a.layoutQuantitiesString = fmt.Sprint(l.Quantities)
 	return a, nil
 }
@@ -540,21 +550,27 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 	a.steps = append(a.steps, rec)
 }
 
-// addFlips adds the step's perturbation flips for every patch and ΔT.
+// addFlips adds the step's perturbation flips for every patch and ΔT: one
+// pass over the patch's cells and one over the band cells outside it,
+// testing every ΔT at each cell. Each ΔT's sums receive the same values in
+// the same cell order as a pass per ΔT would give, so the results are the
+// same bits.
 func (a *Acc) addFlips(s *accumulate.Step) {
 	if len(a.patches) == 0 {
 		return
 	}
 	var band float64
-	for i, w := range a.l.BandWeight {
-		if w > 0 && s.Regime[i] != regimes.Missing {
-			band += w
+	for _, i := range a.bandCells {
+		if s.Regime[i] != regimes.Missing {
+			band += a.l.BandWeight[i]
 		}
 	}
 	if band == 0 {
 		return
 	}
 	cl := a.cfg.Classifier
+	nk := len(a.cfg.DeltaT)
+	shiftIn, shiftOut := a.scratchShiftIn[:nk], a.scratchShiftOut[:nk]
 	for pi := range a.patches {
 		pa := &a.patches[pi]
 		var in float64
@@ -569,17 +585,21 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 		pa.fMin = math.Min(pa.fMin, f)
 		pa.fMax = math.Max(pa.fMax, f)
 		for k, dt := range a.cfg.DeltaT {
-			fs := &pa.sums[k]
-			shiftIn, shiftOut := dt*(1-f), -dt*f
-			for _, i := range pa.cells {
-				g := s.Regime[i]
-				if g == regimes.Missing {
-					continue
-				}
-				w := a.l.Area[i]
-				g2 := cl.Classify(float64(s.Rel[i]) + shiftIn)
+			shiftIn[k], shiftOut[k] = dt*(1-f), -dt*f
+		}
+		for _, i := range pa.cells {
+			g := s.Regime[i]
+			if g == regimes.Missing {
+				continue
+			}
+			w := a.l.Area[i]
+			x := float64(s.Rel[i])
+			c0 := g == regimes.Convective
+			for k := range nk {
+				fs := &pa.sums[k]
+				g2 := cl.Classify(x + shiftIn[k])
 				fs.inArea += w
-				c0, c1 := g == regimes.Convective, g2 == regimes.Convective
+				c1 := g2 == regimes.Convective
 				if g2 != g {
 					fs.inChanged += w
 				}
@@ -596,23 +616,28 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 					fs.inFromConv += w
 				}
 			}
-			for i, w := range a.l.BandWeight {
-				g := s.Regime[i]
-				if w <= 0 || g == regimes.Missing || pa.inside[i] {
-					continue
-				}
+		}
+		for _, i := range a.bandCells {
+			g := s.Regime[i]
+			if g == regimes.Missing || pa.inside[i] {
+				continue
+			}
+			w := a.l.BandWeight[i]
+			x := float64(s.Rel[i])
+			c0 := g == regimes.Convective
+			for k := range nk {
+				fs := &pa.sums[k]
 				fs.outArea += w
-				c0 := g == regimes.Convective
 				if c0 {
 					fs.outConvBefore += w
 				}
-				if shiftOut == 0 {
+				if shiftOut[k] == 0 {
 					if c0 {
 						fs.outConvAfter += w
 					}
 					continue
 				}
-				g2 := cl.Classify(float64(s.Rel[i]) + shiftOut)
+				g2 := cl.Classify(x + shiftOut[k])
 				c1 := g2 == regimes.Convective
 				if g2 != g {
 					fs.outChanged += w

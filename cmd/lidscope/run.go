@@ -26,6 +26,7 @@ type runOptions struct {
 	Set      setFlags
 	Log      logOptions
 	Progress bool // draw a progress line (terminal only)
+	Profile  profileOptions
 }
 
 func newRunCmd(e *env) *cobra.Command {
@@ -57,14 +58,24 @@ into the folder --out (default: the study's output.dir/DATASET).`,
 	addWorkers(fs, &o.Workers)
 	addSet(fs, o.Set, "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
 	o.Log.register(fs)
+	o.Profile.register(fs)
 	return cmd
 }
 
-func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) error {
+func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err error) {
 	log, err := o.Log.logger(stderr)
 	if err != nil {
 		return err
 	}
+	stopProfile, err := o.Profile.start()
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if perr := stopProfile(); err == nil {
+			err = perr
+		}
+	}()
 	r, err := config.Load(o.Study, config.LoadOptions{Flags: o.Set})
 	if err != nil {
 		return err
