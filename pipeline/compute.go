@@ -29,7 +29,8 @@ const (
 )
 
 // stepper holds what the step compute and block stages need for every
-// step, and their per-step outputs (reused from step to step).
+// step, and two sets of per-step outputs: the sinks use one step's while
+// the next step is computed into the other.
 type stepper struct {
 	p       *Plan
 	in      *inputs
@@ -39,21 +40,29 @@ type stepper struct {
 	blocks  [][2]int  // [lo, hi) cell ranges
 	workers int
 
+	outs     [2]stepOut
+	oceanNow []bool
+}
+
+// stepOut is one step's computed slabs.
+type stepOut struct {
 	rel      []float32
 	reg      []regimes.Regime
-	lts, eis []float32
+	lts, eis []float32 // nil without T700
 	ectei    []float32 // nil unless the conventions compute ECTEI
-	oceanNow []bool
 }
 
 func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW []float64) *stepper {
 	n := in.grid.Size()
-	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers,
-		rel: make([]float32, n), reg: make([]regimes.Regime, n), oceanNow: make([]bool, n)}
-	if in.t700 != nil {
-		s.lts, s.eis = make([]float32, n), make([]float32, n)
-		if p.Metrics.ECTEI {
-			s.ectei = make([]float32, n)
+	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers, oceanNow: make([]bool, n)}
+	for o := range s.outs {
+		out := &s.outs[o]
+		out.rel, out.reg = make([]float32, n), make([]regimes.Regime, n)
+		if in.t700 != nil {
+			out.lts, out.eis = make([]float32, n), make([]float32, n)
+			if p.Metrics.ECTEI {
+				out.ectei = make([]float32, n)
+			}
 		}
 	}
 	if s.workers <= 0 {
@@ -74,10 +83,12 @@ func quantities(p *Plan, in *inputs) (names []string, cloud string) {
 }
 
 // prepare runs the step compute stage on the slabs v of step st (by field
-// slot; the reader has checked them) and returns the step and the metrics input; the step's LTS, EIS
-// (and ECTEI) slices are filled by the blocks.
-func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.SlabInput, error) {
+// slot; the reader has checked them) into output set o, and returns the
+// step and the metrics input; the step's LTS, EIS (and ECTEI) slices are
+// filled by the blocks.
+func (s *stepper) prepare(st stepRef, v [][]float32, o int) (*accumulate.Step, metrics.SlabInput, error) {
 	in := s.in
+	out := &s.outs[o]
 	sstV := v[in.sst.slot]
 	var ice []float32
 	if in.seaIce != nil {
@@ -88,8 +99,8 @@ func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.
 	if !ok {
 		return nil, metrics.SlabInput{}, noBandSST(in.sst, sstV, s.bandW, s.ocean, st, s.p.Band)
 	}
-	regimes.Relative(sstV, mean, s.oceanNow, s.rel)
-	s.p.Classifier.ClassifySlab(s.rel, s.reg)
+	regimes.Relative(sstV, mean, s.oceanNow, out.rel)
+	s.p.Classifier.ClassifySlab(out.rel, out.reg)
 
 	slot := func(f *field) []float32 {
 		if f == nil {
@@ -105,18 +116,18 @@ func (s *stepper) prepare(st stepRef, v [][]float32) (*accumulate.Step, metrics.
 		if in.surfaceAir != nil {
 			mi.Ts = v[in.surfaceAir.slot]
 		}
-		values = append(values, v[in.t700.slot], s.lts, s.eis)
+		values = append(values, v[in.t700.slot], out.lts, out.eis)
 	}
 	if in.cloud != nil {
 		values = append(values, v[in.cloud.slot])
 	}
-	if s.ectei != nil {
-		values = append(values, s.ectei)
+	if out.ectei != nil {
+		values = append(values, out.ectei)
 	}
 	for _, e := range in.extras {
 		values = append(values, v[e.slot])
 	}
-	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: s.rel, Regime: s.reg, Values: values}
+	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: out.rel, Regime: out.reg, Values: values}
 	return step, mi, nil
 }
 
@@ -131,10 +142,12 @@ func sub(in metrics.SlabInput, lo, hi int) metrics.SlabInput {
 	return metrics.SlabInput{Ts: cut(in.Ts), T700: cut(in.T700), Ps: cut(in.Ps), Humidity: cut(in.Humidity), T850: cut(in.T850), Q700: cut(in.Q700)}
 }
 
-// runBlocks runs the block workers over the step: metrics into the step's
-// LTS/EIS/ECTEI slices, then the per-column accumulation of acc. It
-// returns the number of columns with impossible inputs.
-func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, acc *accumulate.Acc) (int, error) {
+// runBlocks runs the block workers over the step (computed into output set
+// o): metrics into the step's LTS/EIS/ECTEI slices, then the per-column
+// accumulation of acc. It returns the number of columns with impossible
+// inputs.
+func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, o int, acc *accumulate.Acc) (int, error) {
+	res := &s.outs[o]
 	var wg sync.WaitGroup
 	var mu sync.Mutex
 	var firstErr error
@@ -150,14 +163,14 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, acc *ac
 			defer wg.Done()
 			for bl := range next {
 				lo, hi := bl[0], bl[1]
-				if s.lts == nil {
+				if res.lts == nil {
 					// no T700: no column metrics, only the accumulation
 					acc.AddCells(step, lo, hi)
 					continue
 				}
-				out := metrics.SlabOutput{LTS: s.lts[lo:hi], EIS: s.eis[lo:hi]}
-				if s.ectei != nil {
-					out.ECTEI = s.ectei[lo:hi]
+				out := metrics.SlabOutput{LTS: res.lts[lo:hi], EIS: res.eis[lo:hi]}
+				if res.ectei != nil {
+					out.ECTEI = res.ectei[lo:hi]
 				}
 				st, err := s.kern.Slab(sub(mi, lo, hi), out)
 				mu.Lock()

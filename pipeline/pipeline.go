@@ -12,10 +12,10 @@
 //
 //	open and align  open.go, align.go  open the inputs, analysis grid, regridding weights, common time steps
 //	masks           masks.go           static ocean mask; per step, the columns that are ocean now
-//	reader          reader.go          one goroutine filling two step buffers in time order; plausibility
+//	reader          reader.go          one goroutine filling three step buffers in time order; plausibility
 //	step compute    compute.go         ocean now, tropical mean, relative SST, regimes
 //	block worker    compute.go         metrics and per-column accumulation over fixed row blocks
-//	sinks           sinks.go           the run's accumulator and the plan's sinks, in time order
+//	sinks           sinks.go           the run's accumulator and the plan's sinks, in time order, one step behind
 package pipeline
 
 import (
@@ -213,33 +213,55 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	rd := startReader(ctx, in)
 	defer func() { cancel(); <-rd.done }()
 
-	// step compute, block worker, sinks: one step at a time, in time order
+	// step compute and block worker, one step at a time in time order; the
+	// sinks one step behind on their own goroutine.
 	st := newStepper(&p, in, kern, ocean, bandW)
+	line := out.start()
+	stopped := false
+	stopLine := func() {
+		if !stopped {
+			line.stop()
+			stopped = true
+		}
+	}
+	defer stopLine()
+	free := make(chan int, len(st.outs)) // output sets the sinks are done with
+	for o := range st.outs {
+		free <- o
+	}
 	rejected := 0
 	for msg := range rd.ready {
 		if msg.err != nil {
 			return nil, msg.err
 		}
 		ref := in.steps[msg.step]
-		step, mi, err := st.prepare(ref, rd.bufs[msg.buf])
+		o := <-free
+		step, mi, err := st.prepare(ref, rd.bufs[msg.buf], o)
 		if err != nil {
 			return nil, err
 		}
-		rej, err := st.runBlocks(step, mi, out.acc)
+		rej, err := st.runBlocks(step, mi, o, out.acc)
 		rejected += rej
 		if err != nil {
 			return nil, err
 		}
-		out.add(step)
+		k, b := msg.step, msg.buf
+		line.add(step, func() {
+			rd.release(b)
+			free <- o
+			if p.Progress != nil {
+				p.Progress(k+1, len(in.steps))
+			}
+		})
 		res.Labels = append(res.Labels, ref.label)
 		res.Dates = append(res.Dates, ref.date)
-		rd.release(msg.buf)
-		if p.Progress != nil {
-			p.Progress(msg.step+1, len(in.steps))
-		}
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
+	}
+	stopLine()
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	if len(res.Labels) != len(in.steps) {
 		return nil, fmt.Errorf("run stopped after %d of %d time steps", len(res.Labels), len(in.steps))

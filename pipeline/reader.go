@@ -11,9 +11,12 @@ import (
 )
 
 // Stage 3, reader: one goroutine reads the time steps in order (netCDF-C
-// is serialised anyway) into two step buffers, so that it fills one while
-// the rest of the run uses the other, and checks that the values are
-// plausible while it reads them.
+// is serialised anyway) into three step buffers, so that it fills one while
+// the step compute and blocks use the second and the sinks the third, and
+// checks that the values are plausible while it reads them.
+
+// nbufs is the number of step buffers.
+const nbufs = 3
 
 // slabs says that a step buffer holds a time step (or that reading failed).
 type slabs struct {
@@ -24,8 +27,8 @@ type slabs struct {
 
 // reader owns the step buffers while it fills them.
 type reader struct {
-	bufs  [2][][]float32 // [buffer][field slot] slabs on the analysis grid
-	ready chan slabs     // closed when the reader stops
+	bufs  [nbufs][][]float32 // [buffer][field slot] slabs on the analysis grid
+	ready chan slabs         // closed when the reader stops
 	free  chan int
 	done  chan struct{}
 }
@@ -34,7 +37,7 @@ type reader struct {
 // then wait on done before closing the files.
 func startReader(ctx context.Context, in *inputs) *reader {
 	n := in.grid.Size()
-	r := &reader{ready: make(chan slabs, 1), free: make(chan int, 2), done: make(chan struct{})}
+	r := &reader{ready: make(chan slabs, 1), free: make(chan int, nbufs), done: make(chan struct{})}
 	for b := range r.bufs {
 		r.bufs[b] = make([][]float32, len(in.timed))
 		for _, f := range in.timed {

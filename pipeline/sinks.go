@@ -6,7 +6,10 @@ import (
 
 // Stage 6, sinks: every step goes, in time order, to the run's own
 // accumulator (band series, regions, step count) and then to the plan's
-// sinks (e.g. the relationship statistics).
+// sinks (e.g. the relationship statistics). The sinks run on their own
+// goroutine, one step behind: while they take step k, the step compute and
+// the blocks work on step k+1. Each sink still sees every step in time
+// order, so the results are the same as one step at a time.
 
 // sinkSet is the run's accumulator and the further sinks.
 type sinkSet struct {
@@ -42,4 +45,41 @@ func (s *sinkSet) add(step *accumulate.Step) {
 	for _, sk := range s.more {
 		sk.AddStep(step)
 	}
+}
+
+// sinkLine runs the sinks of a sinkSet on their own goroutine.
+type sinkLine struct {
+	jobs chan sinkJob
+	done chan struct{}
+}
+
+// sinkJob is one step for the sinks and what to do once they have it.
+type sinkJob struct {
+	step  *accumulate.Step
+	after func()
+}
+
+// start starts the sinks' goroutine.
+func (s *sinkSet) start() *sinkLine {
+	l := &sinkLine{jobs: make(chan sinkJob, 1), done: make(chan struct{})}
+	go func() {
+		defer close(l.done)
+		for j := range l.jobs {
+			s.add(j.step)
+			j.after()
+		}
+	}()
+	return l
+}
+
+// add queues a step; after runs once every sink has it (then the step's
+// slices may be reused).
+func (l *sinkLine) add(step *accumulate.Step, after func()) {
+	l.jobs <- sinkJob{step, after}
+}
+
+// stop waits until the sinks have every queued step, and ends the goroutine.
+func (l *sinkLine) stop() {
+	close(l.jobs)
+	<-l.done
 }
