@@ -1,0 +1,185 @@
+package analysis
+
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+
+	"lidscope/config"
+	"lidscope/figures"
+	"lidscope/output"
+)
+
+// Real files nobody here wrote: Debian's libncarg-data, unpacked by `make
+// realdata` into $LIDSCOPE_REALDATA (as in cf/realdata_test.go).
+func realFile(t *testing.T, rel string) string {
+	t.Helper()
+	dir := os.Getenv("LIDSCOPE_REALDATA")
+	if dir == "" {
+		if os.Getenv("CI") != "" {
+			t.Fatal("LIDSCOPE_REALDATA is not set; CI must run `make realdata` and set it")
+		}
+		t.Skip("LIDSCOPE_REALDATA not set (run `make realdata`); skipping")
+	}
+	p := filepath.Join(dir, rel)
+	if _, err := os.Stat(p); err != nil {
+		t.Fatalf("real data file missing: %v", err)
+	}
+	return p
+}
+
+// debianPython is Debian's interpreter with python3-xarray (the first
+// python3 on PATH may lack it).
+func debianPython(t *testing.T) string {
+	t.Helper()
+	const py = "/usr/bin/python3"
+	if err := exec.Command(py, "-c", "import xarray, numpy").Run(); err != nil {
+		if os.Getenv("CI") != "" {
+			t.Fatalf("%s with xarray is missing: %v", py, err)
+		}
+		t.Skipf("%s with xarray is missing (%v); skipping", py, err)
+	}
+	return py
+}
+
+// bandSeries is an independent computation (numpy/xarray, not lidscope)
+// of the tropical-mean SST and of the convective area fraction of each of
+// the 12 months of the STR SST climatology (cdf/sstdata_netcdf.nc): cells
+// with values in the file's valid_range (−1.8…35 °C) are ocean; the repeated
+// 360° longitude is dropped; each cell weighs its area inside 30°S–30°N
+// (sin φn − sin φs, bounds half-way between centres, clipped to ±90°);
+// convective where SST − tropical mean > 1.5 K.
+const bandSeries = `
+import sys, json, numpy as np, xarray as xr
+ds = xr.open_dataset(sys.argv[1], decode_times=False, mask_and_scale=False)
+sst = ds["sst"].values[:, :, :-1].astype(float)
+sst = np.where((sst >= -1.8) & (sst <= 35), sst + 273.15, np.nan)
+lat = ds["lat"].values.astype(float)
+edges = np.concatenate([[-90], (lat[1:] + lat[:-1]) / 2, [90]])
+s, n = np.clip(edges[:-1], -30, 30), np.clip(edges[1:], -30, 30)
+w = np.sin(np.radians(n)) - np.sin(np.radians(s))
+out = []
+for m in range(sst.shape[0]):
+    x = sst[m]
+    W = np.broadcast_to(w[:, None], x.shape)
+    ok = ~np.isnan(x) & (W > 0)
+    mean = float((W[ok] * x[ok]).sum() / W[ok].sum())
+    conv = float(W[ok][(x[ok] - mean) > 1.5].sum() / W[ok].sum())
+    out.append([mean, conv])
+print(json.dumps(out))
+`
+
+// TestRealSSTOnlyStudy runs a study with SST as its only input (the real
+// STR SST climatology, whose time axis must be declared a climatology),
+// first with the ocean taken from SST and compared month by month with
+// the independent numpy computation above, then with the real categorical
+// land-sea mask (cdf/landsea.nc, 0 = ocean) on its own 1° grid.
+func TestRealSSTOnlyStudy(t *testing.T) {
+	sst := realFile(t, "cdf/sstdata_netcdf.nc")
+	mask := realFile(t, "cdf/landsea.nc")
+	py := debianPython(t)
+	dir := t.TempDir()
+	studies := map[string]string{
+		"sst_mask": `datasets:
+  - name: str-sst
+    inputs:
+      sst: "` + sst + `"
+    time: {climatology: true}
+    ocean: {mask: sst}
+output: {dir: "` + dir + `", plots: true}
+`,
+		"categorical_mask": `datasets:
+  - name: str-sst-landsea
+    inputs:
+      sst: "` + sst + `"
+      land_fraction: "` + mask + `"
+    time: {climatology: true}
+    ocean: {mask: categorical, role: land_fraction, ocean_values: [0]}
+analysis:
+  grid: {target: sst}
+output: {dir: "` + dir + `", plots: true}
+`,
+	}
+	for _, name := range []string{"sst_mask", "categorical_mask"} {
+		t.Run(name, func(t *testing.T) {
+			p := filepath.Join(dir, name+".yaml")
+			if err := os.WriteFile(p, []byte(studies[name]), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			r, err := config.Load(p, config.LoadOptions{LookupEnv: config.NoEnvironment})
+			if err != nil {
+				t.Fatal(err)
+			}
+			reps, err := Run(context.Background(), r, nil, Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			rep := reps[0]
+			if q := rep.Result.Acc.L.Quantities; !slices.Equal(q, []string{"sst"}) {
+				t.Errorf("quantities %v, want [sst]", q)
+			}
+			if len(rep.Result.Labels) != 12 {
+				t.Fatalf("%d steps, want the 12 months", len(rep.Result.Labels))
+			}
+			for _, f := range []string{"map_convective_fraction", "map_crossings", "map_relative_sst", "series"} {
+				if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, f+".png")); err != nil {
+					t.Errorf("figure %s: %v", f, err)
+				}
+			}
+			if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, "map_eis.png")); err == nil {
+				t.Error("an EIS map from a run without T700")
+			}
+			if name != "sst_mask" {
+				// the mask leaves out land: fewer valid columns than SST alone
+				return
+			}
+			out, err := exec.Command(py, "-c", bandSeries, sst).Output()
+			if err != nil {
+				t.Fatalf("python: %v", err)
+			}
+			var want [][2]float64
+			if err := json.Unmarshal(out, &want); err != nil {
+				t.Fatal(err)
+			}
+			got := readSeries(t, filepath.Join(rep.OutDir, output.SeriesCSV), "tropical_mean_sst [K]", "area_fraction_convective [1]")
+			for m := range want {
+				if math.Abs(got[m][0]-want[m][0]) > 1e-4 || math.Abs(got[m][1]-want[m][1]) > 1e-6 {
+					t.Errorf("month %d: tropical-mean SST %.6f K, convective fraction %.6f; numpy %.6f K, %.6f", m+1, got[m][0], got[m][1], want[m][0], want[m][1])
+				}
+			}
+		})
+	}
+}
+
+// readSeries reads two columns of series.csv.
+func readSeries(t *testing.T, path, a, b string) [][2]float64 {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ia, ib := slices.Index(rows[0], a), slices.Index(rows[0], b)
+	if ia < 0 || ib < 0 {
+		t.Fatalf("series.csv has no %q or %q: %s", a, b, strings.Join(rows[0], ", "))
+	}
+	var out [][2]float64
+	for _, r := range rows[1:] {
+		x, _ := strconv.ParseFloat(r[ia], 64)
+		y, _ := strconv.ParseFloat(r[ib], 64)
+		out = append(out, [2]float64{x, y})
+	}
+	return out
+}
