@@ -24,6 +24,9 @@ type Spec struct {
 	// axis (e.g. 70000 for T700). Zero for single-level fields.
 	Level float64
 	Overrides
+	// collect, when set (Inspect only), receives each problem that the
+	// open can read past instead of stopping at it; see openCollecting.
+	collect *[]string
 }
 
 // segment is one file's part of a field's record. Only the segment being
@@ -302,6 +305,26 @@ func commonDate(a, b []Date) (Date, bool) {
 	return Date{}, false
 }
 
+// soft records err as a problem and reports true when the spec collects
+// problems (Inspect reads on past it); otherwise it reports false and the
+// caller returns err.
+func (s Spec) soft(err error) bool {
+	if s.collect == nil {
+		return false
+	}
+	*s.collect = append(*s.collect, err.Error())
+	return true
+}
+
+// levelHint is the study key that can fix a level error, or nothing when
+// the level is not in the file (no key can help; the error says so).
+func levelHint(err error, r Role) string {
+	if errors.Is(err, ErrLevelNotInFile) || errors.Is(err, errLevelUnitsSuspect) {
+		return ""
+	}
+	return fmt.Sprintf(" (study key coordinates.%s.level_units)", r)
+}
+
 // openOne resolves the spec against one open file.
 func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 	path := nf.Path()
@@ -418,7 +441,11 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 			}
 			pick, err := PickLevel(lv, lu, spec.Level)
 			if err != nil {
-				return nil, fmt.Errorf("%s: variable %s, vertical coordinate %s: %w (study key coordinates.%s.level_units)", path, name, zv.Name, err, spec.Role)
+				err = roleText{fmt.Errorf("%s: variable %s, vertical coordinate %s: %w%s", path, name, zv.Name, err, levelHint(err, spec.Role)), spec.Role}
+				if !spec.soft(err) {
+					return nil, err
+				}
+				pick = LevelPick{Exact: true} // the first level, only to sample values
 			}
 			fld.Level = &pick
 		}
@@ -427,28 +454,37 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		// scalar coordinate (CF §5.7), e.g. plev = 70000.
 		if p, ok := scalarLevel(nf, v); ok {
 			if math.Abs(p-spec.Level) > 0.01 {
-				return nil, fmt.Errorf("%s: variable %s is on the single level %g hPa, but %g hPa is needed", path, name, p/100, spec.Level/100)
+				if err := fmt.Errorf("%s: variable %s is on the single level %g hPa, but %g hPa is needed; the level is not in the file, so no setting in the study can help: give a file that has it", path, name, p/100, spec.Level/100); !spec.soft(err) {
+					return nil, err
+				}
 			}
 			fld.Notes = append(fld.Notes, fmt.Sprintf("single level %g hPa (scalar coordinate)", p/100))
-		} else {
-			return nil, fmt.Errorf("%s: variable %s has no vertical axis, so lidscope cannot tell whether it is at %g hPa; give a file with a pressure axis or a scalar pressure coordinate (CF-1.10 §5.7)", path, name, spec.Level/100)
+		} else if err := fmt.Errorf("%s: variable %s has no vertical axis, so lidscope cannot tell whether it is at %g hPa; give a file with a pressure axis or a scalar pressure coordinate (CF-1.10 §5.7)", path, name, spec.Level/100); !spec.soft(err) {
+			return nil, err
 		}
 	}
 	// Time.
 	seg := segment{path: path, file: nf, v: v, shape: v.Shape(), nt: 1}
 	if fld.ti >= 0 {
 		ta, err := decodeTimeAxis(nf, cs[fld.ti].Var, spec.Overrides)
-		if err != nil {
+		switch {
+		case err == nil:
+			fld.Time = ta
+			seg.times = ta.Dates
+			seg.nt = len(ta.Dates)
+		case spec.soft(err):
+			// read on without dates, only to sample values
+			seg.nt = v.Dims[fld.ti].Len
+		default:
 			return nil, err
 		}
-		fld.Time = ta
-		seg.times = ta.Dates
-		seg.nt = len(ta.Dates)
 		if seg.nt == 0 {
 			return nil, fmt.Errorf("%s: variable %s has no time steps", path, name)
 		}
 	} else if spec.Climatology {
-		return nil, fmt.Errorf("%s: the study declares a 12-month climatology but variable %s has no time axis", path, name)
+		if err := fmt.Errorf("%s: the study declares a 12-month climatology but variable %s has no time axis", path, name); !spec.soft(err) {
+			return nil, err
+		}
 	}
 	// Units.
 	u := spec.Units
@@ -457,19 +493,35 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 		u = textAttr(v, "units")
 		uSrc = "units attribute"
 		if _, err := v.Attr("units"); err != nil && kind != units.Fraction {
-			return nil, fmt.Errorf("%s: variable %s has no units attribute; set its units in the study (units.%s: %s, if that is what it is)", path, name, spec.Role, kind.SI())
+			if err := fmt.Errorf("%s: variable %s has no units attribute; set its units in the study (units.%s: %s, if that is what it is)", path, name, spec.Role, kind.SI()); !spec.soft(err) {
+				return nil, err
+			}
+			u = kind.SI() // only to sample values
 		}
 	}
 	fld.Conv, err = units.Parse(kind, u)
 	if err != nil {
-		return nil, fmt.Errorf("%s: variable %s (%s): %w; set units.%s in the study if the file is wrong", path, name, uSrc, err, spec.Role)
+		err = fmt.Errorf("%s: variable %s (%s): %w; set units.%s in the study if the file is wrong", path, name, uSrc, err, spec.Role)
+		if !spec.soft(err) {
+			return nil, err
+		}
+		fld.Conv, _ = units.Parse(kind, kind.SI()) // only to sample values
+		fld.Conv.From = u
 	}
 	if !fld.Conv.Identity() {
 		fld.Notes = append(fld.Notes, "units "+fld.Conv.String())
 	}
 	seg.mask, err = maskOf(v)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
+		err = fmt.Errorf("%s: %w", path, err)
+		if !spec.soft(err) {
+			return nil, err
+		}
+		seg.mask = plainMask(v) // no unpacking, only to sample values
+		if !seg.mask.isFloatType {
+			// packed integers mean nothing unscaled
+			fld.Notes = append(fld.Notes, notUnpacked)
+		}
 	}
 	fld.Notes = append(fld.Notes, seg.mask.Notes...)
 	fld.segs = []segment{seg}

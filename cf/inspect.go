@@ -3,6 +3,7 @@ package cf
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -134,8 +135,8 @@ func Inspect(path string) *FileReport {
 	return rep
 }
 
-func inspectVar(path string, m RoleMatch) VarReport {
-	vr := VarReport{Var: m.Var, Role: m.Role, How: m.How}
+func inspectVar(path string, m RoleMatch) (vr VarReport) {
+	vr = VarReport{Var: m.Var, Role: m.Role, How: m.How}
 	if m.ByName {
 		vr.Notes = append(vr.Notes, "recognised by name only (no standard_name): confirm the role in the study")
 	}
@@ -146,13 +147,19 @@ func inspectVar(path string, m RoleMatch) VarReport {
 		level = levelFor(m.Role)
 	}
 	vr.Spec = Spec{Role: m.Role, Var: m.Var, Level: level}
-	fld, err := Open([]string{path}, vr.Spec)
+	// Every problem of the variable in one pass: the open reads on past
+	// those it can (time, units, level, packing) and lists each.
+	var probs []string
+	defer func() { vr.Problems = dedupe(append(probs, vr.Problems...)) }()
+	fld, err := openCollecting(path, vr.Spec, &probs)
 	if err != nil {
-		vr.Problems = append(vr.Problems, err.Error())
-		// still say what the units are, if we can
+		probs = append(probs, err.Error())
+		// still say what the units are, and what else is wrong with the
+		// attributes, if we can
 		if nf, e2 := netcdf.Open(path); e2 == nil {
 			if v, e3 := nf.Var(m.Var); e3 == nil {
 				vr.Units = textAttr(v, "units")
+				probs = append(probs, attrProblems(path, v, m.Role, kind)...)
 			}
 			nf.Close()
 		}
@@ -173,6 +180,9 @@ func inspectVar(path string, m RoleMatch) VarReport {
 		}
 	}
 	vr.Decoding = fld.segs[0].mask.Describe()
+	if fld.segs[0].mask.standIn {
+		vr.Decoding = "the packing or missing-value attributes cannot be used (see the problems); values sampled as stored"
+	}
 	for _, n := range fld.Notes {
 		if n != "units "+fld.Conv.String() { // already on the units line
 			vr.Notes = append(vr.Notes, n)
@@ -199,7 +209,9 @@ func inspectVar(path string, m RoleMatch) VarReport {
 	if valid > 0 {
 		vr.Min, vr.Max = &lo, &hi
 	}
-	vr.Problems = append(vr.Problems, CheckValues(m.Role, fld.Conv, lo, hi, valid, total)...)
+	if !slices.Contains(fld.Notes, notUnpacked) {
+		vr.Problems = append(vr.Problems, CheckValues(m.Role, fld.Conv, lo, hi, valid, total)...)
+	}
 	if n := fld.InfCount(); n > 0 {
 		vr.Problems = append(vr.Problems, fmt.Sprintf("%d infinite values in the sampled steps (treated as missing)", n))
 	}

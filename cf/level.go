@@ -1,6 +1,7 @@
 package cf
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -69,9 +70,49 @@ func PickLevel(levels []float64, levelUnits string, target float64) (LevelPick, 
 		for _, x := range p {
 			mn, mx = math.Min(mn, x), math.Max(mx, x)
 		}
-		return LevelPick{}, fmt.Errorf("%g hPa lies outside the file's levels (%g…%g hPa): lidscope does not extrapolate; supply data that include it", target/100, mn/100, mx/100)
+		return LevelPick{}, levelNotInFile(levels, levelUnits, target, mn, mx)
 	}
 	pick.Lower, pick.Upper, pick.PLower, pick.PUpper = lo, hi, p[lo], p[hi]
 	pick.W = math.Log(target/p[lo]) / math.Log(p[hi]/p[lo])
 	return pick, nil
+}
+
+// ErrLevelNotInFile is wrapped by the error of PickLevel when the levels
+// do not reach the target pressure.
+var ErrLevelNotInFile = errors.New("the level is not in the file")
+
+// errLevelUnitsSuspect marks a level outside the levels that other level
+// units would bring inside (the message names the study key).
+var errLevelUnitsSuspect = errors.New("the level units look wrong")
+
+// levelNotInFile explains a target outside the levels mn…mx (Pa). When
+// the stored values read in other pressure units would bracket the target
+// (e.g. hPa labelled Pa), the units attribute is the likely fault and the
+// study's level_units can fix it; otherwise the level is simply not in the
+// file and no setting in the study can help.
+func levelNotInFile(levels []float64, levelUnits string, target, mn, mx float64) error {
+	rmn, rmx := levels[0], levels[0]
+	for _, x := range levels {
+		rmn, rmx = math.Min(rmn, x), math.Max(rmx, x)
+	}
+	for _, alt := range []string{"Pa", "hPa"} {
+		c, err := units.Parse(units.Pressure, alt)
+		if err != nil || alt == levelUnits {
+			continue
+		}
+		a, b := c.Apply(rmn), c.Apply(rmx)
+		if cur, err := units.Parse(units.Pressure, levelUnits); err == nil && cur.Scale == c.Scale {
+			continue
+		}
+		// read in the other units, the levels must be atmospheric
+		// pressures (0.1…1100 hPa) and bracket the target
+		if a >= 10 && b <= 110000 && a <= target+0.01 && b >= target-0.01 {
+			return fmt.Errorf("%g hPa lies outside the file's levels (%g…%g hPa, reading the stored values %g…%g as %q): if the levels are in fact %s, set the level units in the study (coordinates.ROLE.level_units: %s): %w", target/100, mn/100, mx/100, rmn, rmx, levelUnits, alt, alt, errLevelUnitsSuspect)
+		}
+	}
+	where := "at higher pressure than (below)"
+	if mx < target {
+		where = "at lower pressure than (above)"
+	}
+	return fmt.Errorf("%g hPa lies outside the file's levels (%g…%g hPa), which all lie %s %g hPa: %w, so no setting in the study can help (lidscope does not extrapolate, and the level units are not the fault); give a file whose levels include %g hPa", target/100, mn/100, mx/100, where, target/100, ErrLevelNotInFile, target/100)
 }

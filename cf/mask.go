@@ -74,6 +74,9 @@ type Mask struct {
 	RangeUnpacked   bool
 	Notes           []string // what was found that a user should know
 	isFloatType     bool
+	// standIn is true for plainMask: the variable's own decoding
+	// attributes could not be used (Inspect reads on past them).
+	standIn bool
 }
 
 // attrList finds attributes by name in a variable's attribute list.
