@@ -70,7 +70,7 @@ func init() { addCommand(newCalcCmd) }
 func newCalcCmd(e *env) *cobra.Command {
 	o := calcOptions{Constants: metrics.DefaultConstants()}
 	cmd := &cobra.Command{
-		Use:   "calc (--sst T | --surface-air-temp T) --t700 T [flags]",
+		Use:   "calc (--sst TEMP | --surface-air-temp TEMP) --t700 TEMP [flags]",
 		Short: "compute LTS, EIS and their ingredients for one column",
 		Long: `Computes LTS, EIS and their ingredients for one column, printing every
 intermediate value with its unit and the metrics conventions used. Quantities take a unit
@@ -95,24 +95,24 @@ keys of the same settings (--svp bolton is metrics.svp: bolton, --surface-pressu
 	fs := cmd.Flags()
 	fs.SortFlags = false
 	d := metrics.DefaultConventions()
-	fs.StringVar(&o.SST, "sst", "", "sea surface temperature (role sst)")
-	fs.StringVar(&o.SurfaceAirTemp, "surface-air-temp", "", "near-surface air temperature (role surface_air_temp), instead of or beside --sst")
-	fs.StringVar(&o.T700, "t700", "", "temperature at 700 hPa (required)")
-	fs.StringVar(&o.RH, "relative-humidity", "", "near-surface relative humidity over liquid water, 0.8 or 80% (role relative_humidity)")
-	fs.StringVar(&o.DewPoint, "dew-point", "", "near-surface dew point (role dew_point)")
-	fs.StringVar(&o.SpecificHum, "specific-humidity", "", "near-surface specific humidity, kg/kg or g/kg (role specific_humidity)")
-	fs.StringVar(&o.Q700, "q700", "", "specific humidity at 700 hPa; turns --ectei on unless it is given")
-	fs.StringVar(&o.SurfaceTemperature, "surface-temperature", "", "which temperature is the surface's: sst or air (default: the one given, sst when both are)")
-	fs.StringVar(&o.SurfacePressure, "surface-pressure", "1000hPa", "surface pressure")
-	fs.StringVar(&o.SurfaceHumidity, "surface-humidity", calcDefaultRH, "assumed near-surface relative humidity (0.8 or 80%), or the humidity input to use: relative_humidity, dew_point, specific_humidity or field")
-	fs.StringVar(&o.SVP, "svp", d.SVP.String(), "saturation vapour pressure: murphy-koop or bolton")
-	fs.StringVar(&o.LCL, "lcl", d.LCL.String(), "lifting condensation level: romps, bolton or linear")
-	fs.StringVar(&o.T850, "t850", "mean", "temperature at the lapse-rate level: mean ((T_surface + T700)/2) or its value, e.g. 288K")
-	fs.StringVar(&o.LapsePressure, "lapse-pressure", "850hPa", "pressure where the moist-adiabat θ gradient is evaluated")
-	fs.StringVar(&o.LapseMoisture, "lapse-moisture", d.LapseMoisture.String(), "saturation humidity in the lapse rate: qs or rs")
+	textVar(fs, &o.SST, "sst", "", "TEMP", "sea surface temperature (role sst)")
+	textVar(fs, &o.SurfaceAirTemp, "surface-air-temp", "", "TEMP", "near-surface air temperature (role surface_air_temp), instead of or beside --sst")
+	textVar(fs, &o.T700, "t700", "", "TEMP", "temperature at 700 hPa (required)")
+	textVar(fs, &o.RH, "relative-humidity", "", "RH", "near-surface relative humidity over liquid water, 0.8 or 80% (role relative_humidity)")
+	textVar(fs, &o.DewPoint, "dew-point", "", "TEMP", "near-surface dew point (role dew_point)")
+	textVar(fs, &o.SpecificHum, "specific-humidity", "", "Q", "near-surface specific humidity, kg/kg or g/kg (role specific_humidity)")
+	textVar(fs, &o.Q700, "q700", "", "Q", "specific humidity at 700 hPa; turns --ectei on unless it is given")
+	textVar(fs, &o.SurfaceTemperature, "surface-temperature", "", "sst|air", "which temperature is the surface's: sst or air (default: the one given, sst when both are)")
+	textVar(fs, &o.SurfacePressure, "surface-pressure", "1000hPa", "PRESSURE", "surface pressure")
+	textVar(fs, &o.SurfaceHumidity, "surface-humidity", calcDefaultRH, "RH|ROLE|field", "assumed near-surface relative humidity (0.8 or 80%), or the humidity input to use: relative_humidity, dew_point, specific_humidity or field")
+	textVar(fs, &o.SVP, "svp", d.SVP.String(), metrics.SVPMurphyKoop.String()+"|"+metrics.SVPBolton.String(), "saturation vapour pressure: murphy-koop or bolton")
+	textVar(fs, &o.LCL, "lcl", d.LCL.String(), metrics.LCLRomps.String()+"|"+metrics.LCLBolton.String()+"|"+metrics.LCLLinear.String(), "lifting condensation level: romps, bolton or linear")
+	textVar(fs, &o.T850, "t850", "mean", "mean|TEMP", "temperature at the lapse-rate level: mean ((T_surface + T700)/2) or its value, e.g. 288K")
+	textVar(fs, &o.LapsePressure, "lapse-pressure", "850hPa", "PRESSURE", "pressure where the moist-adiabat θ gradient is evaluated")
+	textVar(fs, &o.LapseMoisture, "lapse-moisture", d.LapseMoisture.String(), metrics.LapseQs.String()+"|"+metrics.LapseRs.String(), "saturation humidity in the lapse rate: qs or rs")
 	fs.BoolVar(&o.ECTEI, "ectei", false, "compute ECTEI (needs --q700)")
 	fs.Float64Var(&o.Beta, "ectei-beta", d.ECTEIBeta, "β of ECTEI")
-	fs.StringVar(&o.ECTEISurface, "ectei-surface", d.ECTEISurface.String(), "q_surface of ECTEI: air (from the humidity input) or saturated (qs at the surface)")
+	textVar(fs, &o.ECTEISurface, "ectei-surface", d.ECTEISurface.String(), metrics.ECTEIAir.String()+"|"+metrics.ECTEISaturated.String(), "q_surface of ECTEI: air (from the humidity input) or saturated (qs at the surface)")
 	c := &o.Constants
 	fs.Float64Var(&c.Rd, "rd", c.Rd, "gas constant of dry air, J kg-1 K-1")
 	fs.Float64Var(&c.Rv, "rv", c.Rv, "gas constant of water vapour, J kg-1 K-1")

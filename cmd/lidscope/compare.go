@@ -54,7 +54,7 @@ first into DIR/NAME and the first dataset (or --reference NAME) is the reference
 	}
 	fs := cmd.Flags()
 	addOutDir(fs, &o.Out, "", "folder for the comparison (required)")
-	fs.StringVar(&o.Reference, "reference", "", "with a study: the reference dataset (default: the first)")
+	textVar(fs, &o.Reference, "reference", "", "NAME", "with a study: the reference dataset (default: the first)")
 	addForce(fs, &o.Force, "replace existing results")
 	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different studies, periods or regime definitions (every mismatch is listed)")
 	addNoPlots(fs, &o.NoPlots, "do not draw the comparison figures")

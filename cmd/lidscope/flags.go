@@ -22,12 +22,12 @@ import (
 
 // addOutDir declares --out/-o, the folder a command writes into.
 func addOutDir(fs *pflag.FlagSet, p *string, def, usage string) {
-	fs.StringVarP(p, "out", "o", def, usage)
+	textVarP(fs, p, "out", "o", def, "DIR", usage)
 }
 
 // addOutputFile declares --output/-o, the one file a command writes.
 func addOutputFile(fs *pflag.FlagSet, p *string, usage string) {
-	fs.StringVarP(p, "output", "o", "", usage)
+	textVarP(fs, p, "output", "o", "", "FILE", usage)
 }
 
 // addForce declares --force/-f.
@@ -58,7 +58,7 @@ type logOptions struct {
 }
 
 func (l *logOptions) register(fs *pflag.FlagSet) {
-	fs.StringVar(&l.Format, "log-format", "text", "log format: text or json")
+	textVar(fs, &l.Format, "log-format", "text", "text|json", "log format")
 	fs.BoolVarP(&l.Quiet, "quiet", "q", false, "log errors only, and no progress display")
 	fs.BoolVarP(&l.Verbose, "verbose", "v", false, "log details (every conversion and note)")
 }
@@ -144,3 +144,72 @@ func noArgs(msg string) cobra.PositionalArgs {
 		return nil
 	}
 }
+
+// textValue is a string flag whose help shows a placeholder of what to
+// give (DIR, FILE, TEMP, or the choices a|b|c) instead of "string".
+type textValue struct {
+	p           *string
+	placeholder string
+}
+
+func (v *textValue) String() string     { return *v.p }
+func (v *textValue) Set(s string) error { *v.p = s; return nil }
+func (v *textValue) Type() string       { return v.placeholder }
+
+// choices returns the values of a placeholder "a|b|c", or nil.
+func (v *textValue) choices() []string {
+	if !strings.Contains(v.placeholder, "|") {
+		return nil
+	}
+	return strings.Split(v.placeholder, "|")
+}
+
+// textVarP declares a string flag shown as --name PLACEHOLDER; a
+// placeholder "a|b|c" lists the values the flag takes (and completes).
+func textVarP(fs *pflag.FlagSet, p *string, name, short, def, placeholder, usage string) {
+	*p = def
+	fs.VarP(&textValue{p, placeholder}, name, short, usage)
+}
+
+// textVar is textVarP without a short form.
+func textVar(fs *pflag.FlagSet, p *string, name, def, placeholder, usage string) {
+	textVarP(fs, p, name, "", def, placeholder, usage)
+}
+
+// completeChoices registers, for every flag of cmd and its subcommands
+// whose placeholder lists choices, the completion of those choices.
+func completeChoices(cmd *cobra.Command) {
+	for _, c := range allCommands(cmd) {
+		c.LocalNonPersistentFlags().VisitAll(func(f *pflag.Flag) {
+			if v, ok := f.Value.(*textValue); ok && v.choices() != nil {
+				ch := v.choices()
+				_ = c.RegisterFlagCompletionFunc(f.Name, func(*cobra.Command, []string, string) ([]cobra.Completion, cobra.ShellCompDirective) {
+					return ch, cobra.ShellCompDirectiveNoFileComp
+				})
+			}
+		})
+	}
+}
+
+// fileArgs completes positional arguments with files of these extensions
+// (".nc", ".yaml", ...).
+func fileArgs(exts ...string) cobra.CompletionFunc {
+	trimmed := make([]string, len(exts))
+	for i, e := range exts {
+		trimmed[i] = strings.TrimPrefix(e, ".")
+	}
+	return func(*cobra.Command, []string, string) ([]cobra.Completion, cobra.ShellCompDirective) {
+		return trimmed, cobra.ShellCompDirectiveFilterFileExt
+	}
+}
+
+// dirArgs completes positional arguments with folders.
+func dirArgs(*cobra.Command, []string, string) ([]cobra.Completion, cobra.ShellCompDirective) {
+	return nil, cobra.ShellCompDirectiveFilterDirs
+}
+
+// netcdfExts are the usual file name extensions of NetCDF files.
+var netcdfExts = []string{"nc", "nc4", "cdf", "netcdf"}
+
+// studyExts are the file name extensions of a study.
+var studyExts = []string{"yaml", "yml", "toml", "json"}

@@ -31,7 +31,8 @@ and every problem found; with several files, whether their grids match. Exits wi
 status 1 when a file cannot be used.`,
 		Example: `  lidscope inspect obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc
   lidscope inspect obs/sst/*.nc --json`,
-		Args: minArgs(1, "give at least one file"),
+		Args:              minArgs(1, "give at least one file"),
+		ValidArgsFunction: fileArgs(netcdfExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Files = args
 			return runInspect(o, e.stdout)

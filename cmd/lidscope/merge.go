@@ -30,7 +30,8 @@ written into the folder --out.`,
 		Example: `  lidscope run obs/study.yaml --set datasets.0.time.end=2002-12 --out out/part1 --no-plots
   lidscope run obs/study.yaml --set datasets.0.time.start=2003-01 --out out/part2 --no-plots
   lidscope merge out/part1 out/part2 --out out/merged`,
-		Args: minArgs(2, "give at least two run folders"),
+		Args:              minArgs(2, "give at least two run folders"),
+		ValidArgsFunction: dirArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Runs = args
 			if o.Out == "" {

@@ -53,6 +53,7 @@ lacks are skipped unless named with --only.`,
 		Example: `  lidscope plot --list
   lidscope plot demo-out/results/synthetic-demo --no-coastlines --out figures
   lidscope plot demo-out/results/synthetic-demo --no-coastlines --format svg --only map_eis,series --out figures-svg`,
+		ValidArgsFunction: dirArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Only = only
 			if o.List {
@@ -74,7 +75,7 @@ lacks are skipped unless named with --only.`,
 		},
 	}
 	fs := cmd.Flags()
-	fs.StringVar(&o.Format, "format", "png", "figure format: "+strings.Join(figures.Formats, ", "))
+	textVar(fs, &o.Format, "format", "png", strings.Join(figures.Formats, "|"), "figure format: "+strings.Join(figures.Formats, ", "))
 	fs.Var(&only, "only", "draw only the named figure (repeat the flag or separate names with commas; see --list)")
 	addOutDir(fs, &o.Out, "", "folder for the figures (default RUN_DIR/"+figures.DefaultDirName+")")
 	addForce(fs, &o.Force, "replace figures that exist already")
@@ -83,6 +84,9 @@ lacks are skipped unless named with --only.`,
 		strings.Join(figures.PaletteKeys(), ", ")+"; maps: "+strings.Join(figures.PaletteNames(), ", ")+", each also NAME-reversed)")
 	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")
 	fs.BoolVar(&o.List, "list", false, "list the figures and what they show, then exit")
+	_ = cmd.RegisterFlagCompletionFunc("only", func(*cobra.Command, []string, string) ([]cobra.Completion, cobra.ShellCompDirective) {
+		return figures.Names(), cobra.ShellCompDirectiveNoFileComp
+	})
 	return cmd
 }
 

@@ -64,17 +64,45 @@ Exit status: 0 success, 1 failure (the message says what, where and what to do),
 	for _, newCmd := range commandSet {
 		root.AddCommand(newCmd(e))
 	}
-	root.InitDefaultHelpCmd()
-	root.InitDefaultCompletionCmd()
-	for _, c := range root.Commands() {
-		switch c.Name() {
-		case "help":
-			c.Short = "print the help of a command (as COMMAND --help does)"
-		case "completion":
-			c.Short = "write the shell completion script for bash, zsh, fish or powershell"
-		}
-	}
+	completeChoices(root)
+	root.SetHelpCommand(newHelpCmd())
+	root.CompletionOptions.DisableDefaultCmd = true // completion.go writes the scripts
 	return root
+}
+
+// newHelpCmd is `lidscope help [COMMAND...]`: the help of a command on
+// stdout, as COMMAND --help prints it; an unknown command is a usage
+// mistake.
+func newHelpCmd() *cobra.Command {
+	return &cobra.Command{
+		Use:   "help [COMMAND]...",
+		Short: "print the help of a command (as COMMAND --help does)",
+		RunE: func(cmd *cobra.Command, args []string) error {
+			root := cmd.Root()
+			target, rest, err := root.Find(args)
+			if err != nil || len(rest) > 0 {
+				typed := strings.Join(args, " ")
+				if len(rest) > 0 {
+					typed = rest[0]
+				}
+				return usageErr("unknown command %q%s", typed, suggestion(target, typed))
+			}
+			return target.Help()
+		},
+		ValidArgsFunction: func(cmd *cobra.Command, args []string, toComplete string) ([]cobra.Completion, cobra.ShellCompDirective) {
+			target, _, err := cmd.Root().Find(args)
+			if err != nil {
+				return nil, cobra.ShellCompDirectiveNoFileComp
+			}
+			var out []cobra.Completion
+			for _, c := range target.Commands() {
+				if c.IsAvailableCommand() && strings.HasPrefix(c.Name(), toComplete) {
+					out = append(out, cobra.CompletionWithDesc(c.Name(), c.Short))
+				}
+			}
+			return out, cobra.ShellCompDirectiveNoFileComp
+		},
+	}
 }
 
 // run executes a command line without signal handling (what tests call)

@@ -52,6 +52,14 @@ func TestCommandLineConventions(t *testing.T) {
 		{args: []string{"completion", "bash"}, code: 0, out: "bash completion", emptyError: true},
 		{args: []string{"completion", "zsh"}, code: 0, out: "compdef", emptyError: true},
 		{args: []string{"completion", "fish"}, code: 0, out: "complete -c lidscope", emptyError: true},
+		{args: []string{"completion"}, code: 2, errs: "give the shell", emptyOut: true},
+		{args: []string{"completion", "tcsh"}, code: 2, errs: `no completion for the shell "tcsh"`, emptyOut: true},
+		{args: []string{"help", "frobnicate"}, code: 2, errs: `unknown command "frobnicate"`, emptyOut: true},
+		{args: []string{"help", "study", "init"}, code: 0, out: "lidscope study init FILE...", emptyError: true},
+		// completion of flag values and arguments (cobra's __complete protocol)
+		{args: []string{"__complete", "calc", "--svp", ""}, code: 0, out: "murphy-koop\nbolton\n"},
+		{args: []string{"__complete", "plot", "run", "--only", "map_e"}, code: 0, out: "map_eis"},
+		{args: []string{"__complete", "run", ""}, code: 0, out: "yaml\nyml\ntoml\njson\n"},
 	} {
 		var out, errb bytes.Buffer
 		code := run(c.args, &out, &errb)
@@ -68,7 +76,7 @@ func TestCommandLineConventions(t *testing.T) {
 func TestCommandTreeHelp(t *testing.T) {
 	root := newRoot(&env{stdout: &bytes.Buffer{}, stderr: &bytes.Buffer{}})
 	shared := map[string]struct{ short, kind string }{
-		"out": {"o", "string"}, "output": {"o", "string"}, "force": {"f", "bool"},
+		"out": {"o", "DIR"}, "output": {"o", "FILE"}, "force": {"f", "bool"},
 		"set": {"s", "KEY=VALUE"}, "quiet": {"q", "bool"}, "verbose": {"v", "bool"},
 	}
 	for _, cmd := range allCommands(root) {

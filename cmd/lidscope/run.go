@@ -40,7 +40,8 @@ streaming pass and writes maps, series, tables, summary.json and provenance.json
 into the folder --out (default: the study's output.dir/DATASET).`,
 		Example: `  lidscope run obs/study.yaml --out out/obs
   lidscope run obs/study.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet --no-plots`,
-		Args: exactArgs(1, "give exactly one study file"),
+		Args:              exactArgs(1, "give exactly one study file"),
+		ValidArgsFunction: fileArgs(studyExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Study = args[0]
 			o.Datasets = datasets

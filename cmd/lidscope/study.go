@@ -57,7 +57,8 @@ written out. The study is one file: it is printed, or written to --output FILE (
 with its file names relative to that file's folder.`,
 		Example: `  lidscope study init obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc
   lidscope study init obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc --output obs.yaml`,
-		Args: minArgs(1, "give at least one NetCDF file"),
+		Args:              minArgs(1, "give at least one NetCDF file"),
+		ValidArgsFunction: fileArgs(netcdfExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if outDir != "" {
 				return usageErr("study init writes one file: name it with --output FILE (-o FILE); --out always names a folder")
@@ -146,7 +147,8 @@ func newStudyCheckCmd(e *env) *cobra.Command {
 problem (file:line: key: message), and prints the fully resolved study and its SHA-256.`,
 		Example: `  lidscope study check obs/study.yaml
   lidscope study check obs/study.yaml --set analysis.threshold=1.0`,
-		Args: exactArgs(1, "give exactly one study file"),
+		Args:              exactArgs(1, "give exactly one study file"),
+		ValidArgsFunction: fileArgs(studyExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Study = args[0]
 			o.Set = set
