@@ -4,16 +4,15 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"lidscope/internal/testutil"
 	"math"
 	"math/rand/v2"
-	"os"
 	"os/exec"
-	"strings"
 	"testing"
 )
 
 // Independent reference: Debian's python3-cftime (Unidata cftime, num2date and
-// date2num), run through /usr/bin/python3 by testdata/cftime_check.py.
+// date2num), run through Debian's python3 by testdata/cftime_check.py.
 //
 // Where this package and cftime 1.6 deliberately differ, the cases below stay
 // out of the comparison or check the difference itself:
@@ -29,30 +28,9 @@ import (
 // cftime's "standard" calendar is, like CF's, Julian before 1582-10-15 (unlike
 // Python's datetime and numpy, which are proleptic Gregorian).
 
-const systemPython = "/usr/bin/python3"
-
-// need skips the test when a tool is missing, or fails it when CI is set
-// (CI installs every tool the tests use).
-func need(t *testing.T, what string, check func() error) {
+func needCftime(t *testing.T) string {
 	t.Helper()
-	if err := check(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is needed and CI is set: %v", what, err)
-		}
-		t.Skipf("%s is missing (%v); install it (Debian: apt-get install python3-cftime) or set CI to make this a failure", what, err)
-	}
-}
-
-func needCftime(t *testing.T) {
-	need(t, systemPython+" with cftime", func() error {
-		if _, err := exec.LookPath(systemPython); err != nil {
-			return err
-		}
-		if out, err := exec.Command(systemPython, "-c", "import cftime").CombinedOutput(); err != nil {
-			return errors.New(strings.TrimSpace(string(out)))
-		}
-		return nil
-	})
+	return testutil.Python(t, "cftime")
 }
 
 type cftimeRequest struct {
@@ -74,7 +52,7 @@ func runCftime(t *testing.T, req cftimeRequest) cftimeReply {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cmd := exec.Command(systemPython, "testdata/cftime_check.py")
+	cmd := exec.Command(needCftime(t), "testdata/cftime_check.py")
 	cmd.Stdin = bytes.NewReader(in)
 	var stderr bytes.Buffer
 	cmd.Stderr = &stderr

@@ -8,22 +8,9 @@ import (
 	"strings"
 	"testing"
 
+	"lidscope/internal/testutil"
 	"lidscope/netcdf"
 )
-
-// need skips the test when an external tool is missing, unless CI is set:
-// then the tool must be there (CI installs it) and the test fails.
-func need(t testing.TB, tool string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set (install netcdf-bin / the reference tools): %v", tool, err)
-		}
-		t.Skipf("%s not found (install it, e.g. `make deps`); skipping", tool)
-	}
-	return p
-}
 
 // Kinds of ncgen output (ncgen -k), one per on-disk format.
 var ncgenKinds = []string{"classic", "64-bit offset", "cdf5", "netCDF-4"}
@@ -49,7 +36,7 @@ func cdlFor(cdl, kind string) string {
 // folder and returns its path.
 func ncgen(t testing.TB, cdl, kind, name string) string {
 	t.Helper()
-	tool := need(t, "ncgen")
+	tool := testutil.Tool(t, "ncgen")
 	dir := t.TempDir()
 	src := filepath.Join(dir, name+".cdl")
 	if err := os.WriteFile(src, []byte(cdlFor(cdl, kind)), 0o644); err != nil {

@@ -1,6 +1,7 @@
 package cf
 
 import (
+	"lidscope/internal/testutil"
 	"math"
 	"os"
 	"os/exec"
@@ -15,27 +16,11 @@ import (
 // (subfolders cdf/ and nug/). Values read through cf are compared cell by
 // cell with ncdump (netcdf-bin) output.
 
-func realData(t *testing.T, rel string) string {
-	t.Helper()
-	dir := os.Getenv("LIDSCOPE_REALDATA")
-	if dir == "" {
-		if os.Getenv("CI") != "" {
-			t.Fatal("LIDSCOPE_REALDATA is not set; CI must run `make realdata` and set it")
-		}
-		t.Skip("LIDSCOPE_REALDATA not set (run `make realdata`, then LIDSCOPE_REALDATA=/tmp/lidscope-realdata go test); skipping")
-	}
-	p := filepath.Join(dir, rel)
-	if _, err := os.Stat(p); err != nil {
-		t.Fatalf("real data file missing: %v", err)
-	}
-	return p
-}
-
 // ncdumpValues runs `ncdump -v name` and parses the root group's data of
 // variable name into float64s; "_" (fill) and NaN become NaN.
 func ncdumpValues(t *testing.T, path, name string) []float64 {
 	t.Helper()
-	tool := need(t, "ncdump")
+	tool := testutil.Tool(t, "ncdump")
 	out, err := exec.Command(tool, "-p", "9,17", "-v", name, path).Output()
 	if err != nil {
 		t.Fatalf("ncdump -v %s %s: %v", name, path, err)
@@ -112,7 +97,7 @@ func compareWithNcdump(t *testing.T, path string, f *Field, latName, lonName str
 }
 
 func TestRealSSTClimatology(t *testing.T) {
-	path := realData(t, "cdf/sstdata_netcdf.nc")
+	path := testutil.RealData(t, "cdf/sstdata_netcdf.nc")
 	rep := Inspect(path)
 	if rep.Usable {
 		t.Error("sstdata reported usable without declaring its time axis")
@@ -145,7 +130,7 @@ func TestRealSSTClimatology(t *testing.T) {
 }
 
 func TestRealLandSeaMask(t *testing.T) {
-	path := realData(t, "cdf/landsea.nc")
+	path := testutil.RealData(t, "cdf/landsea.nc")
 	rep := Inspect(path)
 	if len(rep.Fields) != 1 || rep.Fields[0].Role != RoleLandFraction || rep.Fields[0].Var != "LSMASK" {
 		t.Fatalf("fields %+v", rep.Fields)
@@ -162,7 +147,7 @@ func TestRealLandSeaMask(t *testing.T) {
 }
 
 func TestRealPressureLevels(t *testing.T) {
-	path := realData(t, "nug/rectilinear_grid_3D.nc")
+	path := testutil.RealData(t, "nug/rectilinear_grid_3D.nc")
 	rep := Inspect(path)
 	if !rep.Usable || len(rep.Fields) != 1 || rep.Fields[0].Role != RoleAirTemp || rep.Fields[0].Var != "t" {
 		t.Fatalf("report %+v", rep)
@@ -199,7 +184,7 @@ func TestRealPressureLevels(t *testing.T) {
 }
 
 func TestRealLandFractionPercent(t *testing.T) {
-	path := realData(t, "nug/sftlf_mod1_rectilinear_grid_2D.nc")
+	path := testutil.RealData(t, "nug/sftlf_mod1_rectilinear_grid_2D.nc")
 	rep := Inspect(path)
 	if !rep.Usable || len(rep.Fields) != 1 {
 		t.Fatalf("report %+v", rep)
@@ -221,7 +206,7 @@ func TestRealLandFractionPercent(t *testing.T) {
 }
 
 func TestRealNetCDF4Strings(t *testing.T) {
-	path := realData(t, "cdf/nc4uvt.nc")
+	path := testutil.RealData(t, "cdf/nc4uvt.nc")
 	rep := Inspect(path)
 	if rep.Format != "NetCDF-4" || len(rep.Fields) != 1 || rep.Fields[0].Var != "T" || rep.Fields[0].Role != RoleAirTemp {
 		t.Fatalf("report %+v", rep)
@@ -247,7 +232,7 @@ func TestRealNetCDF4Strings(t *testing.T) {
 }
 
 func TestRealOceanNotAir(t *testing.T) {
-	path := realData(t, "cdf/ocean.nc")
+	path := testutil.RealData(t, "cdf/ocean.nc")
 	rep := Inspect(path)
 	for _, fr := range rep.Fields {
 		if fr.Var == "T" {
@@ -264,11 +249,11 @@ func TestRealOceanNotAir(t *testing.T) {
 }
 
 func TestRealRotatedAndCurvilinear(t *testing.T) {
-	rep := Inspect(realData(t, "nug/tas_rotated_grid_EUR11.nc"))
+	rep := Inspect(testutil.RealData(t, "nug/tas_rotated_grid_EUR11.nc"))
 	if rep.Usable || len(rep.Fields) != 1 || !strings.Contains(strings.Join(rep.Fields[0].Problems, ""), "rotated-pole") {
 		t.Errorf("rotated grid: %+v", rep)
 	}
-	rep = Inspect(realData(t, "nug/tos_ocean_bipolar_grid.nc"))
+	rep = Inspect(testutil.RealData(t, "nug/tos_ocean_bipolar_grid.nc"))
 	if rep.Usable || !strings.Contains(strings.Join(rep.Problems, ""), "tos (standard_name sea_surface_temperature) looks like role sst but cannot be used") {
 		t.Errorf("curvilinear grid: %+v", rep.Problems)
 	}
@@ -277,7 +262,7 @@ func TestRealRotatedAndCurvilinear(t *testing.T) {
 // Every file of the real data folders gives a report, without panicking;
 // files that are not netCDF give an unusable report that says so.
 func TestRealEveryFileInspects(t *testing.T) {
-	dir := filepath.Dir(realData(t, "cdf/ocean.nc"))
+	dir := filepath.Dir(testutil.RealData(t, "cdf/ocean.nc"))
 	var files []string
 	for _, sub := range []string{"cdf", "nug"} {
 		es, err := os.ReadDir(filepath.Join(filepath.Dir(dir), sub))

@@ -2,8 +2,8 @@ package cf
 
 import (
 	"encoding/json"
+	"lidscope/internal/testutil"
 	"math"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"testing"
@@ -120,35 +120,6 @@ func TestRoundTrip(t *testing.T) {
 	}
 }
 
-// python returns Debian's /usr/bin/python3 (not the first python3 on PATH)
-// when it can import the modules, else skips (fails when CI is set).
-func python(t testing.TB, modules ...string) string {
-	t.Helper()
-	const py = "/usr/bin/python3"
-	args := []string{"-c", "import " + joinComma(modules)}
-	if _, err := os.Stat(py); err != nil {
-		need(t, py)
-	}
-	if out, err := exec.Command(py, args...).CombinedOutput(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s cannot import %v (install python3-xarray python3-netcdf4): %v\n%s", py, modules, err, out)
-		}
-		t.Skipf("%s cannot import %v (install python3-xarray python3-netcdf4); skipping: %s", py, modules, out)
-	}
-	return py
-}
-
-func joinComma(s []string) string {
-	out := ""
-	for i, x := range s {
-		if i > 0 {
-			out += ", "
-		}
-		out += x
-	}
-	return out
-}
-
 const decodeScript = `
 import json, sys, math
 import numpy, xarray, netCDF4
@@ -172,7 +143,7 @@ print(json.dumps(out))
 `
 
 func TestDecodeAgainstXarrayAndNetCDF4(t *testing.T) {
-	py := python(t, "xarray", "netCDF4", "numpy")
+	py := testutil.Python(t, "xarray", "netCDF4", "numpy")
 	path := filepath.Join(t.TempDir(), "rt.nc")
 	writeRoundTrip(t, path)
 	out, err := exec.Command(py, "-c", decodeScript, path).Output()

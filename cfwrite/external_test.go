@@ -3,6 +3,7 @@ package cfwrite_test
 import (
 	"encoding/json"
 	"fmt"
+	"lidscope/internal/testutil"
 	"math"
 	"os/exec"
 	"path/filepath"
@@ -16,7 +17,7 @@ import (
 // Independent readers: the files are checked with tools that share no code
 // with this package: ncdump (Unidata netCDF-C utilities, Debian netcdf-bin),
 // xarray with netCDF4 and cftime (Debian python3-xarray, python3-netcdf4,
-// python3-cftime, run by /usr/bin/python3) and CDO (Debian cdo).
+// python3-cftime, run by Debian's python3) and CDO (Debian cdo).
 
 func run(t *testing.T, name string, args ...string) string {
 	t.Helper()
@@ -44,7 +45,7 @@ func containsAll(t *testing.T, tool, text string, want []string) {
 // deflate level, shuffle) the writer promises; `ncdump -v` shows the
 // missing values as "_", netCDF's notation for the fill value.
 func TestNcdumpDeclarations(t *testing.T) {
-	ncdump := need(t, "ncdump", "netcdf-bin")
+	ncdump := testutil.Tool(t, "ncdump")
 	dir := t.TempDir()
 	maps := filepath.Join(dir, "maps.nc")
 	table := filepath.Join(dir, "table.nc")
@@ -153,7 +154,7 @@ func python(t *testing.T, py, script string, v any, args ...string) {
 // ordinary calendar), masks the fill values as NaN, and finds the scalar
 // coordinate and the bounds by their attributes.
 func TestXarrayReadsMaps(t *testing.T) {
-	py := needPython(t, "xarray", "netCDF4", "cftime")
+	py := testutil.Python(t, "xarray", "netCDF4", "cftime")
 	path := tempPath(t, "maps.nc")
 	writeMaps(t, path, "standard")
 	var got struct {
@@ -218,7 +219,7 @@ func TestXarrayReadsMaps(t *testing.T) {
 // 2000-03-01; 360_day has 30 + 30, so 2000-02-30. Non-standard calendars
 // decode to cftime objects.
 func TestXarrayCalendars(t *testing.T) {
-	py := needPython(t, "xarray", "netCDF4", "cftime")
+	py := testutil.Python(t, "xarray", "netCDF4", "cftime")
 	dir := t.TempDir()
 	cals := []struct{ cal, typ, date string }{
 		{"standard", "datetime64", "2000-02-29T00:00:00.000000000"},
@@ -251,7 +252,7 @@ func TestXarrayCalendars(t *testing.T) {
 // TestXarrayReadsTable: the categorical axis keeps its flag_values and
 // flag_meanings (CF-1.10 §3.5), the empty bin reads as NaN.
 func TestXarrayReadsTable(t *testing.T) {
-	py := needPython(t, "xarray", "netCDF4")
+	py := testutil.Python(t, "xarray", "netCDF4")
 	path := tempPath(t, "table.nc")
 	writeTable(t, path)
 	var got struct {
@@ -291,7 +292,7 @@ func TestXarrayReadsTable(t *testing.T) {
 // cell edges as great-circle arcs, which differ from the parallels by a
 // negligible area at that width (at 90° width they would not).
 func TestCdoReads(t *testing.T) {
-	cdo := need(t, "cdo", "cdo")
+	cdo := testutil.Tool(t, "cdo")
 	dir := t.TempDir()
 	path := filepath.Join(dir, "maps.nc")
 	latB := [][2]float64{{20, 5}, {5, -5}, {-5, -12}}

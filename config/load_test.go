@@ -9,6 +9,7 @@ import (
 
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/internal/testutil"
 	"lidscope/metrics"
 	"lidscope/regrid"
 )
@@ -43,7 +44,7 @@ func TestExampleFormatsAgree(t *testing.T) {
 // (Debian python3-yaml) the YAML example as that data too.
 func TestExampleFilesHoldTheSameData(t *testing.T) {
 	t.Run("toml=json", func(t *testing.T) {
-		py := python(t, "json", "tomllib")
+		py := testutil.Python(t, "json", "tomllib")
 		script := `
 import json, sys, tomllib
 t = tomllib.load(open(sys.argv[1], "rb"))
@@ -57,7 +58,7 @@ print("equal", len(t["datasets"]))
 		}
 	})
 	t.Run("yaml=json", func(t *testing.T) {
-		py := python(t, "json", "yaml")
+		py := testutil.Python(t, "json", "yaml")
 		script := `
 import json, sys, yaml
 y = yaml.safe_load(open(sys.argv[1]))

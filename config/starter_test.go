@@ -9,6 +9,7 @@ import (
 
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/internal/testutil"
 	"lidscope/units"
 )
 
@@ -244,14 +245,8 @@ func TestStarterPaths(t *testing.T) {
 // every input with the Spec the study gives, which for the SST is only
 // possible through the declared climatology.
 func TestStarterOnRealFiles(t *testing.T) {
-	real := os.Getenv("LIDSCOPE_REALDATA")
-	if real == "" {
-		if os.Getenv("CI") != "" {
-			t.Fatal("LIDSCOPE_REALDATA is not set in CI (make realdata)")
-		}
-		t.Skip("LIDSCOPE_REALDATA not set; run `make realdata` and set it to the folder")
-	}
-	ncgen := need(t, "ncgen")
+	real := testutil.RealData(t, ".")
+	ncgen := testutil.Tool(t, "ncgen")
 	dir := t.TempDir()
 	for name, cdl := range map[string]string{"ta_clim.nc": taCDL, "cll_clim.nc": cllCDL} {
 		cdlPath := writeFile(t, dir, name+".cdl", cdl)

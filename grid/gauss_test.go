@@ -2,26 +2,14 @@ package grid_test
 
 import (
 	"math"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
 	"testing"
 
 	"lidscope/grid"
+	"lidscope/internal/testutil"
 )
-
-// need skips the test when tool is not installed, or fails it when CI is
-// set (CI installs the tools).
-func need(t *testing.T, tool string) {
-	t.Helper()
-	if _, err := exec.LookPath(tool); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set but was not found: %v", tool, err)
-		}
-		t.Skipf("%s not found (install it to run this comparison; with CI set the test fails instead)", tool)
-	}
-}
 
 // TestGaussianTable compares abscissas x = sin φ and weights with
 // Abramowitz & Stegun (1964), Handbook of Mathematical Functions, Table 25.4
@@ -86,7 +74,7 @@ func TestGaussianT42(t *testing.T) {
 // prints for its built-in grids (cdo griddes): t42grid (64), n48 (96), n80
 // (160).
 func TestGaussianAgainstCDO(t *testing.T) {
-	need(t, "cdo")
+	testutil.Tool(t, "cdo")
 	for _, c := range []struct {
 		name string
 		n    int
@@ -127,24 +115,13 @@ func TestGaussianAgainstCDO(t *testing.T) {
 	}
 }
 
-const pythonRef = "/usr/bin/python3"
-
-// python runs a script with the Debian Python at pythonRef, skipping (or
-// failing under CI) when it or the module is unavailable.
-func python(t *testing.T, script string) string {
+// python runs a script with a Python that imports the modules (testutil.Python:
+// skips, or fails under CI, when there is none).
+func python(t *testing.T, script string, modules ...string) string {
 	t.Helper()
-	if _, err := os.Stat(pythonRef); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set: %v", pythonRef, err)
-		}
-		t.Skipf("%s not found (install python3 and python3-numpy to run this comparison)", pythonRef)
-	}
-	out, err := exec.Command(pythonRef, "-c", script).Output()
+	out, err := exec.Command(testutil.Python(t, modules...), "-c", script).Output()
 	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s: %v", pythonRef, err)
-		}
-		t.Skipf("reference module not usable at %s: %v", pythonRef, err)
+		t.Fatalf("reference script: %v", err)
 	}
 	return string(out)
 }
@@ -171,7 +148,7 @@ func floats(t *testing.T, line string) []float64 {
 func TestGaussianAgainstNumPy(t *testing.T) {
 	for _, n := range []int{64, 96, 320, 1280} {
 		out := python(t, "import numpy\nx, w = numpy.polynomial.legendre.leggauss("+strconv.Itoa(n)+")\n"+
-			"print(' '.join(repr(float(v)) for v in x))\nprint(' '.join(repr(float(v)) for v in w))\n")
+			"print(' '.join(repr(float(v)) for v in x))\nprint(' '.join(repr(float(v)) for v in w))\n", "numpy")
 		lines := strings.Split(strings.TrimSpace(out), "\n")
 		xs, ws := floats(t, lines[0]), floats(t, lines[1])
 		lat, w := grid.GaussianLatitudes(n)
@@ -191,7 +168,7 @@ func TestGaussianAgainstNumPy(t *testing.T) {
 
 // TestGaussianHighPrecision checks roots and weights near the pole and the
 // equator against 40-digit decimal arithmetic (the decimal module of the
-// Python standard library at /usr/bin/python3): each of our roots is
+// Python standard library): each of our roots is
 // polished by Newton iteration on P_n with the same three-term recurrence
 // carried out in 40 digits, and its weight 2/((1 − x²) P'_n(x)²) evaluated
 // there. Only +, −, × and ÷ are needed, all correctly rounded in decimal.

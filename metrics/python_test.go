@@ -3,35 +3,13 @@ package metrics
 import (
 	"bytes"
 	"fmt"
+	"lidscope/internal/testutil"
 	"math"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
 	"testing"
 )
-
-// debianPython is Debian's interpreter, which has python3-scipy; the first
-// python3 on PATH may be another one.
-const debianPython = "/usr/bin/python3"
-
-// needPython skips the test when Debian's python3 with SciPy is absent,
-// unless CI is set, in which case the test fails (CI installs it).
-func needPython(t *testing.T) {
-	t.Helper()
-	fail := func(format string, a ...any) {
-		if os.Getenv("CI") != "" {
-			t.Fatalf(format+" (CI is set: the CI setup must install python3-scipy)", a...)
-		}
-		t.Skipf(format+" (install Debian's python3-scipy to run this test)", a...)
-	}
-	if _, err := exec.LookPath(debianPython); err != nil {
-		fail("%s not found", debianPython)
-	}
-	if out, err := exec.Command(debianPython, "-c", "import scipy.special").CombinedOutput(); err != nil {
-		fail("%s cannot import scipy.special: %v %s", debianPython, err, out)
-	}
-}
 
 // LambertWm1 against SciPy's scipy.special.lambertw(x, -1) (an independent,
 // general-purpose implementation of Corless et al. 1996), over the domain
@@ -39,7 +17,7 @@ func needPython(t *testing.T) {
 // is off (its w eʷ misses x by ~1e-10 there, ours by < 1 ulp), so those
 // points are checked by the defining identity in TestLambertWm1 instead.
 func TestLambertWm1AgainstSciPy(t *testing.T) {
-	needPython(t)
+	py := testutil.Python(t, "scipy.special")
 	var xs []float64
 	for i := 1; i <= 60; i++ { // near the branch point: x = −1/e + 10^(−i/4)·(1/e)
 		xs = append(xs, -1/math.E*(1-math.Pow(10, -float64(i)/4)))
@@ -51,7 +29,7 @@ func TestLambertWm1AgainstSciPy(t *testing.T) {
 	for _, x := range xs {
 		fmt.Fprintf(&in, "%s\n", strconv.FormatFloat(x, 'g', 17, 64))
 	}
-	cmd := exec.Command(debianPython, "-c", `import sys
+	cmd := exec.Command(py, "-c", `import sys
 from scipy.special import lambertw
 for line in sys.stdin:
     print(repr(float(lambertw(float(line), -1).real)))`)

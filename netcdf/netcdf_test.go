@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"lidscope/internal/testutil"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -14,18 +15,6 @@ import (
 	"syscall"
 	"testing"
 )
-
-func need(t testing.TB, tool string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required in CI (Debian package netcdf-bin): %v", tool, err)
-		}
-		t.Skipf("%s not installed (Debian package netcdf-bin); skipping", tool)
-	}
-	return p
-}
 
 // writeSample creates a small file with every attribute type and a 3-D
 // variable over an unlimited time dimension.
@@ -162,7 +151,7 @@ func TestRoundTripFormats(t *testing.T) {
 // TestNcdumpReadsWhatWeWrite checks our writer against ncdump, the netCDF
 // reference dumper (Unidata netcdf-bin).
 func TestNcdumpReadsWhatWeWrite(t *testing.T) {
-	ncdump := need(t, "ncdump")
+	ncdump := testutil.Tool(t, "ncdump")
 	path := filepath.Join(t.TempDir(), "s.nc")
 	writeSample(t, path, FormatNetCDF4)
 	out, err := exec.Command(ncdump, "-s", path).CombinedOutput()
@@ -188,7 +177,7 @@ func TestNcdumpReadsWhatWeWrite(t *testing.T) {
 // TestReadNcgenFile reads a file compiled by ncgen (netcdf-bin), written by
 // the reference tool rather than by us.
 func TestReadNcgenFile(t *testing.T) {
-	ncgen := need(t, "ncgen")
+	ncgen := testutil.Tool(t, "ncgen")
 	dir := t.TempDir()
 	cdl := `netcdf x {
 dimensions: n = 3 ;

@@ -1,12 +1,13 @@
 package output
 
 // Checks with reference tools nobody here wrote: Debian's xarray/cftime
-// (through /usr/bin/python3), CDO 2.1.1 and the UDUNITS-2 library that CDO
+// (through Debian's python3), CDO 2.1.1 and the UDUNITS-2 library that CDO
 // depends on. Each test skips when its tool is missing and CI is unset, and
 // fails when CI is set.
 
 import (
 	"encoding/json"
+	"lidscope/internal/testutil"
 	"math"
 	"os"
 	"os/exec"
@@ -73,7 +74,7 @@ print(json.dumps(out))
 // by xarray, through cftime for non-standard calendars).
 func xarrayRead(t *testing.T, dir string) map[string]any {
 	t.Helper()
-	py := needPython(t, "xarray", "netCDF4", "cftime", "numpy")
+	py := testutil.Python(t, "xarray", "netCDF4", "cftime", "numpy")
 	out := runTool(t, py, "-c", xarrayScript, filepath.Join(dir, MapsNC), filepath.Join(dir, SeriesNC))
 	var m map[string]any
 	if err := json.Unmarshal([]byte(out), &m); err != nil {
@@ -167,7 +168,7 @@ func TestXarrayNoLeap(t *testing.T) {
 // TestCDOSinfo: CDO reads both files and sees the grid, the regime axis
 // and the time axis.
 func TestCDOSinfo(t *testing.T) {
-	cdo := need(t, "cdo", "cdo")
+	cdo := testutil.Tool(t, "cdo")
 	f := newFixture(t)
 	dir, _ := f.write(t)
 	maps := runTool(t, cdo, "sinfo", filepath.Join(dir, MapsNC))
@@ -212,7 +213,7 @@ func cdoValues(t *testing.T, out string) []float64 {
 // columns, and the band regime means, which are Σ w n m / Σ w n for the
 // per-column means m and counts n of maps.nc.
 func TestCDOWeightedMeans(t *testing.T) {
-	cdo := need(t, "cdo", "cdo")
+	cdo := testutil.Tool(t, "cdo")
 	f := newFineFixture(t)
 	dir := filepath.Join(t.TempDir(), "out")
 	if _, err := Write(dir, f.acc, f.meta, Options{}); err != nil {
@@ -278,13 +279,10 @@ print(json.dumps(out))
 // tropical year 3.15569259747e7 s and month a twelfth of it
 // (udunits2-common.xml of UDUNITS-2.2.28).
 func TestUDUNITS(t *testing.T) {
-	need(t, "cdo", "cdo")
-	py := needPython(t, "ctypes")
+	testutil.Tool(t, "cdo")
+	py := testutil.Python(t, "ctypes")
 	if _, err := os.Stat("/usr/share/xml/udunits/udunits2.xml"); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("UDUNITS-2 database missing (Debian libudunits2-data, a dependency of cdo)")
-		}
-		t.Skip("UDUNITS-2 database missing (Debian libudunits2-data)")
+		testutil.Missing(t, "UDUNITS-2 database missing (Debian libudunits2-data, a dependency of cdo): %v", err)
 	}
 	f := newFixture(t)
 	dir, _ := f.write(t)

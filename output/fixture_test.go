@@ -3,7 +3,6 @@ package output
 import (
 	"math"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"sort"
 	"testing"
@@ -180,43 +179,6 @@ func dirNames(t testing.TB, dir string) []string {
 	}
 	sort.Strings(out)
 	return out
-}
-
-// need returns the path of an external tool; it skips when the tool is
-// absent, unless CI is set, where CI installs the tool and its absence is a
-// failure.
-func need(t testing.TB, tool, pkg string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required in CI (Debian package %s): %v", tool, pkg, err)
-		}
-		t.Skipf("%s not installed (Debian package %s); skipping this independent-reader check", tool, pkg)
-	}
-	return p
-}
-
-// needPython returns Debian's python3 (not the first python3 on PATH)
-// after checking that it imports the modules.
-func needPython(t testing.TB, modules ...string) string {
-	t.Helper()
-	const py = "/usr/bin/python3"
-	miss := func(msg string) {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s (CI installs python3-xarray, python3-netcdf4, python3-cftime and python3-numpy)", msg)
-		}
-		t.Skipf("%s; skipping this independent-reader check", msg)
-	}
-	if _, err := os.Stat(py); err != nil {
-		miss(py + " not found")
-	}
-	for _, m := range modules {
-		if out, err := exec.Command(py, "-c", "import "+m).CombinedOutput(); err != nil {
-			miss(py + " cannot import " + m + ": " + string(out))
-		}
-	}
-	return py
 }
 
 // newFineFixture is a second invented record for the checks against CDO:

@@ -3,9 +3,8 @@ package pipeline
 import (
 	"context"
 	"fmt"
+	"lidscope/internal/testutil"
 	"math"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -19,22 +18,7 @@ import (
 // (netcdf-bin) into dir/name.
 func ncgenFile(t *testing.T, dir, name, cdl string) string {
 	t.Helper()
-	tool, err := exec.LookPath("ncgen")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("ncgen (netcdf-bin) is missing")
-		}
-		t.Skip("ncgen (netcdf-bin) is missing; skipping")
-	}
-	src := filepath.Join(dir, name+".cdl")
-	if err := os.WriteFile(src, []byte(cdl), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	out := filepath.Join(dir, name)
-	if b, err := exec.Command(tool, "-k", "nc4", "-o", out, src).CombinedOutput(); err != nil {
-		t.Fatalf("ncgen: %v\n%s", err, b)
-	}
-	return out
+	return testutil.CDL(t, cdl, filepath.Join(dir, name))
 }
 
 // cdlField writes a CDL file of variable v on a 2×3 tropical grid with nt

@@ -10,35 +10,19 @@ package regrid_test
 
 import (
 	"math"
-	"os"
 	"path/filepath"
 	"testing"
 
 	"lidscope/grid"
+	"lidscope/internal/testutil"
 	"lidscope/regrid"
 )
-
-func realData(t *testing.T, name string) string {
-	t.Helper()
-	dir := os.Getenv("LIDSCOPE_REALDATA")
-	if dir == "" {
-		if os.Getenv("CI") != "" {
-			t.Fatal("LIDSCOPE_REALDATA is not set under CI (make test sets it after make realdata)")
-		}
-		t.Skip("LIDSCOPE_REALDATA not set (run make realdata and point it at the folder)")
-	}
-	p := filepath.Join(dir, name)
-	if _, err := os.Stat(p); err != nil {
-		t.Fatalf("real data file: %v", err)
-	}
-	return p
-}
 
 // realSST returns the January SST of sst30e_netcdf.nc on its own grid
 // (wrap column included) and on the grid without the wrap column.
 func realSST(t *testing.T) (full *grid.Grid, fullData []float64, plain *grid.Grid, plainData []float64) {
 	t.Helper()
-	path := realData(t, "cdf/sst30e_netcdf.nc")
+	path := testutil.RealData(t, "cdf/sst30e_netcdf.nc")
 	v := readNC(t, path, "lat", "lon", "sst")
 	lat, lon := v["lat"], v["lon"]
 	full = must(t)(grid.New(lat, lon, nil, nil))
@@ -87,7 +71,7 @@ func TestRealSSTAgainstCDO(t *testing.T) {
 func TestRealMaskAgainstCDO(t *testing.T) {
 	needCDO(t)
 	_, _, sstGrid, sst := realSST(t)
-	path := realData(t, "cdf/landsea.nc")
+	path := testutil.RealData(t, "cdf/landsea.nc")
 	v := readNC(t, path, "lat", "lon", "LSMASK")
 	g1 := must(t)(grid.New(v["lat"], v["lon"], nil, nil))
 	ocean := make([]bool, g1.Size())

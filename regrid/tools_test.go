@@ -6,6 +6,7 @@ package regrid_test
 import (
 	"bytes"
 	"fmt"
+	"lidscope/internal/testutil"
 	"math"
 	"os"
 	"os/exec"
@@ -18,23 +19,11 @@ import (
 	"lidscope/grid"
 )
 
-// need skips the test when tool is not installed, or fails it when CI is
-// set (CI installs the tools).
-func need(t *testing.T, tool string) {
-	t.Helper()
-	if _, err := exec.LookPath(tool); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set but was not found on PATH: %v", tool, err)
-		}
-		t.Skipf("%s not found on PATH (install it to run this comparison; with CI set the test fails instead)", tool)
-	}
-}
-
 func needCDO(t *testing.T) {
 	t.Helper()
-	need(t, "cdo")
-	need(t, "ncgen")
-	need(t, "ncdump")
+	testutil.Tool(t, "cdo")
+	testutil.Tool(t, "ncgen")
+	testutil.Tool(t, "ncdump")
 }
 
 // ncField is one 2-D variable for writeNC.

@@ -3,48 +3,10 @@ package relations
 import (
 	"math"
 	"math/rand/v2"
-	"os"
-	"os/exec"
-	"testing"
 
 	"lidscope/accumulate"
 	"lidscope/regimes"
 )
-
-// need skips a test when a reference tool is missing, unless CI is set:
-// then it fails, since CI installs the tools.
-func need(t *testing.T, tool string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set (make deps installs it): %v", tool, err)
-		}
-		t.Skipf("%s not found; skipping (set CI=true to make this a failure)", tool)
-	}
-	return p
-}
-
-// needNumpy returns Debian's /usr/bin/python3 when it has numpy (and scipy
-// when asked).
-func needNumpy(t *testing.T, scipy bool) string {
-	t.Helper()
-	py := "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		need(t, py)
-	}
-	mods := "import numpy"
-	if scipy {
-		mods += ", scipy.optimize"
-	}
-	if out, err := exec.Command(py, "-c", mods).CombinedOutput(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s lacks numpy/scipy (Debian python3-numpy, python3-scipy): %v\n%s", py, err, out)
-		}
-		t.Skipf("%s lacks numpy/scipy; skipping (set CI=true to make this a failure)", py)
-	}
-	return py
-}
 
 // rowLayout is a one-row grid of n equal cells on the equator, all in the
 // band (band weight = area), with the given quantities.

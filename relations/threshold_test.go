@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"lidscope/internal/testutil"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -42,7 +43,7 @@ print(json.dumps({"b0": float(r.x[0]), "b1": float(r.x[1]), "ok": bool(r.success
 `
 
 func TestLogisticAgainstScipy(t *testing.T) {
-	py := needNumpy(t, true)
+	py := testutil.Python(t, "numpy", "scipy.optimize")
 	rng := rand.New(rand.NewPCG(21, 22))
 	var x, y, n []float64
 	var rows []string

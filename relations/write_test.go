@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"io/fs"
+	"lidscope/internal/testutil"
 	"math"
 	"os"
 	"os/exec"
@@ -192,17 +193,11 @@ func TestWriteAtomicity(t *testing.T) {
 	}
 }
 
-// xarray (Debian python3-xarray, through /usr/bin/python3) opens
+// xarray (Debian python3-xarray, through Debian's python3) opens
 // relationships.nc, decodes the fill values and sees the bins and
 // categorical axes; ncdump -h (netcdf-bin) reads the header.
 func TestWriteReadByXarray(t *testing.T) {
-	py := needNumpy(t, false)
-	if out, err := exec.Command(py, "-c", "import xarray, netCDF4").CombinedOutput(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("xarray/netCDF4 missing: %s", out)
-		}
-		t.Skip("xarray/netCDF4 missing")
-	}
+	py := testutil.Python(t, "numpy", "xarray", "netCDF4")
 	res := richResults(t)
 	dir := t.TempDir()
 	if _, err := Write(dir, res, testMeta, WriteOptions{}); err != nil {
@@ -260,7 +255,7 @@ print(json.dumps({"dims": list(m.dims), "nan": int(np.isnan(m.values).sum()), "s
 			}
 		}
 	}
-	nd := need(t, "ncdump")
+	nd := testutil.Tool(t, "ncdump")
 	hdr, err := exec.Command(nd, "-h", filepath.Join(dir, RelationshipsNC)).CombinedOutput()
 	if err != nil {
 		t.Fatalf("ncdump: %v\n%s", err, hdr)

@@ -23,20 +23,6 @@ import (
 	"lidscope/output"
 )
 
-// badNeed skips when an external tool is missing and CI is unset, and
-// fails when CI is set (CI installs every tool the tests use).
-func badNeed(t *testing.T, tool, pkg string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set (Debian package %s): %v", tool, pkg, err)
-		}
-		t.Skipf("%s not found (Debian package %s); skipping", tool, pkg)
-	}
-	return p
-}
-
 // badOptions is the small world the bad-input tests break: a 5° grid
 // (36×72 cells), two years of monthly means from January 2001, one file
 // per year and variable, so every time-dependent role is a record of two

@@ -16,6 +16,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io/fs"
+	"lidscope/internal/testutil"
 	"math"
 	"os"
 	"path/filepath"
@@ -248,7 +249,7 @@ func TestBadMaskOtherGrid(t *testing.T) {
 		t.Errorf("stdout lacks %q:\n%s", want, stdout)
 	}
 
-	cdo := badNeed(t, "cdo", "cdo")
+	cdo := testutil.Tool(t, "cdo")
 	remapped := filepath.Join(t.TempDir(), "land4to5.nc")
 	if b, err := execCombined(cdo, "-s", "remapcon,"+land5, land, remapped); err != nil {
 		t.Fatalf("cdo remapcon: %v\n%s", err, b)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"lidscope/internal/testutil"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -13,24 +14,11 @@ import (
 	"lidscope/cf"
 )
 
-// inspectNeed skips when an external tool is missing, unless CI is set.
-func inspectNeed(t *testing.T, tool string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is required when CI is set (Debian package netcdf-bin): %v", tool, err)
-		}
-		t.Skipf("%s not found (Debian package netcdf-bin); skipping", tool)
-	}
-	return p
-}
-
 // inspectFixture compiles a CDL fixture of package cf (synthetic, invented
 // values) into a compressed NetCDF-4 file.
 func inspectFixture(t *testing.T, name string) string {
 	t.Helper()
-	ncgen := inspectNeed(t, "ncgen")
+	ncgen := testutil.Tool(t, "ncgen")
 	out := filepath.Join(t.TempDir(), name+".nc")
 	src := filepath.Join("..", "..", "cf", "testdata", name+".cdl")
 	if b, err := exec.Command(ncgen, "-k", "netCDF-4", "-o", out, src).CombinedOutput(); err != nil {

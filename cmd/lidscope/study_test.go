@@ -2,8 +2,8 @@ package main
 
 import (
 	"bytes"
+	"lidscope/internal/testutil"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -16,19 +16,7 @@ import (
 // percent) into dir/name with ncgen.
 func studySample(t *testing.T, dir, name string) string {
 	t.Helper()
-	ncgen, err := exec.LookPath("ncgen")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("ncgen is required when CI is set (Debian package netcdf-bin): %v", err)
-		}
-		t.Skipf("ncgen not found (Debian package netcdf-bin); skipping")
-	}
-	out := filepath.Join(dir, name)
-	src := filepath.Join("..", "..", "fixtures", "sample", "sample.cdl")
-	if b, err := exec.Command(ncgen, "-k", "netCDF-4", "-o", out, src).CombinedOutput(); err != nil {
-		t.Fatalf("ncgen %s: %v\n%s", src, err, b)
-	}
-	return out
+	return testutil.CompileCDL(t, filepath.Join("..", "..", "fixtures", "sample", "sample.cdl"), filepath.Join(dir, name))
 }
 
 func TestStudyInitPrints(t *testing.T) {

@@ -19,7 +19,7 @@ type recorder struct {
 	skipped, failed string
 }
 
-func (r *recorder) Helper()                         {}
+func (r *recorder) Helper()                           {}
 func (r *recorder) Skipf(format string, args ...any)  { r.skipped = fmt.Sprintf(format, args...) }
 func (r *recorder) Fatalf(format string, args ...any) { r.failed = fmt.Sprintf(format, args...) }
 

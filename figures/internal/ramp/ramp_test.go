@@ -3,8 +3,8 @@ package ramp
 import (
 	"bytes"
 	"encoding/json"
+	"lidscope/internal/testutil"
 	"math"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"testing"
@@ -122,26 +122,12 @@ func TestMapsDesign(t *testing.T) {
 	}
 }
 
-// needPython returns Debian's python3 with colorspacious, skipping when
-// absent and CI is unset (CI installs python3-colorspacious).
-func needPython(t *testing.T) string {
-	t.Helper()
-	const py = "/usr/bin/python3"
-	if out, err := exec.Command(py, "-c", "import numpy, colorspacious").CombinedOutput(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s cannot import colorspacious (CI installs Debian's python3-colorspacious): %v %s", py, err, out)
-		}
-		t.Skipf("%s cannot import colorspacious (Debian package python3-colorspacious); skipping the independent colour check", py)
-	}
-	return py
-}
-
 // The maps checked with an independent implementation: colorspacious
 // (Smith 2015) converts our CIELAB paths to sRGB, measures steps in
 // CAM02-UCS (Luo, Cui & Li 2006) and simulates colour-vision deficiency
 // (Machado, Oliveira & Fernandes 2009).
 func TestMapsAgainstColorspacious(t *testing.T) {
-	py := needPython(t)
+	py := testutil.Python(t, "numpy", "colorspacious")
 	const n = 129
 	type entry struct {
 		Lab [][3]float64 `json:"lab"`
