@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"fmt"
+	"math"
 	"sync"
 
 	"lidscope/accumulate"
@@ -37,7 +38,7 @@ type stepper struct {
 	kern    *metrics.Kernel
 	ocean   []bool    // static ocean mask
 	bandW   []float64 // area inside the tropical band
-	blocks  [][2]int  // [lo, hi) cell ranges
+	blocks  []block
 	workers int
 
 	outs     [2]stepOut
@@ -70,9 +71,95 @@ func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW [
 	}
 	nlat, nlon := in.grid.NLat(), in.grid.NLon()
 	for j := 0; j < nlat; j += rowsPerBlock {
-		s.blocks = append(s.blocks, [2]int{j * nlon, min(j+rowsPerBlock, nlat) * nlon})
+		b := block{lo: j * nlon, hi: min(j+rowsPerBlock, nlat) * nlon}
+		for i := b.lo; i < b.hi; i++ {
+			if ocean[i] {
+				b.ocean = append(b.ocean, int32(i))
+			}
+		}
+		s.blocks = append(s.blocks, b)
+	}
+	// Metrics are computed for ocean columns only; the others stay NaN.
+	nan := float32(math.NaN())
+	for o := range s.outs {
+		for _, x := range [][]float32{s.outs[o].lts, s.outs[o].eis, s.outs[o].ectei} {
+			for i := range x {
+				if !ocean[i] {
+					x[i] = nan
+				}
+			}
+		}
 	}
 	return s
+}
+
+// block is a fixed range of cells, [lo, hi), and its cells that are ocean
+// in the static mask (the only ones whose metrics are computed: elsewhere
+// the regime is always missing, so no statistic uses them).
+type block struct {
+	lo, hi int
+	ocean  []int32
+}
+
+// packed holds a worker's gathered ocean columns of one block.
+type packed struct {
+	in  [6][]float32 // Ts, T700, Ps, Humidity, T850, Q700
+	out [3][]float32 // LTS, EIS, ECTEI
+}
+
+// metricsOf computes the metrics of the block's ocean columns into res
+// (gathering them when the block has land) and returns the kernel's counts.
+func (s *stepper) metricsOf(b block, mi metrics.SlabInput, res *stepOut, pk *packed) (metrics.SlabStats, error) {
+	if len(b.ocean) == 0 {
+		return metrics.SlabStats{}, nil
+	}
+	if len(b.ocean) == b.hi-b.lo {
+		out := metrics.SlabOutput{LTS: res.lts[b.lo:b.hi], EIS: res.eis[b.lo:b.hi]}
+		if res.ectei != nil {
+			out.ECTEI = res.ectei[b.lo:b.hi]
+		}
+		return s.kern.Slab(sub(mi, b.lo, b.hi), out)
+	}
+	n := len(b.ocean)
+	src := [6][]float32{mi.Ts, mi.T700, mi.Ps, mi.Humidity, mi.T850, mi.Q700}
+	var g [6][]float32
+	for k, x := range src {
+		if x == nil {
+			continue
+		}
+		if cap(pk.in[k]) < n {
+			pk.in[k] = make([]float32, n)
+		}
+		g[k] = pk.in[k][:n]
+		for j, c := range b.ocean {
+			g[k][j] = x[c]
+		}
+	}
+	dst := [3][]float32{res.lts, res.eis, res.ectei}
+	var o [3][]float32
+	for k, x := range dst {
+		if x == nil {
+			continue
+		}
+		if cap(pk.out[k]) < n {
+			pk.out[k] = make([]float32, n)
+		}
+		o[k] = pk.out[k][:n]
+	}
+	st, err := s.kern.Slab(metrics.SlabInput{Ts: g[0], T700: g[1], Ps: g[2], Humidity: g[3], T850: g[4], Q700: g[5]},
+		metrics.SlabOutput{LTS: o[0], EIS: o[1], ECTEI: o[2]})
+	if err != nil {
+		return st, err
+	}
+	for k, x := range dst {
+		if x == nil {
+			continue
+		}
+		for j, c := range b.ocean {
+			x[c] = o[k][j]
+		}
+	}
+	return st, nil
 }
 
 // quantities are the names of the per-column quantities, in the order of
@@ -152,7 +239,7 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, o int, 
 	var mu sync.Mutex
 	var firstErr error
 	rejected := 0
-	next := make(chan [2]int, len(s.blocks))
+	next := make(chan block, len(s.blocks))
 	for _, bl := range s.blocks {
 		next <- bl
 	}
@@ -161,26 +248,22 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, o int, 
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			var pk packed
 			for bl := range next {
-				lo, hi := bl[0], bl[1]
 				if res.lts == nil {
 					// no T700: no column metrics, only the accumulation
-					acc.AddCells(step, lo, hi)
+					acc.AddCells(step, bl.lo, bl.hi)
 					continue
 				}
-				out := metrics.SlabOutput{LTS: res.lts[lo:hi], EIS: res.eis[lo:hi]}
-				if res.ectei != nil {
-					out.ECTEI = res.ectei[lo:hi]
-				}
-				st, err := s.kern.Slab(sub(mi, lo, hi), out)
+				st, err := s.metricsOf(bl, mi, res, &pk)
 				mu.Lock()
 				if err != nil && firstErr == nil {
 					firstErr = err
 				}
-				// Impossible inputs over ocean are counted; land/missing are not.
+				// Impossible inputs over ocean are counted; land is not computed.
 				rejected += st.Rejected
 				mu.Unlock()
-				acc.AddCells(step, lo, hi)
+				acc.AddCells(step, bl.lo, bl.hi)
 			}
 		}()
 	}
