@@ -8,14 +8,13 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
-	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"log/slog"
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -24,10 +23,12 @@ import (
 	"lidscope/cf"
 	"lidscope/config"
 	"lidscope/figures"
+	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/pipeline"
 	"lidscope/regimes"
 	"lidscope/relations"
+	"lidscope/runfolder"
 )
 
 // Options control a run.
@@ -38,6 +39,9 @@ type Options struct {
 	// datasets each goes to OutDir/<dataset name>.
 	OutDir string
 	Force  bool // replace existing outputs
+	// AllowGaps lets Merge join pieces that leave gaps in the record (the
+	// gaps are recorded in the provenance).
+	AllowGaps bool
 	// NoPlots skips the figures (otherwise drawn when the study's
 	// output.plots is true, the default).
 	NoPlots bool
@@ -96,31 +100,102 @@ func Run(ctx context.Context, r *config.Study, names []string, opt Options) ([]R
 	return reps, nil
 }
 
-// RunDataset runs one dataset and writes its results to out.
+// Outcome is one dataset's finished analysis, not yet written: what
+// Compute returns and WriteRun stages.
+type Outcome struct {
+	Dataset string
+	Result  *pipeline.Result // nil for a merge
+	Meta    output.Meta
+	Acc     *accumulate.Acc
+	// Relations are the relationship results of RelAcc.
+	Relations *relations.Results
+	RelAcc    *relations.Acc
+	// NoRel says why the run has no relationship analysis ("" when it has
+	// one; Relations and RelAcc are then nil).
+	NoRel string
+	// Plots says whether the study asks for figures.
+	Plots bool
+}
+
+// RunDataset runs one dataset and writes its results to out as one run
+// folder (package runfolder): out is locked, checked and staged before any
+// computation; everything the run writes goes into the staging folder,
+// which replaces out in one step at the very end. On any error, a
+// cancelled ctx included, out is left as it was.
 func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out string, opt Options) (Report, error) {
+	plan, err := pipeline.PlanFor(r, d)
+	if err != nil {
+		return Report{}, err
+	}
+	st, err := CreateFolder(out, opt, estimateOutputs(plan))
+	if err != nil {
+		return Report{}, err
+	}
+	defer st.Close()
+	o, err := compute(ctx, r, d, plan, opt)
+	if err != nil {
+		return Report{}, err
+	}
+	files, err := WriteRun(ctx, st, o, opt)
+	if err != nil {
+		return Report{}, err
+	}
+	if _, err := st.Commit(ctx); err != nil {
+		return Report{}, err
+	}
+	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: o.Result, Meta: o.Meta, Relations: o.Relations}, nil
+}
+
+// KnownNames are the names a run folder holds: the result files, the run
+// state and the figures folder.
+func KnownNames() []string {
+	return append(append(append(output.OutputNames(), relations.OutputNames()...), StateFile), figures.DefaultDirName)
+}
+
+// CreateFolder prepares writing a run folder (runfolder.Create): the
+// lock, the removal of leftovers of killed runs (logged), and the
+// pre-flight checks (a writable place, room for about estimate bytes, no
+// earlier results unless opt.Force).
+func CreateFolder(out string, opt Options, estimate int64) (*runfolder.Stage, error) {
+	st, err := runfolder.Create(out, runfolder.Options{Replace: opt.Force, Known: KnownNames(), Estimate: estimate, Version: opt.Version})
+	if err != nil {
+		return nil, err
+	}
+	log := opt.Log
+	if log == nil {
+		log = slog.New(slog.DiscardHandler)
+	}
+	for _, c := range st.Cleaned {
+		log.Warn("removed the staging folder of an interrupted run", "folder", c)
+	}
+	if st.Restored != "" {
+		log.Warn("put back the earlier run that an interrupted replacement had moved aside", "from", st.Restored, "folder", out)
+	}
+	return st, nil
+}
+
+// Compute runs one dataset's analysis and returns the results without
+// writing anything; WriteRun writes them.
+func Compute(ctx context.Context, r *config.Study, d *config.Dataset, opt Options) (*Outcome, error) {
+	plan, err := pipeline.PlanFor(r, d)
+	if err != nil {
+		return nil, err
+	}
+	return compute(ctx, r, d, plan, opt)
+}
+
+func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipeline.Plan, opt Options) (*Outcome, error) {
 	log := opt.Log
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
 	}
 	start := time.Now()
-	plan, err := pipeline.PlanFor(r, d)
-	if err != nil {
-		return Report{}, err
-	}
 	plan.Workers = opt.Workers
 	plan.Log = log
 	if opt.Progress != nil {
 		plan.Progress = func(done, total int) { opt.Progress(d.Name, done, total) }
 	}
-	// Refuse to overwrite before spending time on the run.
-	if !opt.Force {
-		for _, n := range append(append(output.OutputNames(), relations.OutputNames()...), StateFile) {
-			if _, err := os.Stat(filepath.Join(out, n)); err == nil {
-				return Report{}, fmt.Errorf("%s already holds results (%s); use --force to replace them or choose another --out", out, n)
-			}
-		}
-	}
-	log.Info("run", "dataset", d.Name, "out", out)
+	log.Info("run", "dataset", d.Name)
 	relCfg := r.RelationsFor(d)
 	// The relationship analysis relates cloud to EIS, LTS and relative
 	// SST: it needs both optional inputs.
@@ -135,7 +210,7 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 		}
 		log.Info("pass 1 of 2: climatology for anomaly mode", "dataset", d.Name)
 		if _, err := pipeline.Run(ctx, p1); err != nil {
-			return Report{}, err
+			return nil, err
 		}
 	}
 	var rel *relations.Acc
@@ -151,37 +226,26 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 	}
 	res, err := pipeline.Run(ctx, plan)
 	if err != nil {
-		return Report{}, err
+		return nil, err
 	}
 	for _, n := range res.Notes {
 		log.Info("note", "dataset", d.Name, "text", n)
 	}
 	meta, err := metaFor(r, d, res, opt, start)
 	if err != nil {
-		return Report{}, err
+		return nil, err
 	}
 	meta.Absent = plan.Lacks()
 	var relRes *relations.Results
 	if rel != nil {
 		if relRes, err = rel.Results(); err != nil {
-			return Report{}, fmt.Errorf("relationship analysis: %w", err)
+			return nil, fmt.Errorf("relationship analysis: %w", err)
 		}
 	} else {
 		meta.Absent = append(meta.Absent, noRel)
 		log.Info("note", "dataset", d.Name, "text", noRel)
 	}
-	files, err := writeResults(out, res.Acc, meta, relRes, rel, noRel, opt)
-	if err != nil {
-		return Report{}, err
-	}
-	if r.Output.Plots && !opt.NoPlots {
-		figs, err := figures.Draw(out, figures.Options{Force: opt.Force, Relations: relRes, NoCoastlines: opt.NoCoastlines})
-		if err != nil {
-			return Report{}, fmt.Errorf("drawing the figures (the results are written; redraw with lidscope plot %s): %w", out, err)
-		}
-		files = append(files, figs...)
-	}
-	return Report{Dataset: d.Name, OutDir: out, Files: files, Result: res, Meta: meta, Relations: relRes}, nil
+	return &Outcome{Dataset: d.Name, Result: res, Meta: meta, Acc: res.Acc, Relations: relRes, RelAcc: rel, NoRel: noRel, Plots: r.Output.Plots}, nil
 }
 
 // NoRelations says why a run of plan has no relationship analysis ("" when
@@ -201,54 +265,73 @@ func NoRelations(plan pipeline.Plan) string {
 	return "no relationship analysis (it needs the " + strings.Join(miss, " and the ") + " input)"
 }
 
-// writeResults writes every result file of a run (or of a merge) into
-// out: the regime outputs of acc, the relationship outputs of rel (none
-// when relAcc is nil: noRel says why), and the run state with both
-// accumulators (acc and relAcc). It creates out when needed and removes it
-// again if it created it and the write failed.
-func writeResults(out string, acc *accumulate.Acc, meta output.Meta, rel *relations.Results, relAcc *relations.Acc, noRel string, opt Options) (files []string, err error) {
-	created := false
-	if _, err := os.Stat(out); errors.Is(err, fs.ErrNotExist) {
-		created = true
-	}
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, fmt.Errorf("creating the output folder: %w", err)
-	}
-	defer func() {
-		if err != nil && created {
-			os.Remove(out) // only succeeds when empty: nothing of ours is left
-		}
-	}()
-	// An earlier run's state must never sit next to new results.
-	if opt.Force {
-		if err := os.Remove(filepath.Join(out, StateFile)); err != nil && !errors.Is(err, fs.ErrNotExist) {
-			return nil, err
-		}
-	}
-	files, err = output.Write(out, acc, meta, output.Options{Force: opt.Force})
-	if err != nil {
+// WriteRun stages every file of a run (or of a merge) into st: the regime
+// outputs, the relationship outputs (none when o.Relations is nil), the run state with both accumulators
+// and, when o.Plots and not opt.NoPlots, the figures. It commits nothing
+// (st.Commit does) and returns the paths the files will have.
+func WriteRun(ctx context.Context, st *runfolder.Stage, o *Outcome, opt Options) ([]string, error) {
+	out := st.Target()
+	if err := output.Stage(st, out, o.Acc, o.Meta); err != nil {
 		return nil, err
 	}
-	if rel != nil {
-		rf, err := relations.Write(out, rel, relations.Meta{Dataset: meta.Dataset, Title: meta.Title, Version: meta.Version,
-			Command: opt.Command, StudyHash: meta.StudyHash, Period: meta.Period, Source: "lidscope " + meta.Version}, relations.WriteOptions{Force: opt.Force})
+	var names []string
+	names = append(names, output.OutputNames()...)
+	if o.Relations != nil {
+		meta := o.Meta
+		err := relations.Stage(st, out, o.Relations, relations.Meta{Dataset: meta.Dataset, Title: meta.Title, Version: meta.Version,
+			Command: opt.Command, StudyHash: meta.StudyHash, Period: meta.Period, Source: "lidscope " + meta.Version})
 		if err != nil {
-			return files, fmt.Errorf("writing the relationship results: %w", err)
+			return nil, fmt.Errorf("writing the relationship results: %w", err)
 		}
-		files = append(files, rf...)
-	} else if opt.Force {
-		// An earlier run's relationship results must not sit next to a
-		// run that has none.
-		for _, n := range relations.OutputNames() {
-			if err := os.Remove(filepath.Join(out, n)); err != nil && !errors.Is(err, fs.ErrNotExist) {
-				return files, fmt.Errorf("removing the relationship results of an earlier run: %w", err)
+		names = append(names, relations.OutputNames()...)
+	}
+	if err := stageState(st, o.Meta, o.Acc, o.RelAcc, o.NoRel); err != nil {
+		return nil, fmt.Errorf("writing the run state: %w", err)
+	}
+	names = append(names, StateFile)
+	var files []string
+	for _, n := range names {
+		files = append(files, st.FinalPath(n))
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if o.Plots && !opt.NoPlots {
+		figs, err := figures.DrawStaged(st, figures.Options{Relations: o.Relations, NoCoastlines: opt.NoCoastlines})
+		if err != nil {
+			return nil, fmt.Errorf("drawing the figures (nothing was written to %s; run with --no-plots to write the results without them): %w", out, err)
+		}
+		files = append(files, figs...)
+	}
+	return files, nil
+}
+
+// estimateOutputs estimates the bytes a run writes from the number of
+// columns of its analysis grid: about 512 bytes per column (maps, the run
+// state and the relationship files of the demo world need about 350) and
+// 8 MB for the figures and tables. The grid is read from the first SST
+// file (its largest two-dimensional slab) or from a target resolution such
+// as "2deg".
+func estimateOutputs(p pipeline.Plan) int64 {
+	cells := int64(0)
+	if len(p.SST.Paths) > 0 {
+		if f, err := netcdf.Open(p.SST.Paths[0]); err == nil {
+			if vs, err := f.Vars(); err == nil {
+				for _, v := range vs {
+					if sh := v.Shape(); len(sh) >= 2 {
+						cells = max(cells, int64(sh[len(sh)-1])*int64(sh[len(sh)-2]))
+					}
+				}
 			}
+			f.Close()
 		}
 	}
-	if err := saveState(out, meta, acc, relAcc, noRel); err != nil {
-		return files, fmt.Errorf("writing the run state: %w", err)
+	if res, ok := strings.CutSuffix(p.Grid.Target, "deg"); ok {
+		if d, err := strconv.ParseFloat(res, 64); err == nil && d > 0 {
+			cells = max(cells, int64(180/d)*int64(360/d))
+		}
 	}
-	return append(files, filepath.Join(out, StateFile)), nil
+	return 8<<20 + cells*512
 }
 
 // timeUnits is the time axis of the series outputs.

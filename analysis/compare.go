@@ -9,6 +9,7 @@ import (
 	"lidscope/config"
 	"lidscope/figures"
 	"lidscope/relations"
+	"lidscope/runfolder"
 )
 
 // CompareOptions control a comparison.
@@ -17,48 +18,68 @@ type CompareOptions struct {
 	AllowMismatch bool
 }
 
-// LoadRun reads a finished run folder for comparison.
+// LoadRun reads a finished run folder for comparison: a complete,
+// committed run (runfolder.Open) with an intact run state.
 func LoadRun(dir string) (compare.Run, error) {
-	m, a, err := LoadState(dir)
+	f, err := runfolder.Open(dir, StateFile)
 	if err != nil {
 		return compare.Run{}, err
 	}
-	rel, err := relations.ReadResults(dir)
+	defer f.Close()
+	return loadRun(f)
+}
+
+func loadRun(f *runfolder.Folder) (compare.Run, error) {
+	s, err := readState(f.Path(StateFile), false)
 	if err != nil {
-		return compare.Run{}, fmt.Errorf("reading the relationship results of %s: %w", dir, err)
+		return compare.Run{}, err
 	}
-	return compare.Run{Name: m.Dataset, Dir: dir, Meta: m, Acc: a, Relations: rel}, nil
+	rel, err := relations.ReadResults(f.Dir)
+	if err != nil {
+		return compare.Run{}, fmt.Errorf("reading the relationship results of %s: %w", f.Dir, err)
+	}
+	return compare.Run{Name: s.meta.Dataset, Dir: f.Dir, Meta: s.meta, Acc: s.acc, Relations: rel}, nil
 }
 
 // CompareDirs compares finished runs: the first folder is the reference.
-// It writes comparison.csv, comparison.json and comparison_maps.nc into
-// out and, unless NoPlots, the comparison figures into out/figures.
+// It writes comparison.csv, comparison.json, comparison_maps.nc and,
+// unless NoPlots, the comparison figures (out/figures) into out, all as
+// one unit: when anything fails, nothing is written. The run folders stay
+// locked for reading while they are compared.
 func CompareDirs(ref string, cands []string, out string, opt CompareOptions) (*compare.Result, []string, error) {
-	r, err := LoadRun(ref)
-	if err != nil {
-		return nil, nil, err
-	}
-	var cs []compare.Run
-	for _, d := range cands {
-		c, err := LoadRun(d)
+	var runs []compare.Run
+	for _, d := range append([]string{ref}, cands...) {
+		f, err := runfolder.Open(d, StateFile)
 		if err != nil {
 			return nil, nil, err
 		}
-		cs = append(cs, c)
+		defer f.Close()
+		r, err := loadRun(f)
+		if err != nil {
+			return nil, nil, err
+		}
+		runs = append(runs, r)
 	}
-	res, err := compare.Compare(r, cs, compare.Options{AllowMismatch: opt.AllowMismatch})
+	res, err := compare.Compare(runs[0], runs[1:], compare.Options{AllowMismatch: opt.AllowMismatch})
 	if err != nil {
 		return nil, nil, err
 	}
-	files, err := compare.Write(out, res, compare.WriteOptions{Force: opt.Force, Version: opt.Version, Command: opt.Command})
-	if err != nil || opt.NoPlots {
-		return res, files, err
-	}
-	figs, err := figures.DrawComparison(res, figures.CompareOptions{OutDir: filepath.Join(out, figures.DefaultDirName), Force: opt.Force, NoCoastlines: opt.NoCoastlines})
+	lock, err := runfolder.LockFolder(out)
 	if err != nil {
-		return res, files, fmt.Errorf("drawing the comparison figures: %w", err)
+		return nil, nil, err
 	}
-	return res, append(files, figs...), nil
+	defer lock.Release()
+	wo := compare.WriteOptions{Force: opt.Force, Version: opt.Version, Command: opt.Command}
+	if !opt.NoPlots {
+		wo.Figures = func(dir string) ([]string, error) {
+			return figures.DrawComparison(res, figures.CompareOptions{OutDir: dir, NoCoastlines: opt.NoCoastlines})
+		}
+	}
+	files, err := compare.Write(out, res, wo)
+	if err != nil {
+		return nil, nil, err
+	}
+	return res, files, nil
 }
 
 // CompareStudy runs every dataset of a study into out/<dataset> and

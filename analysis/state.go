@@ -6,16 +6,19 @@ import (
 	"encoding/gob"
 	"encoding/hex"
 	"fmt"
+	"context"
+	"errors"
+	"math"
 	"os"
-	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
 	"lidscope/accumulate"
 	"lidscope/output"
 	"lidscope/relations"
-	"lidscope/stage"
+	"lidscope/runfolder"
 )
 
 // StateFile holds a finished run's complete accumulators (regime
@@ -25,9 +28,24 @@ import (
 // (see Merge).
 const StateFile = "run-state.gob"
 
-// stateFormat tags the run state; bump it whenever runState changes.
-// Version 2 added the relationship accumulator.
-const stateFormat = "lidscope-run-state/2"
+// stateFormat tags the run state; bump it whenever runState or the file
+// layout changes. Version 2 added the relationship accumulator; version 3
+// the integrity header.
+const stateFormat = "lidscope-run-state/3"
+
+// The run state file is a header of three fixed-width lines and the body
+// (the gob of runState):
+//
+//	lidscope-run-state/3
+//	length 00000000000000123456      (bytes of the body, 20 digits)
+//	sha256 <64 hex digits>           (SHA-256 of the body)
+//
+// followed by an empty line. A file whose header, length or checksum does
+// not match is refused as damaged, never merged.
+const (
+	stateLengthDigits = 20
+	stateHeaderLen    = len(stateFormat) + 1 + len("length ") + stateLengthDigits + 1 + len("sha256 ") + 64 + 1 + 1
+)
 
 type runState struct {
 	Format string
@@ -39,34 +57,78 @@ type runState struct {
 	NoRelations string
 }
 
-// saveState writes the run state; rel is nil exactly when the run has no
-// relationship analysis, and noRel then says why.
-func saveState(dir string, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) error {
+// encodeState is the whole run state file.
+// rel is nil exactly when the run has no relationship analysis, and noRel
+// then says why.
+func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) ([]byte, error) {
 	if rel == nil && noRel == "" {
-		return fmt.Errorf("writing the run state in %s: no relationship accumulator to save", dir)
+		return nil, fmt.Errorf("no relationship accumulator to save")
 	}
 	var ab, rb bytes.Buffer
 	if err := acc.Encode(&ab); err != nil {
-		return err
+		return nil, err
 	}
 	if rel != nil {
 		if err := rel.Encode(&rb); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	var buf bytes.Buffer
-	if err := gob.NewEncoder(&buf).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel}); err != nil {
-		return fmt.Errorf("encoding the run state: %w", err)
+	var body bytes.Buffer
+	if err := gob.NewEncoder(&body).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel}); err != nil {
+		return nil, fmt.Errorf("encoding the run state: %w", err)
 	}
-	st, err := stage.New(dir, ".lidscope-state-*")
+	sum := sha256.Sum256(body.Bytes())
+	var out bytes.Buffer
+	fmt.Fprintf(&out, "%s\nlength %0*d\nsha256 %s\n\n", stateFormat, stateLengthDigits, body.Len(), hex.EncodeToString(sum[:]))
+	out.Write(body.Bytes())
+	return out.Bytes(), nil
+}
+
+// stageState writes the run state into the run's staging folder.
+func stageState(st *runfolder.Stage, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) error {
+	b, err := encodeState(meta, acc, rel, noRel)
 	if err != nil {
-		return err
+		return fmt.Errorf("writing the run state in %s: %w", st.Target(), err)
 	}
-	defer st.Remove()
-	if err := st.WriteFile(StateFile, buf.Bytes()); err != nil {
-		return fmt.Errorf("writing %s: %w", filepath.Join(dir, StateFile), err)
+	return st.WriteFile(StateFile, b)
+}
+
+// ErrDamagedState marks a run state whose header, length or checksum does
+// not match its contents.
+var ErrDamagedState = errors.New("damaged run state")
+
+func damaged(path, why string) error {
+	return fmt.Errorf("%w: %s (%s); re-run that piece", ErrDamagedState, path, why)
+}
+
+// decodeStateFile checks the header of a run state file and returns its body.
+func decodeStateFile(path string, b []byte) ([]byte, error) {
+	if len(b) < stateHeaderLen {
+		return nil, damaged(path, fmt.Sprintf("%d bytes, shorter than its header", len(b)))
 	}
-	return st.Commit([]string{StateFile}, true)
+	h := string(b[:stateHeaderLen])
+	lines := strings.Split(h, "\n")
+	if len(lines) != 5 || lines[0] != stateFormat || lines[3] != "" || lines[4] != "" {
+		return nil, damaged(path, "its header is not "+stateFormat+": the file is damaged, or was written by another lidscope version")
+	}
+	ls, ok := strings.CutPrefix(lines[1], "length ")
+	n, err := strconv.ParseInt(ls, 10, 64)
+	if !ok || err != nil || len(ls) != stateLengthDigits {
+		return nil, damaged(path, "its length line is damaged")
+	}
+	hs, ok := strings.CutPrefix(lines[2], "sha256 ")
+	want, err := hex.DecodeString(hs)
+	if !ok || err != nil || len(want) != sha256.Size {
+		return nil, damaged(path, "its checksum line is damaged")
+	}
+	body := b[stateHeaderLen:]
+	if int64(len(body)) != n {
+		return nil, damaged(path, fmt.Sprintf("the header says %d bytes follow it, the file has %d: truncated or extended", n, len(body)))
+	}
+	if got := sha256.Sum256(body); !bytes.Equal(got[:], want) {
+		return nil, damaged(path, "its SHA-256 does not match its contents")
+	}
+	return body, nil
 }
 
 // loadedState is a decoded run state; rel is nil unless asked for, or
@@ -78,35 +140,49 @@ type loadedState struct {
 	noRel string
 }
 
-// loadState reads the state a run left in dir, with the relationship
+// readState reads the run state at path, with the relationship
 // accumulator when withRel is set.
-func loadState(dir string, withRel bool) (loadedState, error) {
-	p := filepath.Join(dir, StateFile)
+func readState(p string, withRel bool) (loadedState, error) {
 	b, err := os.ReadFile(p)
 	if err != nil {
-		return loadedState{}, fmt.Errorf("%w (is %s a lidscope run folder?)", err, dir)
+		return loadedState{}, err
+	}
+	body, err := decodeStateFile(p, b)
+	if err != nil {
+		return loadedState{}, err
 	}
 	var s runState
-	if err := gob.NewDecoder(bytes.NewReader(b)).Decode(&s); err != nil {
-		return loadedState{}, fmt.Errorf("%s: %w", p, err)
+	if err := gob.NewDecoder(bytes.NewReader(body)).Decode(&s); err != nil {
+		return loadedState{}, damaged(p, err.Error())
 	}
 	if s.Format != stateFormat {
-		return loadedState{}, fmt.Errorf("%s: run state format %q, this lidscope reads %q: re-run the analysis of %s with this version", p, s.Format, stateFormat, dir)
+		return loadedState{}, damaged(p, fmt.Sprintf("its body has format %q", s.Format))
 	}
 	acc, err := accumulate.Decode(bytes.NewReader(s.Acc))
 	if err != nil {
-		return loadedState{}, fmt.Errorf("%s: %w", p, err)
+		return loadedState{}, damaged(p, err.Error())
 	}
 	ls := loadedState{meta: s.Meta, acc: acc, noRel: s.NoRelations}
 	if withRel && s.NoRelations == "" {
 		if len(s.Rel) == 0 {
-			return loadedState{}, fmt.Errorf("%s: the run state holds no relationship accumulator (the file is damaged): re-run the analysis of %s", p, dir)
+			return loadedState{}, damaged(p, "it holds no relationship accumulator")
 		}
 		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(s.Rel)); err != nil {
-			return loadedState{}, fmt.Errorf("%s: %w", p, err)
+			return loadedState{}, damaged(p, err.Error())
 		}
 	}
 	return ls, nil
+}
+
+// loadState reads the state of the committed run in dir (see
+// runfolder.Open), with the relationship accumulator when withRel is set.
+func loadState(dir string, withRel bool) (loadedState, error) {
+	f, err := runfolder.Open(dir, StateFile)
+	if err != nil {
+		return loadedState{}, err
+	}
+	defer f.Close()
+	return readState(f.Path(StateFile), withRel)
 }
 
 // LoadState reads the provenance and the regime accumulator of the state
@@ -117,12 +193,15 @@ func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
 }
 
 // Merge joins finished runs over consecutive, non-overlapping pieces of one
-// dataset's record and writes the merged results to out: the regime
-// outputs, the relationship outputs (relations.Write) and the merged run
-// state. The runs must agree on everything but the period: dataset,
-// metrics conventions, regime definition, grid, quantities, regions, calendar,
-// sampling and the relationship configuration. Runs whose relationships
-// are anomalies (relations.Anomaly) are refused: each piece took its
+// dataset's record and writes the merged results to out as one run folder
+// (package runfolder): the regime outputs, the relationship outputs and the
+// merged run state. The runs must agree on everything but the period:
+// dataset, metrics conventions, regime definition, grid, quantities,
+// regions, calendar, sampling and the relationship configuration. Every
+// piece must be a complete, committed run folder with an intact run state.
+// Pieces that leave a gap in the record (a missing year, say) are refused
+// unless opt.AllowGaps; the gaps are then recorded in the merged
+// provenance. Runs whose relationships are anomalies (relations.Anomaly) are refused: each piece took its
 // anomalies against the climatology of its own period, so no merge gives
 // what one run over the record gives; run such a record in one piece.
 func Merge(dirs []string, out string, opt Options) (Report, error) {
@@ -137,27 +216,31 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		// noRel: the run has no relationship analysis, and why
 		noRel string
 	}
-	if !opt.Force {
-		for _, n := range append(append(output.OutputNames(), relations.OutputNames()...), StateFile) {
-			if _, err := os.Stat(filepath.Join(out, n)); err == nil {
-				return Report{}, fmt.Errorf("%s already holds results (%s); use --force to replace them or choose another --out", out, n)
-			}
-		}
-	}
 	var runs []run
+	var problems []string
 	for _, d := range dirs {
-		s, err := loadState(d, true)
+		f, err := runfolder.Open(d, StateFile)
 		if err != nil {
-			return Report{}, err
+			problems = append(problems, err.Error())
+			continue
+		}
+		defer f.Close() // no run replaces a piece while it is merged
+		s, err := readState(f.Path(StateFile), true)
+		if err != nil {
+			problems = append(problems, err.Error())
+			continue
 		}
 		if len(s.meta.TimeValues) == 0 {
-			return Report{}, fmt.Errorf("%s: the run has no time steps", d)
+			problems = append(problems, fmt.Sprintf("%s: the run has no time steps", d))
+			continue
 		}
 		runs = append(runs, run{d, s.meta, s.acc, s.rel, s.noRel})
 	}
+	if len(problems) > 0 {
+		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
+	}
 	sort.SliceStable(runs, func(i, j int) bool { return runs[i].meta.TimeValues[0] < runs[j].meta.TimeValues[0] })
 	first := runs[0]
-	var problems []string
 	for _, r := range runs[1:] {
 		a, b := first.meta, r.meta
 		check := func(what string, x, y any) {
@@ -176,11 +259,21 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 			problems = append(problems, fmt.Sprintf("relationship analysis: %s has %s, %s has %s", first.dir, relWord(first.noRel), r.dir, relWord(r.noRel)))
 		}
 	}
+	var gaps []string
 	for i := 1; i < len(runs); i++ {
-		p, q := runs[i-1].meta, runs[i].meta
-		if q.TimeValues[0] <= p.TimeValues[len(p.TimeValues)-1] {
-			problems = append(problems, fmt.Sprintf("periods overlap: %s (%s) and %s (%s)", runs[i-1].dir, p.Period, runs[i].dir, q.Period))
+		p, q := runs[i-1], runs[i]
+		if q.meta.TimeValues[0] <= p.meta.TimeValues[len(p.meta.TimeValues)-1] {
+			problems = append(problems, fmt.Sprintf("periods overlap: %s (%s) and %s (%s)", p.dir, p.meta.Period, q.dir, q.meta.Period))
+			continue
 		}
+		if missing, ok := gapBetween(p.meta, q.meta); ok {
+			gaps = append(gaps, fmt.Sprintf("%s ends at %s and %s starts at %s (about %d time steps missing)",
+				p.dir, lastOf(p.meta.Period), q.dir, firstOf(q.meta.Period), missing))
+		}
+	}
+	if len(gaps) > 0 && !opt.AllowGaps {
+		problems = append(problems, fmt.Sprintf("the pieces leave gaps in the record: %s; run the missing pieces and merge them too, or merge with --allow-gaps to accept a record with gaps (recorded in the provenance)",
+			strings.Join(gaps, "; ")))
 	}
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
@@ -191,6 +284,11 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and each of %s took its anomalies against the climatology of its own period, so no merge gives what one run over the whole record gives; "+
 			"run the whole record in one run, or use relationships.mode: %s for runs meant to be merged", relations.Anomaly, strings.Join(dirs, ", "), relations.Climatological)
 	}
+	st, err := CreateFolder(out, opt, 0)
+	if err != nil {
+		return Report{}, err
+	}
+	defer st.Close()
 	acc, rel := first.acc, first.rel
 	meta := first.meta
 	hashes := []string{}
@@ -222,7 +320,10 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		}
 	}
 	meta.Notes = append(meta.Notes, fmt.Sprintf("merged from %d runs: %s", len(runs), strings.Join(dirs, ", ")))
-	meta.Period = strings.SplitN(first.meta.Period, " … ", 2)[0] + " … " + lastOf(runs[len(runs)-1].meta.Period)
+	for _, g := range gaps {
+		meta.Notes = append(meta.Notes, "merged across a gap in the record (--allow-gaps): "+g)
+	}
+	meta.Period = firstOf(first.meta.Period) + " … " + lastOf(runs[len(runs)-1].meta.Period)
 	meta.Study = strings.Join(studies, "\n")
 	sum := sha256.Sum256([]byte(strings.Join(hashes, "+")))
 	meta.StudyHash = hex.EncodeToString(sum[:])
@@ -239,11 +340,60 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
 		}
 	}
-	files, err := writeResults(out, acc, meta, relRes, rel, first.noRel, opt)
+	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel}
+	files, err := WriteRun(context.Background(), st, o, opt)
 	if err != nil {
 		return Report{}, err
 	}
+	if _, err := st.Commit(context.Background()); err != nil {
+		return Report{}, err
+	}
 	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
+}
+
+// gapBetween reports whether time steps are missing between the end of
+// run p and the start of run q, and about how many. With time bounds it
+// compares the end of p's last step with the start of q's first
+// (a gap when they are more than a quarter of a step apart); without them,
+// the distance between the two time stamps with the typical spacing of
+// the pieces (a gap when it exceeds 1.5 steps).
+func gapBetween(p, q output.Meta) (int, bool) {
+	step := typicalStep(p, q)
+	if step <= 0 {
+		return 0, false
+	}
+	var d float64
+	if len(p.TimeBounds) == len(p.TimeValues) && len(q.TimeBounds) == len(q.TimeValues) && len(p.TimeBounds) > 0 && len(q.TimeBounds) > 0 {
+		d = q.TimeBounds[0][0] - p.TimeBounds[len(p.TimeBounds)-1][1]
+		if d <= 0.25*step {
+			return 0, false
+		}
+	} else {
+		d = q.TimeValues[0] - p.TimeValues[len(p.TimeValues)-1] - step
+		if d <= 0.5*step {
+			return 0, false
+		}
+	}
+	return int(math.Round(d / step)), true
+}
+
+// typicalStep is the median spacing of the time stamps of both pieces (in
+// the time units), or a year over the steps per year for one-step pieces.
+func typicalStep(p, q output.Meta) float64 {
+	var ds []float64
+	for _, m := range []output.Meta{p, q} {
+		for i := 1; i < len(m.TimeValues); i++ {
+			ds = append(ds, m.TimeValues[i]-m.TimeValues[i-1])
+		}
+	}
+	if len(ds) == 0 {
+		if p.StepsPerYear > 0 {
+			return 365.2425 / p.StepsPerYear // days: the time units are days (timeUnits)
+		}
+		return 0
+	}
+	sort.Float64s(ds)
+	return ds[len(ds)/2]
 }
 
 // relWord describes a run's relationship analysis for a merge problem.
@@ -253,6 +403,8 @@ func relWord(noRel string) string {
 	}
 	return "none (" + noRel + ")"
 }
+
+func firstOf(period string) string { return strings.SplitN(period, " … ", 2)[0] }
 
 func lastOf(period string) string {
 	parts := strings.Split(period, " … ")

@@ -4,8 +4,10 @@ import (
 	"bytes"
 	"context"
 	"encoding/gob"
+	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -14,7 +16,9 @@ import (
 
 	"lidscope/config"
 	"lidscope/fixtures"
+	"lidscope/output"
 	"lidscope/relations"
+	"lidscope/runfolder"
 )
 
 // diffResults lists where two relationship results differ: floats by more
@@ -69,33 +73,32 @@ func diffResults(a, b *relations.Results, tol float64) []string {
 	return errs
 }
 
-// A run state of an earlier format (before the relationship accumulator
-// was kept) is refused with a request to re-run, by LoadState and Merge.
+// A run state of an earlier format (a bare gob, before the integrity
+// header) is refused as damaged, with a request to re-run, by LoadState
+// and Merge; a refused merge writes nothing.
 func TestOldRunStateAsksForRerun(t *testing.T) {
 	dir := t.TempDir()
-	var old, other bytes.Buffer
-	// The shape of format 1: no relationship accumulator.
-	type v1 struct {
-		Format string
-		Acc    []byte
-	}
-	if err := gob.NewEncoder(&old).Encode(v1{Format: "lidscope-run-state/1"}); err != nil {
-		t.Fatal(err)
-	}
-	if err := gob.NewEncoder(&other).Encode(runState{Format: stateFormat}); err != nil {
+	var old bytes.Buffer
+	// The shape of format 2: a bare gob.
+	if err := gob.NewEncoder(&old).Encode(runState{Format: "lidscope-run-state/2"}); err != nil {
 		t.Fatal(err)
 	}
 	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
-	for d, data := range map[string][]byte{a: old.Bytes(), b: other.Bytes()} {
-		if err := os.MkdirAll(d, 0o755); err != nil {
+	for _, d := range []string{a, b} {
+		st, err := runfolder.Create(d, runfolder.Options{})
+		if err != nil {
 			t.Fatal(err)
 		}
-		if err := os.WriteFile(filepath.Join(d, StateFile), data, 0o644); err != nil {
+		if err := st.WriteFile(StateFile, old.Bytes()); err != nil {
 			t.Fatal(err)
 		}
+		if _, err := st.Commit(context.Background()); err != nil {
+			t.Fatal(err)
+		}
+		st.Close()
 	}
 	_, _, err := LoadState(a)
-	if err == nil || !strings.Contains(err.Error(), "re-run") || !strings.Contains(err.Error(), "lidscope-run-state/1") {
+	if !errors.Is(err, ErrDamagedState) || !strings.Contains(err.Error(), "re-run that piece") || !strings.Contains(err.Error(), "another lidscope version") {
 		t.Errorf("old state: %v", err)
 	}
 	if _, err := Merge([]string{a, b}, filepath.Join(dir, "m"), Options{}); err == nil || !strings.Contains(err.Error(), "re-run") {
@@ -103,6 +106,136 @@ func TestOldRunStateAsksForRerun(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(dir, "m")); err == nil {
 		t.Error("a refused merge created its output folder")
+	}
+}
+
+// tinyWorld is the smallest synthetic world (invented data) the demo's
+// continents allow, three years long, one file a year.
+func tinyWorld() fixtures.Options {
+	o := fixtures.DefaultOptions()
+	o.Resolution = 6
+	o.Years = 3
+	o.YearsPerFile = 1
+	return o
+}
+
+// runPieces runs the tiny world's years as separate pieces into dir/<name>.
+func runPieces(t *testing.T, dir string, pieces map[string][2]string) map[string]string {
+	t.Helper()
+	data := filepath.Join(dir, "data")
+	if _, err := fixtures.Generate(data, tinyWorld()); err != nil {
+		t.Fatal(err)
+	}
+	out := map[string]string{}
+	for name, p := range pieces {
+		r, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment,
+			Flags: map[string]string{"datasets.0.time.start": p[0], "datasets.0.time.end": p[1]}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[name] = filepath.Join(dir, name)
+		if _, err := Run(context.Background(), r, nil, Options{OutDir: out[name], NoPlots: true}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return out
+}
+
+// Random bit flips and truncations anywhere in a run state are refused
+// with "damaged run state", never decoded into numbers, and a merge with a
+// damaged piece writes nothing.
+func TestDamagedRunStateIsRefused(t *testing.T) {
+	dir := t.TempDir()
+	runs := runPieces(t, dir, map[string][2]string{"y1": {"2001-01", "2001-12"}, "y2": {"2002-01", "2002-12"}})
+	good, err := os.ReadFile(filepath.Join(runs["y1"], StateFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := readState(filepath.Join(runs["y1"], StateFile), true); err != nil {
+		t.Fatalf("the intact state: %v", err)
+	}
+	rng := rand.New(rand.NewPCG(13, 2026))
+	p := filepath.Join(dir, "state")
+	try := func(what string, b []byte) {
+		t.Helper()
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, err := readState(p, true)
+		if !errors.Is(err, ErrDamagedState) || !strings.Contains(err.Error(), "damaged run state: "+p) || !strings.Contains(err.Error(), "re-run that piece") {
+			t.Errorf("%s: %v", what, err)
+		}
+	}
+	for i := 0; i < 200; i++ {
+		b := bytes.Clone(good)
+		var where []int
+		for k := 0; k <= rng.IntN(3); k++ {
+			// a third of the flips in the header, the rest anywhere
+			at := rng.IntN(len(b))
+			if k == 0 && i%3 == 0 {
+				at = rng.IntN(stateHeaderLen)
+			}
+			b[at] ^= 1 << rng.IntN(8)
+			where = append(where, at)
+		}
+		if bytes.Equal(b, good) {
+			continue // two flips of one bit
+		}
+		try(fmt.Sprintf("bit flips at %v", where), b)
+	}
+	for i := 0; i < 20; i++ {
+		n := rng.IntN(len(good))
+		try(fmt.Sprintf("truncated to %d bytes", n), good[:n])
+	}
+	try("one byte added", append(bytes.Clone(good), 0))
+	// In a committed folder (same size, so the folder's manifest check
+	// passes): Merge refuses and writes nothing.
+	b := bytes.Clone(good)
+	b[len(b)/2] ^= 0x10
+	if err := os.WriteFile(filepath.Join(runs["y1"], StateFile), b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "merged")
+	_, err = Merge([]string{runs["y1"], runs["y2"]}, out, Options{})
+	if !errors.Is(err, ErrDamagedState) && (err == nil || !strings.Contains(err.Error(), "damaged run state: "+filepath.Join(runs["y1"], StateFile))) {
+		t.Errorf("merge with a damaged piece: %v", err)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the refused merge created its output folder")
+	}
+}
+
+// Pieces that leave a year out are refused unless AllowGaps, which the
+// provenance records; overlapping pieces are refused either way.
+func TestMergeGaps(t *testing.T) {
+	dir := t.TempDir()
+	runs := runPieces(t, dir, map[string][2]string{"y1": {"2001-01", "2001-12"}, "y3": {"2003-01", "2003-12"}, "y12": {"2001-01", "2002-12"}})
+	_, err := Merge([]string{runs["y3"], runs["y1"]}, filepath.Join(dir, "gap"), Options{})
+	for _, want := range []string{"gaps in the record", runs["y1"] + " ends at 2001-12", runs["y3"] + " starts at 2003-01", "about 12 time steps missing", "--allow-gaps"} {
+		if err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("merge across a missing year: %v, want %q", err, want)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "gap")); err == nil {
+		t.Error("the refused merge created its output folder")
+	}
+	rep, err := Merge([]string{runs["y3"], runs["y1"]}, filepath.Join(dir, "gap"), Options{AllowGaps: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	prov, err := os.ReadFile(filepath.Join(rep.OutDir, output.ProvenanceJSON))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(prov), "merged across a gap in the record (--allow-gaps)") {
+		t.Error("provenance.json does not record the gap")
+	}
+	if _, err := Merge([]string{runs["y12"], runs["y1"]}, filepath.Join(dir, "overlap"), Options{AllowGaps: true}); err == nil || !strings.Contains(err.Error(), "periods overlap") {
+		t.Errorf("overlapping pieces: %v", err)
+	}
+	// Consecutive pieces have no gap.
+	if _, err := Merge([]string{runs["y12"], runs["y3"]}, filepath.Join(dir, "whole"), Options{}); err != nil {
+		t.Errorf("consecutive pieces: %v", err)
 	}
 }
 

@@ -40,6 +40,15 @@ type Run struct {
 	Relations *relations.Results
 }
 
+// Label names the run in messages: its name and, when known, its folder
+// (two runs of one dataset differ only by their folders).
+func (r Run) Label() string {
+	if r.Dir == "" || r.Dir == r.Name {
+		return r.Name
+	}
+	return r.Name + " (" + r.Dir + ")"
+}
+
 // Options control a comparison.
 type Options struct {
 	// AllowMismatch compares runs whose studies, periods or grids differ;
@@ -117,7 +126,7 @@ func Mismatches(a, b Run) []string {
 	var out []string
 	chk := func(what string, x, y any) {
 		if fmt.Sprint(x) != fmt.Sprint(y) {
-			out = append(out, fmt.Sprintf("%s differs: %s has %v, %s has %v", what, a.Name, x, b.Name, y))
+			out = append(out, fmt.Sprintf("%s differs: %s has %v, %s has %v", what, a.Label(), x, b.Label(), y))
 		}
 	}
 	chk("metrics conventions", a.Meta.MetricsConventions, b.Meta.MetricsConventions)
@@ -134,17 +143,17 @@ func Mismatches(a, b Run) []string {
 	out = append(out, relationMismatches(a, b)...)
 	la, lb := a.Acc.L, b.Acc.L
 	if la.NLat != lb.NLat || la.NLon != lb.NLon {
-		out = append(out, fmt.Sprintf("grid differs: %s is %d×%d, %s is %d×%d (put both on one analysis grid)", a.Name, la.NLat, la.NLon, b.Name, lb.NLat, lb.NLon))
+		out = append(out, fmt.Sprintf("grid differs: %s is %d×%d, %s is %d×%d (put both on one analysis grid)", a.Label(), la.NLat, la.NLon, b.Label(), lb.NLat, lb.NLon))
 	} else {
 		for i := range la.Lat {
 			if math.Abs(la.Lat[i]-lb.Lat[i]) > 1e-6 {
-				out = append(out, fmt.Sprintf("grid differs: latitude %d is %g in %s, %g in %s", i, la.Lat[i], a.Name, lb.Lat[i], b.Name))
+				out = append(out, fmt.Sprintf("grid differs: latitude %d is %g in %s, %g in %s", i, la.Lat[i], a.Label(), lb.Lat[i], b.Label()))
 				break
 			}
 		}
 		for i := range la.Lon {
 			if math.Abs(la.Lon[i]-lb.Lon[i]) > 1e-6 {
-				out = append(out, fmt.Sprintf("grid differs: longitude %d is %g in %s, %g in %s", i, la.Lon[i], a.Name, lb.Lon[i], b.Name))
+				out = append(out, fmt.Sprintf("grid differs: longitude %d is %g in %s, %g in %s", i, la.Lon[i], a.Label(), lb.Lon[i], b.Label()))
 				break
 			}
 		}
@@ -166,7 +175,7 @@ func Compare(ref Run, cands []Run, opt Options) (*Result, error) {
 		}
 		gridOK := ref.Acc.L.NLat == c.Acc.L.NLat && ref.Acc.L.NLon == c.Acc.L.NLon
 		if !gridOK {
-			return nil, fmt.Errorf("%s and %s are on different grids; maps cannot be compared even with --allow-mismatch: run both on one analysis grid", ref.Name, c.Name)
+			return nil, fmt.Errorf("%s and %s are on different grids; maps cannot be compared even with --allow-mismatch: run both on one analysis grid", ref.Label(), c.Label())
 		}
 		cr := Candidate{Name: c.Name, Dir: c.Dir, Diff: map[string][]float64{}}
 		rm, cm := maps(ref), maps(c)

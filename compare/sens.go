@@ -212,7 +212,7 @@ func relationMismatches(a, b Run) []string {
 	}
 	var out []string
 	if ra.Mode != rb.Mode {
-		out = append(out, fmt.Sprintf("relationship mode differs: %s has %s, %s has %s (anomaly and climatological slopes are not comparable)", a.Name, ra.Mode, b.Name, rb.Mode))
+		out = append(out, fmt.Sprintf("relationship mode differs: %s has %s, %s has %s (anomaly and climatological slopes are not comparable)", a.Label(), ra.Mode, b.Label(), rb.Mode))
 	}
 	ka, kb := configLines(ra.Config), configLines(rb.Config)
 	keys := map[string]bool{}
@@ -234,11 +234,11 @@ func relationMismatches(a, b Run) []string {
 		vb, okb := kb[k]
 		switch {
 		case !oka:
-			out = append(out, fmt.Sprintf("relationship config differs: %s has no %s, %s has %s", a.Name, k, b.Name, vb))
+			out = append(out, fmt.Sprintf("relationship config differs: %s has no %s, %s has %s", a.Label(), k, b.Label(), vb))
 		case !okb:
-			out = append(out, fmt.Sprintf("relationship config differs: %s has %s %s, %s has none", a.Name, k, va, b.Name))
+			out = append(out, fmt.Sprintf("relationship config differs: %s has %s %s, %s has none", a.Label(), k, va, b.Label()))
 		case va != vb:
-			out = append(out, fmt.Sprintf("relationship config differs: %s is %s in %s, %s in %s", k, va, a.Name, vb, b.Name))
+			out = append(out, fmt.Sprintf("relationship config differs: %s is %s in %s, %s in %s", k, va, a.Label(), vb, b.Label()))
 		}
 	}
 	return out

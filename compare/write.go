@@ -28,12 +28,20 @@ type WriteOptions struct {
 	Force   bool
 	Version string
 	Command []string
+	// Figures, when set, draws the comparison's figures into the (staged)
+	// folder it is given and returns their paths there; they are moved
+	// into place with the files, as the subfolder FiguresDir.
+	Figures func(dir string) ([]string, error)
 }
+
+// FiguresDir is the subfolder of the comparison's figures.
+const FiguresDir = "figures"
 
 // Write writes comparison.csv, comparison.json and comparison_maps.nc
 // into dir, as one unit (package stage): every file is written into a
 // hidden staging folder first and moved into place only when all are
-// complete, so a failure leaves no file of this call under a final name.
+// complete, so a failure leaves no file of this call under a final name;
+// the figures (opt.Figures) are staged with them.
 func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
 	names := []string{CSVFile, JSONFile}
 	if len(res.Candidates) > 0 {
@@ -43,6 +51,11 @@ func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
 		have, err := stage.Existing(dir, []string{CSVFile, JSONFile, MapsFile})
 		if err != nil {
 			return nil, err
+		}
+		if opt.Figures != nil {
+			if _, err := os.Lstat(filepath.Join(dir, FiguresDir)); err == nil {
+				have = append(have, FiguresDir)
+			}
 		}
 		if len(have) > 0 {
 			return nil, fmt.Errorf("%s already exists: use --force to replace it or choose another --out: %w", filepath.Join(dir, have[0]), fs.ErrExist)
@@ -75,14 +88,31 @@ func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
 			return nil, err
 		}
 	}
+	var figs []string
+	if opt.Figures != nil {
+		staged := st.Path(FiguresDir)
+		if err := os.Mkdir(staged, 0o777); err != nil {
+			return nil, err
+		}
+		paths, err := opt.Figures(staged)
+		if err != nil {
+			return nil, fmt.Errorf("drawing the comparison figures (nothing was written to %s): %w", dir, err)
+		}
+		for _, p := range paths {
+			figs = append(figs, filepath.Join(dir, FiguresDir, filepath.Base(p)))
+		}
+		names = append(names, FiguresDir)
+	}
 	if err := st.Commit(names, opt.Force); err != nil {
 		return nil, err
 	}
-	out := make([]string, len(names))
-	for i, n := range names {
-		out[i] = filepath.Join(dir, n)
+	var out []string
+	for _, n := range names {
+		if n != FiguresDir {
+			out = append(out, filepath.Join(dir, n))
+		}
 	}
-	return out, nil
+	return append(out, figs...), nil
 }
 
 func num(x float64) string {

@@ -10,7 +10,9 @@ import (
 	"strings"
 
 	"lidscope/figures/internal/ramp"
+	"lidscope/output"
 	"lidscope/relations"
+	"lidscope/runfolder"
 )
 
 // Options choose what Draw draws and where.
@@ -137,11 +139,44 @@ func (o Options) normalise(runDir string) (Options, error) {
 // refuses, before drawing anything, when a figure file exists already
 // (errors.Is(err, fs.ErrExist)). Each figure is written to a temporary
 // name and renamed when complete.
+//
+// runDir must hold a complete, committed run (runfolder.Open): a folder
+// without one is refused, naming the missing files, and nothing is drawn.
+// The run folder stays locked for reading while Draw runs, so that no run
+// replaces it meanwhile.
 func Draw(runDir string, opt Options) ([]string, error) {
 	opt, err := opt.normalise(runDir)
 	if err != nil {
 		return nil, err
 	}
+	f, err := runfolder.Open(runDir, output.SummaryJSON)
+	if err != nil {
+		return nil, fmt.Errorf("figures: %w", err)
+	}
+	defer f.Close()
+	return drawFrom(runDir, opt)
+}
+
+// DrawStaged draws the figures of a run being written into st (whose
+// result files are staged already) into the staged figures folder, to be
+// committed with the run (runfolder.Stage.Commit). opt.OutDir and
+// opt.Force are ignored. It returns the paths the figures will have once
+// the run is committed.
+func DrawStaged(st *runfolder.Stage, opt Options) ([]string, error) {
+	opt.OutDir = st.Path(DefaultDirName)
+	opt.Force = false
+	opt, err := opt.normalise(st.Dir())
+	if err != nil {
+		return nil, err
+	}
+	paths, err := drawFrom(st.Dir(), opt)
+	for i, p := range paths {
+		paths[i] = st.FinalPath(DefaultDirName + "/" + filepath.Base(p))
+	}
+	return paths, err
+}
+
+func drawFrom(runDir string, opt Options) ([]string, error) {
 	run, err := Load(runDir)
 	if err != nil {
 		return nil, err

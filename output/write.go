@@ -66,7 +66,72 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 		return nil, fmt.Errorf("output: cannot write in %s (the directory must be writable): %w", dir, err)
 	}
 	defer sd.Remove()
+	if err := c.stageAll(sd, dir); err != nil {
+		return nil, err
+	}
+	sd.BeforeMove = hookCommit
+	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
+		if !opt.Force && errors.Is(err, fs.ErrExist) {
+			return nil, fmt.Errorf("output: %w. Allow replacing it (Options.Force) or choose another directory", err)
+		}
+		return nil, fmt.Errorf("output: %w", err)
+	}
+	var files Files
+	for _, n := range OutputNames() {
+		files = append(files, filepath.Join(dir, n))
+	}
+	return files, nil
+}
 
+// preflight refuses, without Force, when an output exists already, and
+// always when an output name is taken by something that is not a file.
+func preflight(dir string, force bool) error {
+	exist, err := stage.Existing(dir, OutputNames())
+	if err != nil {
+		return fmt.Errorf("output: %w", err)
+	}
+	if len(exist) > 0 && !force {
+		return fmt.Errorf("output: %s already holds outputs of a run (%s): %w; nothing was written. Choose another directory, remove them, or allow replacing them (Options.Force)",
+			dir, strings.Join(exist, ", "), fs.ErrExist)
+	}
+	return nil
+}
+
+// digest returns the size and SHA-256 of a staged file.
+func digest(p, name string) (provOutput, error) {
+	f, err := os.Open(p)
+	if err != nil {
+		return provOutput{}, err
+	}
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return provOutput{}, err
+	}
+	return provOutput{Name: name, Size: num{Value: float64(n), Units: "byte"}, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+}
+
+// Stager is where a writer puts its files before they are committed:
+// a runfolder.Stage (a whole run folder, committed by its owner) or a
+// stage.Dir.
+type Stager interface {
+	Path(name string) string
+	WriteFile(name string, b []byte) error
+}
+
+// Stage writes the run's result files (the six files Write writes) into
+// st and does not commit them: the caller commits the whole run folder
+// (package runfolder). dir is the final folder, named in messages.
+func Stage(st Stager, dir string, acc *accumulate.Acc, meta Meta) error {
+	c, err := check(acc, meta)
+	if err != nil {
+		return err
+	}
+	return c.stageAll(st, dir)
+}
+
+func (c *checked) stageAll(sd Stager, dir string) error {
 	notes := c.notes
 	if _, _, _, _, note := c.periodAxis(); note != "" {
 		notes = append(notes, note)
@@ -116,48 +181,8 @@ func Write(dir string, acc *accumulate.Acc, meta Meta, opt Options) (_ Files, er
 			}
 		}
 		if err := stageFile(s.name, write); err != nil {
-			return nil, err
+			return err
 		}
-	}
-	sd.BeforeMove = hookCommit
-	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
-		if !opt.Force && errors.Is(err, fs.ErrExist) {
-			return nil, fmt.Errorf("output: %w. Allow replacing it (Options.Force) or choose another directory", err)
-		}
-		return nil, fmt.Errorf("output: %w", err)
-	}
-	var files Files
-	for _, n := range OutputNames() {
-		files = append(files, filepath.Join(dir, n))
-	}
-	return files, nil
-}
-
-// preflight refuses, without Force, when an output exists already, and
-// always when an output name is taken by something that is not a file.
-func preflight(dir string, force bool) error {
-	exist, err := stage.Existing(dir, OutputNames())
-	if err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	if len(exist) > 0 && !force {
-		return fmt.Errorf("output: %s already holds outputs of a run (%s): %w; nothing was written. Choose another directory, remove them, or allow replacing them (Options.Force)",
-			dir, strings.Join(exist, ", "), fs.ErrExist)
 	}
 	return nil
-}
-
-// digest returns the size and SHA-256 of a staged file.
-func digest(p, name string) (provOutput, error) {
-	f, err := os.Open(p)
-	if err != nil {
-		return provOutput{}, err
-	}
-	defer f.Close()
-	h := sha256.New()
-	n, err := io.Copy(h, f)
-	if err != nil {
-		return provOutput{}, err
-	}
-	return provOutput{Name: name, Size: num{Value: float64(n), Units: "byte"}, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
 }

@@ -88,11 +88,44 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 		return nil, fmt.Errorf("relations: cannot write in %s (the directory must be writable): %w", dir, err)
 	}
 	defer sd.Remove()
+	if err := stageAll(sd, dir, r, meta); err != nil {
+		return nil, err
+	}
+	sd.BeforeMove = hookCommit
+	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
+		return nil, fmt.Errorf("relations: %w", err)
+	}
+	var out []string
+	for _, n := range OutputNames() {
+		out = append(out, filepath.Join(dir, n))
+	}
+	return out, nil
+}
+
+// Stager is where a writer puts its files before they are committed: a
+// runfolder.Stage (a whole run folder, committed by its owner) or a
+// stage.Dir.
+type Stager interface {
+	Path(name string) string
+	WriteFile(name string, b []byte) error
+}
+
+// Stage writes the relationship files (those Write writes) into st and
+// does not commit them: the caller commits the whole run folder (package
+// runfolder). dir is the final folder, named in messages.
+func Stage(st Stager, dir string, r *Results, meta Meta) error {
+	if r == nil {
+		return errors.New("relations: Stage needs results (call Acc.Results)")
+	}
+	return stageAll(st, dir, r, meta)
+}
+
+func stageAll(sd Stager, dir string, r *Results, meta Meta) error {
 	if meta.Period == "" {
 		meta.Period = r.First + " … " + r.Last
 	}
 	if err := writeNC(sd.Path(RelationshipsNC), r, meta); err != nil {
-		return nil, fmt.Errorf("relations: writing %s in %s: %w", RelationshipsNC, dir, err)
+		return fmt.Errorf("relations: writing %s in %s: %w", RelationshipsNC, dir, err)
 	}
 	files := []struct {
 		name string
@@ -109,18 +142,10 @@ func Write(dir string, r *Results, meta Meta, opt WriteOptions) (_ []string, err
 			err = sd.WriteFile(f.name, b)
 		}
 		if err != nil {
-			return nil, fmt.Errorf("relations: writing %s in %s: %w", f.name, dir, err)
+			return fmt.Errorf("relations: writing %s in %s: %w", f.name, dir, err)
 		}
 	}
-	sd.BeforeMove = hookCommit
-	if err := sd.Commit(OutputNames(), opt.Force); err != nil {
-		return nil, fmt.Errorf("relations: %w", err)
-	}
-	var out []string
-	for _, n := range OutputNames() {
-		out = append(out, filepath.Join(dir, n))
-	}
-	return out, nil
+	return nil
 }
 
 // ---- NetCDF ----

@@ -52,6 +52,21 @@ func lockExclusive(dir string) (*Lock, error) {
 	return &Lock{fl: fl, exclusive: true}, nil
 }
 
+// LockFolder takes the exclusive lock of a folder that is not a run folder
+// but is written by lidscope (a comparison), without waiting; when another
+// process holds it the error names that process (errors.Is(err,
+// ErrInUse)). Release the lock when done.
+func LockFolder(dir string) (*Lock, error) {
+	abs, err := filepath.Abs(dir)
+	if err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(filepath.Dir(abs), 0o777); err != nil {
+		return nil, err
+	}
+	return lockExclusive(abs)
+}
+
 // lockShared takes a shared lock of dir without waiting. Where the lock
 // file cannot be created (a read-only archive of runs), it returns a nil
 // lock and no error: nobody can be writing there either.

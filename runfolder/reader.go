@@ -52,7 +52,11 @@ func Open(dir string, need ...string) (_ *Folder, err error) {
 	st, err := os.Stat(dir)
 	if err != nil {
 		if errors.Is(err, fs.ErrNotExist) {
-			return nil, fmt.Errorf("run folder %s does not exist: %w", dir, err)
+			holds := ManifestFile
+			if len(need) > 0 {
+				holds = strings.Join(need, ", ") + " and " + ManifestFile
+			}
+			return nil, fmt.Errorf("run folder %s does not exist (give the folder of a finished run; it holds %s): %w", dir, holds, err)
 		}
 		return nil, err
 	}

@@ -1,18 +1,21 @@
 // Package figurestest writes a small invented run directory (synthetic data,
-// clearly labelled as such) with output.Write, for the figures' tests and
-// examples. Nothing in it is real: the fields are smooth functions of
+// clearly labelled as such), committed as a run folder (package runfolder),
+// for the figures' tests and examples. Nothing in it is real: the fields are smooth functions of
 // position and time chosen so that every figure has structure to show.
 package figurestest
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"path/filepath"
 
 	"lidscope/accumulate"
 	"lidscope/grid"
 	"lidscope/output"
 	"lidscope/regimes"
 	"lidscope/relations"
+	"lidscope/runfolder"
 )
 
 // Spec chooses the invented run.
@@ -73,7 +76,22 @@ func Write(dir string, spec Spec) (output.Files, error) {
 		acc.AddCells(s, 0, len(s.Rel))
 		acc.AddStep(s)
 	}
-	return output.Write(dir, acc, w.meta, output.Options{Force: true})
+	st, err := runfolder.Create(dir, runfolder.Options{Replace: true, Known: output.OutputNames()})
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	if err := output.Stage(st, dir, acc, w.meta); err != nil {
+		return nil, err
+	}
+	if _, err := st.Commit(context.Background()); err != nil {
+		return nil, err
+	}
+	var files output.Files
+	for _, n := range output.OutputNames() {
+		files = append(files, filepath.Join(dir, n))
+	}
+	return files, nil
 }
 
 // Relations runs the relationship analysis (package relations, default
