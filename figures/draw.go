@@ -149,7 +149,7 @@ func Draw(runDir string, opt Options) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	f, err := runfolder.Open(runDir, output.SummaryJSON)
+	f, err := runfolder.Open(runDir, output.SummaryJSON, output.MapsNC, output.SeriesNC)
 	if err != nil {
 		return nil, fmt.Errorf("figures: %w", err)
 	}

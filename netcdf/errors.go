@@ -6,8 +6,10 @@ package netcdf
 import "C"
 
 import (
+	"errors"
 	"fmt"
 	"strings"
+	"syscall"
 )
 
 // Error is an error status returned by the netCDF-C library, with the
@@ -32,8 +34,21 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, " (%s)", e.Name)
 	}
 	b.WriteString(": ")
-	b.WriteString(strerror(e.Code))
+	if e.Code > 0 {
+		b.WriteString(syscall.Errno(e.Code).Error())
+	} else {
+		b.WriteString(strerror(e.Code))
+	}
 	return b.String()
+}
+
+// Unwrap gives the system error of a status that is a system errno, so
+// that errors.Is(err, syscall.ENOSPC) works.
+func (e *Error) Unwrap() error {
+	if e.Code > 0 {
+		return syscall.Errno(e.Code)
+	}
+	return nil
 }
 
 // Is reports whether target is a netCDF error with the same status code, so
@@ -73,3 +88,30 @@ func check(status C.int, op, path, name string) error {
 	}
 	return &Error{Code: int(status), Op: op, Path: path, Name: name}
 }
+
+// ioErrnos are the system errors of a write that the library reports only
+// as its own status (NC_EHDFERR, "HDF error", or NC_EIO): a full disk or
+// quota, a file too large, an input/output error.
+var ioErrnos = []syscall.Errno{syscall.ENOSPC, syscall.EDQUOT, syscall.EFBIG, syscall.EIO}
+
+// checkIO is check for calls that write to disk: when the call failed and
+// left one of ioErrnos in errno (cgo clears errno before each call), the
+// error is that system error, with the operation and file, so that a full
+// disk says "no space left on device" instead of "HDF error".
+func checkIO(status C.int, errno error, op, path, name string) error {
+	if status == C.NC_NOERR {
+		return nil
+	}
+	var en syscall.Errno
+	if errors.As(errno, &en) {
+		for _, io := range ioErrnos {
+			if en == io {
+				return &Error{Code: int(en), Op: op, Path: path, Name: name}
+			}
+		}
+	}
+	return check(status, op, path, name)
+}
+
+// cStatus converts a status code for checkIO (tests cannot use cgo).
+func cStatus(code int) C.int { return C.int(code) }

@@ -195,8 +195,9 @@ func CreateFormat(path string, format Format) (*File, error) {
 	cpath := C.CString(path)
 	defer C.free(unsafe.Pointer(cpath))
 	var ncid, status C.int
-	do(func() { status = C.nc_create(cpath, mode, &ncid) })
-	if err := check(status, "nc_create", path, ""); err != nil {
+	var errno error
+	do(func() { status, errno = C.nc_create(cpath, mode, &ncid) })
+	if err := checkIO(status, errno, "nc_create", path, ""); err != nil {
 		return nil, err
 	}
 	h := &shared{ncid: ncid, path: path, refs: 1, write: true}
@@ -226,8 +227,9 @@ func (f *File) Close() error {
 		}
 	}
 	var status C.int
-	do(func() { status = C.nc_close(f.h.ncid) })
-	return check(status, "nc_close", f.h.path, "")
+	var errno error
+	do(func() { status, errno = C.nc_close(f.h.ncid) })
+	return checkIO(status, errno, "nc_close", f.h.path, "")
 }
 
 func (f *File) ncid() C.int { return f.h.ncid }
@@ -401,7 +403,7 @@ func (v *Var) sizes(start, count []int, n int) ([]C.size_t, []C.size_t, error) {
 // it checks the sizes, does nothing for an empty slab, and otherwise runs
 // call (one nc_get_vara_* or nc_put_vara_*, named op in errors) on the
 // netCDF thread with the C start and count arrays.
-func (v *Var) slab(start, count []int, n int, op string, call func(start, count *C.size_t) C.int) error {
+func (v *Var) slab(start, count []int, n int, op string, call func(start, count *C.size_t) (C.int, error)) error {
 	cs, cc, err := v.sizes(start, count, n)
 	if err != nil {
 		return err
@@ -410,23 +412,26 @@ func (v *Var) slab(start, count []int, n int, op string, call func(start, count 
 		return nil
 	}
 	var status C.int
-	do(func() { status = call(&cs[0], &cc[0]) })
-	return check(status, op, v.f.h.path, v.Name)
+	var errno error
+	do(func() { status, errno = call(&cs[0], &cc[0]) })
+	return checkIO(status, errno, op, v.f.h.path, v.Name)
 }
 
 // ReadFloat64 reads the hyperslab start/count into dst (len(dst) must equal
 // the product of count), converting from the variable's type. Values are raw:
 // no unpacking or fill masking is done here (see package cf).
 func (v *Var) ReadFloat64(start, count []int, dst []float64) error {
-	return v.slab(start, count, len(dst), "nc_get_vara_double", func(cs, cc *C.size_t) C.int {
-		return C.nc_get_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&dst[0])))
+	return v.slab(start, count, len(dst), "nc_get_vara_double", func(cs, cc *C.size_t) (C.int, error) {
+		st, errno := C.nc_get_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&dst[0])))
+		return st, errno
 	})
 }
 
 // ReadFloat32 reads the hyperslab start/count into dst, like ReadFloat64.
 func (v *Var) ReadFloat32(start, count []int, dst []float32) error {
-	return v.slab(start, count, len(dst), "nc_get_vara_float", func(cs, cc *C.size_t) C.int {
-		return C.nc_get_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&dst[0])))
+	return v.slab(start, count, len(dst), "nc_get_vara_float", func(cs, cc *C.size_t) (C.int, error) {
+		st, errno := C.nc_get_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&dst[0])))
+		return st, errno
 	})
 }
 
@@ -443,15 +448,17 @@ func (v *Var) ReadAllFloat64() ([]float64, error) {
 
 // WriteFloat64 writes src to the hyperslab start/count (file in data mode).
 func (v *Var) WriteFloat64(start, count []int, src []float64) error {
-	return v.slab(start, count, len(src), "nc_put_vara_double", func(cs, cc *C.size_t) C.int {
-		return C.nc_put_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&src[0])))
+	return v.slab(start, count, len(src), "nc_put_vara_double", func(cs, cc *C.size_t) (C.int, error) {
+		st, errno := C.nc_put_vara_double(v.f.ncid(), v.id, cs, cc, (*C.double)(unsafe.Pointer(&src[0])))
+		return st, errno
 	})
 }
 
 // WriteFloat32 writes src to the hyperslab start/count (file in data mode).
 func (v *Var) WriteFloat32(start, count []int, src []float32) error {
-	return v.slab(start, count, len(src), "nc_put_vara_float", func(cs, cc *C.size_t) C.int {
-		return C.nc_put_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&src[0])))
+	return v.slab(start, count, len(src), "nc_put_vara_float", func(cs, cc *C.size_t) (C.int, error) {
+		st, errno := C.nc_put_vara_float(v.f.ncid(), v.id, cs, cc, (*C.float)(unsafe.Pointer(&src[0])))
+		return st, errno
 	})
 }
 
@@ -542,8 +549,9 @@ func (v *Var) Deflate() (shuffle bool, deflate bool, level int, err error) {
 // EndDef leaves define mode.
 func (f *File) EndDef() error {
 	var status C.int
-	do(func() { status = C.nc_enddef(f.ncid()) })
-	return check(status, "nc_enddef", f.h.path, "")
+	var errno error
+	do(func() { status, errno = C.nc_enddef(f.ncid()) })
+	return checkIO(status, errno, "nc_enddef", f.h.path, "")
 }
 
 // Redef re-enters define mode.
@@ -556,8 +564,9 @@ func (f *File) Redef() error {
 // Sync flushes a file being written to disk.
 func (f *File) Sync() error {
 	var status C.int
-	do(func() { status = C.nc_sync(f.ncid()) })
-	return check(status, "nc_sync", f.h.path, "")
+	var errno error
+	do(func() { status, errno = C.nc_sync(f.ncid()) })
+	return checkIO(status, errno, "nc_sync", f.h.path, "")
 }
 
 // LibVersion returns the netCDF-C library version string.

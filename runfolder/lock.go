@@ -36,9 +36,12 @@ var ErrInUse = errors.New("in use by another lidscope process")
 // the error names that process (errors.Is(err, ErrInUse)).
 func lockExclusive(dir string) (*Lock, error) {
 	p := LockPath(dir)
-	fl := flock.New(p, flock.SetFlag(os.O_CREATE|os.O_RDWR))
+	fl := flock.New(p, flock.SetFlag(os.O_CREATE|os.O_RDWR), flock.SetPermissions(0o644))
 	ok, err := fl.TryLock()
 	if err != nil {
+		if errors.Is(err, fs.ErrPermission) || isReadOnlyFS(err) {
+			return nil, fmt.Errorf("cannot write the outputs of %s: the folder %s must be writable: %w", dir, filepath.Dir(p), err)
+		}
 		return nil, fmt.Errorf("cannot lock %s (lock file %s): %w", dir, p, err)
 	}
 	if !ok {
@@ -105,8 +108,13 @@ func inUse(dir, lockFile string) error {
 		}
 		who += ")"
 	}
-	return fmt.Errorf("%s is in use by %s; wait for it to finish or choose another --out (lock file %s): %w", dir, who, lockFile, ErrInUse)
+	return &inUseError{fmt.Sprintf("%s is in use by %s; wait for it to finish or choose another --out (lock file %s)", dir, who, lockFile)}
 }
+
+type inUseError struct{ msg string }
+
+func (e *inUseError) Error() string        { return e.msg }
+func (e *inUseError) Is(target error) bool { return target == ErrInUse }
 
 // Release releases the lock (a nil lock is a no-op). An exclusive lock's
 // file is emptied first, so that it no longer names this process.

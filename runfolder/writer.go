@@ -90,6 +90,10 @@ func Create(target string, opt Options) (_ *Stage, err error) {
 		return nil, fmt.Errorf("cannot write the outputs of %s: the folder %s must be writable: %w", target, s.parent, err)
 	}
 	s.dir = d
+	if err := os.Chmod(d, 0o755); err != nil { // MkdirTemp makes it 0700
+		os.RemoveAll(d)
+		return nil, err
+	}
 	if opt.Estimate > 0 {
 		if free, ok := freeBytes(d); ok && free < opt.Estimate {
 			os.RemoveAll(d)

@@ -18,9 +18,11 @@ import (
 var version = "0.1.0-dev"
 
 func main() {
+	sc := &signalCatcher{}
 	os.Exit(execute(context.Background(), os.Args[1:], &env{
 		stdout:  os.Stdout,
 		stderr:  os.Stderr,
-		signals: signalContext,
+		signals: sc.context,
+		stopped: sc.caught,
 	}))
 }

@@ -14,9 +14,10 @@ func init() { addCommand(newMergeCmd) }
 
 // mergeOptions are the options of `lidscope merge`.
 type mergeOptions struct {
-	Runs  []string
-	Out   string
-	Force bool
+	Runs      []string
+	Out       string
+	Force     bool
+	AllowGaps bool // merge pieces that leave gaps in the record
 }
 
 func newMergeCmd(e *env) *cobra.Command {
@@ -42,11 +43,12 @@ written into the folder --out.`,
 	}
 	addOutDir(cmd.Flags(), &o.Out, "", "folder for the merged results (required)")
 	addForce(cmd.Flags(), &o.Force, "replace existing results in --out")
+	cmd.Flags().BoolVar(&o.AllowGaps, "allow-gaps", false, "merge pieces that leave gaps in the record (e.g. a missing year); the gaps are recorded in the provenance")
 	return cmd
 }
 
 func runMerge(o mergeOptions, stdout io.Writer) error {
-	rep, err := analysis.Merge(o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force})
+	rep, err := analysis.Merge(o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force, AllowGaps: o.AllowGaps})
 	if err != nil {
 		return err
 	}

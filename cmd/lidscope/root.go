@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -19,6 +20,9 @@ type env struct {
 	// signals wraps the context of the commands that stop cleanly on a
 	// signal (main: signalContext); nil means no signal handling.
 	signals func(context.Context) (context.Context, context.CancelFunc)
+	// stopped returns the stop signal that cancelled the command (nil:
+	// none, or no signal handling).
+	stopped func() os.Signal
 }
 
 // interruptible returns the context a long command runs under: with
@@ -129,6 +133,14 @@ func execute(ctx context.Context, args []string, e *env) int {
 		cmd = root
 	}
 	name := cmd.CommandPath()
+	if e.stopped != nil && err != nil {
+		if s := e.stopped(); s != nil {
+			// Stopped by a signal before it finished: the command's
+			// output folder is as it was before the command.
+			fmt.Fprintf(e.stderr, "%s: stopped by %s; the output folder is as it was (nothing of this run was written)\n", name, signalName(s))
+			return signalStatus(s)
+		}
+	}
 	switch {
 	case err == nil:
 		return 0
