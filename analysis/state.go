@@ -2,12 +2,12 @@ package analysis
 
 import (
 	"bytes"
+	"context"
 	"crypto/sha256"
 	"encoding/gob"
 	"encoding/hex"
-	"fmt"
-	"context"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"sort"
