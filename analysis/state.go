@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
@@ -216,9 +217,19 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		// noRel: the run has no relationship analysis, and why
 		noRel string
 	}
+	// The output folder first: locked, and refused when it holds results
+	// (without --force), before the pieces are read.
+	st, err := CreateFolder(out, opt, 0)
+	if err != nil {
+		return Report{}, err
+	}
+	defer st.Close()
 	var runs []run
 	var problems []string
 	for _, d := range dirs {
+		if sameFolder(d, out) {
+			return Report{}, fmt.Errorf("cannot merge into %s: it is one of the pieces; choose another --out", d)
+		}
 		f, err := runfolder.Open(d, StateFile)
 		if err != nil {
 			problems = append(problems, err.Error())
@@ -284,11 +295,6 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and each of %s took its anomalies against the climatology of its own period, so no merge gives what one run over the whole record gives; "+
 			"run the whole record in one run, or use relationships.mode: %s for runs meant to be merged", relations.Anomaly, strings.Join(dirs, ", "), relations.Climatological)
 	}
-	st, err := CreateFolder(out, opt, 0)
-	if err != nil {
-		return Report{}, err
-	}
-	defer st.Close()
 	acc, rel := first.acc, first.rel
 	meta := first.meta
 	hashes := []string{}
@@ -394,6 +400,12 @@ func typicalStep(p, q output.Meta) float64 {
 	}
 	sort.Float64s(ds)
 	return ds[len(ds)/2]
+}
+
+func sameFolder(a, b string) bool {
+	x, err1 := filepath.Abs(a)
+	y, err2 := filepath.Abs(b)
+	return err1 == nil && err2 == nil && x == y
 }
 
 // relWord describes a run's relationship analysis for a merge problem.
