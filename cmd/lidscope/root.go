@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"regexp"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -146,7 +147,12 @@ func execute(ctx context.Context, args []string, e *env) int {
 		return 0
 	case errors.Is(err, errFailed):
 		return 1
-	case errors.Is(err, errUsage), isCobraUsage(err):
+	case isCobraUsage(err):
+		// cobra's own wording, with our suggestion
+		typed := cobraUnknown.FindStringSubmatch(err.Error())[1]
+		err = usageErr("unknown command %q%s", typed, suggestion(cmd, typed))
+		fallthrough
+	case errors.Is(err, errUsage):
 		fmt.Fprintf(e.stderr, "%s: %s\n", name, usageText(err))
 		if !errors.Is(err, errNoHint) {
 			fmt.Fprintf(e.stderr, "Run '%s --help' for usage.\n", name)
@@ -175,8 +181,11 @@ var flagWords = strings.NewReplacer(
 // isCobraUsage reports the usage mistakes cobra finds itself (an unknown
 // command, before any of ours runs).
 func isCobraUsage(err error) bool {
-	return strings.HasPrefix(err.Error(), "unknown command ")
+	return cobraUnknown.MatchString(err.Error())
 }
+
+// cobraUnknown is cobra's message for an unknown command.
+var cobraUnknown = regexp.MustCompile(`^unknown command "([^"]*)" for`)
 
 // errUsage marks a command-line mistake (exit status 2).
 var errUsage = errors.New("usage")
@@ -278,6 +287,9 @@ func flagName(f *pflag.Flag) string {
 // " (use A, B or C)" listing the commands of cmd.
 func suggestion(cmd *cobra.Command, typed string) string {
 	if typed != "" {
+		if cmd.SuggestionsMinimumDistance <= 0 {
+			cmd.SuggestionsMinimumDistance = 2 // cobra's default, which it sets on the root only
+		}
 		if s := cmd.SuggestionsFor(typed); len(s) > 0 {
 			return fmt.Sprintf(" (did you mean %q?)", s[0])
 		}

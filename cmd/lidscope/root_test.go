@@ -34,7 +34,8 @@ func TestCommandLineConventions(t *testing.T) {
 		{args: []string{"version"}, code: 0, out: "lidscope " + version + "\n", emptyError: true},
 		{args: nil, code: 2, errs: "give a command", emptyOut: true},
 		{args: []string{"frobnicate"}, code: 2, errs: `unknown command "frobnicate"`, emptyOut: true},
-		{args: []string{"inpsect"}, code: 2, errs: "inspect", emptyOut: true},
+		{args: []string{"inpsect"}, code: 2, errs: `unknown command "inpsect" (did you mean "inspect"?)`, emptyOut: true},
+		{args: []string{"study", "inti", "x.nc"}, code: 2, errs: `unknown subcommand "inti" (did you mean "init"?)`, emptyOut: true},
 		// one wording for unknown flags, long or short, in every command
 		{args: []string{"run", "--bogus", "s.yaml"}, code: 2, errs: "lidscope run: unknown flag --bogus\n", emptyOut: true},
 		{args: []string{"inspect", "f.nc", "-x"}, code: 2, errs: "lidscope inspect: unknown flag -x\n", emptyOut: true},
