@@ -734,6 +734,9 @@ func FindRole(nf *netcdf.File, r Role) (string, error) {
 		return "", err
 	}
 	if m, ok := cands[r]; ok {
+		if m.ByLongName {
+			return "", fmt.Errorf("%s: variable %s looks like role %s by its %s only; confirm it by naming it in the study (variables.%s: %s)", nf.Path(), m.Var, r, m.How, r, m.Var)
+		}
 		return m.Var, nil
 	}
 	for _, a := range amb {

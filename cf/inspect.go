@@ -137,7 +137,10 @@ func Inspect(path string) *FileReport {
 
 func inspectVar(path string, m RoleMatch) (vr VarReport) {
 	vr = VarReport{Var: m.Var, Role: m.Role, How: m.How}
-	if m.ByName {
+	switch {
+	case m.ByLongName:
+		vr.Notes = append(vr.Notes, "recognised by long name (and units) only: confirm the role by naming the variable in the study (variables."+string(m.Role)+": "+m.Var+")")
+	case m.ByName:
 		vr.Notes = append(vr.Notes, "recognised by name only (no standard_name): confirm the role in the study")
 	}
 	kind, _ := KindOf(m.Role)
@@ -310,7 +313,9 @@ func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
 			out = append(out, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the study which values are ocean")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas? category codes?); convert them to a fraction first, or set units."+string(r)+" in the study")
+			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas 0–8? tenths 0–10? category codes?); for cloud cover in oktas set units."+string(r)+": oktas (× 0.125), in tenths units."+string(r)+": tenths (× 0.1) in the study; otherwise convert them to a fraction first")
+		case conv.Scale == 0.125 && hi > 1.0001 && hi <= 1.126:
+			out = append(out, rng+": okta 9 means sky obscured (WMO code table 2700, from memory), not a cover; declare it missing in the file (e.g. ncatted -a missing_value,VAR,o,f,9)")
 		case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
 			out = append(out, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the study")
 		case hi > 1.05 || lo < -0.05:

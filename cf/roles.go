@@ -91,6 +91,10 @@ type RoleMatch struct {
 	// ByName is true when only the variable name identified it (weaker
 	// evidence than a standard_name; reported so users can confirm).
 	ByName bool
+	// ByLongName is true when only the long_name (or, for cloud, sky-cover
+	// units) identified it (ByName is then true too): weaker still, so a
+	// run uses it only when the study names the variable.
+	ByLongName bool
 	// NLevels is the length of its pressure axis (0 when it has none, e.g.
 	// a single level given by a scalar coordinate).
 	NLevels int
@@ -131,6 +135,9 @@ func matchRoles(v *netcdf.Var, hasLevels bool) []RoleMatch {
 			}
 		}
 	}
+	if len(out) == 0 && sn == "" {
+		out = longNameMatches(v, hasLevels)
+	}
 	return out
 }
 
@@ -161,17 +168,23 @@ func assignRoles(matches []RoleMatch) (map[Role]RoleMatch, []string) {
 	for _, rs := range roles {
 		r := Role(rs)
 		ms := by[r]
-		var strong, weak []RoleMatch
+		var strong, weak, weakest []RoleMatch
 		for _, m := range ms {
-			if m.ByName {
+			switch {
+			case m.ByLongName:
+				weakest = append(weakest, m)
+			case m.ByName:
 				weak = append(weak, m)
-			} else {
+			default:
 				strong = append(strong, m)
 			}
 		}
 		pick := strong
 		if len(pick) == 0 {
 			pick = weak
+		}
+		if len(pick) == 0 {
+			pick = weakest
 		}
 		if len(pick) == 1 {
 			out[r] = pick[0]

@@ -148,6 +148,12 @@ func timeProblem(vr cf.VarReport) (string, bool) {
 // (cf writes "variable name … and its units" then).
 func byName(vr cf.VarReport) bool { return strings.HasPrefix(vr.How, "variable name") }
 
+// byLongName: recognised by its long_name or sky-cover units only (a run
+// reads it only when the study names the variable, as the starter does).
+func byLongName(vr cf.VarReport) bool {
+	return strings.HasPrefix(vr.How, "long name") || strings.HasPrefix(vr.How, "units ")
+}
+
 func (s *starter) has(r cf.Role) bool { return len(s.byRole[r]) > 0 }
 
 // quote writes a YAML double-quoted string (Go's escapes are valid YAML).
@@ -244,6 +250,9 @@ func (s *starter) text() string {
 			note := ""
 			if byName(fs[0].vr) {
 				note = fmt.Sprintf("  # CHECK: recognised by its name only (no standard_name); is it %s?", r)
+			}
+			if byLongName(fs[0].vr) {
+				note = fmt.Sprintf("  # CHECK: by long name: confirm (recognised by its %s only; no standard_name); is it %s?", fs[0].vr.How, r)
 			}
 			w("      %s: %s%s", r, quote(fs[0].vr.Var), note)
 		}

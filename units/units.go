@@ -175,6 +175,14 @@ var tables = map[Kind]map[string]entry{
 	Fraction: {
 		"1": {1, 0}, "": {1, 0}, "fraction": {1, 0}, "0-1": {1, 0}, "frac": {1, 0}, "none": {1, 0},
 		"%": {0.01, 0}, "percent": {0.01, 0}, "percentage": {0.01, 0},
+		// cloud cover as sky fractions, tenths and oktas (eighths; WMO
+		// code table 2700, from memory: 0–8 oktas, 9 = sky obscured, which
+		// is not a cover and must be declared missing)
+		"fraction of sky cover": {1, 0}, "fraction of sky": {1, 0}, "sky cover fraction": {1, 0},
+		"percent of sky cover": {0.01, 0}, "% of sky cover": {0.01, 0}, "percent sky cover": {0.01, 0},
+		"tenths": {0.1, 0}, "tenths of sky cover": {0.1, 0}, "tenths of sky": {0.1, 0},
+		"okta": {0.125, 0}, "oktas": {0.125, 0}, "octa": {0.125, 0}, "octas": {0.125, 0},
+		"eighths": {0.125, 0}, "eighths of sky": {0.125, 0}, "eighths of sky cover": {0.125, 0},
 	},
 	Omega: {
 		"pa s-1": {1, 0}, "pa s": {1, 0}, "pascal s-1": {1, 0},
@@ -226,7 +234,7 @@ func examples(k Kind) string {
 	case Pressure:
 		return `"Pa", "hPa", "mbar"`
 	case Fraction:
-		return `"1", "%"`
+		return `"1", "%", "tenths", "oktas"`
 	case Omega:
 		return `"Pa s-1", "hPa day-1"`
 	case Flux:

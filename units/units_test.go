@@ -27,6 +27,13 @@ func TestParse(t *testing.T) {
 		{Pressure, "mbar", 700, 70000},
 		{Pressure, "Pa", 85000, 85000},
 		{Fraction, "%", 35, 0.35},
+		// cloud cover: 1 okta = 1/8 of the sky, 1 tenth = 1/10 (WMO
+		// code table 2700 for oktas, from memory; tenths: common practice)
+		{Fraction, "oktas", 6, 0.75},
+		{Fraction, "okta", 8, 1},
+		{Fraction, "tenths", 7, 0.7},
+		{Fraction, "FRACTION OF SKY COVER", 0.6, 0.6},
+		{Fraction, "percent of sky cover", 60, 0.6},
 		{Fraction, "1", 0.35, 0.35},
 		{Fraction, "", 0.35, 0.35},
 		{Omega, "Pa s-1", -0.05, -0.05},
@@ -123,5 +130,22 @@ func TestConversionString(t *testing.T) {
 	c, _ := Parse(Temperature, "degC")
 	if got := c.String(); got != `"degC" → K: x +273.15` {
 		t.Errorf("String() = %q", got)
+	}
+}
+
+// The conversions of cloud-cover units are logged with their factor.
+func TestSkyCoverConversionText(t *testing.T) {
+	for _, c := range []struct{ unit, text string }{
+		{"oktas", `"oktas" → 1: x × 0.125`},
+		{"Tenths", `"Tenths" → 1: x × 0.1`},
+		{"FRACTION OF SKY COVER", `"FRACTION OF SKY COVER" is 1: no conversion`},
+	} {
+		conv, err := Parse(Fraction, c.unit)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if conv.String() != c.text {
+			t.Errorf("%q: %q, want %q", c.unit, conv.String(), c.text)
+		}
 	}
 }
