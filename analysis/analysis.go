@@ -367,6 +367,7 @@ func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Optio
 		m.Period = res.Labels[0] + " … " + res.Labels[n-1]
 	}
 	if res.Sampling == cf.StepClimatology {
+		m.Climatology = true
 		m.Notes = append(m.Notes, "the record is a 12-month climatology: crossings per year and dwell times describe the climatological seasonal cycle, not year-to-year variability")
 	}
 	cal, err := calendar.ParseCalendar(res.Calendar)

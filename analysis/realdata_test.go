@@ -129,6 +129,10 @@ output: {dir: "` + dir + `", plots: true}
 			if len(rep.Result.Labels) != 12 {
 				t.Fatalf("%d steps, want the 12 months", len(rep.Result.Labels))
 			}
+			// a climatological axis is labelled by calendar month
+			if l := rep.Result.Labels; l[0] != "Jan" || l[11] != "Dec" || !rep.Meta.Climatology || rep.Meta.Period != "Jan … Dec" {
+				t.Errorf("labels %v, climatology %v, period %q", l, rep.Meta.Climatology, rep.Meta.Period)
+			}
 			for _, f := range []string{"map_convective_fraction", "map_crossings", "map_relative_sst", "series"} {
 				if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, f+".png")); err != nil {
 					t.Errorf("figure %s: %v", f, err)

@@ -152,3 +152,9 @@ func ExampleYearMonth() {
 	fmt.Println(ym, ym.AddMonths(3), ym.Index())
 	// Output: 1999-11 2000-02 23998
 }
+
+// A 12-month climatology is labelled by calendar month.
+func ExampleMonthAbbrev() {
+	fmt.Println(calendar.MonthAbbrev(1), calendar.MonthAbbrev(7), calendar.MonthAbbrev(12), calendar.MonthAbbrev(13) == "")
+	// Output: Jan Jul Dec true
+}

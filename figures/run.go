@@ -313,6 +313,9 @@ type Series struct {
 	Convective  []float64 // area fraction (1)
 	Subsidence  []float64 // area fraction (1)
 	Calendar    string
+	// Climatology is true for a run over a 12-month climatology (series.nc
+	// global attribute time_axis): the axis is calendar months.
+	Climatology bool
 }
 
 type seriesFile = Series
@@ -349,6 +352,10 @@ func (r *Run) Series() (*Series, error) {
 		return nil, fmt.Errorf("figures: %s: time (units %q, calendar %q): %w", p, units, cal, err)
 	}
 	s := &Series{Calendar: cal}
+	if a, err := f.Attr("time_axis"); err == nil {
+		txt, _ := a.Text()
+		s.Climatology = txt == output.TimeAxisClimatology
+	}
 	for _, d := range dates {
 		frac := (float64(d.DayOfYear()-1) + (float64(d.Hour)*3600+float64(d.Minute)*60+d.Seconds())/86400) /
 			float64(d.Calendar.DaysInYear(d.Year))

@@ -10,6 +10,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"lidscope/calendar"
 )
 
 // Line colours for categorical series: the first colours of Wong's
@@ -78,6 +80,27 @@ func (yearTicks) Ticks(lo, hi float64) []plot.Tick {
 	return ts
 }
 
+// monthTicks label a climatological axis (decimal years within the year
+// of the stamps) with the calendar months, Jan … Dec, at their middles,
+// and put minor ticks at the month boundaries.
+type monthTicks struct{ year int }
+
+func (m monthTicks) Ticks(lo, hi float64) []plot.Tick {
+	var ts []plot.Tick
+	y := float64(m.year)
+	for k := 0; k <= 12; k++ {
+		if v := y + float64(k)/12; v >= lo-1e-9 && v <= hi+1e-9 {
+			ts = append(ts, plot.Tick{Value: v})
+		}
+		if k < 12 {
+			if v := y + (float64(k)+0.5)/12; v >= lo-1e-9 && v <= hi+1e-9 {
+				ts = append(ts, plot.Tick{Value: v, Label: calendar.MonthAbbrev(k + 1)})
+			}
+		}
+	}
+	return ts
+}
+
 func xys(x, y []float64, factor float64) plotter.XYs {
 	var out plotter.XYs
 	for i := range x {
@@ -102,10 +125,18 @@ func (f *fig) seriesPage() (*page, error) {
 		lo, hi = lo-0.5, hi+0.5
 	}
 	pad := (hi - lo) * 0.02
+	var ticks plot.Ticker = yearTicks{}
+	xLabel := "Time"
+	if s.Climatology {
+		// calendar months, not dates: the whole year, labelled Jan … Dec
+		y := math.Floor(s.Years[0])
+		ticks, xLabel = monthTicks{year: int(y)}, "Calendar month (12-month climatology)"
+		lo, hi, pad = y, y+1, 0
+	}
 	mk := func() *plot.Plot {
 		p := f.newPlot()
 		p.X.Min, p.X.Max = lo-pad, hi+pad
-		p.X.Tick.Marker = f.ticks(yearTicks{})
+		p.X.Tick.Marker = f.ticks(ticks)
 		p.Add(lightGrid())
 		return p
 	}
@@ -118,10 +149,10 @@ func (f *fig) seriesPage() (*page, error) {
 	}
 	// The upper panel shares the lower one's time axis: ticks without
 	// labels.
-	top.X.Tick.Marker = unlabelled{yearTicks{}}
+	top.X.Tick.Marker = unlabelled{ticks}
 	bot := mk()
 	bot.Y.Label.Text = f.t("Band area fraction (%)")
-	bot.X.Label.Text = f.t("Time")
+	bot.X.Label.Text = f.t(xLabel)
 	bot.Y.Min, bot.Y.Max = 0, 0
 	for _, c := range []struct {
 		name   string

@@ -78,8 +78,10 @@
 // quantities (the per-column quantities the run has, space-separated) and
 // absent_quantities (what it lacks for want of an optional input: without
 // air_temperature there is no t700, lts, eis; without low_cloud or cloud no
-// cloud quantity). Absent quantities have no variables or columns in any
-// file. Empty attributes are left out.
+// cloud quantity), and time_axis for a run over a 12-month climatology
+// (the time stamps stand for calendar months; step labels, in series.csv
+// and summary.json, are Jan … Dec). Absent quantities have no variables or
+// columns in any file. Empty attributes are left out.
 //
 // # series.nc and series.csv
 //

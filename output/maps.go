@@ -216,6 +216,9 @@ func (c *checked) globalAttrs(notes []string) map[string]string {
 		a["processing_notes"] = strings.Join(notes, "\n")
 	}
 	a["quantities"] = strings.Join(c.acc.L.Quantities, " ")
+	if m.Climatology {
+		a["time_axis"] = TimeAxisClimatology
+	}
 	if len(m.Absent) > 0 {
 		a["absent_quantities"] = strings.Join(m.Absent, "\n")
 	}

@@ -46,7 +46,12 @@ type Meta struct {
 	// outputs list the quantities they have (those of the layout) and
 	// these; absent quantities have no variables or columns at all.
 	Absent []string
-	Grid   *grid.Grid // analysis grid (bounds for the NetCDF)
+	// Climatology is true when the record is a 12-month climatology: the
+	// time stamps stand for calendar months, not dates. The NetCDF files
+	// say so (global attribute time_axis), and figures label the axis Jan
+	// … Dec.
+	Climatology bool
+	Grid        *grid.Grid // analysis grid (bounds for the NetCDF)
 }
 
 // InputFile identifies one file the run read.

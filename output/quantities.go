@@ -6,6 +6,10 @@ import (
 	"strings"
 )
 
+// TimeAxisClimatology is the time_axis global attribute of a run over a
+// 12-month climatology.
+const TimeAxisClimatology = "12-month climatology: the time stamps stand for the calendar months January … December, not for dates"
+
 // quantity is what the output files say about one accumulated quantity.
 type quantity struct {
 	Units        string // UDUNITS-2 string of the SI values the accumulator holds

@@ -100,7 +100,7 @@ func align(in *inputs, sel func(y, m int) bool) (float64, []stepRef, []string, e
 			st.label = d.String()[:10]
 		}
 		if ta.Step == cf.StepClimatology {
-			st.label = fmt.Sprintf("month %02d", d.Month)
+			st.label = calendar.MonthAbbrev(d.Month) // a calendar month, not a date
 		}
 		ok := true
 		for _, f := range in.timed {

@@ -97,10 +97,13 @@ func TestAlignClimatologyWithRecords(t *testing.T) {
 		steps         int
 		month         func(k int) int // calendar month of step k
 		note          string
+		climatology   bool // the run is over a 12-month climatology
 	}{
-		{"climatological SST, monthly years of T700", sstClim, taYears, []string{"2001-01", "2002-12"}, 24, func(k int) int { return k%12 + 1 }, "sst (tos) is a 12-month climatology and air_temperature (ta) a dated record"},
-		{"monthly years of SST, climatological T700", sstYears, taClim, []string{"2001-01", "2002-12"}, 24, func(k int) int { return k%12 + 1 }, "air_temperature (ta) is a 12-month climatology; it is aligned with the sst record"},
-		{"climatological SST, a single month of T700", sstClim, taJuly, []string{"2001-07", "2001-07"}, 1, func(int) int { return 7 }, "the run follows that month"},
+		{"climatological SST, monthly years of T700", sstClim, taYears, []string{"2001-01", "2002-12"}, 24, func(k int) int { return k%12 + 1 }, "sst (tos) is a 12-month climatology and air_temperature (ta) a dated record", false},
+		{"monthly years of SST, climatological T700", sstYears, taClim, []string{"2001-01", "2002-12"}, 24, func(k int) int { return k%12 + 1 }, "air_temperature (ta) is a 12-month climatology; it is aligned with the sst record", false},
+		{"climatological SST, a single month of T700", sstClim, taJuly, []string{"2001-07", "2001-07"}, 1, func(int) int { return 7 }, "the run follows that month", false},
+		// both climatologies: the steps are calendar months, labelled Jan … Dec
+		{"climatological SST and T700", sstClim, taClim, []string{"Jan", "Dec"}, 12, func(k int) int { return k + 1 }, "", true},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -125,8 +128,8 @@ func TestAlignClimatologyWithRecords(t *testing.T) {
 			if notes := strings.Join(res.Notes, "\n"); !strings.Contains(notes, c.note) {
 				t.Errorf("notes lack %q:\n%s", c.note, notes)
 			}
-			if res.Sampling == cf.StepClimatology {
-				t.Errorf("a run that follows a dated record is labelled a climatology")
+			if (res.Sampling == cf.StepClimatology) != c.climatology {
+				t.Errorf("sampling %v", res.Sampling)
 			}
 		})
 	}

@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 
 	"lidscope/accumulate"
+	"lidscope/calendar"
 	"lidscope/grid"
 	"lidscope/output"
 	"lidscope/regimes"
@@ -30,6 +31,10 @@ type Spec struct {
 	Span float64
 	// Steps is the number of monthly steps from 2001-01 (default 24).
 	Steps int
+	// Climatology makes the run a 12-month climatology (12 steps stamped
+	// in year 1, labelled Jan … Dec, Meta.Climatology set); Steps is
+	// ignored.
+	Climatology bool
 }
 
 // MissingBox is the box (degrees) whose cells are land in every run: every
@@ -51,6 +56,9 @@ func (s *Spec) defaults() {
 	}
 	if s.Steps == 0 {
 		s.Steps = 24
+	}
+	if s.Climatology {
+		s.Steps = 12
 	}
 }
 
@@ -154,12 +162,16 @@ func build(spec Spec) (*world, error) {
 	day := 0.0
 	for t := 0; t < spec.Steps; t++ {
 		year, month := 2001+t/12, t%12+1
+		label := fmt.Sprintf("%d-%02d", year, month)
+		if spec.Climatology {
+			year, label = 1, calendar.MonthAbbrev(month)
+		}
 		days := float64(daysIn(year, month))
 		times = append(times, [2]float64{day, day + days})
 		mid = append(mid, day+days/2)
 		day += days
 		season := math.Sin(2 * math.Pi * (float64(month) - 1) / 12)
-		s := &accumulate.Step{Label: fmt.Sprintf("%d-%02d", year, month), Year: year, Month: month,
+		s := &accumulate.Step{Label: label, Year: year, Month: month,
 			TropMean: 300 + 0.3*season + 0.01*float64(t),
 			Rel:      make([]float32, n), Regime: make([]regimes.Regime, n)}
 		for range quantities {
@@ -202,6 +214,9 @@ func build(spec Spec) (*world, error) {
 		Period:       fmt.Sprintf("2001-01 … %d-%02d", 2001+(spec.Steps-1)/12, (spec.Steps-1)%12+1),
 		StepsPerYear: 12, TimeUnits: "days since 2001-01-01", Calendar: "standard",
 		TimeValues: mid, TimeBounds: times, Grid: g,
+	}
+	if spec.Climatology {
+		w.meta.TimeUnits, w.meta.Period, w.meta.Climatology = "days since 0001-01-01", "Jan … Dec", true
 	}
 	return w, nil
 }
