@@ -15,40 +15,9 @@ import (
 
 	"lidscope/config"
 	"lidscope/figures"
+	"lidscope/internal/testutil"
 	"lidscope/output"
 )
-
-// Real files nobody here wrote: Debian's libncarg-data, unpacked by `make
-// realdata` into $LIDSCOPE_REALDATA (as in cf/realdata_test.go).
-func realFile(t *testing.T, rel string) string {
-	t.Helper()
-	dir := os.Getenv("LIDSCOPE_REALDATA")
-	if dir == "" {
-		if os.Getenv("CI") != "" {
-			t.Fatal("LIDSCOPE_REALDATA is not set; CI must run `make realdata` and set it")
-		}
-		t.Skip("LIDSCOPE_REALDATA not set (run `make realdata`); skipping")
-	}
-	p := filepath.Join(dir, rel)
-	if _, err := os.Stat(p); err != nil {
-		t.Fatalf("real data file missing: %v", err)
-	}
-	return p
-}
-
-// debianPython is Debian's interpreter with python3-xarray (the first
-// python3 on PATH may lack it).
-func debianPython(t *testing.T) string {
-	t.Helper()
-	const py = "/usr/bin/python3"
-	if err := exec.Command(py, "-c", "import xarray, numpy").Run(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s with xarray is missing: %v", py, err)
-		}
-		t.Skipf("%s with xarray is missing (%v); skipping", py, err)
-	}
-	return py
-}
 
 // bandSeries is an independent computation (numpy/xarray, not lidscope)
 // of the tropical-mean SST and of the convective area fraction of each of
@@ -83,9 +52,9 @@ print(json.dumps(out))
 // the independent numpy computation above, then with the real categorical
 // land-sea mask (cdf/landsea.nc, 0 = ocean) on its own 1° grid.
 func TestRealSSTOnlyStudy(t *testing.T) {
-	sst := realFile(t, "cdf/sstdata_netcdf.nc")
-	mask := realFile(t, "cdf/landsea.nc")
-	py := debianPython(t)
+	sst := testutil.RealData(t, "cdf/sstdata_netcdf.nc")
+	mask := testutil.RealData(t, "cdf/landsea.nc")
+	py := testutil.Python(t, "xarray", "numpy")
 	dir := t.TempDir()
 	studies := map[string]string{
 		"sst_mask": `datasets:

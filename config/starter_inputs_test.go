@@ -1,13 +1,13 @@
 package config_test
 
 import (
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/internal/testutil"
 )
 
 // Invented fixtures (synthetic): an SST product that carries sea-ice
@@ -46,16 +46,10 @@ data:
 // cloud variable recognised by long name with "by long name: confirm"; the
 // text loads and every role opens with the study's Spec.
 func TestStarterSeaIceAndCloudByLongName(t *testing.T) {
-	ncgen := need(t, "ncgen")
 	dir := t.TempDir()
 	var files []string
 	for name, cdl := range map[string]string{"sst_ice.nc": sstIceCDL, "cld.nc": cloudinessCDL} {
-		src := writeFile(t, dir, name+".cdl", cdl)
-		out := filepath.Join(dir, name)
-		if b, err := exec.Command(ncgen, "-o", out, src).CombinedOutput(); err != nil {
-			t.Fatalf("ncgen: %v\n%s", err, b)
-		}
-		files = append(files, out)
+		files = append(files, testutil.CDL(t, cdl, filepath.Join(dir, name)))
 	}
 	var reps []*cf.FileReport
 	for _, f := range files {

@@ -3,13 +3,13 @@ package pipeline
 import (
 	"context"
 	"fmt"
-	"lidscope/internal/testutil"
 	"math"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"lidscope/cf"
+	"lidscope/internal/testutil"
 	"lidscope/metrics"
 	"lidscope/regimes"
 )

@@ -3,13 +3,12 @@ package pipeline
 import (
 	"context"
 	"math"
-	"os"
-	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
 
 	"lidscope/cf"
+	"lidscope/internal/testutil"
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/regrid"
@@ -28,15 +27,8 @@ import (
 // 287.04/1005.7 (common practice), at the conventions' constant surface
 // pressure.
 func TestRealSSTWithT700(t *testing.T) {
-	dir := os.Getenv("LIDSCOPE_REALDATA")
-	if dir == "" {
-		if os.Getenv("CI") != "" {
-			t.Fatal("LIDSCOPE_REALDATA is not set; CI must run `make realdata` and set it")
-		}
-		t.Skip("LIDSCOPE_REALDATA not set (run `make realdata`); skipping")
-	}
-	sst := filepath.Join(dir, "cdf", "sstdata_netcdf.nc")
-	ta := filepath.Join(dir, "nug", "rectilinear_grid_3D.nc")
+	sst := testutil.RealData(t, "cdf/sstdata_netcdf.nc")
+	ta := testutil.RealData(t, "nug/rectilinear_grid_3D.nc")
 	conv := metrics.DefaultConventions()
 	p := Plan{
 		Dataset: "real-sst-t700",
