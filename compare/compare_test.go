@@ -157,3 +157,50 @@ func TestWriteOutputs(t *testing.T) {
 		t.Error("overwrote without Force")
 	}
 }
+
+// Two runs of one dataset differ only by their folders: mismatch messages
+// name the folders.
+func TestMismatchesNameTheFolders(t *testing.T) {
+	a := run(t, "obs", []float64{0, 1})
+	b := run(t, "obs", []float64{0, 1})
+	a.Dir, b.Dir = "/runs/obs-delta1.5", "/runs/obs-delta1.0"
+	b.Meta.Delta = 1.0
+	_, err := Compare(a, []Run{b}, Options{})
+	if err == nil || !strings.Contains(err.Error(), "obs (/runs/obs-delta1.5) has 1.5") || !strings.Contains(err.Error(), "obs (/runs/obs-delta1.0) has 1") {
+		t.Errorf("mismatch of two runs of one dataset: %v", err)
+	}
+}
+
+// A comparison whose figures fail writes nothing: not its files, and not
+// the folder it would have created.
+func TestWriteIsOneUnit(t *testing.T) {
+	a := run(t, "obs", []float64{0, 0.25, 0.5, 1})
+	b := run(t, "model", []float64{0.25, 0.25, 0.75, 1})
+	res, err := Compare(a, []Run{b}, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "cmp")
+	_, err = Write(dir, res, WriteOptions{Figures: func(d string) ([]string, error) {
+		if err := os.WriteFile(filepath.Join(d, "half.png"), []byte("x"), 0o644); err != nil {
+			return nil, err
+		}
+		return nil, errors.New("injected figure failure")
+	}})
+	if err == nil || !strings.Contains(err.Error(), "injected") || !strings.Contains(err.Error(), "nothing was written") {
+		t.Errorf("Write with failing figures: %v", err)
+	}
+	if _, err := os.Stat(dir); err == nil {
+		t.Errorf("the failed comparison left %s", dir)
+	}
+	files, err := Write(dir, res, WriteOptions{Figures: func(d string) ([]string, error) {
+		p := filepath.Join(d, "one.png")
+		return []string{p}, os.WriteFile(p, []byte("png"), 0o644)
+	}})
+	if err != nil || len(files) != 4 || files[3] != filepath.Join(dir, FiguresDir, "one.png") {
+		t.Fatalf("%v %v", files, err)
+	}
+	if _, err := os.Stat(files[3]); err != nil {
+		t.Error(err)
+	}
+}

@@ -42,7 +42,7 @@ const FiguresDir = "figures"
 // hidden staging folder first and moved into place only when all are
 // complete, so a failure leaves no file of this call under a final name;
 // the figures (opt.Figures) are staged with them.
-func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
+func Write(dir string, res *Result, opt WriteOptions) (_ []string, err error) {
 	names := []string{CSVFile, JSONFile}
 	if len(res.Candidates) > 0 {
 		names = append(names, MapsFile)
@@ -61,8 +61,16 @@ func Write(dir string, res *Result, opt WriteOptions) ([]string, error) {
 			return nil, fmt.Errorf("%s already exists: use --force to replace it or choose another --out: %w", filepath.Join(dir, have[0]), fs.ErrExist)
 		}
 	}
+	_, statErr := os.Stat(dir)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
+	}
+	if statErr != nil {
+		defer func() {
+			if err != nil {
+				os.Remove(dir) // created here: removed again (only if empty)
+			}
+		}()
 	}
 	st, err := stage.New(dir, ".lidscope-compare-*")
 	if err != nil {

@@ -217,7 +217,7 @@ func drawFrom(runDir string, opt Options) ([]string, error) {
 	}
 	if len(exist) > 0 && !opt.Force {
 		sort.Strings(exist)
-		return nil, fmt.Errorf("figures: %s: %w; nothing was drawn. Allow replacing them (--force, Options.Force) or choose another directory",
+		return nil, fmt.Errorf("figures: %s: %w; nothing was drawn. Allow replacing them (--force) or choose another --out",
 			strings.Join(exist, ", "), fs.ErrExist)
 	}
 	if err := os.MkdirAll(opt.OutDir, 0o777); err != nil {
