@@ -108,8 +108,9 @@ func names(m *runfolder.Manifest) string {
 // what the killed one left.
 func TestKilledRunLeavesOldOrNewSet(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "run")
+	st := study(t)
 	start := time.Now()
-	cmd, stderr := lidscope(t, "run", "--out", out, "--quiet", study(t))
+	cmd, stderr := lidscope(t, "run", "--out", out, "--quiet", st)
 	if err := cmd.Run(); err != nil {
 		t.Fatalf("first run: %v\n%s", err, stderr)
 	}
