@@ -34,7 +34,10 @@ const (
 	MaxThreshold = 10.0
 )
 
-var nameRE = regexp.MustCompile(`^[A-Za-z0-9_.-]+$`)
+// nameRE is the form of dataset names: they are keys of the study (lower
+// case, like every key; no dot, which separates key paths) and folder
+// names of the results.
+var nameRE = regexp.MustCompile(`^[a-z0-9][a-z0-9_-]*$`)
 
 // boxNameRE is the form of region and patch names: they become flag
 // meanings of the relationship files, which must start with a letter.
@@ -319,29 +322,43 @@ func (d *decoder) decode(tree map[string]any, r *Study) {
 	}
 	r.Output = Output{Dir: filepath.Clean(dir), Plots: d.boolean(out, "output", "plots", true)}
 
-	list, _ := tree["datasets"].([]any)
-	if _, ok := present(tree, "datasets"); !ok || len(list) == 0 {
-		d.fail("datasets", "the study has no datasets: add a list \"datasets:\" with at least one entry (name and inputs)")
+	sets, _ := tree["datasets"].(map[string]any)
+	if _, isList := tree["datasets"].([]any); isList {
+		return // checkKeys explained the table form
+	}
+	if len(sets) == 0 {
+		d.fail("datasets", "the study has no datasets: add a table \"datasets:\" with one entry per dataset, keyed by its name, each with its files")
 		return
 	}
-	seen := map[string]int{}
-	for i, x := range list {
-		m, _ := x.(map[string]any)
-		if m == nil {
+	envNames := map[string]string{}
+	for _, name := range d.fileOrder("datasets", sets) {
+		if other, dup := envNames[EnvName(name)]; dup {
+			d.fail(join("datasets", name), "datasets %q and %q differ only in - and _, so the environment cannot tell them apart (%s); rename one", other, name, EnvName(join("datasets", name)))
+		}
+		envNames[EnvName(name)] = name
+		m, _ := sets[name].(map[string]any)
+		if _, isTable := sets[name].(map[string]any); !isTable && sets[name] != nil {
 			continue // checkKeys reported it
 		}
-		path := "datasets." + strconv.Itoa(i)
-		ds := d.dataset(path, m, r)
-		if ds.Name != "" {
-			if j, dup := seen[ds.Name]; dup {
-				d.fail(join(path, "name"), "dataset name %q is used twice (also datasets.%d); names must be unique", ds.Name, j)
-			}
-			seen[ds.Name] = i
-		}
-		r.Datasets = append(r.Datasets, ds)
+		r.Datasets = append(r.Datasets, d.dataset(join("datasets", name), name, m, r))
 	}
 	d.checkGridTarget(r)
 	d.relationships(sub(tree, "relationships"), r)
+}
+
+// fileOrder returns the keys of table m (at path) in the order the study
+// file writes them; keys the file does not have a line for (given by a
+// flag or the environment) come last, sorted.
+func (d *decoder) fileOrder(path string, m map[string]any) []string {
+	keys := sortedKeys(m)
+	sort.SliceStable(keys, func(i, j int) bool {
+		li, lj := d.lines.lines[join(path, keys[i])], d.lines.lines[join(path, keys[j])]
+		if (li > 0) != (lj > 0) {
+			return li > 0
+		}
+		return li < lj
+	})
+	return keys
 }
 
 func (d *decoder) analysis(m map[string]any, r *Study) {
@@ -488,37 +505,34 @@ func (ds *Dataset) hasPattern(r cf.Role) bool {
 	return ok
 }
 
-// dataset decodes one dataset. Inputs are expanded later (expandInputs).
-func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
+// dataset decodes one dataset. Files are expanded later (expandInputs).
+func (d *decoder) dataset(path, name string, m map[string]any, r *Study) Dataset {
 	ds := Dataset{
+		Name:        name,
 		Patterns:    map[string][]string{},
 		Variables:   map[cf.Role]string{},
 		Units:       map[cf.Role]string{},
 		Coordinates: map[cf.Role]Coordinates{},
 		Inputs:      map[cf.Role][]string{},
 	}
-	ds.Name = d.str(m, path, "name", "")
-	switch {
-	case ds.Name == "":
-		d.fail(path, "a dataset needs a name (letters, digits and _ . -; it is used in output paths)")
-	case !nameRE.MatchString(ds.Name):
-		d.fail(join(path, "name"), "%q: dataset names may contain only letters, digits and _ . - (they are used in output paths)", ds.Name)
+	if !nameRE.MatchString(ds.Name) {
+		d.fail(path, "%q: a dataset name is made of lower-case letters, digits, _ and -, starting with a letter or digit (it is a key of the study and a folder name of the results)", ds.Name)
 	}
-	ds.Description = d.str(m, path, "description", "")
+	ds.Description = d.str(m, path, "about", "")
 
-	// inputs
-	inPath := join(path, "inputs")
-	inputs := sub(m, "inputs")
+	// files
+	inPath := join(path, "files")
+	inputs := sub(m, "files")
 	for _, k := range sortedKeys(inputs) {
-		if !isRole(datasetKeys.keys["inputs"], k) {
+		if !isRole(datasetKeys.keys["files"], k) {
 			continue // reported by checkKeys
 		}
 		if pats := d.strList(inputs, inPath, k); len(pats) > 0 {
 			ds.Patterns[k] = pats
 		}
 	}
-	if _, ok := present(m, "inputs"); !ok || len(inputs) == 0 {
-		d.fail(path, "dataset %q has no inputs: give at least inputs.sst (inputs.air_temperature adds LTS and EIS, inputs.low_cloud or inputs.cloud the cloud statistics)", ds.Name)
+	if _, ok := present(m, "files"); !ok || len(inputs) == 0 {
+		d.fail(path, "dataset %q has no files: give at least files.sst (files.air_temperature adds LTS and EIS, files.low_cloud or files.cloud the cloud statistics)", ds.Name)
 	}
 	has := func(r cf.Role) bool { return ds.hasPattern(r) || ds.hasPattern(allKey) }
 	explicit := ds.hasPattern
@@ -570,12 +584,12 @@ func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 	for _, tbl := range []string{"variables", "units", "coordinates"} {
 		for role := range sub(m, tbl) {
 			if isRole(datasetKeys.keys[tbl], role) && !has(cf.Role(role)) {
-				d.fail(join(join(path, tbl), role), "role %s has no input (inputs.%s); give one or remove this entry", role, role)
+				d.fail(join(join(path, tbl), role), "role %s has no files (files.%s); give them or remove this entry", role, role)
 			}
 		}
 	}
 
-	d.timeSel(join(path, "time"), sub(m, "time"), &ds.Time)
+	d.timeSel(join(path, "time"), sub(m, "time"), &ds.Time, has)
 	d.ocean(join(path, "ocean"), sub(m, "ocean"), &ds, has, explicit)
 
 	// sea ice
@@ -586,14 +600,14 @@ func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 	case explicit(cf.RoleSeaIce):
 		ds.SeaIce.Use = true
 	case siSet && has(cf.RoleSeaIce):
-		ds.SeaIce.Use = true // from inputs.all
+		ds.SeaIce.Use = true // from files.any
 	case siSet:
-		d.fail(join(path, "sea_ice"), "sea-ice exclusion needs a sea_ice input (inputs.sea_ice); give one or remove sea_ice")
+		d.fail(join(path, "sea_ice"), "sea-ice exclusion needs a sea_ice input (files.sea_ice); give one or remove sea_ice")
 	}
 
-	ectei, _ := sub(m, "metrics")["ectei"].(bool) // checked by d.metrics
+	ectei, _ := sub(m, "conventions")["ectei"].(bool) // checked by d.conventions
 	d.surface(join(path, "surface"), sub(m, "surface"), &ds, has, explicit, ectei)
-	d.metrics(join(path, "metrics"), sub(m, "metrics"), &ds, has)
+	d.conventions(join(path, "conventions"), sub(m, "conventions"), &ds, has)
 
 	// cloud
 	switch r.Analysis.CloudChoice {
@@ -609,21 +623,21 @@ func (d *decoder) dataset(path string, m map[string]any, r *Study) Dataset {
 		case explicit(cf.RoleCloud):
 			ds.Cloud = cf.RoleCloud
 		case has(cf.RoleLowCloud):
-			ds.Cloud = cf.RoleLowCloud // from inputs.all: low cloud is preferred
+			ds.Cloud = cf.RoleLowCloud // from files.any: low cloud is preferred
 		default:
 			// No cloud input: the run has no cloud statistics and no
 			// relationship analysis (Dataset.Lacks says so).
 		}
 	}
 	if !has(cf.RoleSST) {
-		d.fail(inPath, "dataset %q needs an input for role %s (inputs.%s): SST is the minimum lidscope runs on", ds.Name, cf.RoleSST, cf.RoleSST)
+		d.fail(inPath, "dataset %q needs files for role %s (files.%s): SST is the minimum lidscope runs on", ds.Name, cf.RoleSST, cf.RoleSST)
 	}
 	if !has(cf.RoleAirTemp) {
 		if ds.Metrics.ECTEI {
-			d.fail(join(path, "metrics"), "metrics.ectei needs 700 hPa temperature, but dataset %q has no %s input; give inputs.%s or remove metrics.ectei", ds.Name, cf.RoleAirTemp, cf.RoleAirTemp)
+			d.fail(join(path, "conventions"), "conventions.ectei needs 700 hPa temperature, but dataset %q has no %s input; give files.%s or remove conventions.ectei", ds.Name, cf.RoleAirTemp, cf.RoleAirTemp)
 		}
 		if ds.Metrics.T850Field {
-			d.fail(join(path, "metrics"), "the metrics conventions read temperature at %g hPa from the %s input, but dataset %q has none; give inputs.%s or choose another lapse-rate convention", ds.Metrics.LapsePressure/100, cf.RoleAirTemp, ds.Name, cf.RoleAirTemp)
+			d.fail(join(path, "conventions"), "the metrics conventions read temperature at %g hPa from the %s input, but dataset %q has none; give files.%s or choose another lapse-rate convention", ds.Metrics.LapsePressure/100, cf.RoleAirTemp, ds.Name, cf.RoleAirTemp)
 		}
 	}
 	ds.OutputDir = filepath.Join(r.Output.Dir, ds.Name)
@@ -639,23 +653,46 @@ func sortedKeys(m map[string]any) []string {
 	return out
 }
 
-func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection) {
+func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection, has func(cf.Role) bool) {
 	t.Units = d.str(m, path, "units", "")
 	t.Calendar = d.str(m, path, "calendar", "")
 	t.Climatology = d.boolean(m, path, "climatology", false)
-	if t.Calendar != "" {
-		if _, err := calendar.ParseCalendar(t.Calendar); err != nil {
-			d.fail(join(path, "calendar"), "%v", err)
+	d.timeDecl(path, t.TimeDecl(), "")
+
+	// per-role declarations: each key falls back to the dataset's
+	for _, k := range sortedKeys(m) {
+		if datasetKeys.keys["time"].keys[k] != nil || !isRole(&key{}, k) {
+			continue // the dataset's own keys, or reported by checkKeys
 		}
+		role, p := cf.Role(k), join(path, k)
+		rm, _ := m[k].(map[string]any)
+		if rm == nil {
+			continue // empty, or not a table (checkKeys reported it)
+		}
+		if role == cf.RoleLandFraction || role == cf.RoleSeaFraction {
+			d.fail(p, "the ocean mask (%s) is read as a fixed field, without its time axis; remove this entry", role)
+			continue
+		}
+		if !has(role) {
+			d.fail(p, "role %s has no files (files.%s); give them or remove this entry", role, role)
+			continue
+		}
+		decl := t.TimeDecl()
+		decl.Units = d.str(rm, p, "units", decl.Units)
+		decl.Calendar = d.str(rm, p, "calendar", decl.Calendar)
+		if _, set := present(rm, "climatology"); set {
+			decl.Climatology = d.boolean(rm, p, "climatology", false)
+			if decl.Climatology {
+				decl.Units = d.str(rm, p, "units", "") // the dataset's units do not apply
+			}
+		}
+		d.timeDecl(p, decl, fmt.Sprintf(" (%s's own or the dataset's)", role))
+		if t.ByRole == nil {
+			t.ByRole = map[cf.Role]TimeDecl{}
+		}
+		t.ByRole[role] = decl
 	}
-	if t.Units != "" {
-		if _, err := calendar.Parse(t.Units, t.Calendar, calendar.Options{CalendarMonths: true}); err != nil {
-			d.fail(join(path, "units"), "%v", err)
-		}
-		if t.Climatology {
-			d.fail(join(path, "units"), "time units are not used when climatology is true (the axis is declared as 12 months); remove one of them")
-		}
-	}
+	climatology := t.Climatology || t.For(cf.RoleSST).Climatology
 	for _, k := range []string{"start", "end"} {
 		s := d.str(m, path, k, "")
 		if s == "" {
@@ -666,8 +703,8 @@ func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection) {
 			d.fail(join(path, k), "%v", err)
 			continue
 		}
-		if t.Climatology {
-			d.fail(join(path, k), "a 12-month climatology has no years, so %s cannot be used with climatology: true", k)
+		if climatology {
+			d.fail(join(path, k), "a 12-month climatology has no years, so %s cannot be used when the sst time axis is declared a climatology (climatology: true)", k)
 			continue
 		}
 		if k == "start" {
@@ -708,6 +745,25 @@ func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection) {
 	}
 }
 
+// timeDecl checks one time declaration (at path); whose says where its
+// values come from, for messages.
+func (d *decoder) timeDecl(path string, t TimeDecl, whose string) {
+	if t.Calendar != "" {
+		if _, err := calendar.ParseCalendar(t.Calendar); err != nil {
+			d.fail(join(path, "calendar"), "%v", err)
+			return
+		}
+	}
+	if t.Units != "" {
+		if _, err := calendar.Parse(t.Units, t.Calendar, calendar.Options{CalendarMonths: true}); err != nil {
+			d.fail(join(path, "units"), "%v%s", err, whose)
+		}
+		if t.Climatology {
+			d.fail(join(path, "units"), "time units are not used when climatology is true (the axis is declared as 12 months); remove one of them")
+		}
+	}
+}
+
 func (d *decoder) ocean(path string, m map[string]any, ds *Dataset, has, explicit func(cf.Role) bool) {
 	o := &ds.Ocean
 	def := "sst"
@@ -715,15 +771,15 @@ func (d *decoder) ocean(path string, m map[string]any, ds *Dataset, has, explici
 		def = "fraction"
 	}
 	mask, _ := d.choice(m, path, "mask", def, "sst", "fraction", "categorical")
-	roleS, roleSet := d.choice(m, path, "role", "", string(cf.RoleLandFraction), string(cf.RoleSeaFraction))
+	roleS, roleSet := d.choice(m, path, "from", "", string(cf.RoleLandFraction), string(cf.RoleSeaFraction))
 	var minSet, valSet bool
-	o.MinOceanFraction, minSet = d.fraction(m, path, "min_ocean_fraction", DefaultMinOcean)
-	o.OceanValues, valSet = d.numList(m, path, "ocean_values")
+	o.MinOceanFraction, minSet = d.fraction(m, path, "min_fraction", DefaultMinOcean)
+	o.OceanValues, valSet = d.numList(m, path, "values")
 	switch mask {
 	case "sst":
 		o.Method = OceanWhereSST
 		o.MinOceanFraction = 0
-		for k, set := range map[string]bool{"role": roleSet, "min_ocean_fraction": minSet, "ocean_values": valSet} {
+		for k, set := range map[string]bool{"from": roleSet, "min_fraction": minSet, "values": valSet} {
 			if set {
 				d.fail(join(path, k), "is used only with mask: fraction or mask: categorical, but mask is sst")
 			}
@@ -733,13 +789,13 @@ func (d *decoder) ocean(path string, m map[string]any, ds *Dataset, has, explici
 	case "fraction":
 		o.Method = OceanFromFraction
 		if valSet {
-			d.fail(join(path, "ocean_values"), "is used only with mask: categorical, but mask is fraction")
+			d.fail(join(path, "values"), "is used only with mask: categorical, but mask is fraction")
 		}
 		o.OceanValues = nil
 	case "categorical":
 		o.Method = OceanFromCategories
 		if minSet {
-			d.fail(join(path, "min_ocean_fraction"), "is used only with mask: fraction, but mask is categorical")
+			d.fail(join(path, "min_fraction"), "is used only with mask: fraction, but mask is categorical")
 		}
 		o.MinOceanFraction = 0
 		if !valSet {
@@ -754,14 +810,14 @@ func (d *decoder) ocean(path string, m map[string]any, ds *Dataset, has, explici
 	case explicit(cf.RoleSeaFraction):
 		o.Role = cf.RoleSeaFraction
 	case has(cf.RoleLandFraction):
-		o.Role = cf.RoleLandFraction // from inputs.all
+		o.Role = cf.RoleLandFraction // from files.any
 	}
 	if o.Role == "" || !has(o.Role) {
 		want := "a land_fraction or sea_fraction input"
 		if o.Role != "" {
 			want = "a " + string(o.Role) + " input"
 		}
-		d.fail(join(path, "mask"), "mask %s needs %s (inputs.%s); give one, or use mask: sst", mask, want, cmpOr(string(o.Role), "land_fraction"))
+		d.fail(join(path, "mask"), "mask %s needs %s (files.%s); give one, or use mask: sst", mask, want, cmpOr(string(o.Role), "land_fraction"))
 	}
 }
 
@@ -781,7 +837,7 @@ func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, expli
 	if temp == "air" {
 		mr.Surface, s.TemperatureRole = metrics.SurfaceAir, cf.RoleSurfaceAir
 		if !has(cf.RoleSurfaceAir) {
-			d.fail(join(path, "temperature"), "air needs a surface_air_temp input (inputs.surface_air_temp); give one or use sst")
+			d.fail(join(path, "temperature"), "air needs a surface_air_temp input (files.surface_air_temp); give one or use sst")
 		}
 	} else {
 		mr.Surface, s.TemperatureRole = metrics.SurfaceSST, cf.RoleSST
@@ -792,7 +848,7 @@ func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, expli
 		if str, isStr := v.(string); isStr && strings.TrimSpace(str) == "field" {
 			mr.PressureField, s.PressureRole = true, cf.RoleSurfacePres
 			if !has(cf.RoleSurfacePres) {
-				d.fail(p, "field needs a surface_pressure input (inputs.surface_pressure); give one or a constant such as 1000hPa")
+				d.fail(p, "field needs a surface_pressure input (files.surface_pressure); give one or a constant such as 1000hPa")
 			}
 		} else if pa, err := quantity(units.Pressure, v); err != nil {
 			d.fail(p, "give a pressure with units (e.g. 1000hPa; a bare number is Pa) or \"field\": %v", err)
@@ -821,16 +877,16 @@ func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, expli
 			case len(given) == 1:
 				s.HumidityRole = given[0]
 			case len(given) > 1:
-				d.fail(p, "field is ambiguous: inputs give %v; write the role to use instead (humidity: %s)", given, given[0])
-			case has(cf.RoleRH): // no explicit humidity input, but inputs.all
-				d.fail(p, "field with inputs.all: write which humidity role to read (relative_humidity, dew_point or specific_humidity)")
+				d.fail(p, "field is ambiguous: the files give %v; write the role to use instead (humidity: %s)", given, given[0])
+			case has(cf.RoleRH): // no explicit humidity input, but files.any
+				d.fail(p, "field with files.any: write which humidity role to read (relative_humidity, dew_point or specific_humidity)")
 			default:
-				d.fail(p, "field needs a humidity input: inputs.relative_humidity, inputs.dew_point or inputs.specific_humidity; or give an assumed relative humidity such as 0.8")
+				d.fail(p, "field needs a humidity input: files.relative_humidity, files.dew_point or files.specific_humidity; or give an assumed relative humidity such as 0.8")
 			}
 		case isStr && slices.Contains(humidityRoles, cf.Role(str)):
 			s.HumidityRole = cf.Role(str)
 			if !has(s.HumidityRole) {
-				d.fail(p, "%s needs an input (inputs.%s)", str, str)
+				d.fail(p, "%s needs an input (files.%s)", str, str)
 			}
 		default:
 			rh, err := quantity(units.Fraction, v)
@@ -874,7 +930,7 @@ func quantity(k units.Kind, v any) (float64, error) {
 	return f, err
 }
 
-func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(cf.Role) bool) {
+func (d *decoder) conventions(path string, m map[string]any, ds *Dataset, has func(cf.Role) bool) {
 	mr := &ds.Metrics
 	if s, set := d.choice(m, path, "svp", mr.SVP.String(), metrics.SVPMurphyKoop.String(), metrics.SVPBolton.String()); set {
 		if f, err := metrics.ParseSVPFormula(s); err == nil {
@@ -919,7 +975,7 @@ func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(c
 	}
 	if mr.ECTEI {
 		if !has(cf.RoleSpecHum) {
-			d.fail(join(path, "ectei"), "ECTEI needs specific humidity at 700 hPa: give inputs.specific_humidity (on pressure levels) or set ectei: false")
+			d.fail(join(path, "ectei"), "ECTEI needs specific humidity at 700 hPa: give files.specific_humidity (on pressure levels) or set ectei: false")
 		}
 		if ds.Surface.HumidityRole == cf.RoleSpecHum {
 			d.fail(join(path, "ectei"), "the specific_humidity input cannot be both the 700-hPa humidity of ECTEI and the surface humidity; use relative_humidity or dew_point for surface.humidity, or set ectei: false")
@@ -932,10 +988,10 @@ func (d *decoder) metrics(path string, m map[string]any, ds *Dataset, has func(c
 
 // studyKeys names metrics.Conventions fields by their study keys in messages.
 var studyKeys = strings.NewReplacer(
-	"Study.LapsePressure", "lapse_pressure (Study.LapsePressure)",
-	"Study.SurfacePressure", "surface.pressure (Study.SurfacePressure)",
-	"Study.AssumedRH", "surface.humidity (Study.AssumedRH)",
-	"Study.ECTEIBeta", "ectei_beta (Study.ECTEIBeta)",
-	"Study.Constants", "constants (Study.Constants)",
+	"Conventions.LapsePressure", "conventions.lapse_pressure (Conventions.LapsePressure)",
+	"Conventions.SurfacePressure", "surface.pressure (Conventions.SurfacePressure)",
+	"Conventions.AssumedRH", "surface.humidity (Conventions.AssumedRH)",
+	"Conventions.ECTEIBeta", "conventions.ectei_beta (Conventions.ECTEIBeta)",
+	"Conventions.Constants", "conventions.constants (Conventions.Constants)",
 	"; start from metrics.DefaultConventions()", "",
 )

@@ -5,12 +5,36 @@
 // computed, and how ocean columns are split into convective and subsidence
 // regimes.
 //
-// [Load] reads a study, applies overrides and defaults, checks it and
-// expands the input globs; the pipeline then works from the typed [Study]
-// and records [Study.Resolved] (a canonical text of everything the study
-// decides) and [Study.Hash] (its SHA-256) in every output. [Starter]
-// writes a commented starter study from what cf.Inspect found in a set of
-// files (`lidscope study init FILE…`).
+// [Load] reads a study file, applies overrides and defaults, checks it and
+// expands the file globs; [Parse] does the same for a study given as text
+// (a program that builds a study needs no file). The pipeline then works
+// from the typed [Study] and records [Study.Resolved] (a canonical text of
+// everything the study decides) and [Study.Hash] (its SHA-256) in every
+// output. [Starter] writes a commented starter study from what cf.Inspect
+// found in a set of files (`lidscope study init FILE…`).
+//
+// # The shape of a study
+//
+// A study has four sections: datasets (a table keyed by dataset name),
+// analysis (the regime definition and analysis grid shared by every
+// dataset), output, and relationships. A minimal study is
+//
+//	datasets:
+//	  obs:
+//	    files:
+//	      sst: "sst/*.nc"
+//	      air_temperature: ta.nc
+//	      low_cloud: cll.nc
+//
+// # Checking a study: lidscope study check
+//
+// `lidscope study check STUDY` loads a study exactly as `lidscope run`
+// does (overrides from --set and the environment included), reports every
+// problem, and otherwise prints [Study.Resolved] after a "# sha256" line
+// with [Study.Hash]: the study with every default, glob and override
+// applied, written with the keys of the study file, so a line of it can
+// be copied back into a study. That text is what every output records as
+// its provenance.
 //
 // The package is pure Go: it never opens a NetCDF file. It only checks that
 // the input files exist.
@@ -29,28 +53,31 @@
 //
 // Every problem is reported at once, one per line, as
 //
-//	study.yaml:12: datasets.0.ocean.mask: mask fraction needs a land_fraction or sea_fraction input …
+//	study.yaml:12: datasets.obs.ocean.mask: mask fraction needs a land_fraction or sea_fraction input …
 //
-// Key paths are dotted; list elements are numbered from 0
-// (datasets.0.inputs.sst, analysis.regions.1.west).
+// Key paths are dotted; a dataset is named by its name and list elements
+// are numbered from 0 (datasets.obs.files.sst, analysis.regions.1.west).
 //
 // # Overrides: flags and environment
 //
 // Values come, highest precedence first, from flags ([LoadOptions].Flags,
 // a map of dotted key paths to values), the environment, the study file,
 // and the defaults below. Any key may be overridden, including per-dataset
-// keys by their element number:
+// keys by the dataset's name:
 //
-//	flag key                         environment variable
-//	analysis.threshold               LIDSCOPE_ANALYSIS_THRESHOLD
-//	datasets.0.metrics.svp           LIDSCOPE_DATASETS_0_METRICS_SVP
-//	datasets.1.time.months           LIDSCOPE_DATASETS_1_TIME_MONTHS
-//	analysis.regions                 LIDSCOPE_ANALYSIS_REGIONS
+//	flag key                             environment variable
+//	analysis.threshold                   LIDSCOPE_ANALYSIS_THRESHOLD
+//	datasets.obs.conventions.svp         LIDSCOPE_DATASETS_OBS_CONVENTIONS_SVP
+//	datasets.model-a.time.months         LIDSCOPE_DATASETS_MODEL_A_TIME_MONTHS
+//	datasets.obs.time.low_cloud.units    LIDSCOPE_DATASETS_OBS_TIME_LOW_CLOUD_UNITS
+//	analysis.regions                     LIDSCOPE_ANALYSIS_REGIONS
 //
 // The variable name is "LIDSCOPE_" followed by the key path in capitals
-// with dots replaced by underscores ([EnvName]). Only datasets present in
-// the file can be overridden (there is no way to add a dataset from the
-// environment), and empty variables are ignored. Values are read as YAML
+// with dots and hyphens replaced by underscores ([EnvName]); two dataset
+// names that differ only in - and _ are therefore refused. Only datasets
+// present in the file can be overridden (there is no way to add a dataset
+// from a flag or the environment, nor to set the datasets table or one
+// dataset as a whole), and empty variables are ignored. Values are read as YAML
 // flow values: "1.0" is a number, "true" a boolean, "[12, 1, 2]" (or, for
 // lists of numbers, "12,1,2") a list, "{south: -20, north: 20}" a table,
 // and "null" removes the key so that its default applies. [Study.Overrides]
@@ -59,22 +86,27 @@
 //
 // # Keys
 //
-// datasets (required): a list of datasets, each a table with:
+// datasets (required): a table with one entry per dataset, keyed by the
+// dataset's name. A name is made of lower-case letters, digits, _ and -,
+// starting with a letter or digit (it is a key of the study, and the
+// folder of the dataset's results); datasets are run in the order the file
+// writes them. Each entry is a table with:
 //
-//   - name (required): unique, made of letters, digits and _ . - ; used
-//     in output paths.
-//   - description: free text.
-//   - inputs (required): role → a file, a glob, or a list of files and
+//   - about: free text, shown in the titles of the outputs.
+//   - files (required): role → a file, a glob, or a list of files and
 //     globs, relative to the study's folder. Several files of one role are
 //     one record along time (cf.Open sorts them). The roles are those of
 //     package cf: sst, air_temperature, surface_air_temp, low_cloud, cloud,
 //     toa_sw_up, olr, omega, surface_pressure, sea_level_pressure,
 //     relative_humidity, dew_point, specific_humidity, sea_fraction,
-//     land_fraction, sea_ice, precipitation. The key all lists files that
+//     land_fraction, sea_ice, precipitation. The key any lists files that
 //     may hold any role: every role the settings read and no other key
-//     gives is read from them. Required: sst, air_temperature, and
-//     low_cloud or cloud (see analysis.cloud). A glob that matches no file
-//     is an error naming the role and the pattern.
+//     gives is read from them. Required: sst (with a mask, the minimum:
+//     regime statistics, crossings, dwell times and the tropical-mean
+//     series); air_temperature adds LTS and EIS, and low_cloud or cloud
+//     (see analysis.cloud) the cloud statistics and, with air_temperature,
+//     the relationships ([Dataset.Lacks]). A glob that matches no file is
+//     an error naming the role and the pattern.
 //   - variables: role → variable name; by default cf finds the variable by
 //     standard_name, then by an unambiguous name with fitting units.
 //   - units: role → units, overriding the variable's units attribute (for
@@ -83,44 +115,53 @@
 //   - coordinates: role → {lat, lon, level, time, level_units}: names of
 //     coordinate variables for files that do not declare them in a CF way,
 //     and the units of the vertical coordinate (a pressure unit).
-//   - time: units (CF time units such as "days since 1979-01-01", for
-//     files with non-CF time units), calendar (a CF calendar name),
-//     climatology (true: every time axis is 12 calendar months, January
-//     first), start and end (inclusive year-months "YYYY-MM"; not with
-//     climatology), and months (a list of 1–12) or season (DJF, MAM, JJA
-//     or SON; not both). Units, calendar and climatology apply to every
-//     role except land_fraction and sea_fraction, which are read as fixed
-//     fields. [Dataset.Selects] applies the selection.
+//   - time: how time axes are read, and which steps are used. units (CF
+//     time units such as "days since 1979-01-01", for files with non-CF
+//     time units), calendar (a CF calendar name) and climatology (true:
+//     the time axis is 12 calendar months, January first) declare the time
+//     axes of every role; a role may have its own declaration, a table
+//     under its name with any of units, calendar and climatology
+//     (time.low_cloud: {units: "months since 0000-01-01", calendar:
+//     360_day}): a key it does not give is the dataset's (a role's
+//     climatology: true drops the dataset's units). The mask roles
+//     land_fraction and sea_fraction are read as fixed fields, without
+//     time. start and end (inclusive year-months "YYYY-MM") and months (a
+//     list of 1–12) or season (DJF, MAM, JJA or SON; not both) select the
+//     steps used, by the sst time axis: start and end cannot be used when
+//     sst is declared a climatology. [TimeSelection.For] gives a role's
+//     declaration; [Dataset.Selects] applies the selection.
 //   - ocean: mask is sst (ocean where the SST is present), fraction or
 //     categorical; the default is fraction when a land_fraction or
-//     sea_fraction input is given, else sst. role (land_fraction or
+//     sea_fraction input is given, else sst. from (land_fraction or
 //     sea_fraction; default: the one given, land_fraction first) names the
-//     mask input. min_ocean_fraction (fraction; default 0.5): ocean where
-//     the ocean fraction (1 − land fraction, or the sea fraction) is at
-//     least this. ocean_values (categorical; default [0]): the mask values
-//     that mean ocean. See [OceanMask.IsOcean].
+//     mask input. min_fraction (fraction; default 0.5): ocean where the
+//     ocean fraction (1 − land fraction, or the sea fraction) is at least
+//     this. values (categorical; default [0]): the mask values that mean
+//     ocean. See [OceanMask.IsOcean].
 //   - sea_ice: max_fraction (default 0.15): columns with more sea ice are
 //     excluded. Exclusion is on whenever a sea_ice input is given; a
-//     sea_ice table without a sea_ice input (or inputs.all) is an error.
+//     sea_ice table without a sea_ice input (or files.any) is an error.
 //   - surface: pressure is a constant with units (default 1000hPa; a bare
 //     number is Pa) or "field" (needs a surface_pressure input); humidity
 //     is an assumed relative humidity (default 0.8; 0.8 or "80%"), "field"
 //     (the one humidity input given: relative_humidity, dew_point or
 //     specific_humidity) or one of those role names; temperature is sst
 //     (default) or air (needs a surface_air_temp input).
-//   - metrics: how LTS, EIS and ECTEI are computed, by the names of package
-//     metrics: svp (murphy-koop, default; bolton), lcl (romps, default;
-//     bolton; linear), t850 (mean, default: (Ts + T700)/2; field: the
-//     air_temperature input at 850 hPa), lapse_pressure (default 850hPa),
-//     lapse_moisture (qs, default; rs), ectei (default false; true needs a
-//     specific_humidity input on pressure levels, read at 700 hPa, which
-//     cannot also be the surface humidity), ectei_beta (default 0.23),
-//     ectei_surface (air, default; saturated), and constants {rd, rv, cpd,
-//     lv0, lv_slope, g, p0} (SI; defaults of metrics.DefaultConstants).
-//     The mapping of t850, surface.temperature and surface.humidity onto
-//     metrics.Conventions is done here; the other names are parsed by package
-//     metrics. The result, surface settings included, is [Dataset].Metrics
-//     and must pass metrics.Conventions.Validate.
+//   - conventions: the metrics conventions, the formula choices and
+//     constants with which LTS, EIS and ECTEI are computed, by the names of
+//     package metrics: svp (murphy-koop, default; bolton), lcl (romps,
+//     default; bolton; linear), t850 (mean, default: (Ts + T700)/2; field:
+//     the air_temperature input at 850 hPa), lapse_pressure (default
+//     850hPa), lapse_moisture (qs, default; rs), ectei (default false; true
+//     needs a specific_humidity input on pressure levels, read at 700 hPa,
+//     which cannot also be the surface humidity), ectei_beta (default
+//     0.23), ectei_surface (air, default; saturated), and constants {rd,
+//     rv, cpd, lv0, lv_slope, g, p0} (SI; defaults of
+//     metrics.DefaultConstants). The mapping of t850, surface.temperature
+//     and surface.humidity onto metrics.Conventions is done here; the other
+//     names are parsed by package metrics. The result, surface settings
+//     included, is [Dataset].Metrics and must pass
+//     metrics.Conventions.Validate.
 //
 // analysis (shared by all datasets):
 //
@@ -132,7 +173,7 @@
 //   - transition: half-width, K, of a transition band around δ (default 0:
 //     none). At least 0.
 //   - cloud: auto (default: low_cloud where a low_cloud input is given,
-//     else cloud; low_cloud when both come from inputs.all), low_cloud or
+//     else cloud; low_cloud when both come from files.any), low_cloud or
 //     cloud. [Dataset].Cloud holds the role used. Low cloud is preferred
 //     because the cloud–inversion relationships concern low cloud (Klein &
 //     Hartmann 1993; Wood & Bretherton 2006).
@@ -174,7 +215,7 @@
 //     ([-8, -6, -4, -2, 0, 2, 4]) or a table {min, max, width} whose width
 //     divides max − min. The predictors are eis, lts, rel_sst (SST minus
 //     the tropical-mean SST), sst, t700 and ectei (which needs
-//     metrics.ectei: true in every dataset). The keys given are the
+//     conventions.ectei: true in every dataset). The keys given are the
 //     predictors of the binned relationships and single-predictor
 //     regressions: a bins table replaces the defaults as a whole. Default
 //     (no bins): relations.DefaultBins of the mode (climatological: eis
@@ -189,7 +230,7 @@
 //     never the low cloud: a dataset whose analysis cloud is low_cloud
 //     needs a cloud input for it. Each response must be read in every
 //     dataset: the dataset's analysis cloud, or an input of that role
-//     (inputs.all counts; the role is then read from those files).
+//     (files.any counts; the role is then read from those files).
 //     Default: per dataset, its analysis cloud, plus toa_sw_up when the
 //     dataset names a toa_sw_up input. [Dataset].RelationResponses holds
 //     the resolved list (analysis_cloud replaced, a quantity named twice

@@ -31,8 +31,8 @@ func ExampleLoad() {
 // Flags win over the environment, which wins over the file.
 func ExampleLoad_overrides() {
 	env := map[string]string{
-		"LIDSCOPE_ANALYSIS_THRESHOLD":     "1.0",
-		"LIDSCOPE_DATASETS_0_METRICS_LCL": "bolton",
+		"LIDSCOPE_ANALYSIS_THRESHOLD":                     "1.0",
+		"LIDSCOPE_DATASETS_OBS_SYNTHETIC_CONVENTIONS_LCL": "bolton",
 	}
 	r, err := config.Load("testdata/example.yaml", config.LoadOptions{
 		Flags: map[string]string{"analysis.threshold": "2.0"},
@@ -52,7 +52,7 @@ func ExampleLoad_overrides() {
 	// Output:
 	// 2 bolton romps
 	// analysis.threshold = 1.0 from environment LIDSCOPE_ANALYSIS_THRESHOLD
-	// datasets.0.metrics.lcl = bolton from environment LIDSCOPE_DATASETS_0_METRICS_LCL
+	// datasets.obs-synthetic.conventions.lcl = bolton from environment LIDSCOPE_DATASETS_OBS_SYNTHETIC_CONVENTIONS_LCL
 	// analysis.threshold = 2.0 from flag analysis.threshold
 }
 
@@ -63,8 +63,8 @@ func ExampleError() {
 	path := filepath.Join(dir, "r.yaml")
 	os.WriteFile(filepath.Join(dir, "sst.nc"), nil, 0o644)
 	os.WriteFile(path, []byte(`datasets:
-  - name: test
-    inputs:
+  test:
+    files:
       sst: sst.nc
     variables:
       low_cloud: CLDLOW
@@ -75,11 +75,12 @@ analysis:
 	fmt.Println(strings.ReplaceAll(err.Error(), path, "r.yaml"))
 	// Output:
 	// study r.yaml has 2 problems:
-	//   r.yaml:6: datasets.0.variables.low_cloud: role low_cloud has no input (inputs.low_cloud); give one or remove this entry
+	//   r.yaml:6: datasets.test.variables.low_cloud: role low_cloud has no files (files.low_cloud); give them or remove this entry
 	//   r.yaml:8: analysis.treshold: unknown key "treshold" in analysis; did you mean "threshold"?
 }
 
-// Spec gives cf what it needs to read a role.
+// Spec gives cf what it needs to read a role, with the role's own time
+// declaration where it has one (toa_sw_up here).
 func ExampleDataset_Spec() {
 	r, _ := config.Load("testdata/example.yaml", config.LoadOptions{LookupEnv: config.NoEnvironment})
 	d, _ := r.Dataset("obs-synthetic")
@@ -87,9 +88,47 @@ func ExampleDataset_Spec() {
 	fmt.Println(s.Level, s.Overrides.Level, s.LevelUnits, s.Calendar)
 	s = d.Spec(cf.RoleSST)
 	fmt.Println(s.Var, s.Units)
+	s = d.Spec(cf.RoleSWUp)
+	fmt.Printf("%s, %s\n", s.TimeUnits, s.Calendar)
 	// Output:
 	// 70000 plev hPa noleap
 	// tos degC
+	// days since 1979-01-01, noleap
+}
+
+// Parse reads a study from text, for a program that builds one without
+// writing a file; relative file patterns are resolved against dir.
+func ExampleParse() {
+	src := []byte(`
+datasets:
+  obs:
+    files:
+      sst: "example/sst/*.nc"
+      air_temperature: example/ta_1979-1998.nc
+      low_cloud: "example/cloud/cll_*.nc"
+    time:
+      low_cloud: {units: "months since 1979-01-01", calendar: 360_day}
+analysis:
+  threshold: 1.0
+`)
+	r, err := config.Parse(src, "yaml", "testdata", config.LoadOptions{LookupEnv: config.NoEnvironment})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	d := r.Datasets[0]
+	fmt.Println(d.Name, len(d.Inputs[cf.RoleSST]), "sst files;", r.Analysis.Classifier())
+	fmt.Println(d.Spec(cf.RoleLowCloud).TimeUnits, "/", d.Spec(cf.RoleSST).TimeUnits == "")
+
+	_, err = config.Parse([]byte("datasets:\n  obs:\n    files: {sst: nowhere.nc}\n"), "yaml", "testdata", config.LoadOptions{LookupEnv: config.NoEnvironment})
+	fmt.Println(err)
+	// Output:
+	// obs 2 sst files; convective where SST − tropical-mean SST > 1 K, subsidence otherwise
+	// months since 1979-01-01 / true
+	// study (study text) has 3 problems:
+	//   (study text):3: datasets.obs.files: dataset "obs" needs a cloud input: files.low_cloud (preferred) or files.cloud
+	//   (study text):3: datasets.obs.files: dataset "obs" needs files for role air_temperature (files.air_temperature)
+	//   (study text):3: datasets.obs.files.sst: dataset "obs", role sst: no file matches "nowhere.nc" (relative to the study's folder testdata); check the path
 }
 
 func ExampleStudy_Dataset() {
@@ -123,9 +162,9 @@ func ExampleOceanMask_IsOcean() {
 }
 
 func ExampleEnvName() {
-	fmt.Println(config.EnvName("datasets.0.surface.humidity"))
+	fmt.Println(config.EnvName("datasets.obs-v2.surface.humidity"))
 	// Output:
-	// LIDSCOPE_DATASETS_0_SURFACE_HUMIDITY
+	// LIDSCOPE_DATASETS_OBS_V2_SURFACE_HUMIDITY
 }
 
 // Starter writes a study from what cf.Inspect found.

@@ -23,12 +23,14 @@ func FuzzLoad(f *testing.F) {
 		f.Add(b, uint8(2))
 	}
 	f.Add([]byte(head), uint8(0))
-	f.Add([]byte("datasets:\n  - name: &a x\n    inputs: *a\n"), uint8(0))
-	f.Add([]byte("[[datasets]]\nname = 1979-01-01\n"), uint8(1))
-	f.Add([]byte(`{"datasets": [{"name": 1e400}]}`), uint8(2))
+	f.Add([]byte("datasets:\n  &a x:\n    files: *a\n"), uint8(0))
+	f.Add([]byte("datasets:\n  - name: old-list-form\n    files: {sst: sst.nc}\n"), uint8(0))
+	f.Add([]byte("[datasets.1979-01-01]\nabout = 1979-01-01\n"), uint8(1))
+	f.Add([]byte(`{"datasets": {"1e400": {"about": 1e400}, "": {}}}`), uint8(2))
+	f.Add([]byte(head+"    time:\n      sst: {units: days since 0000-01-01, calendar: 360_day}\n      all: {units: x}\n"), uint8(0))
 	f.Add([]byte("analysis: {threshold: .nan, band: [1, 2]}\n"), uint8(0))
 	f.Add([]byte(head+"relationships:\n  bins: {eis: {min: 0, max: 1e308, width: 1e-308}, lts: [1, 2]}\n  threshold: {indicator: olr, value: 240 W m-2}\n  bootstrap: {seed: 9007199254740993}\n"), uint8(0))
-	f.Add([]byte("[[datasets]]\nname = \"x\"\ninputs = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n[relationships.bins]\neis = { min = -1, max = 1, width = 0.1 }\n"), uint8(1))
+	f.Add([]byte("[datasets.x]\nfiles = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n[relationships.bins]\neis = { min = -1, max = 1, width = 0.1 }\n"), uint8(1))
 	exts := []string{".yaml", ".toml", ".json"}
 	dir := f.TempDir()
 	// the example's data files, so that valid studies can load
@@ -64,8 +66,10 @@ func FuzzLoad(f *testing.F) {
 // FuzzOverrides feeds random flag keys and values: problems, never panics.
 func FuzzOverrides(f *testing.F) {
 	f.Add("analysis.threshold", "1.0")
-	f.Add("datasets.0.time.months", "12,1,2")
-	f.Add("datasets.0", "{name: x}")
+	f.Add("datasets.base.time.months", "12,1,2")
+	f.Add("datasets.base", "{about: x}")
+	f.Add("datasets.base.time.sst.calendar", "noleap")
+	f.Add("datasets.nobody.about", "x")
 	f.Add("analysis.regions", "[{name: a}]")
 	f.Add("datasets.99999999999999999999.name", "x")
 	f.Add("datasets.-1.name", "null")

@@ -25,8 +25,8 @@ func TestGlobs(t *testing.T) {
 	}
 	abs := filepath.Join(dir, "abs", "*.nc")
 	p := writeFile(t, sub, "r.yaml", `datasets:
-  - name: g
-    inputs:
+  g:
+    files:
       sst: "../sst/*.nc"
       air_temperature: ["../ta/b.nc", "../ta/*.nc", "../ta/a.nc"]
       low_cloud: "../cl/c.nc"
@@ -62,21 +62,21 @@ func TestGlobs(t *testing.T) {
 	// the resolved text names files relative to the study's folder
 	res := r.Resolved()
 	if !strings.Contains(res, `"../sst/sst_1999.nc"`) || !strings.Contains(res, `"`+filepath.ToSlash(filepath.Join(dir, "abs/x.nc"))+`"`) {
-		t.Errorf("resolved inputs:\n%s", res)
+		t.Errorf("resolved files:\n%s", res)
 	}
 	if r.Datasets[0].Ocean.Method != config.OceanFromFraction || r.Datasets[0].Ocean.Role != cf.RoleLandFraction {
 		t.Errorf("a land_fraction input makes the fraction mask the default: %+v", r.Datasets[0].Ocean)
 	}
 }
 
-// TestAllInputs: inputs.all gives every role the settings read and that no
+// TestAllInputs: files.any gives every role the settings read and that no
 // other key gives.
 func TestAllInputs(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
 	p := writeFile(t, dir, "r.yaml", `datasets:
-  - name: model
-    inputs:
-      all: all.nc
+  model:
+    files:
+      any: all.nc
       sst: sst.nc
     surface: {pressure: field, humidity: relative_humidity}
     ocean: {mask: fraction}
@@ -95,7 +95,7 @@ analysis:
 	}
 	for _, role := range []cf.Role{cf.RoleAirTemp, cf.RoleCloud, cf.RoleSurfacePres, cf.RoleRH, cf.RoleLandFraction, cf.RoleSeaIce} {
 		if !reflect.DeepEqual(d.Inputs[role], all) {
-			t.Errorf("%s: %v; want the inputs.all files", role, d.Inputs[role])
+			t.Errorf("%s: %v; want the files.any files", role, d.Inputs[role])
 		}
 	}
 	for _, role := range []cf.Role{cf.RoleLowCloud, cf.RoleOLR, cf.RoleOmega, cf.RoleDewPoint} {
@@ -106,8 +106,8 @@ analysis:
 	if !d.SeaIce.Use || d.Cloud != cf.RoleCloud || d.Ocean.Role != cf.RoleLandFraction {
 		t.Errorf("sea ice %+v, cloud %s, ocean %+v", d.SeaIce, d.Cloud, d.Ocean)
 	}
-	// humidity "field" cannot tell which role inputs.all holds
-	p = writeFile(t, dir, "r2.yaml", "datasets:\n  - name: m\n    inputs: {all: all.nc}\n    surface: {humidity: field}\n")
+	// humidity "field" cannot tell which role files.any holds
+	p = writeFile(t, dir, "r2.yaml", "datasets:\n  m:\n    files: {any: all.nc}\n    surface: {humidity: field}\n")
 	ps := problems(t, func() error { _, err := config.Load(p, noEnv); return err }())
 	if len(ps) != 1 || !strings.Contains(ps[0].Msg, "write which humidity role") || ps[0].Line != 4 {
 		t.Errorf("problems %v", ps)

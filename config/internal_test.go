@@ -41,7 +41,7 @@ func TestDistance(t *testing.T) {
 func TestEnvNamesUnique(t *testing.T) {
 	ds := map[string]any{}
 	tree := map[string]any{
-		"datasets": []any{ds, ds, ds, ds, ds, ds, ds, ds, ds, ds, ds, ds},
+		"datasets": map[string]any{"obs": ds, "model-run": ds, "m12": ds, "obs_2": ds},
 		"analysis": map[string]any{"regions": []any{map[string]any{}, map[string]any{}}},
 	}
 	seen := map[string]string{}
@@ -53,7 +53,7 @@ func TestEnvNamesUnique(t *testing.T) {
 		}
 		seen[n] = p
 	}
-	for _, want := range []string{"datasets.11.inputs.all", "datasets.0.coordinates.sst.level_units", "analysis.regions", "analysis.regions.1.east", "output.plots"} {
+	for _, want := range []string{"datasets.m12.files.any", "datasets.obs.coordinates.sst.level_units", "datasets.model-run.time.sst.calendar", "analysis.regions", "analysis.regions.1.east", "output.plots"} {
 		if _, ok := seen[EnvName(want)]; !ok {
 			t.Errorf("%s cannot be overridden from the environment", want)
 		}
@@ -94,11 +94,11 @@ func fmtValue(v any) string {
 
 // TestYAMLLines: the YAML line index follows nested tables and lists.
 func TestYAMLLines(t *testing.T) {
-	src := "datasets:\n  - name: a\n    inputs:\n      sst: x\n  - name: b\n    time:\n      months:\n        - 1\n        - 2\nanalysis: {band: {south: 1}}\n"
+	src := "datasets:\n  a:\n    files:\n      sst: x\n  b:\n    time:\n      months:\n        - 1\n        - 2\nanalysis: {band: {south: 1}}\n"
 	ix := indexLines("yaml", []byte(src))
 	for p, want := range map[string]int{
-		"datasets": 1, "datasets.0": 2, "datasets.0.inputs.sst": 4, "datasets.1.name": 5,
-		"datasets.1.time.months.1": 9, "analysis.band.south": 10, "datasets.1.time.unknown": 6,
+		"datasets": 1, "datasets.a": 2, "datasets.a.files.sst": 4, "datasets.b": 5, "datasets.b.about": 5,
+		"datasets.b.time.months.1": 9, "analysis.band.south": 10, "datasets.b.time.unknown": 6,
 	} {
 		if got := ix.line(p); got != want {
 			t.Errorf("line(%s) = %d, want %d", p, got, want)
@@ -122,7 +122,13 @@ func TestEveryKeyDocumented(t *testing.T) {
 	walk = func(k *key, path string) {
 		switch k.kind {
 		case kTable, kEdges, kNamed:
+			if k.roles != nil {
+				walk(k.roles, join(path, "<role>"))
+			}
 			for _, n := range k.names() {
+				if k.kind == kTable && k.keys[n] == nil {
+					continue // a role key (walked above)
+				}
 				if !strings.Contains(string(doc), n) {
 					t.Errorf("key %s is not described in doc.go", join(path, n))
 				}
@@ -143,6 +149,8 @@ func TestEveryKeyDocumented(t *testing.T) {
 			}
 		case kRoles, kList:
 			walk(k.elem, path)
+		case kNames:
+			walk(k.elem, join(path, "<"+k.what+">"))
 		}
 	}
 	walk(schema, "")

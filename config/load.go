@@ -17,7 +17,7 @@ import (
 // LoadOptions are the values that override the study file.
 type LoadOptions struct {
 	// Flags maps dotted keys to values, as given on the command line, e.g.
-	// "analysis.threshold": "1.0" or "datasets.0.metrics.svp": "bolton".
+	// "analysis.threshold": "1.0" or "datasets.obs.conventions.svp": "bolton".
 	// Values are read like YAML flow values ("[12, 1, 2]" is a list,
 	// "null" removes the key so that its default applies). Flags win over
 	// the environment, which wins over the file.
@@ -63,15 +63,38 @@ func Load(path string, opt LoadOptions) (*Study, error) {
 	if err != nil {
 		return nil, fmt.Errorf("reading study: %w", err)
 	}
-	return load(path, format, src, opt)
+	return load(path, filepath.Dir(path), format, src, opt)
 }
 
-func load(path, format string, src []byte, opt LoadOptions) (r *Study, err error) {
+// ParseName is the name a study given to [Parse] goes by in messages and
+// in [Study].Path.
+const ParseName = "(study text)"
+
+// Parse reads, checks and resolves a study given as text, for programs
+// that build a study without writing a file: src is its text in format
+// ("yaml", "toml" or "json"), dir the folder against which relative file
+// patterns and output.dir are resolved (the folder a study file would lie
+// in; "" is the current folder). Everything else is as [Load]: overrides
+// from opt, defaults, every problem at once as an *Error, whose problems
+// name the line of src and ParseName as the file.
+func Parse(src []byte, format, dir string, opt LoadOptions) (*Study, error) {
+	switch format {
+	case "yaml", "toml", "json":
+	default:
+		return nil, fmt.Errorf("config.Parse: unknown format %q: give yaml, toml or json", format)
+	}
+	if dir == "" {
+		dir = "."
+	}
+	return load(ParseName, dir, format, src, opt)
+}
+
+func load(path, dir, format string, src []byte, opt LoadOptions) (r *Study, err error) {
 	tree, err := parse(path, format, src)
 	if err != nil {
 		return nil, err
 	}
-	r = &Study{Path: path, Dir: filepath.Dir(path), Format: format, Source: string(src), shown: map[string]string{}}
+	r = &Study{Path: path, Dir: dir, Format: format, Source: string(src), shown: map[string]string{}}
 	w := &where{file: path, lines: indexLines(format, src), origins: map[string]string{}}
 	applied, probs := applyOverrides(tree, opt, path, w.origins)
 	for _, o := range applied {
@@ -119,12 +142,12 @@ func unwrapParse(err error) error {
 }
 
 // expandInputs expands the input patterns of every dataset and fills
-// Inputs, including the roles taken from inputs.all.
+// Inputs, including the roles taken from files.any.
 func (r *Study) expandInputs(w *where) []Problem {
 	var probs []Problem
 	for i := range r.Datasets {
 		ds := &r.Datasets[i]
-		base := "datasets." + fmt.Sprint(i) + ".inputs"
+		base := join(join("datasets", ds.Name), "files")
 		keys := make([]string, 0, len(ds.Patterns))
 		for k := range ds.Patterns {
 			keys = append(keys, k)

@@ -82,9 +82,9 @@ func TestFormatsTable(t *testing.T) {
 		files map[string]string
 	}{
 		{"minimal", map[string]string{
-			"a.yaml": "datasets:\n  - name: m\n    inputs: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc}\n",
-			"b.toml": "[[datasets]]\nname = \"m\"\ninputs = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n",
-			"c.json": `{"datasets": [{"name": "m", "inputs": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc"}}]}`,
+			"a.yaml": "datasets:\n  m:\n    files: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc}\n",
+			"b.toml": "[datasets.m]\nfiles = { sst = \"sst.nc\", air_temperature = \"ta.nc\", low_cloud = \"cll.nc\" }\n",
+			"c.json": `{"datasets": {"m": {"files": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc"}}}}`,
 			// every default spelt out, keys in another order, a list where a string would do
 			"d.yml": `# defaults written out
 output: {plots: true, dir: out}
@@ -95,21 +95,22 @@ analysis:
   cloud: auto
   grid: {target: "", min_coverage: 0.5, mask_threshold: 0.5}
 datasets:
-  - inputs:
+  m:
+    files:
       low_cloud: [cll.nc]
       air_temperature: ta.nc
       sst: ["sst.nc", "ss*.nc"]
-    name: m
+    about: ""
     ocean: {mask: sst}
     surface: {pressure: 100000, humidity: 80%, temperature: sst}
-    metrics: {svp: murphy-koop, lcl: romps, t850: mean, lapse_pressure: 850 hPa, lapse_moisture: qs, ectei: false}
+    conventions: {svp: murphy-koop, lcl: romps, t850: mean, lapse_pressure: 850 hPa, lapse_moisture: qs, ectei: false}
     time: {climatology: false}
 `,
 		}},
 		{"settings", map[string]string{
 			"a.yaml": `datasets:
-  - name: run-1
-    inputs:
+  run-1:
+    files:
       sst: sst.nc
       air_temperature: ta.nc
       cloud: clt.nc
@@ -117,7 +118,7 @@ datasets:
       relative_humidity: hurs.nc
     time: {season: djf, start: "1980-01", end: "1989-12"}
     surface: {humidity: field, pressure: 1013.25hPa}
-    metrics: {svp: bolton, lcl: linear, constants: {rd: 287.0}}
+    conventions: {svp: bolton, lcl: linear, constants: {rd: 287.0}}
 analysis:
   threshold: 1.0
   regions: [{name: r1, south: -20, north: 0, west: 170, east: -100}]
@@ -128,25 +129,24 @@ threshold = 1.0
 regions = [{ name = "r1", south = -20, north = 0, west = 170, east = -100 }]
 grid = { target = "2.5deg", method = { cloud = "bilinear" } }
 
-[[datasets]]
-name = "run-1"
+[datasets.run-1]
 time = { months = [12, 1, 2], start = "1980-01", end = "1989-12" }
 surface = { humidity = "relative_humidity", pressure = 101325 }
-metrics = { svp = "bolton", lcl = "linear", constants = { rd = 287 } }
+conventions = { svp = "bolton", lcl = "linear", constants = { rd = 287 } }
 
-[datasets.inputs]
+[datasets.run-1.files]
 sst = "sst.nc"
 air_temperature = "ta.nc"
 cloud = "clt.nc"
 sea_fraction = "sftof.nc"
 relative_humidity = "hurs.nc"
 `,
-			"c.json": `{"datasets": [{"name": "run-1",
-  "inputs": {"sst": "sst.nc", "air_temperature": "ta.nc", "cloud": "clt.nc", "sea_fraction": "sftof.nc", "relative_humidity": "hurs.nc"},
-  "ocean": {"mask": "fraction", "role": "sea_fraction", "min_ocean_fraction": 0.5},
+			"c.json": `{"datasets": {"run-1": {
+  "files": {"sst": "sst.nc", "air_temperature": "ta.nc", "cloud": "clt.nc", "sea_fraction": "sftof.nc", "relative_humidity": "hurs.nc"},
+  "ocean": {"mask": "fraction", "from": "sea_fraction", "min_fraction": 0.5},
   "time": {"months": [1, 2, 12], "start": "1980-01", "end": "1989-12"},
   "surface": {"humidity": "field", "pressure": "1013.25 hPa"},
-  "metrics": {"svp": "bolton", "lcl": "linear", "constants": {"rd": 287.0}}}],
+  "conventions": {"svp": "bolton", "lcl": "linear", "constants": {"rd": 287.0}}}},
  "analysis": {"threshold": 1, "regions": [{"name": "r1", "south": -20, "north": 0, "west": 170, "east": 260}],
               "grid": {"target": "2.5deg", "method": {"cloud": "bilinear"}}}}`,
 		}},
@@ -178,7 +178,7 @@ relative_humidity = "hurs.nc"
 // TestDefaults: a minimal study gets the documented defaults.
 func TestDefaults(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
-	p := writeFile(t, dir, "r.yaml", "datasets:\n  - name: m\n    inputs: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc, cloud: clt.nc}\n")
+	p := writeFile(t, dir, "r.yaml", "datasets:\n  m:\n    files: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc, cloud: clt.nc}\n")
 	r, err := config.Load(p, noEnv)
 	if err != nil {
 		t.Fatal(err)
@@ -230,8 +230,8 @@ func TestDefaults(t *testing.T) {
 func TestTypedSettings(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
 	p := writeFile(t, dir, "r.yaml", `datasets:
-  - name: m
-    inputs:
+  m:
+    files:
       sst: sst.nc
       air_temperature: ta.nc
       cloud: clt.nc
@@ -245,11 +245,17 @@ func TestTypedSettings(t *testing.T) {
     units: {sst: degC}
     coordinates:
       air_temperature: {lat: y, lon: x, level: plev, time: t, level_units: hPa}
-    time: {units: "days since 1850-01-01", calendar: 360_day, months: [6, 7]}
-    ocean: {mask: categorical, ocean_values: [0, 2]}
+    time:
+      units: "days since 1850-01-01"
+      calendar: 360_day
+      months: [6, 7]
+      sst: {units: "months since 1979-01-01"}   # the calendar is the dataset's
+      cloud: {climatology: true}                # the dataset's units do not apply
+      air_temperature: {calendar: noleap}       # the units are the dataset's
+    ocean: {mask: categorical, values: [0, 2]}
     sea_ice: {max_fraction: 0.3}
     surface: {pressure: field, humidity: field, temperature: air}
-    metrics: {ectei: true, ectei_beta: 0.3, ectei_surface: saturated, t850: field, lapse_pressure: 900hPa, lapse_moisture: rs}
+    conventions: {ectei: true, ectei_beta: 0.3, ectei_surface: saturated, t850: field, lapse_pressure: 900hPa, lapse_moisture: rs}
 analysis:
   cloud: cloud
   grid: {target: land_fraction}
@@ -281,11 +287,25 @@ analysis:
 	// Spec: levels, overrides, time overrides except for the masks.
 	ta := d.Spec(cf.RoleAirTemp)
 	if ta.Level != 70000 || ta.Lat != "y" || ta.Lon != "x" || ta.Overrides.Level != "plev" || ta.Time != "t" || ta.LevelUnits != "hPa" ||
-		ta.TimeUnits != "days since 1850-01-01" || ta.Calendar != "360_day" || ta.Var != "" {
+		ta.TimeUnits != "days since 1850-01-01" || ta.Calendar != "noleap" || ta.Climatology || ta.Var != "" {
 		t.Errorf("air temperature spec %+v", ta)
 	}
-	if s := d.Spec(cf.RoleSST); s.Var != "tos" || s.Units != "degC" || s.Level != 0 || s.Calendar != "360_day" {
+	if s := d.Spec(cf.RoleSST); s.Var != "tos" || s.Units != "degC" || s.Level != 0 || s.Calendar != "360_day" ||
+		s.TimeUnits != "months since 1979-01-01" || s.Climatology {
 		t.Errorf("sst spec %+v", s)
+	}
+	if c := d.Spec(cf.RoleCloud); !c.Climatology || c.TimeUnits != "" || c.Calendar != "360_day" {
+		t.Errorf("cloud spec %+v", c)
+	}
+	// roles without their own declaration have the dataset's
+	if p := d.Spec(cf.RoleSurfacePres); p.TimeUnits != "days since 1850-01-01" || p.Calendar != "360_day" || p.Climatology {
+		t.Errorf("surface pressure spec %+v", p)
+	}
+	if len(d.Time.ByRole) != 3 || d.Time.For(cf.RoleOmega) != d.Time.TimeDecl() {
+		t.Errorf("time by role %+v", d.Time.ByRole)
+	}
+	if !d.Selects(1900, 6) || d.Selects(1900, 8) {
+		t.Error("months 6 and 7 are selected (sst is not a climatology)")
 	}
 	if q := d.Spec(cf.RoleSpecHum); q.Level != 70000 {
 		t.Errorf("q700 for ECTEI: spec %+v", q)
@@ -332,6 +352,10 @@ func TestSelects(t *testing.T) {
 		{`{season: DJF, start: "1980-12"}`, [][2]int{{1980, 12}, {1981, 1}, {2050, 2}}, [][2]int{{1980, 1}, {1980, 11}, {1981, 3}}},
 		{`{months: [7], end: "2000-07"}`, [][2]int{{2000, 7}, {1, 7}}, [][2]int{{2001, 7}, {2000, 6}}},
 		{`{climatology: true, season: JJA}`, [][2]int{{1, 6}, {0, 8}, {9999, 7}}, [][2]int{{1, 5}, {1, 9}}},
+		// sst declared a climatology on its own: years are ignored too
+		{`{sst: {climatology: true}, season: JJA}`, [][2]int{{1, 6}, {0, 8}, {9999, 7}}, [][2]int{{1, 5}, {1, 9}}},
+		// another role's climatology does not make the record one
+		{`{low_cloud: {climatology: true}, end: "2000-07"}`, [][2]int{{2000, 7}, {1, 7}}, [][2]int{{2001, 7}}},
 	}
 	for _, c := range cases {
 		p := writeFile(t, dir, "r.yaml", head+"    time: "+c.time+"\n")

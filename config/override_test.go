@@ -4,6 +4,7 @@ import (
 	"strings"
 	"testing"
 
+	"lidscope/cf"
 	"lidscope/config"
 	"lidscope/metrics"
 )
@@ -50,28 +51,30 @@ func TestPrecedence(t *testing.T) {
 	}
 }
 
-// TestOverrideKinds: per-dataset keys by element number, lists, tables,
+// TestOverrideKinds: per-dataset keys by dataset name, lists, tables,
 // and the record of what was applied.
 func TestOverrideKinds(t *testing.T) {
 	dir := dataDir(t, baseFiles...)
-	p := writeFile(t, dir, "r.yaml", head+`  - name: second
-    inputs: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}
+	p := writeFile(t, dir, "r.yaml", head+`  second-run:
+    files: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}
 analysis:
   regions:
     - {name: a, south: 0, north: 10, west: 0, east: 10}
 `)
 	env := map[string]string{
-		"LIDSCOPE_DATASETS_1_METRICS_SVP":      "bolton",
-		"LIDSCOPE_DATASETS_0_TIME_MONTHS":      "12,1,2",
-		"LIDSCOPE_DATASETS_1_INPUTS_LOW_CLOUD": "cll.nc",
-		"LIDSCOPE_ANALYSIS_REGIONS_0_NAME":     "renamed",
-		"LIDSCOPE_OUTPUT_PLOTS":                "false",
+		"LIDSCOPE_DATASETS_SECOND_RUN_CONVENTIONS_SVP": "bolton", // - is _ in environment names
+		"LIDSCOPE_DATASETS_BASE_TIME_MONTHS":           "12,1,2",
+		"LIDSCOPE_DATASETS_SECOND_RUN_FILES_LOW_CLOUD": "cll.nc",
+		"LIDSCOPE_DATASETS_BASE_TIME_SST_CALENDAR":     "noleap",
+		"LIDSCOPE_ANALYSIS_REGIONS_0_NAME":             "renamed",
+		"LIDSCOPE_OUTPUT_PLOTS":                        "false",
 	}
 	flags := map[string]string{
-		"datasets.0.time.months":      "[6, 7, 8]", // wins over the environment
-		"analysis.band":               "{south: -20, north: 20}",
-		"datasets.1.surface.humidity": "75%",
-		"Analysis.Transition":         "0.25", // keys are case-folded like the file's
+		"datasets.base.time.months":                "[6, 7, 8]", // wins over the environment
+		"analysis.band":                            "{south: -20, north: 20}",
+		"datasets.second-run.surface.humidity":     "75%",
+		"datasets.base.time.low_cloud.climatology": "false",
+		"Analysis.Transition":                      "0.25", // keys are case-folded like the file's
 	}
 	r, err := config.Load(p, config.LoadOptions{Flags: flags, LookupEnv: envOf(env)})
 	if err != nil {
@@ -93,7 +96,13 @@ analysis:
 	if r.Analysis.Regions[0].Name != "renamed" || r.Analysis.Band.South != -20 || r.Analysis.Transition != 0.25 || r.Output.Plots {
 		t.Errorf("analysis %+v, output %+v", r.Analysis, r.Output)
 	}
-	if len(r.Overrides) != 9 {
+	if d0.Time.For(cf.RoleSST).Calendar != "noleap" || d0.Time.For(cf.RoleAirTemp).Calendar != "" || d0.Spec(cf.RoleSST).Calendar != "noleap" {
+		t.Errorf("per-role time from the environment: %+v", d0.Time.ByRole)
+	}
+	if _, ok := d0.Time.ByRole[cf.RoleLowCloud]; !ok {
+		t.Errorf("per-role time from a flag: %+v", d0.Time.ByRole)
+	}
+	if len(r.Overrides) != 11 {
 		t.Errorf("%d overrides recorded: %+v", len(r.Overrides), r.Overrides)
 	}
 	for _, o := range r.Overrides {
@@ -124,13 +133,16 @@ func TestOverrideProblems(t *testing.T) {
 		msg   string
 	}{
 		{map[string]string{"analysis.treshold": "1"}, nil, "analysis.treshold", "flag analysis.treshold", `did you mean "threshold"?`},
-		{map[string]string{"datasets.2.name": "x"}, nil, "datasets.2.name", "flag datasets.2.name", "no element 2"},
-		{map[string]string{"datasets.first.name": "x"}, nil, "datasets.first.name", "flag datasets.first.name", "element number"},
+		{map[string]string{"datasets.bsae.about": "x"}, nil, "datasets.bsae.about", "flag datasets.bsae.about", `no dataset "bsae", and flags and the environment cannot add one; did you mean "base"?`},
+		{map[string]string{"datasets.other.about": "x"}, nil, "datasets.other.about", "flag datasets.other.about", "the study has: base"},
+		{map[string]string{"datasets.base": "{about: x}"}, nil, "datasets.base", "flag datasets.base", "set its keys"},
+		{map[string]string{"datasets.0.about": "x"}, nil, "datasets.0.about", "flag datasets.0.about", `no dataset "0"`},
+		{map[string]string{"datasets.base.time.sst.unit": "x"}, nil, "datasets.base.time.sst.unit", "flag datasets.base.time.sst.unit", `did you mean "units"?`},
 		{map[string]string{"analysis.threshold.x": "1"}, nil, "analysis.threshold.x", "flag analysis.threshold.x", "no keys inside"},
 		{map[string]string{"analysis..threshold": "1"}, nil, "analysis..threshold", "flag analysis..threshold", "dotted key path"},
 		{map[string]string{"analysis.regions.0.name": "x"}, nil, "analysis.regions.0.name", "flag analysis.regions.0.name", "no elements"},
 		{nil, map[string]string{"LIDSCOPE_ANALYSIS_THRESHOLD": "warm"}, "analysis.threshold", "environment LIDSCOPE_ANALYSIS_THRESHOLD", "must be a number"},
-		{nil, map[string]string{"LIDSCOPE_DATASETS_0_METRICS_LCL": "rompps"}, "datasets.0.metrics.lcl", "environment LIDSCOPE_DATASETS_0_METRICS_LCL", `did you mean "romps"?`},
+		{nil, map[string]string{"LIDSCOPE_DATASETS_BASE_CONVENTIONS_LCL": "rompps"}, "datasets.base.conventions.lcl", "environment LIDSCOPE_DATASETS_BASE_CONVENTIONS_LCL", `did you mean "romps"?`},
 		{map[string]string{"analysis.band": "{south: -20, nord: 20}"}, nil, "analysis.band.nord", "flag analysis.band", `did you mean "north"?`},
 	}
 	for _, c := range cases {
@@ -151,10 +163,11 @@ func TestOverrideProblems(t *testing.T) {
 
 func TestEnvName(t *testing.T) {
 	for k, want := range map[string]string{
-		"analysis.threshold":                      "LIDSCOPE_ANALYSIS_THRESHOLD",
-		"datasets.0.metrics.svp":                  "LIDSCOPE_DATASETS_0_METRICS_SVP",
-		"datasets.12.coordinates.sst.level_units": "LIDSCOPE_DATASETS_12_COORDINATES_SST_LEVEL_UNITS",
-		"analysis.grid.min_coverage":              "LIDSCOPE_ANALYSIS_GRID_MIN_COVERAGE",
+		"analysis.threshold":                            "LIDSCOPE_ANALYSIS_THRESHOLD",
+		"datasets.obs.conventions.svp":                  "LIDSCOPE_DATASETS_OBS_CONVENTIONS_SVP",
+		"datasets.model-12.coordinates.sst.level_units": "LIDSCOPE_DATASETS_MODEL_12_COORDINATES_SST_LEVEL_UNITS",
+		"datasets.obs.time.low_cloud.units":             "LIDSCOPE_DATASETS_OBS_TIME_LOW_CLOUD_UNITS",
+		"analysis.grid.min_coverage":                    "LIDSCOPE_ANALYSIS_GRID_MIN_COVERAGE",
 	} {
 		if got := config.EnvName(k); got != want {
 			t.Errorf("EnvName(%q) = %q, want %q", k, got, want)

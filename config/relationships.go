@@ -254,7 +254,7 @@ func (d *decoder) predictor(r *Study, path, name string) bool {
 	if name == "ectei" {
 		for _, ds := range r.Datasets {
 			if !ds.Metrics.ECTEI {
-				d.fail(path, "ectei is computed only with metrics.ectei: true, and dataset %q does not compute it; set it in every dataset or choose another predictor", ds.Name)
+				d.fail(path, "ectei is computed only with conventions.ectei: true, and dataset %q does not compute it; set it in every dataset or choose another predictor", ds.Name)
 				return false
 			}
 		}
@@ -409,7 +409,7 @@ func (d *decoder) responses(m map[string]any, path string, r *Study, c *relation
 				case role == cf.RoleCloud && ds.Cloud == cf.RoleLowCloud, role == cf.RoleLowCloud && ds.Cloud == cf.RoleCloud:
 					d.fail(pj, "%s is the %s, but dataset %q has no %s input: its analysis cloud is %s. Write %s, or %s for each dataset's analysis cloud", role, cloudWords[role], ds.Name, role, ds.Cloud, ds.Cloud, AnalysisCloud)
 				default:
-					d.fail(pj, "dataset %q has no %s input (inputs.%s); a response must be read in every dataset: give one, or remove %s", ds.Name, role, role, w)
+					d.fail(pj, "dataset %q has no %s input (files.%s); a response must be read in every dataset: give one, or remove %s", ds.Name, role, role, w)
 				}
 				continue
 			}
@@ -423,11 +423,11 @@ func (d *decoder) responses(m map[string]any, path string, r *Study, c *relation
 var cloudWords = map[cf.Role]string{cf.RoleCloud: "total cloud cover (role cloud)", cf.RoleLowCloud: "low cloud cover (role low_cloud)"}
 
 // needRole checks that every dataset reads role (an input of that role,
-// or inputs.all, from which it is then read).
+// or files.any, from which it is then read).
 func (d *decoder) needRole(r *Study, path string, role cf.Role, why string) {
 	for _, ds := range r.Datasets {
 		if !ds.hasPattern(role) && !ds.hasPattern(allKey) {
-			d.fail(path, "%s, so every dataset needs an %s input; dataset %q has none (inputs.%s)", why, role, ds.Name, role)
+			d.fail(path, "%s, so every dataset needs an %s input; dataset %q has none (files.%s)", why, role, ds.Name, role)
 		}
 	}
 }

@@ -49,7 +49,7 @@ func TestRelationshipsValidation(t *testing.T) {
 		{"too many bins", rel + "  bins:\n    eis: {min: 0, max: 100, width: 0.001}\n", "relationships.bins.eis.width", 9, "more than 10000"},
 		{"bins wrong shape", rel + "  bins:\n    eis: true\n", "relationships.bins.eis", 9, "list of bin edges (K) or a table {min, max, width}"},
 		{"unknown key in bins table", rel + "  bins:\n    eis: {min: 0, max: 1, step: 0.1}\n", "relationships.bins.eis.step", 9, "valid: max, min, width"},
-		{"ectei not computed", rel + "  bins:\n    ectei: [0, 1]\n", "relationships.bins.ectei", 9, "metrics.ectei: true"},
+		{"ectei not computed", rel + "  bins:\n    ectei: [0, 1]\n", "relationships.bins.ectei", 9, "conventions.ectei: true"},
 
 		// responses
 		{"unknown response", rel + "  responses: [low_clouds]\n", "relationships.responses.0", 8, `did you mean "low_cloud"?`},
@@ -109,7 +109,7 @@ func TestRelationshipsValidation(t *testing.T) {
 		{"partial one", rel + "  partial: [eis]\n", "relationships.partial", 8, "give the two predictors"},
 		{"partial same", rel + "  partial: [eis, eis]\n", "relationships.partial", 8, "must differ"},
 		{"partial not a predictor", rel + "  partial: [eis, cloud]\n", "relationships.partial.1", 8, `"cloud" is not a predictor`},
-		{"partial ectei", rel + "  partial: [ectei, sst]\n", "relationships.partial.0", 8, "metrics.ectei: true"},
+		{"partial ectei", rel + "  partial: [ectei, sst]\n", "relationships.partial.0", 8, "conventions.ectei: true"},
 
 		// region names feed the relationship files
 		{"region name digit first", "analysis:\n  regions:\n    - {name: 1a, south: 0, north: 10, west: 0, east: 10}\n", "analysis.regions.0.name", 9, "start with a letter"},
@@ -144,9 +144,8 @@ func TestRelationshipsLinesInOtherFormats(t *testing.T) {
 		file, text string
 		want       map[string]int
 	}{
-		{"r.toml", `[[datasets]]
-name = "base"
-inputs = { sst = "sst.nc", air_temperature = "ta.nc", low_cloud = "cll.nc" }
+		{"r.toml", `[datasets.base]
+files = { sst = "sst.nc", air_temperature = "ta.nc", low_cloud = "cll.nc" }
 
 [relationships]
 mode = "anomaly"
@@ -157,9 +156,9 @@ eis = { min = 0, max = 10, width = 3 }
 
 [relationships.bootstrap]
 sed = 4
-`, map[string]int{"relationships.delta_t.1": 7, "relationships.bins.eis.width": 10, "relationships.bootstrap.sed": 13}},
+`, map[string]int{"relationships.delta_t.1": 6, "relationships.bins.eis.width": 9, "relationships.bootstrap.sed": 12}},
 		{"r.json", `{
-  "datasets": [{"name": "base", "inputs": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc"}}],
+  "datasets": {"base": {"files": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc"}}},
   "relationships": {
     "delta_t": [1,
                 0],
@@ -207,8 +206,8 @@ func clearNaN(c relations.Config) relations.Config {
 func TestRelationshipsDefaults(t *testing.T) {
 	dir := dataDir(t, relFiles...)
 	p := writeFile(t, dir, "r.yaml", head+`      toa_sw_up: rsut.nc
-  - name: second
-    inputs: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}
+  second:
+    files: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc}
 analysis:
   threshold: 1.2
   transition: 0.3
@@ -256,7 +255,7 @@ func TestRelationshipsTyped(t *testing.T) {
 	dir := dataDir(t, relFiles...)
 	p := writeFile(t, dir, "r.yaml", head+`      omega: om.nc
       specific_humidity: hus.nc
-    metrics: {ectei: true}
+    conventions: {ectei: true}
 relationships:
   mode: anomaly
   detrend: true
@@ -318,19 +317,19 @@ relationships:
 	if err := r.RelationsFor(&r.Datasets[0]).Validate(); err != nil {
 		t.Error(err)
 	}
-	if !strings.Contains(r.Resolved(), `"indicator: omega < -0.011574074074074073 Pa s-1"`) {
+	if res := r.Resolved(); !strings.Contains(res, `"indicator": "omega",`) || !strings.Contains(res, `"value": -0.011574074074074073`) {
 		t.Errorf("resolved text lacks the indicator:\n%s", r.Resolved())
 	}
 }
 
 // TestRelationshipsPerDataset: responses resolve per dataset, with the
-// analysis cloud of each; inputs.all gives any role, which is then read.
+// analysis cloud of each; files.any gives any role, which is then read.
 func TestRelationshipsPerDataset(t *testing.T) {
 	dir := dataDir(t, relFiles...)
-	two := head + `  - name: second
-    inputs: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc, toa_sw_up: rsut.nc}
-  - name: third
-    inputs: {all: all.nc}
+	two := head + `  second:
+    files: {sst: sst.nc, air_temperature: ta.nc, cloud: clt.nc, toa_sw_up: rsut.nc}
+  third:
+    files: {any: all.nc}
 `
 	t.Run("analysis_cloud", func(t *testing.T) {
 		r, err := config.Load(writeFile(t, dir, "r.yaml", two+"relationships:\n  responses: [analysis_cloud]\n"), noEnv)
@@ -355,7 +354,7 @@ func TestRelationshipsPerDataset(t *testing.T) {
 			}
 		}
 		if _, ok := r.Datasets[2].Inputs[cf.RoleSWUp]; ok {
-			t.Error("toa_sw_up read from inputs.all without being asked for")
+			t.Error("toa_sw_up read from files.any without being asked for")
 		}
 	})
 	t.Run("low_cloud missing in one dataset", func(t *testing.T) {
@@ -366,10 +365,10 @@ func TestRelationshipsPerDataset(t *testing.T) {
 			t.Errorf("%v", err)
 		}
 	})
-	t.Run("inputs.all gives the roles asked for", func(t *testing.T) {
+	t.Run("files.any gives the roles asked for", func(t *testing.T) {
 		r, err := config.Load(writeFile(t, dir, "r.yaml", `datasets:
-  - name: m
-    inputs: {all: all.nc}
+  m:
+    files: {any: all.nc}
 relationships:
   responses: [cloud, toa_sw_up]
   threshold: {indicator: precipitation, value: 3 mm day-1}
@@ -381,7 +380,7 @@ relationships:
 		d := r.Datasets[0]
 		for _, role := range []cf.Role{cf.RoleLowCloud, cf.RoleCloud, cf.RoleSWUp, cf.RolePrecip, cf.RoleOmega} {
 			if len(d.Inputs[role]) != 1 {
-				t.Errorf("role %s not read from inputs.all: %v", role, d.Inputs)
+				t.Errorf("role %s not read from files.any: %v", role, d.Inputs)
 			}
 		}
 		if d.Spec(cf.RoleOmega).Level != 50000 {
@@ -399,7 +398,7 @@ relationships:
 // hash.
 func TestRelationshipsFormats(t *testing.T) {
 	dir := dataDir(t, relFiles...)
-	ds := "datasets:\n  - name: m\n    inputs: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc, olr: rlut.nc}\n"
+	ds := "datasets:\n  m:\n    files: {sst: sst.nc, air_temperature: ta.nc, low_cloud: cll.nc, olr: rlut.nc}\n"
 	files := map[string]string{
 		"a.yaml": ds + `relationships:
   mode: anomaly
@@ -408,9 +407,8 @@ func TestRelationshipsFormats(t *testing.T) {
   threshold: {indicator: olr, value: 230}
   decorrelation_length: 800km
 `,
-		"b.toml": `[[datasets]]
-name = "m"
-inputs = { sst = "sst.nc", air_temperature = "ta.nc", low_cloud = "cll.nc", olr = "rlut.nc" }
+		"b.toml": `[datasets.m]
+files = { sst = "sst.nc", air_temperature = "ta.nc", low_cloud = "cll.nc", olr = "rlut.nc" }
 
 [relationships]
 mode = "anomaly"
@@ -429,7 +427,7 @@ value = "230 W m-2"
 bin_width = 0.05
 range = [-12, 8]
 `,
-		"c.json": `{"datasets": [{"name": "m", "inputs": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc", "olr": "rlut.nc"}}],
+		"c.json": `{"datasets": {"m": {"files": {"sst": "sst.nc", "air_temperature": "ta.nc", "low_cloud": "cll.nc", "olr": "rlut.nc"}}},
  "relationships": {"mode": "anomaly", "seasons": false, "responses": ["low_cloud"], "delta_t": [-4, -3, -2, -1, 1, 2, 3, 4],
    "bins": {"rel_sst": [-1, 0, 1], "eis": {"min": -2, "max": 2, "width": 0.5}},
    "patches": [{"name": "p", "south": -5, "north": 5, "west": 160, "east": -150}],

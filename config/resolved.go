@@ -2,55 +2,22 @@ package config
 
 import (
 	"encoding/json"
+	"math"
 	"path/filepath"
 	"sort"
 	"strings"
+
+	"lidscope/metrics"
+	"lidscope/relations"
 )
 
 // ResolvedFormat is the version tag at the start of Resolved(); it changes
-// only when the text's layout does.
-const ResolvedFormat = "lidscope-study-resolved/2"
+// only when the text's layout does. Version 3 writes the keys of the study
+// file (datasets keyed by name, files, conventions, …).
+const ResolvedFormat = "lidscope-study-resolved/3"
 
-type resolvedStudy struct {
-	Format   string            `json:"format"`
-	Datasets []resolvedDataset `json:"datasets"`
-	Analysis resolvedAnalysis  `json:"analysis"`
-	Output   resolvedOutput    `json:"output"`
-}
-
-type resolvedDataset struct {
-	Name        string                       `json:"name"`
-	Description string                       `json:"description"`
-	Inputs      map[string][]string          `json:"inputs"`
-	All         []string                     `json:"all_files,omitempty"`
-	Variables   map[string]string            `json:"variables,omitempty"`
-	Units       map[string]string            `json:"units,omitempty"`
-	Coordinates map[string]map[string]string `json:"coordinates,omitempty"`
-	Time        map[string]any               `json:"time"`
-	Ocean       map[string]any               `json:"ocean"`
-	SeaIce      map[string]any               `json:"sea_ice"`
-	Surface     map[string]string            `json:"surface"`
-	Cloud       string                       `json:"cloud"`
-	Metrics     string                       `json:"metrics"`
-	OutputDir   string                       `json:"output_dir"`
-	// Relationships is relations.Config.Text() of RelationsFor, by line.
-	Relationships []string `json:"relationships"`
-}
-
-type resolvedAnalysis struct {
-	Band       [2]float64       `json:"band_south_north"`
-	Threshold  float64          `json:"threshold_k"`
-	Transition float64          `json:"transition_k"`
-	Regime     string           `json:"regimes"`
-	Cloud      string           `json:"cloud"`
-	Regions    []map[string]any `json:"regions"`
-	Grid       map[string]any   `json:"grid"`
-}
-
-type resolvedOutput struct {
-	Dir   string `json:"dir"`
-	Plots bool   `json:"plots"`
-}
+// object is a JSON table; encoding/json writes its keys sorted.
+type object = map[string]any
 
 // rel writes a path relative to the study's folder (slash-separated):
 // input files as their pattern was written (relative patterns give
@@ -67,125 +34,55 @@ func (r *Study) rel(path string) string {
 	return filepath.ToSlash(path)
 }
 
-// Resolved returns a stable canonical text (indented JSON with sorted
-// keys, starting with the ResolvedFormat tag) of everything the study
-// decides once defaults, overrides and globs are applied: per dataset the
-// files of each role (relative to the study's folder), the overrides, the
-// time selection, masks, surface settings, cloud role and the complete
-// metrics conventions text; the analysis and output settings. Studies that
-// decide the same give the same text, whatever their format, key order,
-// comments or spelling of defaults. It does not contain the study's own
-// path or text. Per dataset it also holds the relationship analysis of
-// that dataset (relations.Config.Text of [Study.RelationsFor], one line
-// per entry).
+// Resolved returns a stable canonical text of everything the study
+// decides once defaults, overrides and globs are applied: indented JSON
+// with sorted keys, starting with the ResolvedFormat tag, written with the
+// keys of the study file. Every key has its value, defaults included:
+// numbers in SI units (surface.pressure 100000 is Pa), the files of each
+// role (globs expanded, relative to the study's folder; roles read from
+// files.any are listed too), the time declaration of every role that has
+// its own (complete, with the dataset's values filled in), the metrics
+// conventions under conventions, and the relationships section with its
+// bins resolved. What the study decides without a key of its own is under
+// "derived" per dataset: the cloud role of the analysis, the output folder
+// and the relationship responses (relationships.responses resolved for
+// that dataset, which is why the relationships section has no responses). Studies that decide the same give the
+// same text, whatever their format, key order, comments or spelling of
+// defaults. It does not contain the study's own path or text.
 func (r *Study) Resolved() string {
-	out := resolvedStudy{Format: ResolvedFormat}
+	sets := object{}
 	for i := range r.Datasets {
 		d := &r.Datasets[i]
-		rd := resolvedDataset{
-			Name:        d.Name,
-			Description: d.Description,
-			Inputs:      map[string][]string{},
-			Time:        map[string]any{},
-			Cloud:       string(d.Cloud),
-			Metrics:     d.Metrics.Text(),
-			OutputDir:   r.rel(d.OutputDir),
-		}
-		rd.Relationships = strings.Split(strings.TrimSuffix(r.RelationsFor(d).Text(), "\n"), "\n")
-		for _, role := range sortedRoles(d.Inputs) {
-			// files of one role, as written
-			files := make([]string, len(d.Inputs[role]))
-			for j, f := range d.Inputs[role] {
-				files[j] = r.rel(f)
-			}
-			rd.Inputs[string(role)] = files
-		}
-		for _, f := range d.All {
-			rd.All = append(rd.All, r.rel(f))
-		}
-		if len(d.Variables) > 0 {
-			rd.Variables = map[string]string{}
-			for k, v := range d.Variables {
-				rd.Variables[string(k)] = v
-			}
-		}
-		if len(d.Units) > 0 {
-			rd.Units = map[string]string{}
-			for k, v := range d.Units {
-				rd.Units[string(k)] = v
-			}
-		}
-		if len(d.Coordinates) > 0 {
-			rd.Coordinates = map[string]map[string]string{}
-			for k, c := range d.Coordinates {
-				m := map[string]string{}
-				for n, v := range map[string]string{"lat": c.Lat, "lon": c.Lon, "level": c.Level, "time": c.Time, "level_units": c.LevelUnits} {
-					if v != "" {
-						m[n] = v
-					}
-				}
-				rd.Coordinates[string(k)] = m
-			}
-		}
-		t := d.Time
-		rd.Time["units"] = t.Units
-		rd.Time["calendar"] = t.Calendar
-		rd.Time["climatology"] = t.Climatology
-		if t.Start != nil {
-			rd.Time["start"] = t.Start.String()
-		}
-		if t.End != nil {
-			rd.Time["end"] = t.End.String()
-		}
-		months := append([]int{}, t.Months...)
-		sort.Ints(months) // the order written decides nothing
-		rd.Time["months"] = months
-		rd.Ocean = map[string]any{"mask": d.Ocean.Method.String()}
-		switch d.Ocean.Method {
-		case OceanFromFraction:
-			rd.Ocean["role"] = string(d.Ocean.Role)
-			rd.Ocean["min_ocean_fraction"] = d.Ocean.MinOceanFraction
-		case OceanFromCategories:
-			rd.Ocean["role"] = string(d.Ocean.Role)
-			vals := append([]float64{}, d.Ocean.OceanValues...)
-			sort.Float64s(vals)
-			rd.Ocean["ocean_values"] = vals
-		}
-		rd.SeaIce = map[string]any{"use": d.SeaIce.Use}
-		if d.SeaIce.Use {
-			rd.SeaIce["max_fraction"] = d.SeaIce.MaxFraction
-		}
-		rd.Surface = map[string]string{
-			"temperature_role": string(d.Surface.TemperatureRole),
-			"pressure_role":    string(d.Surface.PressureRole),
-			"humidity_role":    string(d.Surface.HumidityRole),
-		}
-		out.Datasets = append(out.Datasets, rd)
+		sets[d.Name] = r.resolvedDataset(d)
 	}
 	a := r.Analysis
-	ra := resolvedAnalysis{
-		Band:       [2]float64{a.Band.South, a.Band.North},
-		Threshold:  a.Threshold,
-		Transition: a.Transition,
-		Regime:     a.Classifier().String(),
-		Cloud:      a.CloudChoice,
-		Regions:    []map[string]any{},
-	}
+	regions := []object{}
 	for _, reg := range a.Regions {
-		ra.Regions = append(ra.Regions, map[string]any{"name": reg.Name, "south": reg.South, "north": reg.North, "west": reg.West, "east": reg.East})
+		regions = append(regions, object{"name": reg.Name, "south": reg.South, "north": reg.North, "west": reg.West, "east": reg.East})
 	}
-	methods := map[string]string{}
+	methods := object{}
 	for _, role := range sortedRoles(a.Grid.Method) {
 		methods[string(role)] = a.Grid.Method[role].String()
 	}
-	ra.Grid = map[string]any{
-		"target":         a.Grid.Target,
-		"method":         methods,
-		"min_coverage":   a.Grid.MinCoverage,
-		"mask_threshold": a.Grid.MaskThreshold,
+	out := object{
+		"format":   ResolvedFormat,
+		"datasets": sets,
+		"analysis": object{
+			"band":       object{"south": a.Band.South, "north": a.Band.North},
+			"threshold":  a.Threshold,
+			"transition": a.Transition,
+			"cloud":      a.CloudChoice,
+			"regions":    regions,
+			"grid": object{
+				"target":         a.Grid.Target,
+				"method":         methods,
+				"min_coverage":   a.Grid.MinCoverage,
+				"mask_threshold": a.Grid.MaskThreshold,
+			},
+		},
+		"output":        object{"dir": r.rel(r.Output.Dir), "plots": r.Output.Plots},
+		"relationships": resolvedRelations(r.Relations),
 	}
-	out.Analysis = ra
-	out.Output = resolvedOutput{Dir: r.rel(r.Output.Dir), Plots: r.Output.Plots}
 	var b strings.Builder
 	enc := json.NewEncoder(&b)
 	enc.SetEscapeHTML(false)
@@ -195,5 +92,162 @@ func (r *Study) Resolved() string {
 		// lists and maps are encoded: this cannot happen.
 		panic("config: encoding the resolved study: " + err.Error())
 	}
-	return b.String()
+	// "format" first, so that the tag starts the text
+	s := b.String()
+	tag := "  \"format\": " + quote(ResolvedFormat) + ",\n"
+	return "{\n" + tag + strings.Replace(strings.TrimPrefix(s, "{\n"), tag, "", 1)
+}
+
+func (r *Study) resolvedDataset(d *Dataset) object {
+	files := object{}
+	for _, role := range sortedRoles(d.Inputs) {
+		fs := make([]string, len(d.Inputs[role]))
+		for j, f := range d.Inputs[role] {
+			fs[j] = r.rel(f)
+		}
+		files[string(role)] = fs
+	}
+	if len(d.All) > 0 {
+		fs := make([]string, len(d.All))
+		for j, f := range d.All {
+			fs[j] = r.rel(f)
+		}
+		files[allKey] = fs
+	}
+	vars, unitsT, coords := object{}, object{}, object{}
+	for k, v := range d.Variables {
+		vars[string(k)] = v
+	}
+	for k, v := range d.Units {
+		unitsT[string(k)] = v
+	}
+	for k, c := range d.Coordinates {
+		m := object{}
+		for n, v := range map[string]string{"lat": c.Lat, "lon": c.Lon, "level": c.Level, "time": c.Time, "level_units": c.LevelUnits} {
+			if v != "" {
+				m[n] = v
+			}
+		}
+		coords[string(k)] = m
+	}
+
+	t := d.Time
+	tm := object{"units": t.Units, "calendar": t.Calendar, "climatology": t.Climatology}
+	for role, decl := range t.ByRole {
+		tm[string(role)] = object{"units": decl.Units, "calendar": decl.Calendar, "climatology": decl.Climatology}
+	}
+	if t.Start != nil {
+		tm["start"] = t.Start.String()
+	}
+	if t.End != nil {
+		tm["end"] = t.End.String()
+	}
+	months := append([]int{}, t.Months...)
+	sort.Ints(months) // the order written decides nothing; a season is its months
+	tm["months"] = months
+
+	ocean := object{"mask": d.Ocean.Method.String()}
+	switch d.Ocean.Method {
+	case OceanFromFraction:
+		ocean["from"] = string(d.Ocean.Role)
+		ocean["min_fraction"] = d.Ocean.MinOceanFraction
+	case OceanFromCategories:
+		ocean["from"] = string(d.Ocean.Role)
+		vals := append([]float64{}, d.Ocean.OceanValues...)
+		sort.Float64s(vals)
+		ocean["values"] = vals
+	}
+	var seaIce any // null: no sea-ice exclusion
+	if d.SeaIce.Use {
+		seaIce = object{"max_fraction": d.SeaIce.MaxFraction}
+	}
+
+	m := d.Metrics
+	surface := object{"temperature": "sst"}
+	if m.Surface == metrics.SurfaceAir {
+		surface["temperature"] = "air"
+	}
+	if m.PressureField {
+		surface["pressure"] = "field"
+	} else {
+		surface["pressure"] = m.SurfacePressure
+	}
+	if d.Surface.HumidityRole != "" {
+		surface["humidity"] = string(d.Surface.HumidityRole)
+	} else {
+		surface["humidity"] = m.AssumedRH
+	}
+	t850 := "mean"
+	if m.T850Field {
+		t850 = "field"
+	}
+	c := m.Constants
+	conventions := object{
+		"svp": m.SVP.String(), "lcl": m.LCL.String(), "t850": t850,
+		"lapse_pressure": m.LapsePressure, "lapse_moisture": m.LapseMoisture.String(),
+		"ectei": m.ECTEI, "ectei_beta": m.ECTEIBeta, "ectei_surface": m.ECTEISurface.String(),
+		"constants": object{"rd": c.Rd, "rv": c.Rv, "cpd": c.Cpd, "lv0": c.Lv0, "lv_slope": c.LvSlope, "g": c.G, "p0": c.P0},
+	}
+	return object{
+		"about":       d.Description,
+		"files":       files,
+		"variables":   vars,
+		"units":       unitsT,
+		"coordinates": coords,
+		"time":        tm,
+		"ocean":       ocean,
+		"sea_ice":     seaIce,
+		"surface":     surface,
+		"conventions": conventions,
+		"derived": object{
+			"cloud":      string(d.Cloud),
+			"output_dir": r.rel(d.OutputDir),
+			"responses":  append([]string{}, d.RelationResponses...),
+		},
+	}
+}
+
+// resolvedRelations writes the relationships section with the study's
+// keys. The regime definition and the regions are those of analysis; the
+// responses are resolved per dataset (derived.responses).
+func resolvedRelations(c relations.Config) object {
+	bins := c.Bins
+	if bins == nil {
+		bins = relations.DefaultBins(c.Mode)
+	}
+	rb := object{}
+	for p, e := range bins {
+		if len(e) > 0 {
+			rb[p] = e
+		}
+	}
+	patches := []object{}
+	for _, p := range c.Patches {
+		patches = append(patches, object{"name": p.Name, "south": p.South, "north": p.North, "west": p.West, "east": p.East})
+	}
+	th := object{"indicator": c.Indicator}
+	if c.Indicator != "" {
+		v := c.IndicatorThreshold
+		if math.IsNaN(v) {
+			v = relations.DefaultIndicatorThreshold(c.Indicator)
+		}
+		th["value"] = v
+		th["bin_width"] = c.ThresholdBinWidth
+		th["range"] = []float64{c.ThresholdRange[0], c.ThresholdRange[1]}
+		th["replicates"] = c.ThresholdReplicates
+	}
+	return object{
+		"mode":      c.Mode.String(),
+		"detrend":   c.Detrend,
+		"bins":      rb,
+		"seasons":   c.Seasons,
+		"patches":   patches,
+		"delta_t":   append([]float64{}, c.DeltaT...),
+		"bootstrap": object{"replicates": c.Bootstrap.N, "block_length": c.Bootstrap.BlockLength, "seed": c.Bootstrap.Seed},
+		"threshold": th,
+		// omega_regimes, decorrelation_length (m) and partial as written
+		"omega_regimes":        c.OmegaBins,
+		"decorrelation_length": c.DecorrelationLength,
+		"partial":              []string{c.Partial[0], c.Partial[1]},
+	}
 }

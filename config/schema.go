@@ -22,6 +22,7 @@ const (
 	kScalar                  // a number or a string (e.g. "1000hPa", "field")
 	kNamed                   // a table keyed by a fixed list of names (choices; values: elem)
 	kEdges                   // a list of numbers, or a table with fixed keys (keys)
+	kNames                   // a table keyed by names the user chooses (dataset names; values: elem)
 )
 
 func (k kind) String() string {
@@ -42,7 +43,7 @@ func (k kind) String() string {
 		return "a number or a list of numbers"
 	case kScalar:
 		return "a number or a string"
-	case kNamed:
+	case kNamed, kNames:
 		return "a table"
 	case kEdges:
 		return "a list of numbers or a table"
@@ -54,12 +55,15 @@ func (k kind) String() string {
 // it holds. The schema is the single list of valid keys: unknown-key
 // checks, suggestions, override keys and environment names all come from it.
 type key struct {
-	kind    kind
-	keys    map[string]*key // kTable, kEdges (its table form)
-	elem    *key            // kRoles, kList, kNamed
-	all     bool            // kRoles: the key "all" is accepted too
-	choices []string        // kNamed: the names accepted as keys
-	what    string          // kNamed: what a key names, for messages ("predictor")
+	kind kind
+	keys map[string]*key // kTable, kEdges (its table form)
+	elem *key            // kRoles, kList, kNamed, kNames
+	// roles, for a kTable, accepts every role name as a further key
+	// (values: roles): the per-role entries of the time table.
+	roles   *key
+	all     bool     // kRoles: the key "all" is accepted too
+	choices []string // kNamed: the names accepted as keys
+	what    string   // kNamed: what a key names, for messages ("predictor")
 }
 
 func table(keys map[string]*key) *key { return &key{kind: kTable, keys: keys} }
@@ -74,27 +78,29 @@ var (
 	scalar  = leaf(kScalar)
 )
 
+// roleTime is a per-role time declaration (time.ROLE).
+var roleTime = table(map[string]*key{"units": str, "calendar": str, "climatology": boolean})
+
 var datasetKeys = table(map[string]*key{
-	"name":        str,
-	"description": str,
-	"inputs":      {kind: kRoles, elem: strs, all: true},
-	"variables":   {kind: kRoles, elem: str},
-	"units":       {kind: kRoles, elem: str},
+	"about":     str,
+	"files":     {kind: kRoles, elem: strs, all: true},
+	"variables": {kind: kRoles, elem: str},
+	"units":     {kind: kRoles, elem: str},
 	"coordinates": {kind: kRoles, elem: table(map[string]*key{
 		"lat": str, "lon": str, "level": str, "time": str, "level_units": str,
 	})},
-	"time": table(map[string]*key{
+	"time": {kind: kTable, roles: roleTime, keys: map[string]*key{
 		"units": str, "calendar": str, "climatology": boolean,
 		"start": str, "end": str, "months": numbers, "season": str,
-	}),
+	}},
 	"ocean": table(map[string]*key{
-		"mask": str, "role": str, "min_ocean_fraction": number, "ocean_values": numbers,
+		"mask": str, "from": str, "min_fraction": number, "values": numbers,
 	}),
 	"sea_ice": table(map[string]*key{"max_fraction": number}),
 	"surface": table(map[string]*key{
 		"pressure": scalar, "humidity": scalar, "temperature": str,
 	}),
-	"metrics": table(map[string]*key{
+	"conventions": table(map[string]*key{
 		"svp": str, "lcl": str, "t850": str,
 		"lapse_pressure": scalar, "lapse_moisture": str,
 		"ectei": boolean, "ectei_beta": number, "ectei_surface": str,
@@ -105,8 +111,20 @@ var datasetKeys = table(map[string]*key{
 	}),
 })
 
+// renamed maps keys of the earlier study layout to their names now, per
+// table, so that an old study gets told what to write instead of a
+// suggestion by spelling.
+var renamed = map[*key]map[string]string{
+	datasetKeys: {
+		"inputs": "files", "metrics": "conventions", "description": "about",
+		"name": "", // the dataset's name is its key
+	},
+	datasetKeys.keys["ocean"]: {"role": "from", "min_ocean_fraction": "min_fraction", "ocean_values": "values"},
+	datasetKeys.keys["files"]: {"all": allKey},
+}
+
 var schema = table(map[string]*key{
-	"datasets": {kind: kList, elem: datasetKeys},
+	"datasets": {kind: kNames, elem: datasetKeys, what: "dataset"},
 	"analysis": table(map[string]*key{
 		"band":       table(map[string]*key{"south": number, "north": number}),
 		"threshold":  number,
@@ -163,8 +181,8 @@ func roleNames(k *key) []string {
 	return out
 }
 
-// allKey is the inputs key for files that may hold any role.
-const allKey = "all"
+// allKey is the files key for files that may hold any role.
+const allKey = "any"
 
 func isRole(k *key, name string) bool {
 	if k.all && name == allKey {
@@ -174,7 +192,8 @@ func isRole(k *key, name string) bool {
 	return ok
 }
 
-// names returns the valid keys of a table, sorted.
+// names returns the valid keys of a table, sorted. For kNames (keys the
+// user chooses) it returns nil: see namesIn.
 func (k *key) names() []string {
 	switch k.kind {
 	case kRoles:
@@ -183,20 +202,32 @@ func (k *key) names() []string {
 		out := append([]string(nil), k.choices...)
 		sort.Strings(out)
 		return out
+	case kNames:
+		return nil
 	}
 	out := make([]string, 0, len(k.keys))
 	for n := range k.keys {
 		out = append(out, n)
 	}
+	if k.roles != nil {
+		out = append(out, roleNames(&key{})...)
+	}
 	sort.Strings(out)
 	return out
 }
 
-// child returns the description of key name inside k, or nil.
+// child returns the description of key name inside k, or nil. Every name
+// is a valid key of a kNames table (whether it exists is the tree's
+// business).
 func (k *key) child(name string) *key {
 	switch k.kind {
 	case kTable, kEdges:
-		return k.keys[name]
+		if c := k.keys[name]; c != nil {
+			return c
+		}
+		if k.roles != nil && isRole(&key{}, name) {
+			return k.roles
+		}
 	case kRoles:
 		if isRole(k, name) {
 			return k.elem
@@ -207,6 +238,8 @@ func (k *key) child(name string) *key {
 				return k.elem
 			}
 		}
+	case kNames:
+		return k.elem
 	}
 	return nil
 }

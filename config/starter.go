@@ -174,22 +174,30 @@ func literal(p string) string {
 	return b.String()
 }
 
+// name is the dataset name the starter proposes: the first file's stem in
+// the form of dataset names (lower case; other characters become -).
 func (s *starter) name() string {
 	stem := strings.TrimSuffix(filepath.Base(s.first), filepath.Ext(s.first))
 	var b strings.Builder
-	for _, r := range stem {
-		if r < 128 && (r == '_' || r == '.' || r == '-' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z') {
+	for _, r := range strings.ToLower(stem) {
+		if r < 128 && (r == '_' || r == '-' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z') {
 			b.WriteRune(r)
 		} else {
 			b.WriteByte('-')
 		}
 	}
-	n := strings.Trim(b.String(), "-.")
-	if n == "" {
+	n := strings.Trim(b.String(), "-_")
+	switch {
+	case n == "":
 		return "dataset"
+	case yamlWords[n] || strings.Trim(n, "0123456789_") == "":
+		return "dataset-" + n // a YAML word or a number would not be read as a name
 	}
 	return n
 }
+
+// yamlWords are plain YAML words that are not read as text.
+var yamlWords = map[string]bool{"true": true, "false": true, "yes": true, "no": true, "on": true, "off": true, "null": true, "y": true, "n": true}
 
 func (s *starter) text() string {
 	var b strings.Builder
@@ -212,10 +220,10 @@ func (s *starter) text() string {
 	if len(s.unusable)+len(s.ambig) > 0 {
 		w("")
 	}
-	w("datasets:")
-	w("  - name: %s  # rename: letters, digits and _ . - (used in output paths)", quote(s.name()))
-	w("    description: \"\"")
-	w("    inputs:")
+	w("datasets:  # one entry per dataset, keyed by its name")
+	w("  %s:  # rename: lower-case letters, digits, _ and - (the folder of its results)", s.name())
+	w("    about: \"\"")
+	w("    files:")
 	roles := s.roles()
 	for _, r := range roles {
 		fs := s.byRole[r]
@@ -434,10 +442,11 @@ func (s *starter) timeSection(w func(string, ...any)) {
 			p, _ := timeProblem(f.vr)
 			w("      #   %s", oneLine(p))
 		}
-		w("      # declare its units (and calendar) here, e.g.")
-		w("      # units: \"days since 1979-01-01\"")
-		w("      # calendar: standard")
-		w("      # or, for 12 monthly means without years: climatology: true")
+		w("      # declare how to read it: for that role only, e.g.")
+		r := bad[0].vr.Role
+		w("      # %s: {units: \"days since 1979-01-01\", calendar: standard}", r)
+		w("      # or, for 12 monthly means without years:  %s: {climatology: true}", r)
+		w("      # (units, calendar and climatology written here directly apply to every role)")
 		w("      climatology: false")
 	default:
 		w("      climatology: false")
@@ -486,13 +495,13 @@ func (s *starter) oceanSection(w func(string, ...any)) {
 			rng = fmt.Sprintf(" (inspect saw %g…%g)", *f.vr.Min, *f.vr.Max)
 		}
 		w("      mask: categorical  # inspect found whole-number categories in %s, not fractions", f.vr.Var)
-		w("      role: %s", role)
-		w("      ocean_values: [0]  # CHECK which values of %s mean ocean%s", f.vr.Var, rng)
+		w("      from: %s", role)
+		w("      values: [0]  # CHECK which values of %s mean ocean%s", f.vr.Var, rng)
 		return
 	}
 	w("      mask: fraction")
-	w("      role: %s", role)
-	w("      min_ocean_fraction: %v  # ocean where at least this fraction of the cell is ocean", DefaultMinOcean)
+	w("      from: %s", role)
+	w("      min_fraction: %v  # ocean where at least this fraction of the cell is ocean", DefaultMinOcean)
 }
 
 func (s *starter) surfaceSection(w func(string, ...any)) {
@@ -529,7 +538,7 @@ func (s *starter) surfaceSection(w func(string, ...any)) {
 	} else {
 		w("      temperature: sst")
 	}
-	w("    metrics:")
+	w("    conventions:  # how LTS and EIS are computed")
 	w("      svp: murphy-koop  # murphy-koop | bolton")
 	w("      lcl: romps  # romps | bolton | linear")
 	w("      t850: mean  # mean ((Ts + T700)/2) | field (air_temperature at 850 hPa)")

@@ -82,7 +82,7 @@ func TestStarter(t *testing.T) {
 				report("clt.nc", 12, field(cf.RoleCloud, "clt", byStd, grid2, clim, unitsProblem(t, cf.RoleCloud, units.Fraction, "1", 5, 95))),
 				report("landsea.nc", 0, field(cf.RoleLandFraction, "LSMASK", byName, grid1, "", unitsProblem(t, cf.RoleLandFraction, units.Fraction, "1", 0, 4))),
 			}
-		}, true, []string{"climatology: true", "#   air_temperature: \"K\"", "#   cloud: \"%\"", "mask: categorical", "ocean_values: [0]", "target: sst", "CHECK: recognised by its name only"}, []string{"# MISSING", "start:"},
+		}, true, []string{"climatology: true", "#   air_temperature: \"K\"", "#   cloud: \"%\"", "mask: categorical", "values: [0]", "target: sst", "CHECK: recognised by its name only"}, []string{"# MISSING", "start:"},
 			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if !d.Time.Climatology || d.Ocean.Method != config.OceanFromCategories || d.Ocean.Role != cf.RoleLandFraction ||
@@ -99,7 +99,7 @@ func TestStarter(t *testing.T) {
 				report("ta.nc", 480, field(cf.RoleAirTemp, "ta", byStd, grid2, monthly)),
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
-		}, true, []string{"# units: \"days since 1979-01-01\"", "climatology: true", `"Month"`}, []string{"\n      climatology: true"},
+		}, true, []string{"# sst: {units: \"days since 1979-01-01\", calendar: standard}", "sst: {climatology: true}", `"Month"`}, []string{"\n      climatology: true"},
 			func(t *testing.T, r *config.Study) {
 				if r.Datasets[0].Time.Climatology {
 					t.Error("climatology declared for a 480-step axis")
@@ -111,7 +111,7 @@ func TestStarter(t *testing.T) {
 				report("ta.nc", 480, field(cf.RoleAirTemp, "ta", byStd, grid2, monthly)),
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
-		}, true, []string{"# or, for 12 monthly means without years: climatology: true"}, []string{"\n      climatology: true"}, nil},
+		}, true, []string{"# or, for 12 monthly means without years:  sst: {climatology: true}"}, []string{"\n      climatology: true"}, nil},
 		{"missing roles", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{report("sst.nc", 480, field(cf.RoleSST, "tos", byStd, grid2, monthly))}
 		}, true, []string{"# WITHOUT air_temperature: no file gave 700 hPa temperature, so the run will have no LTS, EIS", "# WITHOUT cloud: no file gave low_cloud or cloud, so the run will have no cloud statistics", "relationship analysis\n# will not run"}, []string{"# MISSING"},
@@ -148,7 +148,7 @@ func TestStarter(t *testing.T) {
 					field(cf.RoleSurfaceAir, "tas", byStd, grid2, monthly), field(cf.RoleSeaFraction, "sftof", byStd, grid2, "")),
 				report("hus.nc", 480, q),
 			}
-		}, true, []string{"humidity: relative_humidity", "pressure: field", "ectei: true", "max_fraction: 0.15", "or air: the surface_air_temp input", "role: sea_fraction", "mask: fraction"}, nil,
+		}, true, []string{"humidity: relative_humidity", "pressure: field", "ectei: true", "max_fraction: 0.15", "or air: the surface_air_temp input", "from: sea_fraction", "mask: fraction"}, nil,
 			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if !d.Metrics.ECTEI || !d.Metrics.PressureField || d.Surface.HumidityRole != cf.RoleRH || !d.SeaIce.Use || d.Ocean.Role != cf.RoleSeaFraction {
@@ -231,7 +231,7 @@ func TestStarterPaths(t *testing.T) {
 	if txt := config.Starter(reps, []string{"../x/sst.nc"}); !strings.Contains(txt, `sst: "../x/sst.nc"`) {
 		t.Errorf("paths not used:\n%s", txt)
 	}
-	if txt := config.Starter(reps, nil); !strings.Contains(txt, `sst: "/data/x/sst.nc"`) || !strings.Contains(txt, `name: "sst"`) {
+	if txt := config.Starter(reps, nil); !strings.Contains(txt, `sst: "/data/x/sst.nc"`) || !strings.Contains(txt, "\n  sst:  # rename") {
 		t.Errorf("report path not used:\n%s", txt)
 	}
 }

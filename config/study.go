@@ -19,10 +19,12 @@ import (
 // Study is a loaded study: typed, validated, with every default applied
 // and every input glob expanded. Build it with [Load].
 type Study struct {
-	// Path is the study file as given to Load; Dir is its folder, against
-	// which relative input patterns and the output folder are resolved.
+	// Path is the study file as given to Load (ParseName for Parse); Dir
+	// is its folder (the dir given to Parse), against which relative file
+	// patterns and the output folder are resolved.
 	Path, Dir string
-	// Format is "yaml", "toml" or "json" (from the file name extension).
+	// Format is "yaml", "toml" or "json" (from the file name extension,
+	// or as given to Parse).
 	Format string
 	// Source is the text of the file, unchanged.
 	Source string
@@ -68,10 +70,10 @@ type Dataset struct {
 	// Inputs are the files of each role the analysis reads, each list
 	// sorted, with globs expanded and relative patterns resolved against
 	// the study's folder. Roles the settings need but the study lists
-	// only under inputs.all get the files of All.
+	// only under files.any get the files of All.
 	Inputs map[cf.Role][]string
-	// All are the files of inputs.all (files that may hold any role),
-	// expanded like Inputs. Empty when inputs.all is not used.
+	// All are the files of files.any (files that may hold any role),
+	// expanded like Inputs. Empty when files.any is not used.
 	All []string
 	// Patterns are the input patterns as written (key "all" included).
 	Patterns map[string][]string
@@ -113,14 +115,18 @@ type Coordinates struct {
 	LevelUnits string
 }
 
-// TimeSelection holds the time overrides of a dataset and the months and
-// years the analysis uses.
+// TimeSelection holds the time declarations of a dataset and the months
+// and years the analysis uses.
 type TimeSelection struct {
 	// Units and Calendar override the time coordinate's attributes
 	// (for files with non-CF time units); empty: from the file.
 	Units, Calendar string
 	// Climatology declares the time axes as 12 calendar months, January first.
 	Climatology bool
+	// ByRole holds the declarations of roles that have their own
+	// (time.ROLE in the study), each complete: a key the role does not
+	// set is the dataset's. [TimeSelection.For] gives any role's.
+	ByRole map[cf.Role]TimeDecl
 	// Start and End are the first and last year-month used (inclusive);
 	// nil means unbounded. Always nil for a climatology.
 	Start, End *calendar.YearMonth
@@ -131,8 +137,32 @@ type TimeSelection struct {
 	Season string
 }
 
+// TimeDecl says how to read a time axis whose file does not say it in a
+// CF way: the time units and calendar that replace the coordinate's
+// attributes (empty: the file's), or that it is a 12-month climatology,
+// January first.
+type TimeDecl struct {
+	Units, Calendar string
+	Climatology     bool
+}
+
+// TimeDecl returns the dataset's own time declaration.
+func (t TimeSelection) TimeDecl() TimeDecl {
+	return TimeDecl{Units: t.Units, Calendar: t.Calendar, Climatology: t.Climatology}
+}
+
+// For returns the time declaration of role r: its own (ByRole), else the
+// dataset's.
+func (t TimeSelection) For(r cf.Role) TimeDecl {
+	if d, ok := t.ByRole[r]; ok {
+		return d
+	}
+	return t.TimeDecl()
+}
+
 // Selects reports whether the time step of the given year and month
-// (1–12) is part of the analysis. For a climatology the year is ignored.
+// (1–12) is part of the analysis. For a climatology (the time declaration
+// of sst) the year is ignored.
 func (t TimeSelection) Selects(year, month int) bool {
 	if month < 1 || month > 12 {
 		return false
@@ -149,7 +179,7 @@ func (t TimeSelection) Selects(year, month int) bool {
 			return false
 		}
 	}
-	if t.Climatology {
+	if t.For(cf.RoleSST).Climatology {
 		return true
 	}
 	ym := calendar.YearMonth{Year: year, Month: month}
@@ -398,9 +428,10 @@ func (d *Dataset) levelOf(r cf.Role) float64 {
 // Spec returns how cf should read role r: the variable (if named), the
 // pressure level (70000 Pa for air_temperature, and for
 // specific_humidity when ECTEI is on; 50000 Pa for omega; else none),
-// units and coordinate overrides, and the dataset's time overrides.
-// The time overrides are not given to the mask roles (land_fraction,
-// sea_fraction), which lidscope reads as fixed fields.
+// units and coordinate overrides, and the role's time declaration
+// ([TimeSelection.For]: its own, else the dataset's). No time declaration
+// is given to the mask roles (land_fraction, sea_fraction), which lidscope
+// reads as fixed fields.
 func (d *Dataset) Spec(r cf.Role) cf.Spec {
 	return d.SpecAt(r, d.levelOf(r))
 }
@@ -413,7 +444,8 @@ func (d *Dataset) SpecAt(r cf.Role, p float64) cf.Spec {
 	s.Lat, s.Lon, s.Overrides.Level, s.Time, s.LevelUnits = c.Lat, c.Lon, c.Level, c.Time, c.LevelUnits
 	s.Units = d.Units[r]
 	if r != cf.RoleLandFraction && r != cf.RoleSeaFraction {
-		s.TimeUnits, s.Calendar, s.Climatology = d.Time.Units, d.Time.Calendar, d.Time.Climatology
+		t := d.Time.For(r)
+		s.TimeUnits, s.Calendar, s.Climatology = t.Units, t.Calendar, t.Climatology
 	}
 	return s
 }

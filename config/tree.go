@@ -14,11 +14,15 @@ import (
 const EnvPrefix = "LIDSCOPE_"
 
 // EnvName returns the environment variable that overrides a dotted key:
-// EnvPrefix, then the key in capitals with dots replaced by underscores
-// ("datasets.0.metrics.svp" → "LIDSCOPE_DATASETS_0_METRICS_SVP").
+// EnvPrefix, then the key in capitals with dots and hyphens replaced by
+// underscores ("datasets.obs-v2.conventions.svp" →
+// "LIDSCOPE_DATASETS_OBS_V2_CONVENTIONS_SVP"), so that every name can be
+// set from a shell.
 func EnvName(dotted string) string {
-	return EnvPrefix + strings.ToUpper(strings.ReplaceAll(dotted, ".", "_"))
+	return EnvPrefix + strings.ToUpper(envSep.Replace(dotted))
 }
+
+var envSep = strings.NewReplacer(".", "_", "-", "_")
 
 // parseValue reads an override value the way a YAML flow value is read:
 // "1.5" is a number, "true" a boolean, "[12, 1, 2]" a list and
@@ -70,10 +74,18 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 	for i, part := range parts {
 		last := i == len(parts)-1
 		switch k.kind {
-		case kTable, kRoles, kNamed, kEdges:
+		case kTable, kRoles, kNamed, kEdges, kNames:
 			m, ok := node.(map[string]any)
 			if !ok {
 				return fmt.Errorf("%s is not a table in the study, so %s cannot be set", done, path)
+			}
+			if k.kind == kNames {
+				if _, ok := m[part]; !ok {
+					return fmt.Errorf("the study has no %s %q, and flags and the environment cannot add one; %s", k.what, part, suggestNames(part, m))
+				}
+				if last {
+					return fmt.Errorf("%s %q is a whole table and cannot be set in one value; set its keys (e.g. %s.time.start)", k.what, part, join(done, part))
+				}
 			}
 			child := k.child(part)
 			if child == nil {
@@ -82,6 +94,9 @@ func setPath(tree map[string]any, path string, val any, remove bool) error {
 					where = "in " + done
 				}
 				return fmt.Errorf("unknown key %q %s; %s", part, where, suggest(part, k.names()))
+			}
+			if last && child.kind == kNames {
+				return fmt.Errorf("%s cannot be set as a whole from outside the study (flags and the environment change the keys of its entries, e.g. %s.NAME.time.start)", join(done, part), join(done, part))
 			}
 			if last {
 				if remove {
@@ -145,6 +160,13 @@ func envPaths(tree map[string]any) []string {
 			for _, n := range k.names() {
 				gen(k.child(n), join(path, n), m[n])
 			}
+		case kNames:
+			// only the names present in the study (a dataset cannot be
+			// added from the environment)
+			m, _ := node.(map[string]any)
+			for _, n := range sortedKeys(m) {
+				gen(k.elem, join(path, n), m[n])
+			}
 		case kEdges:
 			// the whole value (a list or a table), then the table's keys
 			out = append(out, path)
@@ -152,9 +174,7 @@ func envPaths(tree map[string]any) []string {
 				out = append(out, join(path, n))
 			}
 		case kList:
-			if path != "datasets" {
-				out = append(out, path)
-			}
+			out = append(out, path)
 			l, _ := node.([]any)
 			for i, x := range l {
 				gen(k.elem, join(path, strconv.Itoa(i)), x)
@@ -213,7 +233,7 @@ func applyOverrides(tree map[string]any, opt LoadOptions, file string, origins m
 		p := strings.ToLower(strings.TrimSpace(k))
 		org := "flag " + k
 		if p == "" || strings.Contains(p, "..") || strings.HasPrefix(p, ".") || strings.HasSuffix(p, ".") {
-			probs = append(probs, Problem{File: file, Key: k, Origin: org, Msg: "not a dotted key path such as analysis.threshold or datasets.0.metrics.svp"})
+			probs = append(probs, Problem{File: file, Key: k, Origin: org, Msg: "not a dotted key path such as analysis.threshold or datasets.NAME.conventions.svp"})
 			continue
 		}
 		v, rm := parseValue(raw)
@@ -229,7 +249,8 @@ func applyOverrides(tree map[string]any, opt LoadOptions, file string, origins m
 
 // checkKeys walks tree against the schema and reports unknown keys (with
 // the nearest valid key), values of the wrong shape, and keys written with
-// capitals.
+// capitals. Names of a kNames table (dataset names) are checked by the
+// decoder.
 func checkKeys(tree map[string]any, w *where) []Problem {
 	var probs []Problem
 	var walk func(k *key, path string, node any)
@@ -238,10 +259,14 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 			return // "key:" with nothing after it is the same as no key
 		}
 		switch k.kind {
-		case kTable, kRoles, kNamed, kEdges:
+		case kTable, kRoles, kNamed, kEdges, kNames:
 			m, ok := node.(map[string]any)
 			if k.kind == kEdges && !ok {
 				return // a list: its numbers are checked when it is decoded
+			}
+			if _, isList := node.([]any); isList && k.kind == kNames {
+				probs = append(probs, w.problem(path, fmt.Sprintf("must be a table keyed by %s name, not a list: write each %s as \"NAME:\" with its keys indented below it (no \"- name:\" entries)", k.what, k.what)))
+				return
 			}
 			if !ok {
 				probs = append(probs, w.problem(path, fmt.Sprintf("must be a table of keys, not %s", describe(node))))
@@ -266,6 +291,14 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 					where := "at the top of the study"
 					if path != "" {
 						where = "in " + path
+					}
+					if now, old := renamed[k][n]; old {
+						msg := fmt.Sprintf("%q is a key of the earlier study layout; it is called %q now", n, now)
+						if now == "" {
+							msg = fmt.Sprintf("%q is a key of the earlier study layout: a dataset's name is now its key under datasets", n)
+						}
+						probs = append(probs, w.problem(p, msg))
+						continue
 					}
 					probs = append(probs, w.problem(p, fmt.Sprintf("unknown %s %q %s; %s", what, n, where, suggest(n, k.names()))))
 					continue
@@ -293,6 +326,18 @@ func checkKeys(tree map[string]any, w *where) []Problem {
 	}
 	walk(schema, "", tree)
 	return probs
+}
+
+// suggestNames says which names a kNames table of the study has.
+func suggestNames(name string, m map[string]any) string {
+	names := sortedKeys(m)
+	if len(names) == 0 {
+		return "the study has none"
+	}
+	if n := nearest(name, names); n != "" {
+		return fmt.Sprintf("did you mean %q?", n)
+	}
+	return "the study has: " + strings.Join(names, ", ")
 }
 
 // describe names the shape of a raw value for error messages.
