@@ -72,8 +72,8 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 		return reps[0]
 	}
 	whole := run(filepath.Join(dir, "whole"), nil)
-	a := run(filepath.Join(dir, "a"), map[string]string{"datasets.0.time.end": "2002-07"})
-	b := run(filepath.Join(dir, "b"), map[string]string{"datasets.0.time.start": "2002-08"})
+	a := run(filepath.Join(dir, "a"), map[string]string{"datasets.synthetic-demo.time.end": "2002-07"})
+	b := run(filepath.Join(dir, "b"), map[string]string{"datasets.synthetic-demo.time.start": "2002-08"})
 	// merge in the wrong order on purpose: Merge sorts by time
 	m, err := Merge([]string{b.OutDir, a.OutDir}, filepath.Join(dir, "merged"), Options{})
 	if err != nil {

@@ -73,7 +73,7 @@ func TestBadErrorsWrap(t *testing.T) {
 			return nil
 		}, netcdf.ErrNotNetCDF},
 		{"the study names a variable the file lacks", func(t *testing.T, dir string) map[string]string {
-			return map[string]string{"datasets.0.variables": "{sst: tos}"}
+			return map[string]string{"datasets.bad-lib.variables": "{sst: tos}"}
 		}, netcdf.ErrNotVar},
 	}
 	for _, c := range cases {

@@ -265,8 +265,8 @@ func TestMergeRefusesAnomalyPieces(t *testing.T) {
 		}
 		return reps[0]
 	}
-	a := run(filepath.Join(dir, "a"), map[string]string{"datasets.0.time.end": "2002-07"})
-	b := run(filepath.Join(dir, "b"), map[string]string{"datasets.0.time.start": "2002-08"})
+	a := run(filepath.Join(dir, "a"), map[string]string{"datasets.synthetic-demo.time.end": "2002-07"})
+	b := run(filepath.Join(dir, "b"), map[string]string{"datasets.synthetic-demo.time.start": "2002-08"})
 	out := filepath.Join(dir, "merged")
 	_, err := Merge([]string{a.OutDir, b.OutDir}, out, Options{})
 	if err == nil || !strings.Contains(err.Error(), "anomaly mode") || !strings.Contains(err.Error(), b.OutDir) || !strings.Contains(err.Error(), "whole record in one run") {

@@ -105,7 +105,7 @@
 //     regime statistics, crossings, dwell times and the tropical-mean
 //     series); air_temperature adds LTS and EIS, and low_cloud or cloud
 //     (see analysis.cloud) the cloud statistics and, with air_temperature,
-//     the relationships ([Dataset.Lacks]). A glob that matches no file is
+//     the relationships (pipeline.Plan.Lacks). A glob that matches no file is
 //     an error naming the role and the pattern.
 //   - variables: role → variable name; by default cf finds the variable by
 //     standard_name, then by an unambiguous name with fitting units.

@@ -69,7 +69,7 @@ func noBandSST(sst *field, vals []float32, bandW []float64, ocean []bool, st ste
 			oc++
 		}
 	}
-	return fmt.Errorf("role sst, %s: no SST value in the band %g…%g°N is over ocean (%d SST values present, %d ocean cells in the band per the ocean mask, none both, or all excluded as sea ice); check the ocean mask (ocean.mask, ocean.min_ocean_fraction) and the sea-ice limit", where, band.South, band.North, present, oc)
+	return fmt.Errorf("role sst, %s: no SST value in the band %g…%g°N is over ocean (%d SST values present, %d ocean cells in the band per the ocean mask, none both, or all excluded as sea ice); check the ocean mask (ocean.mask, ocean.min_fraction) and the sea-ice limit", where, band.South, band.North, present, oc)
 }
 
 // readMask fills ocean from the mask field.

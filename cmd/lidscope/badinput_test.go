@@ -76,14 +76,14 @@ func TestBadMissingRole(t *testing.T) {
 				return replaceOnce(s, `      low_cloud: "low_cloud/*.nc"`, `      # low cloud left out`)
 			})
 		}, func(d string) []string {
-			return []string{"study.yaml:7: datasets.0.inputs:", `analysis.cloud is low_cloud, but dataset "bad-input" has no low_cloud input`}
+			return []string{"study.yaml:7: datasets.bad-input.files:", `analysis.cloud is low_cloud, but dataset "bad-input" has no low_cloud input`}
 		}},
 		{"no sst input in the study", func(t *testing.T, d string) string {
 			return badStudy(t, d, func(s string) string {
 				return replaceOnce(s, `      sst: "sst/*.nc"`, `      # sst left out`)
 			})
 		}, func(d string) []string {
-			return []string{"study.yaml:7: datasets.0.inputs:", "needs an input for role sst (inputs.sst): SST is the minimum"}
+			return []string{"study.yaml:7: datasets.bad-input.files:", "needs files for role sst (files.sst): SST is the minimum"}
 		}},
 		{"the glob matches no file", func(t *testing.T, d string) string {
 			for _, f := range badFiles(t, d, "low_cloud", 2) {
@@ -93,7 +93,7 @@ func TestBadMissingRole(t *testing.T) {
 			}
 			return badStudy(t, d, nil)
 		}, func(d string) []string {
-			return []string{"study.yaml:10: datasets.0.inputs.low_cloud:", `role low_cloud: no file matches "low_cloud/*.nc"`, "check the path"}
+			return []string{"study.yaml:10: datasets.bad-input.files.low_cloud:", `role low_cloud: no file matches "low_cloud/*.nc"`, "check the path"}
 		}},
 		{"the file does not hold the role", func(t *testing.T, d string) string {
 			return badStudy(t, d, func(s string) string { return replaceOnce(s, `low_cloud: "low_cloud/*.nc"`, `low_cloud: "sst/*.nc"`) })
@@ -150,7 +150,7 @@ func TestBadUnits(t *testing.T) {
 		{"study units are not a temperature", func(t *testing.T, d string) string {
 			return badStudy(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: m}\n    ocean:\n") })
 		}, func(d string) []string {
-			return []string{"study.yaml:12: datasets.0.units.sst:", `"m" is not a temperature unit`}
+			return []string{"study.yaml:12: datasets.bad-input.units.sst:", `"m" is not a temperature unit`}
 		}},
 		{"no units attribute", func(t *testing.T, d string) string {
 			replaceSST(t, d, -1, netcdf.FormatNetCDF4Classic, attr(nil))
@@ -515,8 +515,8 @@ func TestBadStudyTypo(t *testing.T) {
 		want     string // key path and suggestion, after "study.yaml:LINE: "
 	}{
 		{"  threshold: 1.5", "  thresold: 1.5", `analysis.thresold: unknown key "thresold" in analysis; did you mean "threshold"?`},
-		{"min_ocean_fraction:", "min_ocean_fracton:", `datasets.0.ocean.min_ocean_fracton: unknown key "min_ocean_fracton" in datasets.0.ocean; did you mean "min_ocean_fraction"?`},
-		{`low_cloud: "low_cloud/*.nc"`, `low_clod: "low_cloud/*.nc"`, `datasets.0.inputs.low_clod: unknown role "low_clod" in datasets.0.inputs; did you mean "low_cloud"?`},
+		{"min_fraction:", "min_fracton:", `datasets.bad-input.ocean.min_fracton: unknown key "min_fracton" in datasets.bad-input.ocean; did you mean "min_fraction"?`},
+		{`low_cloud: "low_cloud/*.nc"`, `low_clod: "low_cloud/*.nc"`, `datasets.bad-input.files.low_clod: unknown role "low_clod" in datasets.bad-input.files; did you mean "low_cloud"?`},
 		{"analysis:\n", "analysys:\n", `analysys: unknown key "analysys" at the top of the study; did you mean "analysis"?`},
 	}
 	for _, c := range cases {

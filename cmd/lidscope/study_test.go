@@ -94,7 +94,7 @@ func TestStudyInitWrites(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(out.String(), "# sha256 "+r.Hash()) || !strings.Contains(out.String(), `"threshold_k": 1,`) ||
+	if !strings.Contains(out.String(), "# sha256 "+r.Hash()) || !strings.Contains(out.String(), `"threshold": 1,`) ||
 		!strings.Contains(out.String(), "# analysis.threshold = 1.0 (flag analysis.threshold)") {
 		t.Errorf("check output:\n%s", out.String())
 	}
@@ -154,10 +154,10 @@ func TestStudyUsage(t *testing.T) {
 	}
 	// a study with problems: exit 1, every problem listed
 	p := filepath.Join(dir, "bad.yaml")
-	os.WriteFile(p, []byte("datasets:\n  - name: x\nanalysis:\n  treshold: 1\n"), 0o644)
+	os.WriteFile(p, []byte("datasets:\n  x:\n    about: no files\nanalysis:\n  treshold: 1\n"), 0o644)
 	var out, errb bytes.Buffer
 	if code := run([]string{"study", "check", p}, &out, &errb); code != 1 ||
-		!strings.Contains(errb.String(), p+":4: analysis.treshold") || !strings.Contains(errb.String(), p+":2: datasets.0") {
+		!strings.Contains(errb.String(), p+":5: analysis.treshold") || !strings.Contains(errb.String(), p+":2: datasets.x") {
 		t.Errorf("exit %d, stderr %q", code, errb.String())
 	}
 }
