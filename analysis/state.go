@@ -31,7 +31,9 @@ const StateFile = "run-state.gob"
 
 // stateFormat tags the run state; bump it whenever runState or the file
 // layout changes. Version 2 added the relationship accumulator; version 3
-// the integrity header.
+// the integrity header, and names the provenance after the study
+// (output.Meta.Study, StudyHash, MetricsConventions), which a version-2
+// state holds under earlier names that gob would silently drop.
 const stateFormat = "lidscope-run-state/3"
 
 // The run state file is a header of three fixed-width lines and the body

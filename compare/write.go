@@ -303,7 +303,7 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		Scalars    map[string]jnum `json:"reference_scalars"`
 		Estimates  map[string]any  `json:"reference_estimates"`
 		Method     string          `json:"uncertainty_of_differences"`
-	}{Format: "lidscope-comparison/1", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
+	}{Format: "lidscope-comparison/2", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
 		Estimates: map[string]any{}, Method: CombinedMethod}
 	if doc.Mismatches == nil {
 		doc.Mismatches = []string{}

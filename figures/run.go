@@ -35,12 +35,13 @@ type Run struct {
 
 // summaryJSON is the part of summary.json the figures use.
 type summaryJSON struct {
-	Format    string `json:"format"`
-	Dataset   string `json:"dataset"`
-	Title     string `json:"title"`
-	Version   string `json:"lidscope_version"`
-	StudyHash string `json:"study_hash"`
-	Period    struct {
+	Format        string `json:"format"`
+	FormatVersion int    `json:"format_version"`
+	Dataset       string `json:"dataset"`
+	Title         string `json:"title"`
+	Version       string `json:"lidscope_version"`
+	StudyHash     string `json:"study_hash"`
+	Period        struct {
 		Label string `json:"label"`
 	} `json:"period"`
 	Regime struct {
@@ -81,6 +82,9 @@ func Load(dir string) (*Run, error) {
 	}
 	if s.Format != output.SummaryFormat {
 		return nil, fmt.Errorf("figures: %s has format %q, want %q: it was not written by lidscope", p, s.Format, output.SummaryFormat)
+	}
+	if s.FormatVersion != output.FormatVersion {
+		return nil, fmt.Errorf("figures: %s has format_version %d; this lidscope reads version %d (earlier versions name the study by an earlier word): re-run the analysis of %s with this version", p, s.FormatVersion, output.FormatVersion, dir)
 	}
 	return &Run{
 		Dir: dir, Dataset: s.Dataset, Title: s.Title, Version: s.Version, StudyHash: s.StudyHash,

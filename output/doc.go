@@ -109,7 +109,7 @@
 //
 // # summary.json
 //
-// An object with "format": "lidscope-summary" and "format_version": 1.
+// An object with "format": "lidscope-summary" and "format_version": 2.
 // Every number is written as {"value": x, "units": "K"} ("value": null for
 // no data; counts have units "1"). A statistic over a sample is
 // {"mean": N, "std": N, "n": N} with those numbers; std is the population
@@ -136,7 +136,7 @@
 //
 // # provenance.json
 //
-// "format": "lidscope-provenance", "format_version": 1; lidscope_version,
+// "format": "lidscope-provenance", "format_version": 2; lidscope_version,
 // command, dataset, title, study {text, hash}, metrics_conventions,
 // regime_definition, inputs [{role, path, size, modified, sha256}], run
 // {start, end (RFC 3339, UTC), duration}, host {os, arch, go_version,

@@ -9,11 +9,12 @@ import (
 )
 
 // Format names and versions of the JSON files, so that readers can check
-// what they parse.
+// what they parse. Version 2 names the configuration a study (study_hash,
+// study, metrics_conventions), where version 1 used an earlier word.
 const (
 	SummaryFormat    = "lidscope-summary"
 	ProvenanceFormat = "lidscope-provenance"
-	FormatVersion    = 1
+	FormatVersion    = 2
 )
 
 type summary struct {

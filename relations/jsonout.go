@@ -31,7 +31,7 @@ func box4(s, n, w, e float64) *jBox {
 func jsonDoc(r *Results, meta Meta) map[string]any {
 	doc := map[string]any{
 		"format":              "lidscope-relationships",
-		"format_version":      1,
+		"format_version":      FormatVersion,
 		"dataset":             meta.Dataset,
 		"title":               meta.Title,
 		"lidscope_version":    meta.Version,

@@ -41,6 +41,10 @@ func (c rjci) iv() Interval { return Interval{Lo: c.Lo.f(), Hi: c.Hi.f()} }
 
 // readDoc is the part of relationships.json (relations/doc.go,
 // format "lidscope-relationships", version 1) that ReadResults restores.
+// FormatVersion is the format_version of relationships.json. Version 2
+// names the study (study_hash) where version 1 used an earlier word.
+const FormatVersion = 2
+
 type readDoc struct {
 	Format           string `json:"format"`
 	FormatVersion    int    `json:"format_version"`
@@ -141,9 +145,10 @@ func parseRegimeName(s string) (regimes.Regime, error) {
 }
 
 // ReadResults reads a run's relationships.json (written by Write, format
-// "lidscope-relationships" version 1) from dir back into Results: the
-// mode, configuration text, regime definition and uncertainty method, the
-// binned tables, joint composites, regressions, two-predictor partial
+// "lidscope-relationships" version FormatVersion) from dir back into
+// Results; an earlier version is refused with a request to re-run. It
+// restores the mode, configuration text, regime definition and
+// uncertainty method, the binned tables, joint composites, regressions, two-predictor partial
 // regressions, flips and threshold. It returns (nil, nil) when dir has no
 // such file (a merged run, or one made before relationships existed).
 func ReadResults(runDir string) (*Results, error) {
@@ -159,8 +164,11 @@ func ReadResults(runDir string) (*Results, error) {
 	if err := json.Unmarshal(b, &j); err != nil {
 		return nil, fmt.Errorf("relations: %s is not valid JSON: %w", p, err)
 	}
-	if j.Format != "lidscope-relationships" || j.FormatVersion != 1 {
-		return nil, fmt.Errorf("relations: %s has format %q version %d; this lidscope reads \"lidscope-relationships\" version 1", p, j.Format, j.FormatVersion)
+	if j.Format != "lidscope-relationships" {
+		return nil, fmt.Errorf("relations: %s has format %q; this lidscope reads \"lidscope-relationships\" version %d", p, j.Format, FormatVersion)
+	}
+	if j.FormatVersion != FormatVersion {
+		return nil, fmt.Errorf("relations: %s has format version %d; this lidscope reads version %d (earlier versions name the study by an earlier word): re-run the analysis of %s with this version", p, j.FormatVersion, FormatVersion, runDir)
 	}
 	bad := func(what string, err error) error {
 		return fmt.Errorf("relations: %s: %s: %w", p, what, err)

@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -58,8 +59,14 @@ func TestReadResultsRoundTrip(t *testing.T) {
 	}
 	// A partial regression with one coefficient is refused, naming it.
 	bad := filepath.Join(t.TempDir(), RelationshipsJSON)
-	os.WriteFile(bad, []byte(`{"format":"lidscope-relationships","format_version":1,"mode":"climatological","partial_regressions":[{"regime":"subsidence","coefficients":[{}]}]}`), 0o644)
+	os.WriteFile(bad, []byte(`{"format":"lidscope-relationships","format_version":2,"mode":"climatological","partial_regressions":[{"regime":"subsidence","coefficients":[{}]}]}`), 0o644)
 	if _, err := ReadResults(filepath.Dir(bad)); err == nil {
 		t.Error("a one-coefficient partial regression was accepted")
+	}
+	// Version 1 (the study under an earlier name) asks for a re-run.
+	old := filepath.Join(t.TempDir(), RelationshipsJSON)
+	os.WriteFile(old, []byte(`{"format":"lidscope-relationships","format_version":1,"mode":"climatological"}`), 0o644)
+	if _, err := ReadResults(filepath.Dir(old)); err == nil || !strings.Contains(err.Error(), "re-run") || !strings.Contains(err.Error(), "version 1") {
+		t.Errorf("version 1: %v", err)
 	}
 }
