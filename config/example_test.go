@@ -125,9 +125,7 @@ analysis:
 	// Output:
 	// obs 2 sst files; convective where SST − tropical-mean SST > 1 K, subsidence otherwise
 	// months since 1979-01-01 / true
-	// study (study text) has 3 problems:
-	//   (study text):3: datasets.obs.files: dataset "obs" needs a cloud input: files.low_cloud (preferred) or files.cloud
-	//   (study text):3: datasets.obs.files: dataset "obs" needs files for role air_temperature (files.air_temperature)
+	// study (study text) has a problem:
 	//   (study text):3: datasets.obs.files.sst: dataset "obs", role sst: no file matches "nowhere.nc" (relative to the study's folder testdata); check the path
 }
 

@@ -14,7 +14,7 @@ type Problem struct {
 	// Line is the line of the key in File (1-based), 0 when unknown or
 	// when the value came from a flag or the environment.
 	Line int
-	// Key is the dotted key path, e.g. "datasets.0.ocean.mask"; list
+	// Key is the dotted key path, e.g. "datasets.obs.ocean.mask"; list
 	// elements are numbered from 0. Empty for problems of the whole file.
 	Key string
 	// Origin names a flag or environment variable when the value came
