@@ -29,7 +29,7 @@ type calcOptions struct {
 	SurfaceHumidity           string // surface.humidity: an assumed RH, "field" or a humidity role
 	SVP, LCL, LapseMoisture   string
 	LapsePressure             string
-	ECTEI                     bool // metrics.ectei; with ECTEISet false, ECTEI is on when Q700 is given
+	ECTEI                     bool // conventions.ectei; with ECTEISet false, ECTEI is on when Q700 is given
 	ECTEISet                  bool
 	ECTEISurface              string
 	Beta                      float64
@@ -39,7 +39,7 @@ type calcOptions struct {
 
 // calcStudyKeys pairs every calc flag that sets a metrics convention with
 // the study key (package config, under each dataset) of the same setting.
-// The flag is the key with "-" for "_", without "metrics." and
+// The flag is the key with "-" for "_", without "conventions." and
 // "constants." and with "surface." as "surface-", and it takes the same
 // values: a user can copy one to the other. Values that name a field of a
 // file ("field", a humidity role) have their calc counterpart in the flag
@@ -48,21 +48,21 @@ var calcStudyKeys = []struct{ Flag, Key string }{
 	{"surface-temperature", "surface.temperature"},
 	{"surface-pressure", "surface.pressure"},
 	{"surface-humidity", "surface.humidity"},
-	{"svp", "metrics.svp"},
-	{"lcl", "metrics.lcl"},
-	{"t850", "metrics.t850"},
-	{"lapse-pressure", "metrics.lapse_pressure"},
-	{"lapse-moisture", "metrics.lapse_moisture"},
-	{"ectei", "metrics.ectei"},
-	{"ectei-beta", "metrics.ectei_beta"},
-	{"ectei-surface", "metrics.ectei_surface"},
-	{"rd", "metrics.constants.rd"},
-	{"rv", "metrics.constants.rv"},
-	{"cpd", "metrics.constants.cpd"},
-	{"lv0", "metrics.constants.lv0"},
-	{"lv-slope", "metrics.constants.lv_slope"},
-	{"g", "metrics.constants.g"},
-	{"p0", "metrics.constants.p0"},
+	{"svp", "conventions.svp"},
+	{"lcl", "conventions.lcl"},
+	{"t850", "conventions.t850"},
+	{"lapse-pressure", "conventions.lapse_pressure"},
+	{"lapse-moisture", "conventions.lapse_moisture"},
+	{"ectei", "conventions.ectei"},
+	{"ectei-beta", "conventions.ectei_beta"},
+	{"ectei-surface", "conventions.ectei_surface"},
+	{"rd", "conventions.constants.rd"},
+	{"rv", "conventions.constants.rv"},
+	{"cpd", "conventions.constants.cpd"},
+	{"lv0", "conventions.constants.lv0"},
+	{"lv-slope", "conventions.constants.lv_slope"},
+	{"g", "conventions.constants.g"},
+	{"p0", "conventions.constants.p0"},
 }
 
 func init() { addCommand(newCalcCmd) }
@@ -80,8 +80,8 @@ intermediate value with its unit and the metrics conventions used. Quantities ta
 (--surface-humidity), and the output says so.
 
 The flags that choose the metrics conventions have the names and values of the study
-keys of the same settings (--svp bolton is metrics.svp: bolton, --surface-pressure
-1013hPa is surface.pressure: 1013hPa, --lv-slope 2370 is metrics.constants.lv_slope:
+keys of the same settings (--svp bolton is conventions.svp: bolton, --surface-pressure
+1013hPa is surface.pressure: 1013hPa, --lv-slope 2370 is conventions.constants.lv_slope:
 2370), so a column computed here uses what a study with the same keys uses.`,
 		Example: `  lidscope calc --sst 16.85degC --t700 282K
   lidscope calc --sst 300K --t700 10.85degC --surface-pressure 1015hPa --dew-point 295K --t850 290K --q700 4g/kg --json

@@ -46,7 +46,7 @@ func studyMetricsKeys(t *testing.T, study string) (prefix string, keys []string)
 		t.Fatal(err)
 	}
 	for _, p := range []string{"datasets.0", "datasets." + r.Datasets[0].Name} {
-		if asked[config.EnvName(p+".metrics.svp")] {
+		if asked[config.EnvName(p+".conventions.svp")] {
 			prefix = p
 		}
 	}
@@ -54,7 +54,7 @@ func studyMetricsKeys(t *testing.T, study string) (prefix string, keys []string)
 		t.Fatalf("no environment variable for the svp key of dataset %q among %d asked", r.Datasets[0].Name, len(asked))
 	}
 	for name := range asked {
-		for _, table := range []string{"metrics", "surface"} {
+		for _, table := range []string{"conventions", "surface"} {
 			if strings.HasPrefix(name, config.EnvName(prefix+"."+table+".")) {
 				keys = append(keys, name)
 			}
@@ -65,9 +65,9 @@ func studyMetricsKeys(t *testing.T, study string) (prefix string, keys []string)
 }
 
 // calcFlagFor is the naming rule of calcStudyKeys: the study key with "-"
-// for "_", without "metrics." and "constants.", "surface." as "surface-".
+// for "_", without "conventions." and "constants.", "surface." as "surface-".
 func calcFlagFor(key string) string {
-	k := strings.TrimPrefix(key, "metrics.")
+	k := strings.TrimPrefix(key, "conventions.")
 	k = strings.TrimPrefix(k, "constants.")
 	k = strings.Replace(k, "surface.", "surface-", 1)
 	return strings.ReplaceAll(k, "_", "-")
@@ -125,27 +125,27 @@ func TestCalcFlagValuesAreStudyValues(t *testing.T) {
 		{key: "surface.pressure", value: "101000"},
 		{key: "surface.humidity", value: "0.75"},
 		{key: "surface.humidity", value: "75%"},
-		{key: "metrics.svp", value: "bolton"},
-		{key: "metrics.svp", value: "murphy-koop"},
-		{key: "metrics.lcl", value: "romps"},
-		{key: "metrics.lcl", value: "bolton"},
-		{key: "metrics.lcl", value: "linear"},
-		{key: "metrics.t850", value: "mean"},
-		{key: "metrics.t850", value: "field", calcArgs: []string{"--t850", "288K"}},
-		{key: "metrics.lapse_pressure", value: "800hPa"},
-		{key: "metrics.lapse_moisture", value: "rs"},
-		{key: "metrics.lapse_moisture", value: "qs"},
-		{key: "metrics.ectei", value: "false", calcArgs: []string{"--ectei=false"}},
-		{key: "metrics.ectei_beta", value: "0.3", ectei: true},
-		{key: "metrics.ectei_surface", value: "saturated", ectei: true},
-		{key: "metrics.ectei_surface", value: "air", ectei: true},
-		{key: "metrics.constants.rd", value: "287.05"},
-		{key: "metrics.constants.rv", value: "461.52"},
-		{key: "metrics.constants.cpd", value: "1005.7"},
-		{key: "metrics.constants.lv0", value: "2.5e6"},
-		{key: "metrics.constants.lv_slope", value: "2370"},
-		{key: "metrics.constants.g", value: "9.81"},
-		{key: "metrics.constants.p0", value: "101325"},
+		{key: "conventions.svp", value: "bolton"},
+		{key: "conventions.svp", value: "murphy-koop"},
+		{key: "conventions.lcl", value: "romps"},
+		{key: "conventions.lcl", value: "bolton"},
+		{key: "conventions.lcl", value: "linear"},
+		{key: "conventions.t850", value: "mean"},
+		{key: "conventions.t850", value: "field", calcArgs: []string{"--t850", "288K"}},
+		{key: "conventions.lapse_pressure", value: "800hPa"},
+		{key: "conventions.lapse_moisture", value: "rs"},
+		{key: "conventions.lapse_moisture", value: "qs"},
+		{key: "conventions.ectei", value: "false", calcArgs: []string{"--ectei=false"}},
+		{key: "conventions.ectei_beta", value: "0.3", ectei: true},
+		{key: "conventions.ectei_surface", value: "saturated", ectei: true},
+		{key: "conventions.ectei_surface", value: "air", ectei: true},
+		{key: "conventions.constants.rd", value: "287.05"},
+		{key: "conventions.constants.rv", value: "461.52"},
+		{key: "conventions.constants.cpd", value: "1005.7"},
+		{key: "conventions.constants.lv0", value: "2.5e6"},
+		{key: "conventions.constants.lv_slope", value: "2370"},
+		{key: "conventions.constants.g", value: "9.81"},
+		{key: "conventions.constants.p0", value: "101325"},
 	}
 	tested := map[string]bool{}
 	for _, c := range cases {
