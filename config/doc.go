@@ -74,8 +74,10 @@
 //
 // The variable name is "LIDSCOPE_" followed by the key path in capitals
 // with dots and hyphens replaced by underscores ([EnvName]); two dataset
-// names that differ only in - and _ are therefore refused. Only datasets
-// present in the file can be overridden (there is no way to add a dataset
+// names that differ only in - and _ are therefore refused. A flag key
+// datasets.*.KEY sets KEY in every dataset (quote it in a shell: --set
+// 'datasets.*.time.end=2002-12'). Only datasets present in the file can
+// be overridden (there is no way to add a dataset
 // from a flag or the environment, nor to set the datasets table or one
 // dataset as a whole), and empty variables are ignored. Values are read as YAML
 // flow values: "1.0" is a number, "true" a boolean, "[12, 1, 2]" (or, for

@@ -17,7 +17,8 @@ import (
 // LoadOptions are the values that override the study file.
 type LoadOptions struct {
 	// Flags maps dotted keys to values, as given on the command line, e.g.
-	// "analysis.threshold": "1.0" or "datasets.obs.conventions.svp": "bolton".
+	// "analysis.threshold": "1.0" or "datasets.obs.conventions.svp": "bolton";
+	// "datasets.*.KEY" sets KEY in every dataset.
 	// Values are read like YAML flow values ("[12, 1, 2]" is a list,
 	// "null" removes the key so that its default applies). Flags win over
 	// the environment, which wins over the file.

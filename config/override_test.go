@@ -74,7 +74,8 @@ analysis:
 		"analysis.band":                            "{south: -20, north: 20}",
 		"datasets.second-run.surface.humidity":     "75%",
 		"datasets.base.time.low_cloud.climatology": "false",
-		"Analysis.Transition":                      "0.25", // keys are case-folded like the file's
+		"datasets.*.time.end":                      "2010-12", // every dataset
+		"Analysis.Transition":                      "0.25",    // keys are case-folded like the file's
 	}
 	r, err := config.Load(p, config.LoadOptions{Flags: flags, LookupEnv: envOf(env)})
 	if err != nil {
@@ -102,7 +103,10 @@ analysis:
 	if _, ok := d0.Time.ByRole[cf.RoleLowCloud]; !ok {
 		t.Errorf("per-role time from a flag: %+v", d0.Time.ByRole)
 	}
-	if len(r.Overrides) != 11 {
+	if d0.Time.End == nil || d1.Time.End == nil || d0.Time.End.String() != "2010-12" || d1.Time.End.String() != "2010-12" {
+		t.Errorf("datasets.* sets every dataset: %v %v", d0.Time.End, d1.Time.End)
+	}
+	if len(r.Overrides) != 13 {
 		t.Errorf("%d overrides recorded: %+v", len(r.Overrides), r.Overrides)
 	}
 	for _, o := range r.Overrides {

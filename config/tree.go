@@ -236,15 +236,36 @@ func applyOverrides(tree map[string]any, opt LoadOptions, file string, origins m
 			probs = append(probs, Problem{File: file, Key: k, Origin: org, Msg: "not a dotted key path such as analysis.threshold or datasets.NAME.conventions.svp"})
 			continue
 		}
-		v, rm := parseValue(raw)
-		if err := setPath(tree, p, v, rm); err != nil {
-			probs = append(probs, Problem{File: file, Key: p, Origin: org, Msg: err.Error()})
-			continue
+		for _, q := range everyDataset(tree, p) {
+			v, rm := parseValue(raw)
+			if err := setPath(tree, q, v, rm); err != nil {
+				probs = append(probs, Problem{File: file, Key: q, Origin: org, Msg: err.Error()})
+				continue
+			}
+			origins[q] = org
+			applied = append(applied, override{q, raw, org})
 		}
-		origins[p] = org
-		applied = append(applied, override{p, raw, org})
 	}
 	return applied, probs
+}
+
+// everyDataset expands a flag key "datasets.*.KEY" into that key of every
+// dataset of the study (in name order); other keys are returned as they
+// are.
+func everyDataset(tree map[string]any, p string) []string {
+	rest, ok := strings.CutPrefix(p, "datasets.*.")
+	if !ok {
+		return []string{p}
+	}
+	sets, _ := tree["datasets"].(map[string]any)
+	var out []string
+	for _, name := range sortedKeys(sets) {
+		out = append(out, "datasets."+name+"."+rest)
+	}
+	if len(out) == 0 {
+		return []string{p} // setPath says there is no such dataset
+	}
+	return out
 }
 
 // checkKeys walks tree against the schema and reports unknown keys (with

@@ -28,8 +28,8 @@ func newMergeCmd(e *env) *cobra.Command {
 		Long: `Joins finished runs of one dataset over consecutive pieces of its record (split by
 time range or by file set) into the results one run over the whole record gives,
 written into the folder --out.`,
-		Example: `  lidscope run obs/study.yaml --set datasets.0.time.end=2002-12 --out out/part1 --no-plots
-  lidscope run obs/study.yaml --set datasets.0.time.start=2003-01 --out out/part2 --no-plots
+		Example: `  lidscope run obs/study.yaml --set 'datasets.*.time.end=2002-12' --out out/part1 --no-plots
+  lidscope run obs/study.yaml --set 'datasets.*.time.start=2003-01' --out out/part2 --no-plots
   lidscope merge out/part1 out/part2 --out out/merged`,
 		Args:              minArgs(2, "give at least two run folders"),
 		ValidArgsFunction: dirArgs,

@@ -114,7 +114,7 @@ func TestStudyInitIncomplete(t *testing.T) {
 	if code := run([]string{"study", "init", "--output", outFile, bad}, &out, &errb); code != 0 {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}
-	if !strings.Contains(errb.String(), "does not load yet") || !strings.Contains(errb.String(), "needs an input for role sst") {
+	if !strings.Contains(errb.String(), "does not load yet") || !strings.Contains(errb.String(), "needs files for role sst") {
 		t.Errorf("stderr %q", errb.String())
 	}
 	text, _ := os.ReadFile(outFile)
