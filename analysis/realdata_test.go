@@ -58,20 +58,20 @@ func TestRealSSTOnlyStudy(t *testing.T) {
 	dir := t.TempDir()
 	studies := map[string]string{
 		"sst_mask": `datasets:
-  - name: str-sst
-    inputs:
+  str-sst:
+    files:
       sst: "` + sst + `"
     time: {climatology: true}
     ocean: {mask: sst}
 output: {dir: "` + dir + `", plots: true}
 `,
 		"categorical_mask": `datasets:
-  - name: str-sst-landsea
-    inputs:
+  str-sst-landsea:
+    files:
       sst: "` + sst + `"
       land_fraction: "` + mask + `"
     time: {climatology: true}
-    ocean: {mask: categorical, role: land_fraction, ocean_values: [0]}
+    ocean: {mask: categorical, from: land_fraction, values: [0]}
 analysis:
   grid: {target: sst}
 output: {dir: "` + dir + `", plots: true}

@@ -129,7 +129,7 @@ func runPieces(t *testing.T, dir string, pieces map[string][2]string) map[string
 	out := map[string]string{}
 	for name, p := range pieces {
 		r, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment,
-			Flags: map[string]string{"datasets.0.time.start": p[0], "datasets.0.time.end": p[1]}})
+			Flags: map[string]string{"datasets.*.time.start": p[0], "datasets.*.time.end": p[1]}})
 		if err != nil {
 			t.Fatal(err)
 		}
