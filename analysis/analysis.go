@@ -200,6 +200,9 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	// The relationship analysis relates cloud to EIS, LTS and relative
 	// SST: it needs both optional inputs.
 	noRel := NoRelations(plan)
+	if r.RelationsOff {
+		noRel = "no relationship analysis (relationships.enabled: false in the study)"
+	}
 	var clim *relations.Climatology
 	if noRel == "" && relCfg.Mode == relations.Anomaly {
 		// Pass 1: the climatology of every cell and calendar month.

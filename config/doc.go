@@ -208,6 +208,9 @@
 // its responses resolved. What each setting means is documented in
 // package relations.
 //
+//   - enabled (default true): false turns the relationship analysis off
+//     ([Study].RelationsOff): runs give the regime statistics only, without
+//     the relationship outputs and their cost.
 //   - mode: climatological (default: composites of the values) or anomaly
 //     (deseasonalised monthly anomalies, a second pass over the record).
 //     The two give slopes that are not comparable.

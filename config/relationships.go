@@ -75,6 +75,7 @@ var relKeys = strings.NewReplacer(
 // inputs decide which responses, indicators and predictors are available.
 func (d *decoder) relationships(m map[string]any, r *Study) {
 	const P = "relationships"
+	r.RelationsOff = !d.boolean(m, P, "enabled", true)
 	c := relations.Defaults()
 	c.Classifier = r.Analysis.Classifier()
 	for _, rg := range r.Analysis.Regions {

@@ -35,6 +35,7 @@ func TestRelationshipsValidation(t *testing.T) {
 		{"bad mode", rel + "  mode: anomalous\n", "relationships.mode", 8, "climatological, anomaly"},
 		{"detrend without anomaly mode", rel + "  mode: climatological\n  detrend: true\n", "relationships.detrend", 9, "needs mode: anomaly"},
 		{"detrend not boolean", rel + "  detrend: maybe\n", "relationships.detrend", 8, "true or false"},
+		{"enabled not boolean", rel + "  enabled: maybe\n", "relationships.enabled", 8, "true or false"},
 
 		// bins
 		{"unknown predictor", rel + "  bins:\n    eiss: [0, 1]\n", "relationships.bins.eiss", 9, `unknown predictor "eiss" in relationships.bins; did you mean "eis"?`},

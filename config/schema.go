@@ -142,6 +142,7 @@ var schema = table(map[string]*key{
 	}),
 	"output": table(map[string]*key{"dir": str, "plots": boolean}),
 	"relationships": table(map[string]*key{
+		"enabled": boolean,
 		"mode":    str,
 		"detrend": boolean,
 		"bins": {kind: kNamed, what: "predictor", choices: predictorNames, elem: &key{kind: kEdges, keys: map[string]*key{

@@ -42,6 +42,10 @@ type Study struct {
 	// AnalysisCloud): give relations.New the configuration of
 	// [Study.RelationsFor], whose responses are resolved per dataset.
 	Relations relations.Config
+	// RelationsOff is true when the study turns the relationship analysis
+	// off (relationships.enabled: false): runs then give the regime
+	// statistics only, and skip the relationship pass.
+	RelationsOff bool
 	// Overrides lists the values set by flags and environment variables,
 	// in the order applied (environment first, then flags).
 	Overrides []Override
