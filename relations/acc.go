@@ -375,6 +375,17 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 	return a, nil
 }
 
+// The bin-edge rule, for every binning of the package: a sample is binned
+// by its value as the run holds it — per-column quantities and relative
+// SST are float32 slabs, widened exactly to float64 — compared exactly with
+// the float64 edges (given edges as written; uniform edges as lo + k·w, one
+// rounding each, as edges() makes them). Each bin includes its lower edge,
+// the last bin also its upper edge; anything else is out of range. So a
+// value is never moved across an edge by the arithmetic of finding its bin,
+// and a reference that computes in float64 reproduces the counts once it
+// rounds its values to float32 (e.g. float32(0.7) = 0.699999988 lies below
+// an edge at 0.7, float32(0.1) = 0.100000001 above one at 0.1).
+
 // binOf returns the bin of x among edges (lower edge inclusive, the last
 // bin also includes its upper edge), -1 outside.
 func binOf(e []float64, x float64) int {
@@ -390,6 +401,24 @@ func binOf(e []float64, x float64) int {
 		return b
 	}
 	return b - 1
+}
+
+// uniformBin returns the bin of x among the n+1 edges lo + k·w, k = 0…n
+// (the bin-edge rule above: lower edge inclusive, the last bin also its
+// upper edge), -1 outside or NaN. The division only guesses the bin; the
+// comparisons with the edges decide it.
+func uniformBin(x, lo, w float64, n int) int {
+	if !(x >= lo) || !(x <= lo+float64(n)*w) {
+		return -1
+	}
+	b := min(max(int(math.Floor((x-lo)/w)), 0), n-1)
+	for b > 0 && x < lo+float64(b)*w {
+		b--
+	}
+	for b < n-1 && x >= lo+float64(b+1)*w {
+		b++
+	}
+	return b
 }
 
 // convective reports whether the indicator marks convection.
@@ -506,8 +535,8 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 				if a.omegaOn {
 					if om := float64(s.Values[a.omegaQ][i]); om == om {
 						a.omegaTotal[ds] += w
-						b := int(math.Floor((om/hPaPerDayToPaPerS - omegaLo) / omegaStep))
-						if b < 0 || b >= a.nO {
+						b := uniformBin(om/hPaPerDayToPaPerS, omegaLo, omegaStep, a.nO)
+						if b < 0 {
 							a.omegaOut[ds]++
 						} else {
 							a.omegaArea[ds*a.nO+b] += w
@@ -534,8 +563,8 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 			if x != x || v != v {
 				continue
 			}
-			b := int(math.Floor((x - lo) / wd))
-			if b < 0 || b >= a.nthr {
+			b := uniformBin(x, lo, wd, a.nthr)
+			if b < 0 {
 				a.thrOut++
 				continue
 			}

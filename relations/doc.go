@@ -76,7 +76,11 @@
 // population standard deviation, the standard error, the count of
 // cell-steps, the number of time steps contributing, the effective sample
 // size and the area × time. Bins include their lower edge (the last bin
-// also its upper edge); samples outside are counted as out of range. Each
+// also its upper edge); samples outside are counted as out of range. The
+// same rule holds for the threshold and omega bins, and a value on an edge
+// is compared exactly as the run holds it (float32 quantities, widened to
+// float64, against float64 edges; uniform edges are lo + k·w): a float64
+// reference reproduces the counts once it rounds its values to float32. Each
 // predictor–response pair uses the samples where both are valid. The
 // standard error is std/√(N_eff − 1), N_eff as below for a mean with the
 // lag-1 autocorrelation of the domain-mean response series.
