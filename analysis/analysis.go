@@ -318,6 +318,11 @@ func WriteRun(ctx context.Context, st *runfolder.Stage, o *Outcome, opt Options)
 func estimateOutputs(p pipeline.Plan) int64 {
 	cells := int64(0)
 	if len(p.SST.Paths) > 0 {
+		// only a regular file: the input checks refuse anything else later,
+		// and opening a FIFO would wait
+		if fi, err := os.Stat(p.SST.Paths[0]); err != nil || !fi.Mode().IsRegular() {
+			return 8 << 20
+		}
 		if f, err := netcdf.Open(p.SST.Paths[0]); err == nil {
 			if vs, err := f.Vars(); err == nil {
 				for _, v := range vs {

@@ -208,6 +208,12 @@ func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
 // anomalies against the climatology of its own period, so no merge gives
 // what one run over the record gives; run such a record in one piece.
 func Merge(dirs []string, out string, opt Options) (Report, error) {
+	return MergeContext(context.Background(), dirs, out, opt)
+}
+
+// MergeContext is Merge that stops, writing nothing, when ctx is done
+// before the merged run is committed.
+func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (Report, error) {
 	if len(dirs) < 2 {
 		return Report{}, fmt.Errorf("give at least two run folders to merge")
 	}
@@ -349,11 +355,11 @@ func Merge(dirs []string, out string, opt Options) (Report, error) {
 		}
 	}
 	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel}
-	files, err := WriteRun(context.Background(), st, o, opt)
+	files, err := WriteRun(ctx, st, o, opt)
 	if err != nil {
 		return Report{}, err
 	}
-	if _, err := st.Commit(context.Background()); err != nil {
+	if _, err := st.Commit(ctx); err != nil {
 		return Report{}, err
 	}
 	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil

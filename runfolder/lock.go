@@ -45,7 +45,7 @@ func lockExclusive(dir string) (*Lock, error) {
 		return nil, fmt.Errorf("cannot lock %s (lock file %s): %w", dir, p, err)
 	}
 	if !ok {
-		return nil, inUse(dir, p)
+		return nil, inUse(dir, p, "wait for it to finish or choose another --out")
 	}
 	who := fmt.Sprintf("pid %d\nsince %s\ncommand %s\n", os.Getpid(), time.Now().UTC().Format(time.RFC3339), strings.Join(os.Args, " "))
 	if err := os.WriteFile(p, []byte(who), 0o644); err != nil {
@@ -84,12 +84,12 @@ func lockShared(dir string) (*Lock, error) {
 		return nil, fmt.Errorf("cannot lock %s for reading (lock file %s): %w", dir, p, err)
 	}
 	if !ok {
-		return nil, inUse(dir, p)
+		return nil, inUse(dir, p, "wait for it to finish, then read the folder")
 	}
 	return &Lock{fl: fl}, nil
 }
 
-func inUse(dir, lockFile string) error {
+func inUse(dir, lockFile, hint string) error {
 	b, _ := os.ReadFile(lockFile)
 	info := map[string]string{}
 	for _, line := range strings.Split(string(b), "\n") {
@@ -108,7 +108,7 @@ func inUse(dir, lockFile string) error {
 		}
 		who += ")"
 	}
-	return &inUseError{fmt.Sprintf("%s is in use by %s; wait for it to finish or choose another --out (lock file %s)", dir, who, lockFile)}
+	return &inUseError{fmt.Sprintf("%s is in use by %s; %s (lock file %s)", dir, who, hint, lockFile)}
 }
 
 type inUseError struct{ msg string }

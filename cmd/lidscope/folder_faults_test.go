@@ -145,9 +145,15 @@ func TestKilledRunLeavesOldOrNewSet(t *testing.T) {
 		t.Logf("killed at %.2f of a run (%v, %v): %s, %d leftovers", p, at.Round(time.Millisecond), err, state, len(runfolder.Leftovers(out)))
 	}
 	t.Logf("%d kills, %d found a new complete run", len(points), replaced)
+	if len(runfolder.Leftovers(out)) == 0 { // the last kill came after the commit
+		os.Mkdir(filepath.Join(filepath.Dir(out), ".run.lidscope-staging-killed"), 0o755)
+	}
 	cmd, stderr = lidscope(t, "run", "--force", "--no-plots", "--out", out, study(t))
 	if err := cmd.Run(); err != nil {
 		t.Fatalf("run after the kills: %v\n%s", err, stderr)
+	}
+	if !strings.Contains(stderr.String(), "removed the staging folder of an interrupted run") {
+		t.Errorf("the run after the kills did not report the staging folder it removed: %s", stderr)
 	}
 	if l := runfolder.Leftovers(out); len(l) > 0 {
 		t.Errorf("the next run left %v", l)
@@ -170,11 +176,17 @@ func waitFor(t *testing.T, cmd *exec.Cmd, what string, cond func() bool) {
 	t.Fatalf("%s never happened", what)
 }
 
-// While one run writes a folder, a second run, a plot and a merge of it
-// fail at once and name the process; the first run then finishes.
+// While one run replaces a folder, a second run into it, and a plot, a
+// merge or a comparison of it, fail at once and name the process; the
+// first run then finishes.
 func TestConcurrentRunsIntoOneFolder(t *testing.T) {
-	out := filepath.Join(t.TempDir(), "run")
-	first, stderr := lidscope(t, "run", "--out", out, "--quiet", study(t))
+	dir := t.TempDir()
+	out := filepath.Join(dir, "run")
+	var so, se bytes.Buffer
+	if code := run([]string{"run", "--out", out, "--quiet", "--no-plots", study(t)}, &so, &se); code != 0 {
+		t.Fatalf("run: exit %d\n%s", code, se.String())
+	}
+	first, stderr := lidscope(t, "run", "--force", "--out", out, "--quiet", study(t))
 	done := make(chan error, 1)
 	if err := first.Start(); err != nil {
 		t.Fatal(err)
@@ -188,6 +200,9 @@ func TestConcurrentRunsIntoOneFolder(t *testing.T) {
 	for _, args := range [][]string{
 		{"run", "--out", out, study(t)},
 		{"run", "--force", "--out", out, study(t)},
+		{"plot", out, "--out", filepath.Join(dir, "figs")},
+		{"merge", out, out, "--out", filepath.Join(dir, "merged")},
+		{"compare", out, out, "--out", filepath.Join(dir, "cmp")},
 	} {
 		second, errb := lidscope(t, args...)
 		err := second.Run()

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 	"os"
@@ -38,7 +39,9 @@ written into the folder --out.`,
 			if o.Out == "" {
 				return usageErr("give the folder for the merged results with --out DIR")
 			}
-			return runMerge(o, e.stdout)
+			ctx, stop := e.interruptible(cmd.Context())
+			defer stop()
+			return runMerge(ctx, o, e.stdout)
 		},
 	}
 	addOutDir(cmd.Flags(), &o.Out, "", "folder for the merged results (required)")
@@ -47,8 +50,8 @@ written into the folder --out.`,
 	return cmd
 }
 
-func runMerge(o mergeOptions, stdout io.Writer) error {
-	rep, err := analysis.Merge(o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force, AllowGaps: o.AllowGaps})
+func runMerge(ctx context.Context, o mergeOptions, stdout io.Writer) error {
+	rep, err := analysis.MergeContext(ctx, o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force, AllowGaps: o.AllowGaps})
 	if err != nil {
 		return err
 	}
