@@ -1,9 +1,11 @@
 package config_test
 
 import (
+	"encoding/json"
 	"math"
 	"os/exec"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -306,6 +308,22 @@ analysis:
 	}
 	if !d.Selects(1900, 6) || d.Selects(1900, 8) {
 		t.Error("months 6 and 7 are selected (sst is not a climatology)")
+	}
+	// the resolved text (which every output records) shows each role's
+	// declaration complete, under the key the study uses
+	var res struct {
+		Datasets map[string]struct {
+			Time map[string]any `json:"time"`
+		} `json:"datasets"`
+	}
+	if err := json.Unmarshal([]byte(r.Resolved()), &res); err != nil {
+		t.Fatal(err)
+	}
+	tm := res.Datasets["m"].Time
+	if !reflect.DeepEqual(tm["cloud"], map[string]any{"units": "", "calendar": "360_day", "climatology": true}) ||
+		!reflect.DeepEqual(tm["air_temperature"], map[string]any{"units": "days since 1850-01-01", "calendar": "noleap", "climatology": false}) ||
+		tm["units"] != "days since 1850-01-01" || tm["omega"] != nil {
+		t.Errorf("resolved time %v", tm)
 	}
 	if q := d.Spec(cf.RoleSpecHum); q.Level != 70000 {
 		t.Errorf("q700 for ECTEI: spec %+v", q)

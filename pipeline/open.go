@@ -91,6 +91,11 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		for _, n := range f.Notes {
 			in.notes = append(in.notes, fmt.Sprintf("%s (%s): %s", x.Spec.Role, f.Var, n))
 		}
+		if f.Time != nil && f.Time.Declared && x.Spec.TimeUnits != "" && !x.Spec.Climatology {
+			// the study's time declaration of this role (config: time.ROLE,
+			// else the dataset's), recorded with the run
+			in.notes = append(in.notes, fmt.Sprintf("%s (%s): time axis read with the study's time units %q, %s calendar", x.Spec.Role, f.Var, x.Spec.TimeUnits, f.Time.Calendar))
+		}
 		return fd, nil
 	}
 	if in.sst, err = open(p.SST); err != nil {
