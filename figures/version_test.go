@@ -14,7 +14,7 @@ import (
 // its provenance silently missing.
 func TestLoadRefusesEarlierSummary(t *testing.T) {
 	dir := t.TempDir()
-	old := `{"format": "lidscope-summary", "format_version": 1, "dataset": "x", "recipe_hash": "abc"}`
+	old := `{"format": "lidscope-summary", "format_version": 1, "dataset": "x"}`
 	if err := os.WriteFile(filepath.Join(dir, output.SummaryJSON), []byte(old), 0o644); err != nil {
 		t.Fatal(err)
 	}
