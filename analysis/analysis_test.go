@@ -26,11 +26,8 @@ func smallWorld() *fixtures.Options {
 // TestDemoRecoversTruth is the synthetic-truth test of the whole job: the
 // analysis of the generated files reproduces what the generator built in.
 func TestDemoRecoversTruth(t *testing.T) {
-	dir := t.TempDir()
-	d, err := Demo(context.Background(), dir, DemoOptions{Scenario: smallWorld()})
-	if err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
+	dir, d := sharedDemo(t)
 	if len(d.Checks) < 4 {
 		t.Fatalf("only %d checks", len(d.Checks))
 	}
@@ -53,19 +50,16 @@ func TestDemoRecoversTruth(t *testing.T) {
 // TestSplitRunsMergeToTheSingleRun runs the record in one piece and in two
 // time ranges, merges the two, and compares every accumulated statistic.
 func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
-	data := filepath.Join(dir, "data")
-	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
-		t.Fatal(err)
-	}
-	rp := filepath.Join(data, fixtures.StudyFile)
+	rp := filepath.Join(smallData(t), fixtures.StudyFile)
 	run := func(out string, flags map[string]string) Report {
 		t.Helper()
 		r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: flags})
 		if err != nil {
 			t.Fatal(err)
 		}
-		reps, err := Run(context.Background(), r, nil, Options{OutDir: out})
+		reps, err := Run(context.Background(), r, nil, Options{OutDir: out, NoPlots: true}) // the checks are of the statistics
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -75,7 +69,7 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 	a := run(filepath.Join(dir, "a"), map[string]string{"datasets.synthetic-demo.time.end": "2002-07"})
 	b := run(filepath.Join(dir, "b"), map[string]string{"datasets.synthetic-demo.time.start": "2002-08"})
 	// merge in the wrong order on purpose: Merge sorts by time
-	m, err := Merge([]string{b.OutDir, a.OutDir}, filepath.Join(dir, "merged"), Options{})
+	m, err := Merge([]string{b.OutDir, a.OutDir}, filepath.Join(dir, "merged"), Options{NoPlots: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -162,11 +156,9 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 // stronger warm pool and weaker upwelling (ModelScenario), so its maps
 // differ from the reference's, while a run compared with itself does not.
 func TestDemoComparisonSeesTheModel(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
-	d, err := Demo(context.Background(), dir, DemoOptions{Scenario: smallWorld()})
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, d := sharedDemo(t)
 	if d.Comparison == nil || len(d.Comparison.Candidates) != 1 {
 		t.Fatal("no comparison")
 	}
@@ -174,7 +166,7 @@ func TestDemoComparisonSeesTheModel(t *testing.T) {
 	if c.Maps[0].Corr >= 1 || c.Maps[0].CRMS <= 0 {
 		t.Errorf("the model's convective-fraction map is indistinguishable from the reference: %+v", c.Maps[0])
 	}
-	self, _, err := CompareDirs(d.Reports[0].OutDir, []string{d.Reports[0].OutDir}, filepath.Join(dir, "self"), CompareOptions{})
+	self, _, err := CompareDirs(d.Reports[0].OutDir, []string{d.Reports[0].OutDir}, filepath.Join(dir, "self"), CompareOptions{Options: Options{NoPlots: true}})
 	if err != nil {
 		t.Fatal(err)
 	}

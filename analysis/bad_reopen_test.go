@@ -19,6 +19,7 @@ import (
 )
 
 func TestBadRecordReopen(t *testing.T) {
+	t.Parallel()
 	dir := badLibWorld(t)
 	paths := badLibSST(t, dir)
 	rec, err := cf.Open(paths, cf.Spec{Role: cf.RoleSST})
@@ -61,6 +62,7 @@ func TestBadRecordReopen(t *testing.T) {
 }
 
 func TestBadRecordFileReplaced(t *testing.T) {
+	t.Parallel()
 	dir := badLibWorld(t)
 	paths := badLibSST(t, dir)
 	rec, err := cf.Open(paths, cf.Spec{Role: cf.RoleSST})

@@ -18,6 +18,7 @@ import (
 
 	"lidscope/config"
 	"lidscope/fixtures"
+	"lidscope/internal/testutil"
 	"lidscope/netcdf"
 	"lidscope/output"
 )
@@ -32,11 +33,10 @@ func badLibWorld(t *testing.T) string {
 	o.Years = 2
 	o.YearsPerFile = 1
 	o.Command = []string{"lidscope-test"}
-	dir := filepath.Join(t.TempDir(), "world")
-	if _, err := fixtures.Generate(dir, o); err != nil {
-		t.Fatal(err)
-	}
-	return dir
+	return testutil.PrivateWorld(t, "bad-lib", func(dir string) error {
+		_, err := fixtures.Generate(dir, o)
+		return err
+	})
 }
 
 func badLibSST(t *testing.T, dir string) []string {
@@ -50,6 +50,7 @@ func badLibSST(t *testing.T, dir string) []string {
 }
 
 func TestBadErrorsWrap(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name   string
 		break_ func(t *testing.T, dir string) map[string]string // returns study flags
@@ -122,7 +123,7 @@ func TestBadDemoRelativeFolder(t *testing.T) {
 	sc.Resolution = 5
 	sc.Years = 2
 	sc.YearsPerFile = 1
-	d, err := Demo(context.Background(), "demo", DemoOptions{Scenario: &sc})
+	d, err := Demo(context.Background(), "demo", DemoOptions{Scenario: &sc, Options: Options{NoPlots: true}}) // the check is of where the results go
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -56,11 +56,13 @@ func TestCompareSyntheticWorlds(t *testing.T) {
 	if testing.Short() {
 		t.Skip("three synthetic runs skipped in -short mode")
 	}
+	t.Parallel()
 	dir := t.TempDir()
 	obs := *smallWorld()
-	refDir := runWorld(t, dir, obs)
-	model := ModelScenario(obs)
-	modelDir := runWorld(t, dir, model)
+	// The reference (obs) and the synthetic model (ModelScenario(obs)) are
+	// the runs of the shared demo.
+	_, d := sharedDemo(t)
+	refDir, modelDir := d.Reports[0].OutDir, d.Reports[1].OutDir
 	near := obs
 	near.Name = "synthetic-near"
 	near.Physics.CloudSlope = 0.0501

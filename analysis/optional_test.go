@@ -49,11 +49,9 @@ func dropInputs(t *testing.T, path string, roles ...string) {
 // regimes, crossings and series depend on SST alone, LTS/EIS on SST and
 // T700 alone).
 func TestOptionalInputsEndToEnd(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
-	data := filepath.Join(dir, "data")
-	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
-		t.Fatal(err)
-	}
+	data := privateSmallData(t) // the reduced studies are written beside the full one
 	full := filepath.Join(data, fixtures.StudyFile)
 	src, err := os.ReadFile(full)
 	if err != nil {

@@ -77,6 +77,7 @@ func diffResults(a, b *relations.Results, tol float64) []string {
 // header) is refused as damaged, with a request to re-run, by LoadState
 // and Merge; a refused merge writes nothing.
 func TestOldRunStateAsksForRerun(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var old bytes.Buffer
 	// The shape of format 2: a bare gob.
@@ -243,12 +244,9 @@ func TestMergeGaps(t *testing.T) {
 // against the climatology of their own period: merging them is refused,
 // with the reason and what to do, and nothing is written.
 func TestMergeRefusesAnomalyPieces(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
-	data := filepath.Join(dir, "data")
-	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
-		t.Fatal(err)
-	}
-	rp := filepath.Join(data, fixtures.StudyFile)
+	rp := filepath.Join(smallData(t), fixtures.StudyFile)
 	run := func(out string, flags map[string]string) Report {
 		t.Helper()
 		flags["relationships.mode"] = "anomaly"
