@@ -19,6 +19,7 @@ import (
 
 	"lidscope/analysis"
 	"lidscope/fixtures"
+	"lidscope/internal/testutil"
 	"lidscope/runfolder"
 )
 
@@ -30,7 +31,7 @@ func TestMain(m *testing.M) {
 		main()
 		return
 	}
-	os.Exit(m.Run())
+	testutil.Main(m) // runs the tests, removes the shared worlds (testutil.World), exits
 }
 
 // lidscope returns a child process running the command line args.
