@@ -138,7 +138,7 @@ func TestCompareSyntheticWorlds(t *testing.T) {
 	// Printed: the summary names the verdicts.
 	var buf bytes.Buffer
 	compare.WriteEstimates(&buf, res, "")
-	if !strings.Contains(buf.String(), "OUTSIDE") || !strings.Contains(buf.String(), "within") {
+	if !strings.Contains(buf.String(), "outside") || !strings.Contains(buf.String(), "within") {
 		t.Errorf("printed comparison:\n%s", buf.String())
 	}
 }

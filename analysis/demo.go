@@ -11,6 +11,7 @@ import (
 	"lidscope/config"
 	"lidscope/fixtures"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // DemoReport is the outcome of the demo: where things went, and how the
@@ -187,13 +188,13 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 	}
 	fmt.Fprintln(w, "  recovered vs built into the worlds:")
 	for _, c := range d.Checks {
-		mark := "ok"
+		mark := vocab.Pass
 		if !c.OK() {
-			mark = "MISMATCH"
+			mark = vocab.Fail
 		}
 		fmt.Fprintf(w, "    %-8s %s: %.6g (truth %.6g) %s\n", mark, c.What, c.Got, c.Want, c.Units)
 	}
-	fmt.Fprintf(w, "  true subsidence cloud–EIS slope: reference %.3g per K, model %.3g per K\n", d.Truth.CloudEIS.TrueSlope, d.ModelTruth.CloudEIS.TrueSlope)
+	fmt.Fprintf(w, "  true subsidence cloud–EIS slope: reference %.3g K-1, model %.3g K-1\n", d.Truth.CloudEIS.TrueSlope, d.ModelTruth.CloudEIS.TrueSlope)
 	if d.Comparison != nil {
 		fmt.Fprintf(w, "  comparison (model − reference): %s\n", d.CompareDir)
 		for _, c := range d.Comparison.Candidates {

@@ -118,7 +118,7 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 			var sum struct {
 				Quantities []string                   `json:"quantities"`
 				Absent     []string                   `json:"absent_quantities"`
-				Means      map[string]json.RawMessage `json:"band_regime_means"`
+				Means      map[string]json.RawMessage `json:"band_mean"`
 			}
 			b, err := os.ReadFile(filepath.Join(rep.OutDir, output.SummaryJSON))
 			if err != nil {
@@ -191,7 +191,7 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for k, want := range []struct{ has, lacks string }{{"eis_subsidence_mean", "low_cloud_subsidence_mean"}, {"convective_area_fraction_mean", "eis_subsidence_mean"}} {
+	for k, want := range []struct{ has, lacks string }{{"subsidence_eis_mean", "subsidence_low_cloud_mean"}, {"convective_area_fraction_mean", "subsidence_eis_mean"}} {
 		c := res.Candidates[k]
 		if _, ok := c.Scalar(want.has); !ok {
 			t.Errorf("%s: %s not compared", c.Dir, want.has)

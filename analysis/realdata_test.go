@@ -122,7 +122,7 @@ output: {dir: "` + dir + `", plots: true}
 			if err := json.Unmarshal(out, &want); err != nil {
 				t.Fatal(err)
 			}
-			got := readSeries(t, filepath.Join(rep.OutDir, output.SeriesCSV), "tropical_mean_sst [K]", "area_fraction_convective [1]")
+			got := readSeries(t, filepath.Join(rep.OutDir, output.SeriesCSV), "tropical_mean_sst [K]", "convective_area_fraction [1]")
 			for m := range want {
 				if math.Abs(got[m][0]-want[m][0]) > 1e-4 || math.Abs(got[m][1]-want[m][1]) > 1e-6 {
 					t.Errorf("month %d: tropical-mean SST %.6f K, convective fraction %.6f; numpy %.6f K, %.6f", m+1, got[m][0], got[m][1], want[m][0], want[m][1])

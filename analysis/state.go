@@ -33,13 +33,19 @@ const StateFile = "run-state.gob"
 // layout changes. Version 2 added the relationship accumulator; version 3
 // the integrity header, and names the provenance after the study
 // (output.Meta.Study, StudyHash, MetricsConventions), which a version-2
-// state holds under earlier names that gob would silently drop.
-const stateFormat = "lidscope-run-state/3"
+// state holds under earlier names that gob would silently drop; version 4
+// marks run folders written with the one table of names (package vocab),
+// whose files use the new names (see the README's changes).
+const stateFormat = "lidscope-run-state/4"
+
+// renamedFormat is the header of the run states whose folders use names
+// since renamed.
+const renamedFormat = "lidscope-run-state/3"
 
 // The run state file is a header of three fixed-width lines and the body
 // (the gob of runState):
 //
-//	lidscope-run-state/3
+//	lidscope-run-state/4
 //	length 00000000000000123456      (bytes of the body, 20 digits)
 //	sha256 <64 hex digits>           (SHA-256 of the body)
 //
@@ -111,6 +117,9 @@ func decodeStateFile(path string, b []byte) ([]byte, error) {
 	}
 	h := string(b[:stateHeaderLen])
 	lines := strings.Split(h, "\n")
+	if len(lines) > 0 && lines[0] == renamedFormat {
+		return nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope whose files use names since renamed (e.g. delta_K, crossings_per_year, n_eff_corr; see the README's changes); re-run the analysis of that folder with this version", path, renamedFormat, stateFormat)
+	}
 	if len(lines) != 5 || lines[0] != stateFormat || lines[3] != "" || lines[4] != "" {
 		return nil, damaged(path, "its header is not "+stateFormat+": the file is damaged, or was written by another lidscope version")
 	}

@@ -277,3 +277,14 @@ func TestMergeRefusesAnomalyPieces(t *testing.T) {
 		t.Error("the refused merge created its output folder")
 	}
 }
+
+// A run state of format 3 (the folder's files use names since renamed) is
+// refused with a message that says so.
+func TestRenamedRunStateRefused(t *testing.T) {
+	p := filepath.Join(t.TempDir(), StateFile)
+	b := []byte(renamedFormat + "\nlength " + strings.Repeat("0", stateLengthDigits) + "\nsha256 " + strings.Repeat("0", 64) + "\n\n")
+	_, err := decodeStateFile(p, b)
+	if err == nil || !strings.Contains(err.Error(), "renamed") || !strings.Contains(err.Error(), "re-run") || !strings.Contains(err.Error(), stateFormat) {
+		t.Fatalf("format 3 state: %v; want a refusal naming the renames and asking for a re-run", err)
+	}
+}

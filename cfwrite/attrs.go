@@ -93,12 +93,17 @@ func extraAttrs(m map[string]any, reserved []string, t netcdf.Type) ([]attr, err
 	return out, nil
 }
 
-// attrValue normalises a supported Go value: string, float64, float32, int,
-// int32 or a slice of the numeric ones.
+// attrValue normalises a supported Go value: string, bool (NC_BYTE 1 or
+// 0), float64, float32, int, int32 or a slice of the numeric ones.
 func attrValue(v any) (any, error) {
 	switch x := v.(type) {
 	case string:
 		return x, nil
+	case bool:
+		if x {
+			return []int8{1}, nil
+		}
+		return []int8{0}, nil
 	case float64:
 		return []float64{x}, checkFinite([]float64{x})
 	case []float64:
@@ -132,7 +137,7 @@ func attrValue(v any) (any, error) {
 		}
 		return append([]int32(nil), x...), nil
 	}
-	return nil, fmt.Errorf("values of Go type %T are not supported; use string, float64, float32, int, int32 or a slice of the numbers", v)
+	return nil, fmt.Errorf("values of Go type %T are not supported; use string, bool, float64, float32, int, int32 or a slice of the numbers", v)
 }
 
 func checkFinite(x []float64) error {

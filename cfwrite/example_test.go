@@ -25,7 +25,7 @@ func Example() {
 		Title:      "Estimated inversion strength, synthetic demo scenario",
 		Source:     "lidscope (invented input data)",
 		Command:    []string{"lidscope", "demo"},
-		Attributes: map[string]string{"lidscope_version": "0.1.0-dev"},
+		Attributes: map[string]any{"lidscope_version": "0.1.0-dev"},
 	})
 	if err != nil {
 		log.Fatal(err)

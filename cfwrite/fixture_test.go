@@ -36,7 +36,7 @@ func fixOptions() cfwrite.Options {
 		Source:      "lidscope cfwrite tests",
 		Command:     fixCommand,
 		Created:     fixCreated,
-		Attributes:  map[string]string{"lidscope_version": "0.0-test", "input_files": "none (synthetic)"},
+		Attributes:  map[string]any{"lidscope_version": "0.0-test", "input_files": "none (synthetic)"},
 	}
 }
 

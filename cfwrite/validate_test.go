@@ -21,8 +21,8 @@ func TestCreateOptionErrors(t *testing.T) {
 	}{
 		{"no title", func(o *cfwrite.Options) { o.Title = " " }, "Options.Title is empty"},
 		{"deflate level", func(o *cfwrite.Options) { o.DeflateLevel = 10 }, "DeflateLevel 10 is outside 1–9"},
-		{"reserved global", func(o *cfwrite.Options) { o.Attributes = map[string]string{"history": "x"} }, `"history" is set by the writer`},
-		{"bad global name", func(o *cfwrite.Options) { o.Attributes = map[string]string{"_x": "y"} }, "must begin with a letter"},
+		{"reserved global", func(o *cfwrite.Options) { o.Attributes = map[string]any{"history": "x"} }, `"history" is set by the writer`},
+		{"bad global name", func(o *cfwrite.Options) { o.Attributes = map[string]any{"_x": "y"} }, "must begin with a letter"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -163,7 +163,7 @@ func TestDeclarationErrors(t *testing.T) {
 		{"cell method", mapVar(func(s *cfwrite.VarSpec) { s.CellMethods = "time: average" }), `"average" is not a CF cell method`},
 		{"coordinates", mapVar(func(s *cfwrite.VarSpec) { s.Coordinates = "plev" }), `"plev", which is not a variable`},
 		{"reserved attribute", mapVar(func(s *cfwrite.VarSpec) { s.Attributes = map[string]any{"_FillValue": 1.0} }), "must begin with a letter"},
-		{"attribute type", mapVar(func(s *cfwrite.VarSpec) { s.Attributes = map[string]any{"flag": true} }), "Go type bool are not supported"},
+		{"attribute type", mapVar(func(s *cfwrite.VarSpec) { s.Attributes = map[string]any{"flag": struct{}{}} }), "Go type struct {} are not supported"},
 		{"int attribute too big", mapVar(func(s *cfwrite.VarSpec) { s.Attributes = map[string]any{"n": 1 << 40} }), "does not fit the 32-bit"},
 		{"fill not float32", mapVar(func(s *cfwrite.VarSpec) { s.Fill = 1e300 }), "not a finite float32"},
 		{"chunks", mapVar(func(s *cfwrite.VarSpec) { s.Chunks = []int{1, 3} }), "has 2 sizes for 3 dimensions"},

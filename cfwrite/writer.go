@@ -57,8 +57,10 @@ type Options struct {
 	// files, configuration digest, program version), written in key order.
 	// Names must start with a letter and use letters, digits and '_'; the
 	// names above (Conventions, title, institution, source, history) are
-	// reserved.
-	Attributes map[string]string
+	// reserved. Values are typed as for VarSpec.Attributes: text, numbers
+	// (float64, float32, int, int32 and their slices) and booleans (NC_BYTE
+	// 1 or 0; netCDF has no boolean type).
+	Attributes map[string]any
 	// DeflateLevel is the zlib level 1–9; 0 selects DefaultDeflateLevel and
 	// NoDeflate turns compression off. Shuffle is on whenever deflate is.
 	DeflateLevel int
@@ -127,6 +129,9 @@ func Create(path string, opts Options) (*Writer, error) {
 	}
 	for _, k := range sortedKeys(opts.Attributes) {
 		if err := checkAttrName(k); err != nil {
+			return nil, fmt.Errorf("cfwrite: create %s: global attribute %q: %w", path, k, err)
+		}
+		if _, err := attrValue(opts.Attributes[k]); err != nil {
 			return nil, fmt.Errorf("cfwrite: create %s: global attribute %q: %w", path, k, err)
 		}
 		switch k {
@@ -254,7 +259,7 @@ func (w *Writer) globalAttrs() error {
 	if h := strings.TrimRight(w.opts.InputHistory, "\n"); h != "" {
 		hist += "\n" + h
 	}
-	put := func(k, v string) error {
+	put := func(k string, v any) error {
 		if err := w.nc.PutAttr(k, v); err != nil {
 			return fmt.Errorf("cfwrite: %s: global attribute %s: %w", w.path, k, err)
 		}
@@ -280,7 +285,8 @@ func (w *Writer) globalAttrs() error {
 		return err
 	}
 	for _, k := range sortedKeys(w.opts.Attributes) {
-		if err := put(k, w.opts.Attributes[k]); err != nil {
+		v, _ := attrValue(w.opts.Attributes[k]) // checked by Create
+		if err := put(k, v); err != nil {
 			return err
 		}
 	}

@@ -20,6 +20,7 @@ package compare
 
 import (
 	"fmt"
+	"lidscope/vocab"
 	"math"
 
 	"lidscope/accumulate"
@@ -117,8 +118,8 @@ type Result struct {
 
 // mapNames are the maps compared, with their units.
 var mapNames = []struct{ name, units string }{
-	{"convective_fraction", "1"},
-	{"crossings_per_year", "yr-1"},
+	{"convective_" + vocab.TimeFraction, vocab.UnitOne},
+	{vocab.CrossingRate, vocab.UnitPerYear},
 }
 
 // Mismatches lists how two runs' definitions differ.
@@ -255,8 +256,8 @@ func maps(r Run) map[string][]float64 {
 		spy = 12
 	}
 	return map[string][]float64{
-		"convective_fraction": r.Acc.ConvectiveFraction(),
-		"crossings_per_year":  r.Acc.CrossingsPerYear(spy),
+		"convective_" + vocab.TimeFraction: r.Acc.ConvectiveFraction(),
+		vocab.CrossingRate:                 r.Acc.CrossingsPerYear(spy),
 	}
 }
 
@@ -331,8 +332,8 @@ func scalars(r Run) []Scalar {
 		}
 	}
 	add("tropical_mean_sst", "K", mSST)
-	add("convective_area_fraction_mean", "1", mConv)
-	add("convective_area_fraction_std", "1", math.Sqrt(vConv/n))
+	add(vocab.ConvectiveAreaFraction+"_"+vocab.Mean, vocab.UnitOne, mConv)
+	add(vocab.ConvectiveAreaFraction+"_"+vocab.Std, vocab.UnitOne, math.Sqrt(vConv/n))
 	q := map[string]int{}
 	for i, name := range a.L.Quantities {
 		q[name] = i
@@ -352,7 +353,7 @@ func scalars(r Run) []Scalar {
 			if name == cloud {
 				units = "1"
 			}
-			add(fmt.Sprintf("%s_%s_mean", name, rg), units, bandMean(a, k, rg))
+			add(fmt.Sprintf("%s_%s_%s", rg, name, vocab.Mean), units, bandMean(a, k, rg))
 		}
 	}
 	return out

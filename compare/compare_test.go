@@ -132,7 +132,7 @@ func TestWriteOutputs(t *testing.T) {
 	}
 	dir := t.TempDir()
 	files, err := Write(dir, res, WriteOptions{Version: "test"})
-	if err != nil || len(files) != 3 {
+	if err != nil || len(files) != 4 {
 		t.Fatalf("%v %v", files, err)
 	}
 	f, err := netcdf.Open(filepath.Join(dir, MapsFile))
@@ -140,7 +140,7 @@ func TestWriteOutputs(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	v, err := f.Var("convective_fraction_diff")
+	v, err := f.Var("convective_time_fraction_difference")
 	if err != nil {
 		t.Fatal(err)
 	}

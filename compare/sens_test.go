@@ -118,7 +118,7 @@ func TestEstimatesByHand(t *testing.T) {
 					Value *float64
 					Units string
 				}
-				Within *bool
+				Verdict string
 			}
 			Thresholds map[string]any
 			Flips      []any
@@ -128,21 +128,26 @@ func TestEstimatesByHand(t *testing.T) {
 		t.Fatal(err)
 	}
 	s := doc.Candidates[1].Sensitivities["low_cloud_on_eis"]
-	if s.Difference.Value == nil || math.Abs(*s.Difference.Value-0.0015) > 1e-12 || s.Difference.Units != "K-1" || s.Within == nil || *s.Within {
-		t.Errorf("comparison.json: far's EIS slope difference %+v within %v", s.Difference, s.Within)
+	if s.Difference.Value == nil || math.Abs(*s.Difference.Value-0.0015) > 1e-12 || s.Difference.Units != "K-1" || s.Verdict != "outside" {
+		t.Errorf("comparison.json: far's EIS slope difference %+v verdict %q, want outside", s.Difference, s.Verdict)
 	}
 	if len(doc.Candidates[1].Thresholds) != 2 || len(doc.Candidates[1].Flips) != 2 {
 		t.Errorf("comparison.json: %d thresholds, %d flips; want 2, 2", len(doc.Candidates[1].Thresholds), len(doc.Candidates[1].Flips))
 	}
 	csvb, _ := os.ReadFile(filepath.Join(dir, CSVFile))
 	lines := strings.Split(strings.TrimSpace(string(csvb)), "\n")
-	if len(lines) != 4 || !strings.Contains(lines[0], "low_cloud_on_eis_within") || !strings.Contains(lines[0], "flip_east_pacific_dT1K_changed [1]") ||
-		!strings.HasSuffix(strings.Split(lines[3], ",")[0], "far") {
+	if len(lines) != 4 || !strings.Contains(lines[0], "low_cloud_on_eis_verdict") || strings.Contains(lines[0], "flip") ||
+		!strings.HasSuffix(strings.Split(lines[3], ",")[0], "far") || !strings.Contains(lines[3], ",outside,") {
 		t.Errorf("comparison.csv:\n%s", csvb)
+	}
+	fb, _ := os.ReadFile(filepath.Join(dir, FlipsCSVFile))
+	fl := strings.Split(strings.TrimSpace(string(fb)), "\n")
+	if len(fl) != 7 || fl[0] != "run,role,patch,sst_perturbation [K],changed [1],changed_difference [1]" || !strings.HasPrefix(fl[6], "far,candidate,east_pacific,1,") {
+		t.Errorf("comparison_flips.csv:\n%s", fb)
 	}
 	var out bytes.Buffer
 	WriteEstimates(&out, res, "  ")
-	if !strings.Contains(out.String(), "OUTSIDE") || strings.Count(out.String(), "within") < 6 {
+	if !strings.Contains(out.String(), "outside") || strings.Count(out.String(), "within") < 6 {
 		t.Errorf("printed estimates:\n%s", out.String())
 	}
 }

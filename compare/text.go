@@ -32,13 +32,7 @@ func WriteEstimates(w io.Writer, res *Result, indent string) {
 				fmt.Fprintf(w, "%s    %-*s %11s\n", indent, width, c.Name, "—")
 				continue
 			}
-			verdict := "within"
-			switch {
-			case !e.Tested:
-				verdict = "untested (no interval)"
-			case !e.Within:
-				verdict = "OUTSIDE"
-			}
+			verdict := Verdict(*e)
 			fmt.Fprintf(w, "%s    %-*s %11.4g  [%.4g, %.4g]  difference %+.4g ± %.4g  %s\n", indent, width, c.Name, e.Cand, e.CandCI.Lo, e.CandCI.Hi, e.Diff, e.Combined, verdict)
 		}
 	}

@@ -14,13 +14,15 @@ import (
 	"lidscope/jsonnum"
 	"lidscope/relations"
 	"lidscope/stage"
+	"lidscope/vocab"
 )
 
 // Output files of a comparison.
 const (
-	CSVFile  = "comparison.csv"
-	JSONFile = "comparison.json"
-	MapsFile = "comparison_maps.nc"
+	CSVFile      = "comparison.csv"
+	FlipsCSVFile = "comparison_flips.csv"
+	JSONFile     = "comparison.json"
+	MapsFile     = "comparison_maps.nc"
 )
 
 // WriteOptions control Write.
@@ -43,12 +45,12 @@ const FiguresDir = "figures"
 // complete, so a failure leaves no file of this call under a final name;
 // the figures (opt.Figures) are staged with them.
 func Write(dir string, res *Result, opt WriteOptions) (_ []string, err error) {
-	names := []string{CSVFile, JSONFile}
+	names := []string{CSVFile, FlipsCSVFile, JSONFile}
 	if len(res.Candidates) > 0 {
 		names = append(names, MapsFile)
 	}
 	if !opt.Force {
-		have, err := stage.Existing(dir, []string{CSVFile, JSONFile, MapsFile})
+		have, err := stage.Existing(dir, []string{CSVFile, FlipsCSVFile, JSONFile, MapsFile})
 		if err != nil {
 			return nil, err
 		}
@@ -82,6 +84,13 @@ func Write(dir string, res *Result, opt WriteOptions) (_ []string, err error) {
 		return nil, err
 	}
 	if err := st.WriteFile(CSVFile, csvb); err != nil {
+		return nil, err
+	}
+	fb, err := flipsCSVBytes(res)
+	if err != nil {
+		return nil, err
+	}
+	if err := st.WriteFile(FlipsCSVFile, fb); err != nil {
 		return nil, err
 	}
 	jb, err := jsonBytes(res, opt)
@@ -136,19 +145,15 @@ func csvBytes(res *Result) ([]byte, error) {
 	w := csv.NewWriter(&buf)
 	head := []string{"run", "role"}
 	for _, s := range res.ReferenceScalars {
-		head = append(head, fmt.Sprintf("%s [%s]", s.Name, s.Units), fmt.Sprintf("%s_diff [%s]", s.Name, s.Units))
+		head = append(head, fmt.Sprintf("%s [%s]", s.Name, s.Units), fmt.Sprintf("%s_%s [%s]", s.Name, vocab.Difference, s.Units))
 	}
 	for _, m := range mapNames {
-		head = append(head, m.name+"_pattern_corr [1]", fmt.Sprintf("%s_centred_rms [%s]", m.name, m.units), fmt.Sprintf("%s_bias [%s]", m.name, m.units))
+		head = append(head, m.name+"_"+vocab.PatternCorrelation+" [1]", fmt.Sprintf("%s_%s [%s]", m.name, vocab.CentredRMSDifference, m.units), fmt.Sprintf("%s_%s [%s]", m.name, vocab.Bias, m.units))
 	}
 	for _, e := range res.ReferenceEstimates {
 		u := e.Units
-		head = append(head, fmt.Sprintf("%s [%s]", e.Name, u), fmt.Sprintf("%s_ci_lower [%s]", e.Name, u), fmt.Sprintf("%s_ci_upper [%s]", e.Name, u),
-			fmt.Sprintf("%s_diff [%s]", e.Name, u), fmt.Sprintf("%s_combined_half_width [%s]", e.Name, u), e.Name+"_within")
-	}
-	fk := refFlipKeys(res)
-	for _, k := range fk {
-		head = append(head, k.col+"_changed [1]", k.col+"_changed_diff [1]")
+		head = append(head, fmt.Sprintf("%s [%s]", e.Name, u), fmt.Sprintf("%s_%s [%s]", e.Name, vocab.CILower, u), fmt.Sprintf("%s_%s [%s]", e.Name, vocab.CIUpper, u),
+			fmt.Sprintf("%s_%s [%s]", e.Name, vocab.Difference, u), fmt.Sprintf("%s_%s [%s]", e.Name, vocab.CombinedHalfWidth, u), e.Name+"_"+vocab.Verdict)
 	}
 	w.Write(head)
 	row := []string{res.Reference.Name, "reference"}
@@ -160,9 +165,6 @@ func csvBytes(res *Result) ([]byte, error) {
 	}
 	for _, e := range res.ReferenceEstimates {
 		row = append(row, num(e.Ref), num(e.RefCI.Lo), num(e.RefCI.Hi), "0", "", "")
-	}
-	for _, k := range fk {
-		row = append(row, num(k.ref), "0")
 	}
 	w.Write(row)
 	for _, c := range res.Candidates {
@@ -188,16 +190,7 @@ func csvBytes(res *Result) ([]byte, error) {
 				row = append(row, "", "", "", "", "", "")
 				continue
 			}
-			row = append(row, num(e.Cand), num(e.CandCI.Lo), num(e.CandCI.Hi), num(e.Diff), num(e.Combined), within(e))
-		}
-		for _, k := range fk {
-			cell := []string{"", ""}
-			for _, f := range c.Flips {
-				if f.Patch == k.patch && f.DeltaT == k.dt {
-					cell = []string{num(f.CandChanged), num(f.DiffChanged)}
-				}
-			}
-			row = append(row, cell...)
+			row = append(row, num(e.Cand), num(e.CandCI.Lo), num(e.CandCI.Hi), num(e.Diff), num(e.Combined), Verdict(e))
 		}
 		w.Write(row)
 	}
@@ -205,34 +198,39 @@ func csvBytes(res *Result) ([]byte, error) {
 	return buf.Bytes(), w.Error()
 }
 
-// within is "yes", "no" or "untested" (no interval in one of the runs).
-func within(e Estimate) string {
+// Verdict is the verdict word of an estimate (package vocab): within,
+// outside, or untested (no interval in one of the runs).
+func Verdict(e Estimate) string {
 	switch {
 	case !e.Tested:
-		return "untested"
+		return vocab.Untested
 	case e.Within:
-		return "yes"
+		return vocab.Within
 	}
-	return "no"
+	return vocab.Outside
 }
 
-// flipKey is one patch and ΔT of the reference's flips.
-type flipKey struct {
-	patch, col string
-	dt, ref    float64
-}
-
-func refFlipKeys(res *Result) []flipKey {
-	var out []flipKey
-	if res.Reference.Relations == nil {
-		return nil
-	}
-	for _, p := range res.Reference.Relations.Flips {
-		for _, r := range p.Rows {
-			out = append(out, flipKey{patch: p.Patch.Name, col: fmt.Sprintf("flip_%s_dT%gK", p.Patch.Name, r.DeltaT), dt: r.DeltaT, ref: r.Changed})
+// flipsCSVBytes: comparison_flips.csv, one row per run, patch and SST
+// perturbation (the reference's rows first): the changed fraction and its
+// difference from the reference.
+func flipsCSVBytes(res *Result) ([]byte, error) {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	w.Write([]string{"run", "role", "patch", "sst_perturbation [K]", "changed [1]", "changed_difference [1]"})
+	if res.Reference.Relations != nil {
+		for _, p := range res.Reference.Relations.Flips {
+			for _, r := range p.Rows {
+				w.Write([]string{res.Reference.Name, "reference", p.Patch.Name, num(r.DeltaT), num(r.Changed), "0"})
+			}
 		}
 	}
-	return out
+	for _, c := range res.Candidates {
+		for _, f := range c.Flips {
+			w.Write([]string{c.Name, "candidate", f.Patch, num(f.DeltaT), num(f.CandChanged), num(f.DiffChanged)})
+		}
+	}
+	w.Flush()
+	return buf.Bytes(), w.Error()
 }
 
 // jnum is the JSON number with units every lidscope JSON file uses (NaN
@@ -272,11 +270,11 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		CandidateCI jci    `json:"candidate_ci"`
 		Difference  jnum   `json:"difference"`
 		Combined    jnum   `json:"combined_half_width"`
-		Within      *bool  `json:"within"`
+		Verdict     string `json:"verdict"`
 	}
 	type jflip struct {
 		Patch          string `json:"patch"`
-		DeltaT         jnum   `json:"delta_t"`
+		DeltaT         jnum   `json:"sst_perturbation"`
 		Reference      jnum   `json:"reference_changed"`
 		Candidate      jnum   `json:"candidate_changed"`
 		Difference     jnum   `json:"changed_difference"`
@@ -302,8 +300,8 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		Mismatches []string        `json:"mismatches"`
 		Scalars    map[string]jnum `json:"reference_scalars"`
 		Estimates  map[string]any  `json:"reference_estimates"`
-		Method     string          `json:"uncertainty_of_differences"`
-	}{Format: "lidscope-comparison/2", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
+		Method     string          `json:"difference_uncertainty_method"`
+	}{Format: "lidscope-comparison/3", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
 		Estimates: map[string]any{}, Method: CombinedMethod}
 	if doc.Mismatches == nil {
 		doc.Mismatches = []string{}
@@ -318,8 +316,8 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		doc.Estimates[e.Name] = map[string]any{"kind": e.Kind, "description": e.Description, "value": jv(e.Ref, e.Units), "ci": ci(e.RefCI, e.Units)}
 	}
 	if rel := res.Reference.Relations; rel != nil {
-		doc.Reference["relationship_mode"] = rel.Mode.String()
-		doc.Reference["relationship_config"] = rel.Config
+		doc.Reference[vocab.RelationshipsMode] = rel.Mode.String()
+		doc.Reference[vocab.Relationships+"_config"] = rel.Config
 	}
 	for _, c := range res.Candidates {
 		jc := jcand{Name: c.Name, Dir: c.Dir, Scalars: map[string]jscalar{}, Maps: map[string]jmap{},
@@ -327,10 +325,7 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		for _, e := range c.Estimates {
 			je := jest{Kind: e.Kind, Description: e.Description, Reference: jv(e.Ref, e.Units), ReferenceCI: ci(e.RefCI, e.Units),
 				Candidate: jv(e.Cand, e.Units), CandidateCI: ci(e.CandCI, e.Units), Difference: jv(e.Diff, e.Units), Combined: jv(e.Combined, e.Units)}
-			if e.Tested {
-				w := e.Within
-				je.Within = &w
-			}
+			je.Verdict = Verdict(e)
 			if e.Kind == "threshold" {
 				jc.Thresholds[e.Name] = je
 			} else {
@@ -361,7 +356,7 @@ func writeMaps(path string, res *Result, opt WriteOptions) error {
 		Source:    "lidscope " + opt.Version,
 		Command:   opt.Command,
 		Overwrite: opt.Force,
-		Attributes: map[string]string{
+		Attributes: map[string]any{
 			"reference":           res.Reference.Name,
 			"regime_definition":   res.Reference.Meta.RegimeDefinition,
 			"metrics_conventions": res.Reference.Meta.MetricsConventions,
@@ -389,7 +384,7 @@ func writeMaps(path string, res *Result, opt WriteOptions) error {
 	}
 	vars := make([]*cfwrite.Var, len(mapNames))
 	for k, mn := range mapNames {
-		v, err := w.AddVar(cfwrite.VarSpec{Name: mn.name + "_diff", Dims: []string{"candidate", cfwrite.DimLat, cfwrite.DimLon},
+		v, err := w.AddVar(cfwrite.VarSpec{Name: mn.name + "_" + vocab.Difference, Dims: []string{"candidate", cfwrite.DimLat, cfwrite.DimLon},
 			Units: mn.units, LongName: fmt.Sprintf("%s of the candidate minus that of the reference (%s)", mn.name, res.Reference.Name)})
 		if err != nil {
 			return err

@@ -35,8 +35,8 @@ type CompareOptions struct {
 
 // compareMaps are the maps a comparison draws, with the figures' specs.
 var compareMaps = []struct{ variable, spec string }{
-	{"convective_fraction", "map_convective_fraction"},
-	{"crossings_per_year", "map_crossings"},
+	{"convective_time_fraction", "map_convective_fraction"},
+	{"crossing_rate", "map_crossings"},
 }
 
 // DrawComparison draws the figures of a comparison (package compare) and

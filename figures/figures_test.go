@@ -126,7 +126,7 @@ func TestEachFigureRenders(t *testing.T) {
 		t.Fatal(err)
 	}
 	wantNames := []string{"map_convective_fraction", "map_crossings", "map_eis", "map_lts", "map_cloud", "map_relative_sst",
-		"relation_eis", "relation_lts", "relation_rel_sst", "joint_composite", "flips", "threshold", "series"}
+		"relationships_eis", "relationships_lts", "relationships_rel_sst", "joint_composite", "flips", "threshold", "series"}
 	if len(pngs) != len(wantNames) || len(svgs) != len(wantNames) {
 		t.Fatalf("drew %d PNG and %d SVG figures, want %d each (%v): %v", len(pngs), len(svgs), len(wantNames), wantNames, pngs)
 	}
@@ -274,7 +274,7 @@ func absDiff(a uint32, b uint8) uint32 {
 // `go test ./figures -run Golden -regen` to rewrite them after an intended
 // change, and look at them before committing.
 func TestGolden(t *testing.T) {
-	for _, name := range []string{"map_eis", "relation_eis", "series"} {
+	for _, name := range []string{"map_eis", "relationships_eis", "series"} {
 		fg, pg := build(t, name, "png", 80)
 		got := renderBytes(t, fg, pg)
 		path := filepath.Join("testdata", "golden", name+".png")
@@ -313,7 +313,7 @@ func TestRelationFiguresNeedResults(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, p := range paths {
-		if b := filepath.Base(p); strings.HasPrefix(b, "relation_") || b == "flips.png" || b == "threshold.png" || b == "joint_composite.png" {
+		if b := filepath.Base(p); strings.HasPrefix(b, "relationships_") || b == "flips.png" || b == "threshold.png" || b == "joint_composite.png" {
 			t.Errorf("drew %s without relationship results", b)
 		}
 	}
@@ -333,7 +333,7 @@ func TestRelationsFromFile(t *testing.T) {
 	if _, err := relations.Write(dir, fixRel, relations.Meta{Dataset: "test", Version: "test", Command: []string{"test"}}, relations.WriteOptions{Force: true}); err != nil {
 		t.Fatal(err)
 	}
-	names := []string{"relation_eis", "relation_lts", "relation_rel_sst", "joint_composite", "flips", "threshold"}
+	names := []string{"relationships_eis", "relationships_lts", "relationships_rel_sst", "joint_composite", "flips", "threshold"}
 	fromFile, err := Draw(dir, Options{Only: names, OutDir: filepath.Join(dir, "a"), DPI: 60})
 	if err != nil {
 		t.Fatal(err)

@@ -149,9 +149,9 @@ func TestYearTicks(t *testing.T) {
 // ReadRelations never panics on arbitrary files, and what it accepts has
 // joint composites of consistent size.
 func FuzzReadRelations(f *testing.F) {
-	f.Add([]byte(`{"format":"lidscope-relationships","format_version":2,"mode":"climatological"}`))
-	f.Add([]byte(`{"format":"lidscope-relationships","format_version":2,"mode":"anomaly","joint_composites":[{"rel_sst_edges":[0,1],"eis_edges":[0,1],"mean":[{"value":null,"units":"1"}],"frequency":[{"value":0.5}],"count":[{"value":3}]}],"binned":[{"regime":"convective","bins":[{"lower":{"value":1}}]}]}`))
-	f.Add([]byte(`{"format":"lidscope-relationships","format_version":2,"mode":"climatological","threshold":{"logistic":{"slope":{"value":2}}},"flips":[{"rows":[{"delta_t":{"value":1}}]}]}`))
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":3,"relationships_mode":"climatological"}`))
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":3,"relationships_mode":"anomaly","joint_composites":[{"rel_sst_edges":[0,1],"eis_edges":[0,1],"mean":[{"value":null,"units":"1"}],"frequency":[{"value":0.5}],"count":[{"value":3}]}],"binned":[{"regime":"convective","bins":[{"lower":{"value":1}}]}]}`))
+	f.Add([]byte(`{"format":"lidscope-relationships","format_version":3,"relationships_mode":"climatological","threshold":{"logistic":{"slope":{"value":2}}},"flips":[{"rows":[{"sst_perturbation":{"value":1}}]}]}`))
 	f.Fuzz(func(t *testing.T, b []byte) {
 		dir := t.TempDir()
 		if err := os.WriteFile(dir+"/relationships.json", b, 0o644); err != nil {

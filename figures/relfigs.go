@@ -3,6 +3,7 @@ package figures
 import (
 	"fmt"
 	"image/color"
+	"lidscope/vocab"
 	"math"
 	"strings"
 
@@ -23,7 +24,7 @@ import (
 func init() {
 	for _, p := range []struct{ pred, label string }{{"eis", "EIS"}, {"lts", "LTS"}, {relations.RelSST, "relative SST"}} {
 		p := p
-		register(figure{name: "relation_" + p.pred,
+		register(figure{name: vocab.Relationships + "_" + p.pred,
 			describe: "cloud against " + p.label + " per regime: bin means with 95 % intervals, counts, the weighted OLS line with its 95 % band",
 			needs: func(r *Run) (bool, string, error) {
 				if r.relations == nil {
@@ -125,32 +126,14 @@ func pickJoint(res *relations.Results) *relations.Joint {
 
 // displayUnits turns a CF/UDUNITS unit string into the text shown on a
 // figure and the factor applied to values: fractions ("1") are shown in per
-// cent.
+// cent (the axis says so); every other unit is shown as the files spell it
+// (UDUNITS-2: K, K-1, W m-2, yr-1), with factor 1.
 func displayUnits(u string) (string, float64) {
 	switch strings.TrimSpace(u) {
 	case "1", "":
 		return "%", 100
-	case "W m-2":
-		return "W/m²", 1
-	case "Pa s-1":
-		return "Pa/s", 1
-	case "hPa d-1":
-		return "hPa/d", 1
-	case "K-1":
-		return "1/K", 1
-	case "yr-1":
-		return "1/yr", 1
 	}
 	return u, 1
-}
-
-// slopeText writes a slope's display units from the response's and the
-// predictor's.
-func slopeText(resp, pred string) string {
-	if strings.Contains(resp, "/") {
-		return "(" + resp + ")/" + pred
-	}
-	return resp + "/" + pred
 }
 
 func predictorLabel(pred string) string {
@@ -364,8 +347,10 @@ func (f *fig) relationPage(pred string) (*page, error) {
 			bl := bandLine{a: g.Intercept, b: g.Slope, seA: g.InterceptSE, seB: g.SlopeSE, xbar: swx / sw,
 				t: t975(g.NEffSlope - 2), x0: xlo, x1: xhi, factor: rf, colour: colour}
 			p.Add(bl)
-			half := (g.SlopeCI.Hi - g.SlopeCI.Lo) / 2 * rf
-			lines = append(lines, f.t(fmt.Sprintf("slope %s %s", numPM(g.Slope*rf, half), slopeText(ru, pu))),
+			// The slope in the units of the files (regressions.csv,
+			// relationships.json): one spelling of a slope everywhere.
+			half := (g.SlopeCI.Hi - g.SlopeCI.Lo) / 2
+			lines = append(lines, f.t(fmt.Sprintf("slope %s %s", numPM(g.Slope, half), g.SlopeUnits)),
 				f.t(fmt.Sprintf("N_eff = %.0f (N = %d)", g.NEffSlope, g.N)))
 		} else {
 			lines = append(lines, f.t("no regression (too few samples)"))

@@ -53,7 +53,7 @@ func ExampleWrite() {
 				Value float64
 				Units string
 			}
-		} `json:"band_regime_means"`
+		} `json:"band_mean"`
 	}
 	b, _ := os.ReadFile(files[4])
 	json.Unmarshal(b, &sum)

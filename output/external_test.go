@@ -58,10 +58,10 @@ out = {
     "maps_time": iso(maps.time.values[0]),
     "maps_bounds": [iso(v) for v in maps[maps.time.attrs["bounds"]].values[0]] if "bounds" in maps.time.attrs else [],
     "flag_meanings": maps.regime.attrs["flag_meanings"],
-    "land_convective_fraction_is_nan": bool(np.isnan(maps.convective_fraction.values[0, 0, 0])),
+    "land_convective_fraction_is_nan": bool(np.isnan(maps.convective_time_fraction.values[0, 0, 0])),
     "eis_mean_col5": [None if np.isnan(x) else float(x) for x in maps.eis_mean.values[0, :, 1, 1]],
     "eis_mean_col6": [None if np.isnan(x) else float(x) for x in maps.eis_mean.values[0, :, 1, 2]],
-    "dwell_units": maps.dwell_convective_months.attrs["units"],
+    "dwell_units": maps.convective_dwell.attrs["units"],
     "conv_area_mean": float(np.nanmean(ser.area_fraction.values[:, 0])),
     "conv_area_std": float(np.nanstd(ser.area_fraction.values[:, 0])),
     "sst_mean": float(ser.tropical_mean_sst.mean()),
@@ -121,10 +121,10 @@ func TestXarrayReadsOutputs(t *testing.T) {
 			}
 			// numpy's nanmean/nanstd over series.nc against summary.json.
 			s := readJSON(t, filepath.Join(dir, SummaryJSON))
-			if got, want := value(t, s, "band_convective_area_fraction", "mean"), m["conv_area_mean"].(float64); math.Abs(got-want) > 1e-7 {
+			if got, want := value(t, s, "area_fraction", "convective", "mean"), m["conv_area_mean"].(float64); math.Abs(got-want) > 1e-7 {
 				t.Errorf("summary convective area fraction mean %v, numpy over series.nc %v", got, want)
 			}
-			if got, want := value(t, s, "band_convective_area_fraction", "std"), m["conv_area_std"].(float64); math.Abs(got-want) > 1e-7 {
+			if got, want := value(t, s, "area_fraction", "convective", "std"), m["conv_area_std"].(float64); math.Abs(got-want) > 1e-7 {
 				t.Errorf("summary convective area fraction std %v, numpy over series.nc %v", got, want)
 			}
 			if got, want := value(t, s, "tropical_mean_sst", "mean"), m["sst_mean"].(float64); math.Abs(got-want) > 1e-9 {
@@ -177,10 +177,10 @@ func TestCDOSinfo(t *testing.T) {
 			t.Errorf("cdo sinfo maps.nc does not show %q:\n%s", want, maps)
 		}
 	}
-	// 17 variables: 3 fractions, crossings, 2 + 2 dwell, valid steps,
+	// 15 variables: 3 fractions, crossing rate, 2 dwell, valid steps,
 	// 2 relative SST, 3 quantities × (mean, count).
-	if n := len(regexp.MustCompile(`(?m)^\s+\d+ : unknown`).FindAllString(maps, -1)); n != 17 {
-		t.Errorf("cdo sinfo lists %d variables in maps.nc, want 17:\n%s", n, maps)
+	if n := len(regexp.MustCompile(`(?m)^\s+\d+ : unknown`).FindAllString(maps, -1)); n != 15 {
+		t.Errorf("cdo sinfo lists %d variables in maps.nc, want 15:\n%s", n, maps)
 	}
 	series := runTool(t, cdo, "sinfo", filepath.Join(dir, SeriesNC))
 	for _, want := range []string{"time : 6 steps", "2001-01-15 00:00:00", "2001-06-15 00:00:00", "p700 : 70000 Pa"} {
@@ -223,10 +223,10 @@ func TestCDOWeightedMeans(t *testing.T) {
 	s := readJSON(t, filepath.Join(dir, SummaryJSON))
 	rel := func(a, b float64) float64 { return math.Abs(a-b) / math.Max(math.Abs(b), 1e-300) }
 
-	got := cdoValues(t, runTool(t, cdo, "-s", "-outputf,%.17g,1", "-fldmean", "-selname,crossings_per_year", maps))
-	want := value(t, s, "crossings_per_year", "mean")
+	got := cdoValues(t, runTool(t, cdo, "-s", "-outputf,%.17g,1", "-fldmean", "-selname,crossing_rate", maps))
+	want := value(t, s, "crossing_rate", "mean")
 	if len(got) != 1 || rel(got[0], want) > 1e-6 {
-		t.Errorf("CDO fldmean of crossings_per_year = %v, summary.json %v", got, want)
+		t.Errorf("CDO fldmean of crossing_rate = %v, summary.json %v", got, want)
 	}
 	for _, q := range []string{"eis", "cloud"} {
 		out := runTool(t, cdo, "-s", "-outputf,%.17g,1", "-div",
@@ -238,7 +238,7 @@ func TestCDOWeightedMeans(t *testing.T) {
 		}
 		for k, name := range []string{"convective", "transition", "subsidence"} {
 			// float32 storage of the per-column means limits the agreement.
-			if w := value(t, s, "band_regime_means", q, name, "mean"); rel(got[k], w) > 1e-6 {
+			if w := value(t, s, "band_mean", q, name, "mean"); rel(got[k], w) > 1e-6 {
 				t.Errorf("band mean of %s in %s: CDO %v, summary.json %v", q, name, got[k], w)
 			}
 		}
@@ -333,7 +333,7 @@ func TestUDUNITS(t *testing.T) {
 		"yr-1": {"s-1", 1 / 3.15569259747e7}, "month": {"s", 3.15569259747e7 / 12},
 		"degrees_north": {"degrees_north", 1}, "degrees_east": {"degrees_east", 1},
 		"days since 1970-01-01": {"days since 1970-01-01", 1},
-		"W m-2":                 {"kg s-3", 1}, "Pa s-1": {"kg m-1 s-3", 1},
+		"W m-2":                 {"kg s-3", 1}, "Pa s-1": {"kg m-1 s-3", 1}, "kg m-2 s-1": {"kg m-2 s-1", 1},
 	}
 	var pairs [][2]string
 	for u := range found {

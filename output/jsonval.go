@@ -16,7 +16,7 @@ type num = jsonnum.Num
 type meanStd struct {
 	Mean num `json:"mean"`
 	Std  num `json:"std"`
-	N    num `json:"n"`
+	N    num `json:"count"`
 }
 
 // formatFloat writes x for CSV: the shortest text that reads back to the

@@ -9,6 +9,7 @@ import (
 
 	"lidscope/cfwrite"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // regimeDim is the name of the categorical regime axis in maps.nc and
@@ -66,16 +67,16 @@ func (c *checked) mapVars() []mapVar {
 			}
 		}
 		add(cfwrite.VarSpec{
-			Name: r.String() + "_fraction", Dims: yx, Units: "1",
+			Name: r.String() + "_" + vocab.TimeFraction, Dims: yx, Units: vocab.UnitOne,
 			LongName:    "fraction of valid time steps in the " + r.String() + " regime",
 			CellMethods: "time: mean " + c.timeComment("of the "+r.String()+"-regime indicator over the time steps in which the column was valid ocean with data"),
 		}, d)
 	}
 	add(cfwrite.VarSpec{
-		Name: "crossings_per_year", Dims: yx, Units: "yr-1",
+		Name: vocab.CrossingRate, Dims: yx, Units: vocab.UnitPerYear,
 		LongName:    "crossings between the convective and subsidence regimes per year of record",
 		CellMethods: "time: mean " + c.timeComment("crossings counted with hysteresis across transition and missing steps, divided by the record length in years"),
-		Attributes:  map[string]any{"time_steps_per_year": c.meta.StepsPerYear},
+		Attributes:  map[string]any{vocab.SamplingFrequency: c.meta.StepsPerYear, vocab.SamplingFrequency + "_units": vocab.UnitPerYear},
 	}, acc.CrossingsPerYear(c.meta.StepsPerYear))
 	for _, r := range []regimes.Regime{regimes.Convective, regimes.Subsidence} {
 		d := make([]float64, n)
@@ -85,23 +86,25 @@ func (c *checked) mapVars() []mapVar {
 				d[i] = cells.Tracks[i].MeanDwell(r)
 			}
 		}
-		add(cfwrite.VarSpec{
-			Name: "dwell_" + r.String(), Dims: yx, Units: "1",
-			LongName:    "mean dwell time in the " + r.String() + " regime, in time steps",
-			CellMethods: "time: mean " + c.timeComment("mean length of the runs of steps in the regime, runs cut off by the ends of the record included"),
-			Attributes: map[string]any{
-				"time_steps_per_year": c.meta.StepsPerYear,
-				"comment":             "a number of time steps; one step is 1/" + steps + " year",
-			},
-		}, d)
-		if c.meta.StepsPerYear == 12 {
-			add(cfwrite.VarSpec{
-				Name: "dwell_" + r.String() + "_months", Dims: yx, Units: "month",
-				LongName:    "mean dwell time in the " + r.String() + " regime",
-				CellMethods: "time: mean " + c.timeComment("mean length of the runs of monthly steps in the regime, runs cut off by the ends of the record included"),
-				Attributes:  map[string]any{"comment": "dwell_" + r.String() + " of monthly steps in months; the UDUNITS month is a twelfth of a year"},
-			}, d)
+		// One variable per regime: in months (UDUNITS-2: a twelfth of a
+		// year) for monthly steps, otherwise in time steps, the units
+		// attribute saying which.
+		units, long := vocab.UnitOne, "mean dwell time in the "+r.String()+" regime, in time steps"
+		attrs := map[string]any{
+			vocab.SamplingFrequency:            c.meta.StepsPerYear,
+			vocab.SamplingFrequency + "_units": vocab.UnitPerYear,
+			"comment":                          "a number of time steps; one step is 1/" + steps + " year",
 		}
+		if c.meta.StepsPerYear == 12 {
+			units, long = vocab.UnitMonth, "mean dwell time in the "+r.String()+" regime"
+			attrs["comment"] = "mean run length of monthly steps, in months; the UDUNITS month is a twelfth of a year"
+		}
+		add(cfwrite.VarSpec{
+			Name: r.String() + "_" + vocab.Dwell, Dims: yx, Units: units,
+			LongName:    long,
+			CellMethods: "time: mean " + c.timeComment("mean length of the runs of steps in the regime, runs cut off by the ends of the record included"),
+			Attributes:  attrs,
+		}, d)
 	}
 	valid := make([]float64, n)
 	for i, v := range cells.Valid {
@@ -111,7 +114,7 @@ func (c *checked) mapVars() []mapVar {
 		Name: "valid_steps", Dims: yx, Type: cfwrite.Int32, Units: "1",
 		LongName:    "number of time steps in which the column was valid ocean with data",
 		CellMethods: "time: sum " + c.timeComment("of the indicator of a valid step"),
-		Attributes:  map[string]any{"time_steps_in_record": cells.Steps},
+		Attributes:  map[string]any{vocab.TimeSteps: cells.Steps},
 	}, valid)
 	rm, rs := make([]float64, n), make([]float64, n)
 	for i, m := range cells.Rel {
@@ -143,13 +146,13 @@ func (c *checked) mapVars() []mapVar {
 			coord = pressureCoordName(q.PressurePa)
 		}
 		add(cfwrite.VarSpec{
-			Name: name + "_mean", Dims: ryx, Units: q.Units,
+			Name: name + "_" + vocab.Mean, Dims: ryx, Units: q.Units,
 			LongName: q.LongName, StandardName: q.StandardName,
 			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
 			Coordinates: coord,
 		}, mean)
 		add(cfwrite.VarSpec{
-			Name: name + "_count", Dims: ryx, Type: cfwrite.Int32, Units: "1",
+			Name: name + "_" + vocab.Count, Dims: ryx, Type: cfwrite.Int32, Units: vocab.UnitOne,
 			LongName:    "number of time steps averaged in " + name + "_mean",
 			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
 		}, cnt)
@@ -185,22 +188,27 @@ func (c *checked) cfGrid() cfwrite.Grid {
 	}
 }
 
-// globalAttrs are the provenance attributes of both NetCDF files.
-func (c *checked) globalAttrs(notes []string) map[string]string {
+// globalAttrs are the provenance attributes of both NetCDF files. Numbers
+// are typed; the units of a number attribute x are in x_units.
+func (c *checked) globalAttrs(notes []string) map[string]any {
 	m := c.meta
-	a := map[string]string{
-		"dataset":                 m.Dataset,
-		"lidscope_version":        m.Version,
-		"study_hash":              m.StudyHash,
-		"metrics_conventions":     m.MetricsConventions,
-		"regime_definition":       m.RegimeDefinition,
-		"delta_K":                 formatFloat(m.Delta),
-		"transition_half_width_K": formatFloat(m.HalfWidth),
-		"band":                    formatFloat(m.BandSouth) + " to " + formatFloat(m.BandNorth) + " degrees_north",
-		"period":                  c.period(),
-		"time_steps":              strconv.Itoa(len(c.acc.Series)),
-		"time_steps_per_year":     formatFloat(m.StepsPerYear),
-		"regime_index":            regimeIndexText(),
+	a := map[string]any{
+		"dataset":                          m.Dataset,
+		"lidscope_version":                 m.Version,
+		"study_hash":                       m.StudyHash,
+		"metrics_conventions":              m.MetricsConventions,
+		vocab.RegimeDefinition:             m.RegimeDefinition,
+		vocab.Delta:                        m.Delta,
+		vocab.Delta + "_units":             vocab.UnitKelvin,
+		vocab.HalfWidth:                    m.HalfWidth,
+		vocab.HalfWidth + "_units":         vocab.UnitKelvin,
+		vocab.Band:                         []float64{m.BandSouth, m.BandNorth},
+		vocab.Band + "_units":              vocab.UnitDegreesNorth,
+		"period":                           c.period(),
+		vocab.TimeSteps:                    len(c.acc.Series),
+		vocab.SamplingFrequency:            m.StepsPerYear,
+		vocab.SamplingFrequency + "_units": vocab.UnitPerYear,
+		vocab.RegimeIndex:                  regimeIndexText(),
 	}
 	if len(m.Inputs) > 0 {
 		var b strings.Builder

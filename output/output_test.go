@@ -7,6 +7,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -87,26 +88,25 @@ func TestMapsByHand(t *testing.T) {
 		want float64
 	}{
 		// column 5, "CCSTSC", eis 5…10
-		{"convective_fraction", 5, 0.5},
-		{"transition_fraction", 5, 1.0 / 6},
-		{"subsidence_fraction", 5, 2.0 / 6},
-		{"crossings_per_year", 5, 4}, // C→S, S→C in half a year
-		{"dwell_convective", 5, 1.5}, // runs of 2 and 1 steps
-		{"dwell_subsidence", 5, 3},   // steps 2…4, the transition step inside
-		{"dwell_convective_months", 5, 1.5},
+		{"convective_time_fraction", 5, 0.5},
+		{"transition_time_fraction", 5, 1.0 / 6},
+		{"subsidence_time_fraction", 5, 2.0 / 6},
+		{"crossing_rate", 5, 4},      // C→S, S→C in half a year
+		{"convective_dwell", 5, 1.5}, // runs of 2 and 1 steps
+		{"subsidence_dwell", 5, 3},   // steps 2…4, the transition step inside
 		{"valid_steps", 5, 6},
 		{"rel_sst_mean", 5, 0.25},                // (1+1−1+0.5−1+1)/6
 		{"rel_sst_std", 5, math.Sqrt(4.875 / 6)}, // population
-		{"crossings_per_year", 3, 10},            // "CSCSCS"
-		{"dwell_subsidence", 7, 3},               // "LCCSLS": steps 3…5 across the gap
+		{"crossing_rate", 3, 10},                 // "CSCSCS"
+		{"subsidence_dwell", 7, 3},               // "LCCSLS": steps 3…5 across the gap
 		{"valid_steps", 7, 4},
-		{"crossings_per_year", 7, 2},
-		{"dwell_convective", 4, nan}, // "TTTTTT"
-		{"transition_fraction", 4, 1},
-		{"crossings_per_year", 4, 0},
-		{"convective_fraction", 0, nan}, // land
+		{"crossing_rate", 7, 2},
+		{"convective_dwell", 4, nan}, // "TTTTTT"
+		{"transition_time_fraction", 4, 1},
+		{"crossing_rate", 4, 0},
+		{"convective_time_fraction", 0, nan}, // land
 		{"rel_sst_mean", 0, nan},
-		{"crossings_per_year", 12, 6}, // "CTSCTS": three crossings
+		{"crossing_rate", 12, 6}, // "CTSCTS": three crossings
 	}
 	for _, c := range cases {
 		d, _ := readVar(t, nc, c.name)
@@ -159,17 +159,17 @@ func TestMapsMatchAccumulator(t *testing.T) {
 	nc := ncFile(t, filepath.Join(dir, MapsNC))
 	acc := f.acc
 	cf := acc.ConvectiveFraction()
-	got, _ := readVar(t, nc, "convective_fraction")
+	got, _ := readVar(t, nc, "convective_time_fraction")
 	for i := range cf {
 		if !near(fromFill(got[i]), cf[i]) {
-			t.Errorf("convective_fraction[%d] = %v, accumulator %v", i, got[i], cf[i])
+			t.Errorf("convective_time_fraction[%d] = %v, accumulator %v", i, got[i], cf[i])
 		}
 	}
 	cpy := acc.CrossingsPerYear(12)
-	got, _ = readVar(t, nc, "crossings_per_year")
+	got, _ = readVar(t, nc, "crossing_rate")
 	for i := range cpy {
 		if !near(fromFill(got[i]), cpy[i]) {
-			t.Errorf("crossings_per_year[%d] = %v, accumulator %v", i, got[i], cpy[i])
+			t.Errorf("crossing_rate[%d] = %v, accumulator %v", i, got[i], cpy[i])
 		}
 	}
 	for qi, q := range fixQuantities {
@@ -193,9 +193,9 @@ func TestMapsMetadata(t *testing.T) {
 	dir, _ := f.write(t)
 	nc := ncFile(t, filepath.Join(dir, MapsNC))
 	units := map[string]string{
-		"convective_fraction": "1", "transition_fraction": "1", "subsidence_fraction": "1",
-		"crossings_per_year": "yr-1", "dwell_convective": "1", "dwell_subsidence": "1",
-		"dwell_convective_months": "month", "valid_steps": "1",
+		"convective_time_fraction": "1", "transition_time_fraction": "1", "subsidence_time_fraction": "1",
+		"crossing_rate": "yr-1", "convective_dwell": "month", "subsidence_dwell": "month",
+		"valid_steps":  "1",
 		"rel_sst_mean": "K", "rel_sst_std": "K",
 		"eis_mean": "K", "t700_mean": "K", "cloud_mean": "1", "eis_count": "1",
 	}
@@ -255,11 +255,24 @@ func TestMapsMetadata(t *testing.T) {
 	for name, want := range map[string]string{
 		"Conventions": "CF-1.10", "dataset": "synthetic test record", "lidscope_version": "0.0.0-test",
 		"study_hash": "sha256:0123abcd", "metrics_conventions": f.meta.MetricsConventions,
-		"regime_definition": f.meta.RegimeDefinition, "delta_K": "0.5", "transition_half_width_K": "0.25",
-		"band": "-30 to 30 degrees_north", "period": "2001-01 … 2001-06", "time_steps": "6",
+		"regime_definition": f.meta.RegimeDefinition, "delta_units": "K", "half_width_units": "K",
+		"band_units": "degrees_north", "period": "2001-01 … 2001-06", "sampling_frequency_units": "yr-1",
 	} {
 		if got := g(name); got != want {
 			t.Errorf("global %s = %q, want %q", name, got, want)
+		}
+	}
+	// Numbers are typed attributes, their units in name_units.
+	for name, want := range map[string][]float64{
+		"delta": {0.5}, "half_width": {0.25}, "band": {-30, 30}, "time_steps": {6}, "sampling_frequency": {12},
+	} {
+		a, err := nc.Attr(name)
+		if err != nil {
+			t.Fatalf("global %s: %v", name, err)
+		}
+		got, ok := a.Float64s()
+		if !ok || fmt.Sprint(got) != fmt.Sprint(want) {
+			t.Errorf("global %s = %v (%s), want the number(s) %v", name, a.Value, a.Type, want)
 		}
 	}
 	if h := g("history"); !strings.HasPrefix(h, "2024-03-01T12:01:30Z: lidscope run --study 'my study.toml' --out res") {
@@ -349,9 +362,9 @@ func TestSeriesCSV(t *testing.T) {
 	cl, cy, cm := column(t, head, "label"), column(t, head, "year"), column(t, head, "month")
 	ct, cd := column(t, head, "time [days since 1970-01-01]"), column(t, head, "date")
 	cs := column(t, head, "tropical_mean_sst [K]")
-	cc := column(t, head, "area_fraction_convective [1]")
-	ce := column(t, head, "eis_band_mean_subsidence [K]")
-	column(t, head, "cloud_band_mean_transition [1]")
+	cc := column(t, head, "convective_area_fraction [1]")
+	ce := column(t, head, "subsidence_eis_band_mean [K]")
+	column(t, head, "transition_cloud_band_mean [1]")
 	for i, r := range rows {
 		p := f.acc.Series[i]
 		if r[cl] != p.Label || r[cy] != "2001" || r[cm] != strconv.Itoa(i+1) {
@@ -376,10 +389,10 @@ func TestRegionsCSV(t *testing.T) {
 		t.Fatalf("%d rows, want 2 regions × 3 regimes", len(rows))
 	}
 	cr, cg := column(t, head, "region"), column(t, head, "regime")
-	cs := column(t, head, "area_time_share [1]")
-	cm, cn := column(t, head, "eis_mean [K]"), column(t, head, "eis_n [1]")
+	cs := column(t, head, "area_time_fraction [1]")
+	cm, cn := column(t, head, "eis_mean [K]"), column(t, head, "eis_count [1]")
 	column(t, head, "cloud_std [1]")
-	column(t, head, "region_rel_sst_mean [K]")
+	column(t, head, "rel_sst_mean [K]")
 	share := map[string]float64{}
 	for i, r := range rows {
 		k := i / 3
@@ -564,10 +577,10 @@ func TestSummaryJSON(t *testing.T) {
 		fr = append(fr, a/tot)
 	}
 	mean, std := meanStdOf(fr)
-	if got := value(t, s, "band_convective_area_fraction", "mean"); math.Abs(got-mean) > 1e-12 {
+	if got := value(t, s, "area_fraction", "convective", "mean"); math.Abs(got-mean) > 1e-12 {
 		t.Errorf("band convective area fraction mean %v, want %v", got, mean)
 	}
-	if got := value(t, s, "band_convective_area_fraction", "std"); math.Abs(got-std) > 1e-12 {
+	if got := value(t, s, "area_fraction", "convective", "std"); math.Abs(got-std) > 1e-12 {
 		t.Errorf("band convective area fraction std %v, want %v", got, std)
 	}
 	// Regime means of each quantity over the band and the record.
@@ -586,12 +599,12 @@ func TestSummaryJSON(t *testing.T) {
 					n++
 				}
 			}
-			got := value(t, s, "band_regime_means", q, r.String(), "mean")
+			got := value(t, s, "band_mean", q, r.String(), "mean")
 			if math.Abs(got-swx/sw) > 1e-9*math.Abs(swx/sw) {
-				t.Errorf("band_regime_means.%s.%s = %v, want %v", q, r, got, swx/sw)
+				t.Errorf("band_mean.%s.%s = %v, want %v", q, r, got, swx/sw)
 			}
-			if gn := value(t, s, "band_regime_means", q, r.String(), "n"); gn != float64(n) {
-				t.Errorf("band_regime_means.%s.%s n = %v, want %d", q, r, gn, n)
+			if gn := value(t, s, "band_mean", q, r.String(), "count"); gn != float64(n) {
+				t.Errorf("band_mean.%s.%s n = %v, want %d", q, r, gn, n)
 			}
 		}
 	}
@@ -607,11 +620,11 @@ func TestSummaryJSON(t *testing.T) {
 		sw += w[i]
 		swx += w[i] * float64(n) / 0.5 // six monthly steps = half a year
 	}
-	if got := value(t, s, "crossings_per_year", "mean"); math.Abs(got-swx/sw) > 1e-12 {
-		t.Errorf("crossings_per_year mean %v, want %v", got, swx/sw)
+	if got := value(t, s, "crossing_rate", "mean"); math.Abs(got-swx/sw) > 1e-12 {
+		t.Errorf("crossing_rate mean %v, want %v", got, swx/sw)
 	}
-	if get(t, s, "crossings_per_year", "mean", "units") != "yr-1" || value(t, s, "crossings_per_year", "cells") != float64(cells) {
-		t.Errorf("crossings_per_year %v", get(t, s, "crossings_per_year"))
+	if get(t, s, "crossing_rate", "mean", "units") != "yr-1" || value(t, s, "crossing_rate", "cells") != float64(cells) {
+		t.Errorf("crossing_rate %v", get(t, s, "crossing_rate"))
 	}
 	regs := get(t, s, "regions").([]any)
 	if len(regs) != 2 || get(t, regs[0], "name") != "west" {
@@ -619,7 +632,7 @@ func TestSummaryJSON(t *testing.T) {
 	}
 	share := 0.0
 	for _, r := range regimes.All {
-		share += value(t, regs[1], "regimes", r.String(), "area_time_share")
+		share += value(t, regs[1], "regimes", r.String(), "area_time_fraction")
 	}
 	if math.Abs(share-1) > 1e-12 {
 		t.Errorf("dateline shares sum to %v", share)
@@ -736,7 +749,7 @@ func TestQuantityUnits(t *testing.T) {
 	// The units table of the task: K for temperatures and stabilities,
 	// 1 for cloud fractions, W m-2 for TOA fluxes, Pa s-1 for omega.
 	want := map[string]string{"sst": "K", "t700": "K", "lts": "K", "eis": "K", "ectei": "K",
-		"cloud": "1", "low_cloud": "1", "toa_sw_up": "W m-2", "olr": "W m-2", "omega": "Pa s-1"}
+		"cloud": "1", "low_cloud": "1", "toa_sw_up": "W m-2", "olr": "W m-2", "omega": "Pa s-1", "precipitation": "kg m-2 s-1"}
 	for q, u := range want {
 		if got, ok := QuantityUnits(q); !ok || got != u {
 			t.Errorf("QuantityUnits(%q) = %q, %v; want %q", q, got, ok, u)

@@ -57,7 +57,7 @@ type provHost struct {
 type provTime struct {
 	Units    string `json:"units"`
 	Calendar string `json:"calendar"`
-	Steps    num    `json:"steps"`
+	Steps    num    `json:"time_steps"`
 	Bounds   string `json:"bounds"`
 }
 

@@ -8,6 +8,7 @@ import (
 
 	"lidscope/accumulate"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // areaTimeShares returns each regime's share of a region's valid
@@ -34,11 +35,11 @@ func (c *checked) regionsCSV() ([]byte, error) {
 	head := []string{"region", "regime",
 		csvHeader("south", "degrees_north"), csvHeader("north", "degrees_north"),
 		csvHeader("west", "degrees_east"), csvHeader("east", "degrees_east"),
-		csvHeader("area_time_share", "1"),
-		csvHeader("region_rel_sst_mean", "K"), csvHeader("region_rel_sst_std", "K")}
+		csvHeader("area_time_fraction", vocab.UnitOne),
+		csvHeader(vocab.RelSST+"_"+vocab.Mean, vocab.UnitKelvin), csvHeader(vocab.RelSST+"_"+vocab.Std, vocab.UnitKelvin)}
 	for qi, name := range c.acc.L.Quantities {
 		u := c.qs[qi].Units
-		head = append(head, csvHeader(name+"_mean", u), csvHeader(name+"_std", u), csvHeader(name+"_n", "1"))
+		head = append(head, csvHeader(name+"_"+vocab.Mean, u), csvHeader(name+"_"+vocab.Std, u), csvHeader(name+"_"+vocab.Count, vocab.UnitOne))
 	}
 	if err := w.Write(head); err != nil {
 		return nil, err

@@ -8,6 +8,7 @@ import (
 
 	"lidscope/cfwrite"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // bandComment describes the averaging area of the band series.
@@ -33,7 +34,7 @@ func (c *checked) writeSeriesNC(path string, notes []string) error {
 	}
 	tr := []string{cfwrite.DimTime, regimeDim}
 	sst, err := w.AddVar(cfwrite.VarSpec{
-		Name: "tropical_mean_sst", Dims: []string{cfwrite.DimTime}, Type: cfwrite.Float64, Units: "K",
+		Name: vocab.TropicalMeanSST, Dims: []string{cfwrite.DimTime}, Type: cfwrite.Float64, Units: "K",
 		StandardName: "sea_surface_temperature", LongName: "tropical-mean sea surface temperature",
 		CellMethods: c.bandComment("SST"),
 	})
@@ -41,7 +42,7 @@ func (c *checked) writeSeriesNC(path string, notes []string) error {
 		return err
 	}
 	af, err := w.AddVar(cfwrite.VarSpec{
-		Name: "area_fraction", Dims: tr, Units: "1",
+		Name: vocab.AreaFraction, Dims: tr, Units: "1",
 		LongName:    "fraction of the band's valid ocean area in each regime",
 		CellMethods: c.bandComment("regime indicator"),
 	})
@@ -61,7 +62,7 @@ func (c *checked) writeSeriesNC(path string, notes []string) error {
 			}
 		}
 		bm[qi], err = w.AddVar(cfwrite.VarSpec{
-			Name: name + "_band_mean", Dims: tr, Units: q.Units,
+			Name: name + "_" + vocab.BandMean, Dims: tr, Units: q.Units,
 			LongName: q.LongName, StandardName: q.StandardName,
 			CellMethods: c.bandComment(name + " in the regime given by the regime coordinate"),
 			Coordinates: coord,
@@ -125,13 +126,13 @@ func csvHeader(name, units string) string { return name + " [" + units + "]" }
 func (c *checked) seriesCSV() ([]byte, error) {
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
-	head := []string{"label", "year", "month", csvHeader("time", c.meta.TimeUnits), "date", csvHeader("tropical_mean_sst", "K")}
+	head := []string{"label", "year", "month", csvHeader("time", c.meta.TimeUnits), "date", csvHeader(vocab.TropicalMeanSST, vocab.UnitKelvin)}
 	for _, r := range regimes.All {
-		head = append(head, csvHeader("area_fraction_"+r.String(), "1"))
+		head = append(head, csvHeader(r.String()+"_"+vocab.AreaFraction, vocab.UnitOne))
 	}
 	for qi, name := range c.acc.L.Quantities {
 		for _, r := range regimes.All {
-			head = append(head, csvHeader(name+"_band_mean_"+r.String(), c.qs[qi].Units))
+			head = append(head, csvHeader(r.String()+"_"+name+"_"+vocab.BandMean, c.qs[qi].Units))
 		}
 	}
 	if err := w.Write(head); err != nil {

@@ -26,11 +26,10 @@ type summary struct {
 	StudyHash       string                        `json:"study_hash"`
 	Period          sumPeriod                     `json:"period"`
 	Regime          sumRegime                     `json:"regime_definition"`
-	ConvectiveArea  meanStd                       `json:"band_convective_area_fraction"`
-	AreaFraction    map[string]meanStd            `json:"band_area_fraction"`
+	AreaFraction    map[string]meanStd            `json:"area_fraction"`
 	TropicalMeanSST meanStd                       `json:"tropical_mean_sst"`
-	RegimeMeans     map[string]map[string]meanStd `json:"band_regime_means"`
-	Crossings       sumCrossings                  `json:"crossings_per_year"`
+	RegimeMeans     map[string]map[string]meanStd `json:"band_mean"`
+	Crossings       sumCrossings                  `json:"crossing_rate"`
 	Regions         []sumRegion                   `json:"regions"`
 	Notes           []string                      `json:"notes"`
 	// Quantities are those the run has (every per-quantity table uses
@@ -49,8 +48,8 @@ type sumPeriod struct {
 	Label        string  `json:"label"`
 	First        sumStep `json:"first"`
 	Last         sumStep `json:"last"`
-	Steps        num     `json:"steps"`
-	StepsPerYear num     `json:"steps_per_year"`
+	Steps        num     `json:"time_steps"`
+	StepsPerYear num     `json:"sampling_frequency"`
 	Calendar     string  `json:"calendar"`
 }
 
@@ -64,7 +63,7 @@ type sumRegime struct {
 	Delta     num     `json:"delta"`
 	HalfWidth num     `json:"half_width"`
 	Band      sumBand `json:"band"`
-	Index     string  `json:"netcdf_regime_index"`
+	Index     string  `json:"regime_index"`
 }
 
 type sumCrossings struct {
@@ -80,7 +79,7 @@ type sumBox struct {
 }
 
 type sumRegionRegime struct {
-	AreaTimeShare num                `json:"area_time_share"`
+	AreaTimeShare num                `json:"area_time_fraction"`
 	Quantities    map[string]meanStd `json:"quantities"`
 }
 
@@ -179,7 +178,6 @@ func (c *checked) summary(notes []string) summary {
 		}
 		s.AreaFraction[r.String()] = seriesStats(f, "1")
 	}
-	s.ConvectiveArea = s.AreaFraction[regimes.Convective.String()]
 	for qi, name := range acc.L.Quantities {
 		mr := map[string]meanStd{}
 		for _, r := range regimes.All {

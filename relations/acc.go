@@ -6,9 +6,9 @@ import (
 	"sort"
 
 	"lidscope/accumulate"
-	"lidscope/output"
 	"lidscope/regimes"
 	"lidscope/stats"
+	"lidscope/vocab"
 )
 
 // nreg is the number of regime slots, indexed by regimes.Regime
@@ -39,16 +39,9 @@ const (
 	hPaPerDayToPaPerS           = 100.0 / 86400
 )
 
-// unitsOf returns the units of a quantity or predictor name.
-func unitsOf(name string) (string, bool) {
-	switch name {
-	case RelSST:
-		return "K", true
-	case "precipitation":
-		return "kg m-2 s-1", true
-	}
-	return output.QuantityUnits(name)
-}
+// unitsOf returns the units of a quantity or predictor name (the table of
+// names, package vocab).
+func unitsOf(name string) (string, bool) { return vocab.Units(name) }
 
 type domW struct {
 	d int32
@@ -261,7 +254,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 			}
 		}
 		if _, ok := unitsOf(r); !ok {
-			return nil, fmt.Errorf("relations: response %q has no known units; known: %v and precipitation", r, output.KnownQuantities())
+			return nil, fmt.Errorf("relations: response %q has no known units; known: %v", r, vocab.ColumnQuantities())
 		}
 		a.rq = append(a.rq, k)
 	}

@@ -10,6 +10,7 @@ import (
 
 	"lidscope/accumulate"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // Mode says what the relationships are computed on.
@@ -75,7 +76,7 @@ const (
 
 // Names of the derived predictor and the band domain.
 const (
-	RelSST     = "rel_sst"       // SST − tropical-mean SST (accumulate.Step.Rel), K
+	RelSST     = vocab.RelSST    // SST − tropical-mean SST (accumulate.Step.Rel), K
 	BandDomain = "tropical_band" // the domain of all band cells
 )
 
@@ -196,8 +197,17 @@ func DefaultIndicatorThreshold(ind string) float64 {
 	return math.NaN()
 }
 
-// kelvinPredictors are the quantities allowed as predictors (all in K).
-var kelvinPredictors = map[string]bool{"eis": true, "lts": true, RelSST: true, "sst": true, "t700": true, "ectei": true}
+// kelvinPredictors are the quantities allowed as predictors (all in K):
+// the predictors of the table of names (package vocab).
+var kelvinPredictors = func() map[string]bool {
+	m := map[string]bool{}
+	for _, p := range vocab.Predictors() {
+		m[p] = true
+	}
+	return m
+}()
+
+func predictorList() string { return strings.Join(vocab.Predictors(), ", ") }
 
 var nameRE = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_.+@-]*$`)
 
@@ -213,7 +223,7 @@ func (c Config) Validate() error {
 	for _, p := range sortedKeys(c.Bins) {
 		e := c.Bins[p]
 		if !kelvinPredictors[p] {
-			return fmt.Errorf("relations: Config.Bins[%q]: %q is not a predictor; use eis, lts, rel_sst, sst, t700 or ectei (all in K)", p, p)
+			return fmt.Errorf("relations: Config.Bins[%q]: %q is not a predictor; use one of %s (all in K)", p, p, predictorList())
 		}
 		if len(e) < 2 {
 			return fmt.Errorf("relations: Config.Bins[%q] has %d edges; give at least 2", p, len(e))
@@ -297,7 +307,7 @@ func (c Config) Validate() error {
 		return fmt.Errorf("relations: Config.Indicator = %q: use \"\" (none), %q, %q or %q", c.Indicator, IndicatorOmega, IndicatorPrecip, IndicatorOLR)
 	}
 	if c.Partial[0] == "" || c.Partial[1] == "" || c.Partial[0] == c.Partial[1] || !kelvinPredictors[c.Partial[0]] || !kelvinPredictors[c.Partial[1]] {
-		return fmt.Errorf("relations: Config.Partial = %q: give two different predictors among eis, lts, rel_sst, sst, t700, ectei", c.Partial)
+		return fmt.Errorf("relations: Config.Partial = %q: give two different predictors among %s", c.Partial, predictorList())
 	}
 	if !(c.DecorrelationLength >= 0) || math.IsInf(c.DecorrelationLength, 0) {
 		return fmt.Errorf("relations: Config.DecorrelationLength = %v m must be finite and ≥ 0 (default 1e6)", c.DecorrelationLength)

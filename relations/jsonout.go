@@ -30,21 +30,21 @@ func box4(s, n, w, e float64) *jBox {
 // jsonDoc builds relationships.json.
 func jsonDoc(r *Results, meta Meta) map[string]any {
 	doc := map[string]any{
-		"format":              "lidscope-relationships",
-		"format_version":      FormatVersion,
-		"dataset":             meta.Dataset,
-		"title":               meta.Title,
-		"lidscope_version":    meta.Version,
-		"study_hash":          meta.StudyHash,
-		"mode":                r.Mode.String(),
-		"mode_description":    r.ModeNote,
-		"detrended":           r.Detrended,
-		"regime_definition":   r.RegimeDefinition,
-		"uncertainty_method":  r.Uncertainty,
-		"config":              r.Config,
-		"period":              map[string]any{"label": meta.Period, "first": r.First, "last": r.Last, "steps": jsonnum.Count(r.Steps), "years": jsonnum.Count(r.Years)},
-		"netcdf_regime_index": regimeOrder(),
-		"notes":               append([]string{}, r.Notes...),
+		"format":                         "lidscope-relationships",
+		"format_version":                 FormatVersion,
+		"dataset":                        meta.Dataset,
+		"title":                          meta.Title,
+		"lidscope_version":               meta.Version,
+		"study_hash":                     meta.StudyHash,
+		"relationships_mode":             r.Mode.String(),
+		"relationships_mode_description": r.ModeNote,
+		"detrended":                      r.Detrended,
+		"regime_definition":              r.RegimeDefinition,
+		"uncertainty_method":             r.Uncertainty,
+		"relationships_config":           r.Config,
+		"period":                         map[string]any{"label": meta.Period, "first": r.First, "last": r.Last, "time_steps": jsonnum.Count(r.Steps), "years": jsonnum.Count(r.Years)},
+		"regime_index":                   regimeOrder(),
+		"notes":                          append([]string{}, r.Notes...),
 	}
 	var doms []map[string]any
 	for _, d := range r.Domains {
@@ -75,10 +75,10 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		for _, s := range b.Bins {
 			bins = append(bins, map[string]any{"lower": num{Value: s.Lower, Units: b.PredUnits}, "upper": num{Value: s.Upper, Units: b.PredUnits},
 				"mean": num{Value: s.Mean, Units: b.RespUnits}, "std": num{Value: s.Std, Units: b.RespUnits}, "stderr": num{Value: s.StdErr, Units: b.RespUnits},
-				"n": jsonnum.Count(s.N), "steps": jsonnum.Count(s.Steps), "n_eff": num{Value: s.NEff, Units: "1"}, "area": num{Value: s.Area, Units: "m2"}})
+				"count": jsonnum.Count(s.N), "time_steps": jsonnum.Count(s.Steps), "n_eff": num{Value: s.NEff, Units: "1"}, "area": num{Value: s.Area, Units: "m2"}})
 		}
-		binned = append(binned, map[string]any{"mode": r.Mode.String(), "domain": b.Domain, "season": b.Season, "regime": b.Regime.String(),
-			"predictor": b.Predictor, "response": b.Response, "out_of_range": jsonnum.Count(b.OutOfRange), "lag1_response": num{Value: b.R1, Units: "1"}, "bins": bins})
+		binned = append(binned, map[string]any{"relationships_mode": r.Mode.String(), "domain": b.Domain, "season": b.Season, "regime": b.Regime.String(),
+			"predictor": b.Predictor, "response": b.Response, "out_of_range": jsonnum.Count(b.OutOfRange), "response_lag1_autocorrelation": num{Value: b.R1, Units: "1"}, "bins": bins})
 	}
 	doc["binned"] = binned
 
@@ -90,7 +90,7 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		for k := range j.Mean {
 			mean[k], freq[k], count[k] = num{Value: j.Mean[k], Units: j.Units}, num{Value: j.Frequency[k], Units: "1"}, jsonnum.Count(j.Count[k])
 		}
-		joint = append(joint, map[string]any{"mode": r.Mode.String(), "domain": j.Domain, "season": j.Season, "response": j.Response,
+		joint = append(joint, map[string]any{"relationships_mode": r.Mode.String(), "domain": j.Domain, "season": j.Season, "response": j.Response,
 			"rel_sst_edges": j.RelEdges, "eis_edges": j.EISEdge, "layout": "[rel_sst bin][eis bin], row-major",
 			"mean": mean, "frequency": freq, "count": count})
 	}
@@ -98,14 +98,14 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 
 	regs := []map[string]any{}
 	for _, g := range r.Regressions {
-		m := map[string]any{"mode": r.Mode.String(), "domain": g.Domain, "season": g.Season, "regime": g.Regime.String(),
-			"response": g.Response, "predictor": g.Predictor, "n": jsonnum.Count(g.N), "steps": jsonnum.Count(g.Steps), "area": num{Value: g.Area, Units: "m2"},
-			"slope": num{Value: g.Slope, Units: g.SlopeUnits}, "slope_se": num{Value: g.SlopeSE, Units: g.SlopeUnits}, "slope_ci": ji(g.SlopeCI, g.SlopeUnits),
-			"intercept": num{Value: g.Intercept, Units: g.Units}, "intercept_se": num{Value: g.InterceptSE, Units: g.Units}, "intercept_ci": ji(g.InterceptCI, g.Units),
+		m := map[string]any{"relationships_mode": r.Mode.String(), "domain": g.Domain, "season": g.Season, "regime": g.Regime.String(),
+			"response": g.Response, "predictor": g.Predictor, "count": jsonnum.Count(g.N), "time_steps": jsonnum.Count(g.Steps), "area": num{Value: g.Area, Units: "m2"},
+			"slope": num{Value: g.Slope, Units: g.SlopeUnits}, "slope_stderr": num{Value: g.SlopeSE, Units: g.SlopeUnits}, "slope_ci": ji(g.SlopeCI, g.SlopeUnits),
+			"intercept": num{Value: g.Intercept, Units: g.Units}, "intercept_stderr": num{Value: g.InterceptSE, Units: g.Units}, "intercept_ci": ji(g.InterceptCI, g.Units),
 			"r": num{Value: g.R, Units: "1"}, "r_ci": ji(g.RCI, "1"),
-			"n_eff_slope": num{Value: g.NEffSlope, Units: "1"}, "n_eff_corr": num{Value: g.NEffCorr, Units: "1"},
-			"lag1":              map[string]num{"predictor": {Value: g.R1X, Units: "1"}, "response": {Value: g.R1Y, Units: "1"}, "residual": {Value: g.R1Resid, Units: "1"}},
-			"independent_areas": num{Value: g.IndependentAreas, Units: "1"}, "note": g.Note}
+			"slope_n_eff": num{Value: g.NEffSlope, Units: "1"}, "r_n_eff": num{Value: g.NEffCorr, Units: "1"},
+			"lag1_autocorrelation": map[string]num{"predictor": {Value: g.R1X, Units: "1"}, "response": {Value: g.R1Y, Units: "1"}, "residual": {Value: g.R1Resid, Units: "1"}},
+			"independent_areas":    num{Value: g.IndependentAreas, Units: "1"}, "note": g.Note}
 		if g.Boot != nil {
 			m["bootstrap"] = map[string]any{"replicates": jsonnum.Count(g.Boot.Replicates), "failed": jsonnum.Count(g.Boot.Failed),
 				"slope_ci": ji(g.Boot.Slope, g.SlopeUnits), "r_ci": ji(g.Boot.R, "1")}
@@ -119,15 +119,15 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		var coefs []map[string]any
 		for k := 0; k < 2; k++ {
 			c := map[string]any{"predictor": p.Predictors[k], "controls": p.Predictors[1-k], "coefficient": num{Value: p.Coef[k], Units: p.CoefUnits},
-				"se": num{Value: p.SE[k], Units: p.CoefUnits}, "ci": ji(p.CI[k], p.CoefUnits), "lag1_predictor": num{Value: p.R1X[k], Units: "1"}}
+				"stderr": num{Value: p.SE[k], Units: p.CoefUnits}, "ci": ji(p.CI[k], p.CoefUnits), "predictor_lag1_autocorrelation": num{Value: p.R1X[k], Units: "1"}}
 			if p.Boot != nil {
 				c["bootstrap_ci"] = ji(p.Boot[k], p.CoefUnits)
 			}
 			coefs = append(coefs, c)
 		}
-		parts = append(parts, map[string]any{"mode": r.Mode.String(), "domain": p.Domain, "season": p.Season, "regime": p.Regime.String(),
-			"response": p.Response, "n": jsonnum.Count(p.N), "steps": jsonnum.Count(p.Steps), "area": num{Value: p.Area, Units: "m2"}, "coefficients": coefs,
-			"intercept": num{Value: p.Intercept, Units: p.Units}, "r2": num{Value: p.R2, Units: "1"}, "n_eff": num{Value: p.NEff, Units: "1"}, "lag1_residual": num{Value: p.R1Resid, Units: "1"},
+		parts = append(parts, map[string]any{"relationships_mode": r.Mode.String(), "domain": p.Domain, "season": p.Season, "regime": p.Regime.String(),
+			"response": p.Response, "count": jsonnum.Count(p.N), "time_steps": jsonnum.Count(p.Steps), "area": num{Value: p.Area, Units: "m2"}, "coefficients": coefs,
+			"intercept": num{Value: p.Intercept, Units: p.Units}, "r2": num{Value: p.R2, Units: "1"}, "n_eff": num{Value: p.NEff, Units: "1"}, "residual_lag1_autocorrelation": num{Value: p.R1Resid, Units: "1"},
 			"independent_areas": num{Value: p.IndependentAreas, Units: "1"}, "note": p.Note})
 	}
 	doc["partial_regressions"] = parts
@@ -136,17 +136,17 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 	for _, pf := range r.Flips {
 		var rows []map[string]any
 		for _, x := range pf.Rows {
-			rows = append(rows, map[string]any{"delta_t": num{Value: x.DeltaT, Units: "K"},
+			rows = append(rows, map[string]any{"sst_perturbation": num{Value: x.DeltaT, Units: "K"},
 				"inside": map[string]num{"changed": {Value: x.Changed, Units: "1"}, "to_convective": {Value: x.ToConvective, Units: "1"}, "from_convective": {Value: x.FromConvective, Units: "1"},
 					"convective_before": {Value: x.ConvectiveBefore, Units: "1"}, "convective_after": {Value: x.ConvectiveAfter, Units: "1"}, "convective_change": {Value: x.ConvectiveChange(), Units: "1"}},
 				"outside": map[string]num{"changed": {Value: x.OutChanged, Units: "1"}, "to_convective": {Value: x.OutToConvective, Units: "1"}, "from_convective": {Value: x.OutFromConvective, Units: "1"},
 					"convective_before": {Value: x.OutConvectiveBefore, Units: "1"}, "convective_after": {Value: x.OutConvectiveAfter, Units: "1"}, "convective_change": {Value: x.OutConvectiveChange(), Units: "1"}}})
 		}
 		p := pf.Patch
-		flips = append(flips, map[string]any{"patch": p.Name, "box": box4(p.South, p.North, p.West, p.East), "cells": jsonnum.Count(pf.Cells), "steps": jsonnum.Count(pf.Steps),
-			"band_share_f":     map[string]num{"mean": {Value: pf.FMean, Units: "1"}, "min": {Value: pf.FMin, Units: "1"}, "max": {Value: pf.FMax, Units: "1"}},
-			"area_time_inside": num{Value: pf.AreaTime, Units: "m2"}, "area_time_outside": num{Value: pf.OutAreaTime, Units: "m2"},
-			"definition": "relative SST inside the patch becomes SST* + dT(1 - f), outside SST* - dT f, f the patch's share of the band ocean area at each step; fractions of ocean area x time (inside: cell area; outside: band area)",
+		flips = append(flips, map[string]any{"patch": p.Name, "box": box4(p.South, p.North, p.West, p.East), "cells": jsonnum.Count(pf.Cells), "time_steps": jsonnum.Count(pf.Steps),
+			"patch_area_fraction": map[string]num{"mean": {Value: pf.FMean, Units: "1"}, "min": {Value: pf.FMin, Units: "1"}, "max": {Value: pf.FMax, Units: "1"}},
+			"area_time_inside":    num{Value: pf.AreaTime, Units: "m2"}, "area_time_outside": num{Value: pf.OutAreaTime, Units: "m2"},
+			"definition": "relative SST inside the patch becomes SST* + ΔT(1 - f), outside SST* - ΔT f, ΔT the SST perturbation and f the patch's share of the band ocean area at each step (patch_area_fraction); fractions of ocean area x time (inside: cell area; outside: band area)",
 			"rows":       rows})
 	}
 	doc["flips"] = flips
@@ -154,16 +154,16 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 	if t := r.Threshold; t != nil {
 		var years []map[string]any
 		for _, y := range t.Years {
-			years = append(years, map[string]any{"year": y.Year, "steps": jsonnum.Count(y.Steps), "n": jsonnum.Count(y.N), "relative": num{Value: y.Rel, Units: "K"},
+			years = append(years, map[string]any{"year": y.Year, "time_steps": jsonnum.Count(y.Steps), "count": jsonnum.Count(y.N), "relative": num{Value: y.Rel, Units: "K"},
 				"absolute": num{Value: y.Abs, Units: "K"}, "tropical_mean_sst": num{Value: y.TropicalMean, Units: "K"}, "logistic_slope": num{Value: y.LogisticSlope, Units: "K-1"}, "note": y.Note})
 		}
 		doc["threshold"] = map[string]any{"indicator": t.Indicator, "condition": t.Condition,
-			"indicator_threshold": num{Value: t.IndicatorThreshold, Units: t.IndicatorUnits}, "n": jsonnum.Count(t.N), "area": num{Value: t.Area, Units: "m2"}, "out_of_range": jsonnum.Count(t.OutOfRange),
+			"indicator_threshold": num{Value: t.IndicatorThreshold, Units: t.IndicatorUnits}, "count": jsonnum.Count(t.N), "area": num{Value: t.Area, Units: "m2"}, "out_of_range": jsonnum.Count(t.OutOfRange),
 			"method":   "logistic regression of the indicator on relative SST over band ocean cell-steps (binned, IRLS, area weights); threshold where p = 0.5; absolute = relative + the record's tropical-mean SST",
 			"logistic": map[string]num{"intercept": {Value: t.B0, Units: "1"}, "slope": {Value: t.B1, Units: "K-1"}},
 			"relative": num{Value: t.Rel, Units: "K"}, "relative_ci": ji(t.RelCI, "K"),
 			"absolute": num{Value: t.Abs, Units: "K"}, "absolute_ci": ji(t.AbsCI, "K"),
-			"tropical_mean_sst": num{Value: t.TropicalMean, Units: "K"}, "replicates": jsonnum.Count(t.Replicates), "failed_replicates": jsonnum.Count(t.Failed),
+			"tropical_mean_sst": num{Value: t.TropicalMean, Units: "K"}, "bootstrap_replicates": jsonnum.Count(t.Replicates), "bootstrap_failed": jsonnum.Count(t.Failed),
 			"years": years, "tracking_slope": num{Value: t.Tracking, Units: "1"}, "tracking_ci": ji(t.TrackingCI, "1"), "note": t.Note}
 	} else {
 		doc["threshold"] = nil
@@ -173,11 +173,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 	for _, o := range r.Omega {
 		var bins []map[string]any
 		for b, ob := range o.Bins {
-			m := map[string]any{"lower": num{Value: ob.Lower, Units: "hPa d-1"}, "upper": num{Value: ob.Upper, Units: "hPa d-1"}, "n": jsonnum.Count(ob.N), "area": num{Value: ob.Area, Units: "m2"},
+			m := map[string]any{"lower": num{Value: ob.Lower, Units: "hPa d-1"}, "upper": num{Value: ob.Upper, Units: "hPa d-1"}, "count": jsonnum.Count(ob.N), "area": num{Value: ob.Area, Units: "m2"},
 				"frequency": num{Value: ob.Frequency, Units: "1"}, "pdf": num{Value: ob.PDF, Units: "d hPa-1"}}
 			resp := map[string]any{}
 			for _, or := range o.Responses {
-				resp[or.Response] = map[string]num{"mean": {Value: or.Mean[b], Units: or.Units}, "std": {Value: or.Std[b], Units: or.Units}, "n": jsonnum.Count(or.N[b])}
+				resp[or.Response] = map[string]num{"mean": {Value: or.Mean[b], Units: or.Units}, "std": {Value: or.Std[b], Units: or.Units}, "count": jsonnum.Count(or.N[b])}
 			}
 			m["responses"] = resp
 			bins = append(bins, m)

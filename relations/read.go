@@ -40,19 +40,20 @@ type rjci struct {
 func (c rjci) iv() Interval { return Interval{Lo: c.Lo.f(), Hi: c.Hi.f()} }
 
 // readDoc is the part of relationships.json (relations/doc.go,
-// format "lidscope-relationships", version 1) that ReadResults restores.
+// format "lidscope-relationships", version 3) that ReadResults restores.
 // FormatVersion is the format_version of relationships.json. Version 2
-// names the study (study_hash) where version 1 used an earlier word.
-const FormatVersion = 2
+// names the study (study_hash) where version 1 used an earlier word;
+// version 3 uses the one table of names (package vocab).
+const FormatVersion = 3
 
 type readDoc struct {
 	Format           string `json:"format"`
 	FormatVersion    int    `json:"format_version"`
-	Mode             string `json:"mode"`
-	ModeDescription  string `json:"mode_description"`
+	Mode             string `json:"relationships_mode"`
+	ModeDescription  string `json:"relationships_mode_description"`
 	Detrended        bool   `json:"detrended"`
 	RegimeDefinition string `json:"regime_definition"`
-	Config           string `json:"config"`
+	Config           string `json:"relationships_config"`
 	Uncertainty      string `json:"uncertainty_method"`
 	Responses        []struct {
 		Name  string `json:"name"`
@@ -62,8 +63,10 @@ type readDoc struct {
 		Domain, Season, Regime, Predictor, Response string
 		OutOfRange                                  rjv `json:"out_of_range"`
 		Bins                                        []struct {
-			Lower, Upper, Mean, Std, Stderr, N, Steps, Area rjv
-			NEff                                            rjv `json:"n_eff"`
+			Lower, Upper, Mean, Std, Stderr, Area rjv
+			N                                     rjv `json:"count"`
+			Steps                                 rjv `json:"time_steps"`
+			NEff                                  rjv `json:"n_eff"`
 		} `json:"bins"`
 	} `json:"binned"`
 	Joint []struct {
@@ -74,24 +77,29 @@ type readDoc struct {
 	} `json:"joint_composites"`
 	Regressions []struct {
 		Domain, Season, Regime, Response, Predictor string
-		N, Steps, Area, Slope, Intercept            rjv
-		SlopeSE                                     rjv  `json:"slope_se"`
+		Area, Slope, Intercept                      rjv
+		N                                           rjv  `json:"count"`
+		Steps                                       rjv  `json:"time_steps"`
+		SlopeSE                                     rjv  `json:"slope_stderr"`
 		SlopeCI                                     rjci `json:"slope_ci"`
-		InterceptSE                                 rjv  `json:"intercept_se"`
+		InterceptSE                                 rjv  `json:"intercept_stderr"`
 		InterceptCI                                 rjci `json:"intercept_ci"`
 		R                                           rjv  `json:"r"`
 		RCI                                         rjci `json:"r_ci"`
-		NEffSlope                                   rjv  `json:"n_eff_slope"`
-		NEffCorr                                    rjv  `json:"n_eff_corr"`
+		NEffSlope                                   rjv  `json:"slope_n_eff"`
+		NEffCorr                                    rjv  `json:"r_n_eff"`
 		Note                                        string
 	} `json:"regressions"`
 	Partials []struct {
 		Domain, Season, Regime, Response string
-		N, Steps, Area, Intercept, R2    rjv
+		Area, Intercept, R2              rjv
+		N                                rjv `json:"count"`
+		Steps                            rjv `json:"time_steps"`
 		NEff                             rjv `json:"n_eff"`
 		Coefficients                     []struct {
 			Predictor, Controls string
-			Coefficient, SE     rjv
+			Coefficient         rjv
+			SE                  rjv  `json:"stderr"`
 			CI                  rjci `json:"ci"`
 		} `json:"coefficients"`
 		Note string
@@ -101,10 +109,11 @@ type readDoc struct {
 		Box   struct {
 			South, North, West, East rjv
 		} `json:"box"`
-		Cells, Steps rjv
-		Share        struct{ Mean, Min, Max rjv } `json:"band_share_f"`
-		Rows         []struct {
-			DeltaT rjv `json:"delta_t"`
+		Cells rjv
+		Steps rjv                          `json:"time_steps"`
+		Share struct{ Mean, Min, Max rjv } `json:"patch_area_fraction"`
+		Rows  []struct {
+			DeltaT rjv `json:"sst_perturbation"`
 			In     struct {
 				Changed          rjv
 				ToConvective     rjv `json:"to_convective"`
@@ -123,14 +132,14 @@ type readDoc struct {
 	} `json:"flips"`
 	Threshold *struct {
 		Indicator, Condition string
-		N                    rjv
+		N                    rjv                            `json:"count"`
 		Logistic             struct{ Intercept, Slope rjv } `json:"logistic"`
 		Relative             rjv                            `json:"relative"`
 		RelativeCI           rjci                           `json:"relative_ci"`
 		Absolute             rjv                            `json:"absolute"`
 		AbsoluteCI           rjci                           `json:"absolute_ci"`
 		TropicalMean         rjv                            `json:"tropical_mean_sst"`
-		Replicates           rjv                            `json:"replicates"`
+		Replicates           rjv                            `json:"bootstrap_replicates"`
 		Note                 string
 	} `json:"threshold"`
 }
@@ -168,7 +177,7 @@ func ReadResults(runDir string) (*Results, error) {
 		return nil, fmt.Errorf("relations: %s has format %q; this lidscope reads \"lidscope-relationships\" version %d", p, j.Format, FormatVersion)
 	}
 	if j.FormatVersion != FormatVersion {
-		return nil, fmt.Errorf("relations: %s has format version %d; this lidscope reads version %d (earlier versions name the study by an earlier word): re-run the analysis of %s with this version", p, j.FormatVersion, FormatVersion, runDir)
+		return nil, fmt.Errorf("relations: %s has format version %d; this lidscope reads version %d (earlier versions use names since renamed: see the README's changes): re-run the analysis of %s with this version", p, j.FormatVersion, FormatVersion, runDir)
 	}
 	bad := func(what string, err error) error {
 		return fmt.Errorf("relations: %s: %s: %w", p, what, err)

@@ -59,7 +59,7 @@ func TestReadResultsRoundTrip(t *testing.T) {
 	}
 	// A partial regression with one coefficient is refused, naming it.
 	bad := filepath.Join(t.TempDir(), RelationshipsJSON)
-	os.WriteFile(bad, []byte(`{"format":"lidscope-relationships","format_version":2,"mode":"climatological","partial_regressions":[{"regime":"subsidence","coefficients":[{}]}]}`), 0o644)
+	os.WriteFile(bad, []byte(`{"format":"lidscope-relationships","format_version":3,"relationships_mode":"climatological","partial_regressions":[{"regime":"subsidence","coefficients":[{}]}]}`), 0o644)
 	if _, err := ReadResults(filepath.Dir(bad)); err == nil {
 		t.Error("a one-coefficient partial regression was accepted")
 	}

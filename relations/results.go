@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // Interval is a two-sided 95 % confidence interval.
@@ -356,10 +357,7 @@ func lag1Or0(z []float64, present []bool, note *[]string, what string) float64 {
 
 func slopeUnits(resp string) string {
 	u, _ := unitsOf(resp)
-	if u == "1" {
-		return "K-1"
-	}
-	return u + " K-1"
+	return vocab.SlopeUnits(u, vocab.UnitKelvin)
 }
 
 func (a *Acc) regressions(res *Results, groups []*group) {

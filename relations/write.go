@@ -17,6 +17,7 @@ import (
 	"lidscope/jsonnum"
 	"lidscope/regimes"
 	"lidscope/stage"
+	"lidscope/vocab"
 )
 
 // Output file names, in the order Write returns them.
@@ -174,17 +175,17 @@ func nanSlice(n int) []float64 {
 	return s
 }
 
-func globalAttrs(r *Results, meta Meta) map[string]string {
-	m := map[string]string{
-		"relations_mode":             r.Mode.String(),
-		"relations_mode_description": r.ModeNote,
-		"detrended":                  strconv.FormatBool(r.Detrended),
-		"regime_definition":          r.RegimeDefinition,
-		"uncertainty_method":         r.Uncertainty,
-		"relations_config":           strings.TrimRight(r.Config, "\n"),
-		"period":                     meta.Period,
-		"time_steps":                 strconv.Itoa(r.Steps),
-		"regime_index":               "regime k is " + regimeOrder(),
+func globalAttrs(r *Results, meta Meta) map[string]any {
+	m := map[string]any{
+		vocab.RelationshipsMode:                  r.Mode.String(),
+		vocab.RelationshipsMode + "_description": r.ModeNote,
+		"detrended":                              r.Detrended,
+		vocab.RegimeDefinition:                   r.RegimeDefinition,
+		"uncertainty_method":                     r.Uncertainty,
+		vocab.Relationships + "_config":          strings.TrimRight(r.Config, "\n"),
+		"period":                                 meta.Period,
+		vocab.TimeSteps:                          r.Steps,
+		vocab.RegimeIndex:                        regimeOrder(),
 	}
 	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, "study_hash": meta.StudyHash} {
 		if v != "" {
@@ -200,7 +201,7 @@ func globalAttrs(r *Results, meta Meta) map[string]string {
 func regimeOrder() string {
 	s := make([]string, len(regimes.All))
 	for k, g := range regimes.All {
-		s[k] = strconv.Itoa(k) + " " + g.String()
+		s[k] = strconv.Itoa(k) + " = " + g.String()
 	}
 	return strings.Join(s, ", ")
 }
@@ -265,7 +266,7 @@ func writeNC(path string, r *Results, meta Meta) error {
 			return err
 		}
 	}
-	modeAttr := map[string]any{"relations_mode": r.Mode.String()}
+	modeAttr := map[string]any{vocab.RelationshipsMode: r.Mode.String()}
 	type pending struct {
 		v    *cfwrite.Var
 		data []float64
@@ -312,12 +313,12 @@ func writeNC(path string, r *Results, meta Meta) error {
 				data                []float64
 				typ                 cfwrite.DataType
 			}{
-				{"_mean", resp.Units, "mean of " + what, mean, cfwrite.Float32},
-				{"_std", resp.Units, "standard deviation (population, area-weighted) of " + what, std, cfwrite.Float32},
-				{"_stderr", resp.Units, "standard error of the mean of " + what + " (std/sqrt(n_eff - 1))", se, cfwrite.Float32},
-				{"_neff", "1", "effective sample size of " + what, neff, cfwrite.Float32},
-				{"_count", "1", "number of cell-steps of " + what, cnt, cfwrite.Int32},
-				{"_area", "m2", "area times time steps of " + what, area, cfwrite.Float64},
+				{"_" + vocab.Mean, resp.Units, "mean of " + what, mean, cfwrite.Float32},
+				{"_" + vocab.Std, resp.Units, "standard deviation (population, area-weighted) of " + what, std, cfwrite.Float32},
+				{"_" + vocab.StdErr, resp.Units, "standard error of the mean of " + what + " (std/sqrt(n_eff - 1))", se, cfwrite.Float32},
+				{"_" + vocab.NEff, vocab.UnitOne, "effective sample size of " + what, neff, cfwrite.Float32},
+				{"_" + vocab.Count, vocab.UnitOne, "number of cell-steps of " + what, cnt, cfwrite.Int32},
+				{"_area", vocab.UnitSquareMetre, "area times time steps of " + what, area, cfwrite.Float64},
 			} {
 				if err := add(cfwrite.VarSpec{Name: stem + v.suffix, Dims: dims, Type: v.typ, Units: v.units, LongName: v.long,
 					Attributes: map[string]any{"comment": cm}}, v.data); err != nil {
@@ -408,10 +409,9 @@ func writeNC(path string, r *Results, meta Meta) error {
 }
 
 func predictorLongName(p string, m Mode) string {
-	n := map[string]string{"eis": "estimated inversion strength", "lts": "lower-tropospheric stability", RelSST: "relative SST (SST minus tropical-mean SST)",
-		"sst": "sea surface temperature", "t700": "700 hPa air temperature", "ectei": "estimated cloud-top entrainment index"}[p]
-	if n == "" {
-		n = p
+	n := p
+	if q, ok := vocab.Lookup(p); ok {
+		n = q.LongName
 	}
 	if m == Anomaly {
 		n += " anomaly"
@@ -438,11 +438,13 @@ func csvBytes(rows [][]string) ([]byte, error) {
 }
 
 func regressionsCSV(r *Results) ([]byte, error) {
-	rows := [][]string{{"mode", "kind", "domain", "season", "regime", "response", "predictor", "controls",
-		"n [1]", "steps [1]", "area [m2]", "slope", "slope_se", "slope_ci_lo", "slope_ci_hi", "slope_units",
-		"intercept", "intercept_se", "intercept_units", "r [1]", "r_ci_lo [1]", "r_ci_hi [1]", "r2 [1]",
-		"n_eff_slope [1]", "n_eff_corr [1]", "r1_predictor [1]", "r1_response [1]", "r1_residual [1]", "independent_areas [1]",
-		"boot_replicates [1]", "boot_slope_lo", "boot_slope_hi", "note"}}
+	// The slope and intercept columns hold numbers in the units of the
+	// row's slope_units and intercept_units columns (rows mix responses).
+	rows := [][]string{{"relationships_mode", "kind", "domain", "season", "regime", "response", "predictor", "controls",
+		"count [1]", "time_steps [1]", "area [m2]", "slope", "slope_stderr", "slope_ci_lower", "slope_ci_upper", "slope_units",
+		"intercept", "intercept_stderr", "intercept_units", "r [1]", "r_ci_lower [1]", "r_ci_upper [1]", "r2 [1]",
+		"slope_n_eff [1]", "r_n_eff [1]", "predictor_lag1_autocorrelation [1]", "response_lag1_autocorrelation [1]", "residual_lag1_autocorrelation [1]", "independent_areas [1]",
+		"bootstrap_replicates [1]", "bootstrap_slope_ci_lower", "bootstrap_slope_ci_upper", "note"}}
 	mode := r.Mode.String()
 	for _, g := range r.Regressions {
 		bn, blo, bhi := "0", "NaN", "NaN"
@@ -471,7 +473,7 @@ func regressionsCSV(r *Results) ([]byte, error) {
 
 func flipsCSV(r *Results) ([]byte, error) {
 	rows := [][]string{{"patch", "south [degrees_north]", "north [degrees_north]", "west [degrees_east]", "east [degrees_east]",
-		"delta_t [K]", "f_mean [1]", "f_min [1]", "f_max [1]", "area_time_inside [m2]", "area_time_outside [m2]",
+		"sst_perturbation [K]", "patch_area_fraction_mean [1]", "patch_area_fraction_min [1]", "patch_area_fraction_max [1]", "area_time_inside [m2]", "area_time_outside [m2]",
 		"changed_inside [1]", "to_convective_inside [1]", "from_convective_inside [1]",
 		"convective_before_inside [1]", "convective_after_inside [1]", "convective_change_inside [1]",
 		"changed_outside [1]", "to_convective_outside [1]", "from_convective_outside [1]",
@@ -489,8 +491,8 @@ func flipsCSV(r *Results) ([]byte, error) {
 }
 
 func thresholdsCSV(r *Results) ([]byte, error) {
-	rows := [][]string{{"scope", "year", "indicator_condition", "n [1]", "steps [1]", "relative_threshold [K]", "relative_ci_lo [K]", "relative_ci_hi [K]",
-		"absolute_threshold [K]", "absolute_ci_lo [K]", "absolute_ci_hi [K]", "tropical_mean_sst [K]", "logistic_slope [K-1]", "replicates [1]", "note"}}
+	rows := [][]string{{"scope", "year", "indicator_condition", "count [1]", "time_steps [1]", "relative_threshold [K]", "relative_threshold_ci_lower [K]", "relative_threshold_ci_upper [K]",
+		"absolute_threshold [K]", "absolute_threshold_ci_lower [K]", "absolute_threshold_ci_upper [K]", "tropical_mean_sst [K]", "logistic_slope [K-1]", "bootstrap_replicates [1]", "note"}}
 	if t := r.Threshold; t != nil {
 		rows = append(rows, []string{"record", "", t.Condition, strconv.FormatInt(t.N, 10), strconv.Itoa(r.Steps), ff(t.Rel), ff(t.RelCI.Lo), ff(t.RelCI.Hi),
 			ff(t.Abs), ff(t.AbsCI.Lo), ff(t.AbsCI.Hi), ff(t.TropicalMean), ff(t.B1), strconv.Itoa(t.Replicates), t.Note})

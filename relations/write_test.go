@@ -61,9 +61,9 @@ func TestWriteFilesAndContents(t *testing.T) {
 	if err := json.Unmarshal(b, &doc); err != nil {
 		t.Fatal(err)
 	}
-	if doc["mode"] != "climatological" || doc["format"] != "lidscope-relationships" || !strings.Contains(doc["uncertainty_method"].(string), "Bretherton") ||
+	if doc["relationships_mode"] != "climatological" || doc["format"] != "lidscope-relationships" || !strings.Contains(doc["uncertainty_method"].(string), "Bretherton") ||
 		!strings.Contains(doc["regime_definition"].(string), "0.4 K") {
-		t.Errorf("JSON header: mode %v format %v uncertainty %v regime %v", doc["mode"], doc["format"], doc["uncertainty_method"], doc["regime_definition"])
+		t.Errorf("JSON header: mode %v format %v uncertainty %v regime %v", doc["relationships_mode"], doc["format"], doc["uncertainty_method"], doc["regime_definition"])
 	}
 	regs := doc["regressions"].([]any)
 	if len(regs) != len(res.Regressions) {
@@ -71,7 +71,7 @@ func TestWriteFilesAndContents(t *testing.T) {
 	}
 	r0 := regs[0].(map[string]any)
 	slope := r0["slope"].(map[string]any)
-	if slope["units"] != res.Regressions[0].SlopeUnits || slope["value"].(float64) != res.Regressions[0].Slope || r0["mode"] != "climatological" {
+	if slope["units"] != res.Regressions[0].SlopeUnits || slope["value"].(float64) != res.Regressions[0].Slope || r0["relationships_mode"] != "climatological" {
 		t.Errorf("first regression slope %v, want {%v %v}", slope, res.Regressions[0].Slope, res.Regressions[0].SlopeUnits)
 	}
 	if doc["threshold"] == nil || len(doc["flips"].([]any)) != 2 || len(doc["omega_regimes"].([]any)) == 0 {
@@ -129,10 +129,10 @@ func TestWriteFilesAndContents(t *testing.T) {
 	if checked == 0 {
 		t.Error("no non-empty bin compared")
 	}
-	mode, _ := f.Attr("relations_mode")
+	mode, _ := f.Attr("relationships_mode")
 	fm, _ := mustVar(t, f, "domain").Attr("flag_meanings")
 	if !strings.Contains(mode.String(), "climatological") || !strings.Contains(fm.String(), "tropical_band west north") {
-		t.Errorf("relations_mode %v, domain flag_meanings %v", mode, fm)
+		t.Errorf("relationships_mode %v, domain flag_meanings %v", mode, fm)
 	}
 }
 
@@ -210,7 +210,7 @@ import xarray as xr
 ds = xr.open_dataset(sys.argv[1])
 m = ds["cloud_vs_eis_mean"]
 print(json.dumps({"dims": list(m.dims), "nan": int(np.isnan(m.values).sum()), "size": int(m.size),
-  "eis_bnds": ds["eis_bin_bnds"].values[0].tolist(), "mode": ds.attrs["relations_mode"],
+  "eis_bnds": ds["eis_bin_bnds"].values[0].tolist(), "mode": ds.attrs["relationships_mode"],
   "omega_pdf_sum": float(np.nansum(ds["omega_pdf"].values[0,0]) * 10),
   "omega_freq_units": ds["omega_pdf"].attrs["units"],
   "west_jja_subs": [None if np.isnan(x) else float(x) for x in m.values[1,3,2]]}))

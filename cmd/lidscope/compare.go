@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"lidscope/vocab"
 	"os"
 
 	"github.com/spf13/cobra"
@@ -98,7 +99,7 @@ func runCompare(ctx context.Context, o compareOptions, stdout, stderr io.Writer)
 
 func writeComparison(w io.Writer, res *compare.Result) {
 	if len(res.Mismatches) > 0 {
-		fmt.Fprintln(w, "MISMATCHES (compared anyway, --allow-mismatch):")
+		fmt.Fprintf(w, "%s: the runs were made differently (compared anyway, --allow-mismatch):\n", vocab.Mismatch)
 		for _, m := range res.Mismatches {
 			fmt.Fprintf(w, "  %s\n", m)
 		}

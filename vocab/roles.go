@@ -1,0 +1,24 @@
+package vocab
+
+// Input role names: what lidscope reads a variable for. They are the keys
+// of a study's inputs section and the role column of provenance. Package
+// cf's Role constants take their values from here.
+const (
+	RoleSST                   = "sst"
+	RoleAirTemperature        = "air_temperature"
+	RoleSurfaceAirTemperature = "surface_air_temp"
+	RoleLowCloud              = "low_cloud"
+	RoleCloud                 = "cloud"
+	RoleTOASWUp               = "toa_sw_up"
+	RoleOLR                   = "olr"
+	RoleOmega                 = "omega"
+	RoleSurfacePressure       = "surface_pressure"
+	RoleSeaLevelPressure      = "sea_level_pressure"
+	RoleRelativeHumidity      = "relative_humidity"
+	RoleDewPointTemperature   = "dew_point"
+	RoleSpecificHumidity      = "specific_humidity"
+	RoleSeaFraction           = "sea_fraction"
+	RoleLandFraction          = "land_fraction"
+	RoleSeaIce                = "sea_ice"
+	RolePrecipitation         = "precipitation"
+)
