@@ -197,10 +197,10 @@ func TestWriteIsOneUnit(t *testing.T) {
 		p := filepath.Join(d, "one.png")
 		return []string{p}, os.WriteFile(p, []byte("png"), 0o644)
 	}})
-	if err != nil || len(files) != 4 || files[3] != filepath.Join(dir, FiguresDir, "one.png") {
+	if err != nil || len(files) != 5 || files[4] != filepath.Join(dir, FiguresDir, "one.png") {
 		t.Fatalf("%v %v", files, err)
 	}
-	if _, err := os.Stat(files[3]); err != nil {
+	if _, err := os.Stat(files[4]); err != nil {
 		t.Error(err)
 	}
 }

@@ -84,7 +84,7 @@ func Load(dir string) (*Run, error) {
 		return nil, fmt.Errorf("figures: %s has format %q, want %q: it was not written by lidscope", p, s.Format, output.SummaryFormat)
 	}
 	if s.FormatVersion != output.FormatVersion {
-		return nil, fmt.Errorf("figures: %s has format_version %d; this lidscope reads version %d (earlier versions name the study by an earlier word): re-run the analysis of %s with this version", p, s.FormatVersion, output.FormatVersion, dir)
+		return nil, fmt.Errorf("figures: %s has format_version %d; this lidscope reads version %d (earlier versions use names since renamed: see the README's changes): re-run the analysis of %s with this version", p, s.FormatVersion, output.FormatVersion, dir)
 	}
 	return &Run{
 		Dir: dir, Dataset: s.Dataset, Title: s.Title, Version: s.Version, StudyHash: s.StudyHash,

@@ -10,11 +10,12 @@ import (
 
 // Format names and versions of the JSON files, so that readers can check
 // what they parse. Version 2 names the configuration a study (study_hash,
-// study, metrics_conventions), where version 1 used an earlier word.
+// study, metrics_conventions), where version 1 used an earlier word;
+// version 3 uses the one table of names (package vocab).
 const (
 	SummaryFormat    = "lidscope-summary"
 	ProvenanceFormat = "lidscope-provenance"
-	FormatVersion    = 2
+	FormatVersion    = 3
 )
 
 type summary struct {

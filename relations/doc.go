@@ -237,7 +237,7 @@
 //     only when no indicator was given).
 //   - relationships.json: everything above, every number as {"value": x,
 //     "units": "K"} ("value": null for none), with format
-//     "lidscope-relationships", format_version 2 (FormatVersion), the mode and its
+//     "lidscope-relationships", format_version 3 (FormatVersion), the mode and its
 //     description, the regime definition, the uncertainty method and the
 //     configuration text.
 package relations
