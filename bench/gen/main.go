@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"lidscope/fixtures"
@@ -38,7 +39,7 @@ func run(args []string) error {
 		return fmt.Errorf("usage: gen -out DIR [-resolution DEG] [-years N] [-years-per-file N] [-force]")
 	}
 	o := fixtures.DefaultOptions()
-	o.Name = fmt.Sprintf("bench-%gdeg-%dy", *res, *years)
+	o.Name = strings.ReplaceAll(fmt.Sprintf("bench-%gdeg-%dy", *res, *years), ".", "p") // 0.25 → 0p25: dataset names take no dots
 	o.Resolution = *res
 	o.Years = *years
 	o.YearsPerFile = *perFile

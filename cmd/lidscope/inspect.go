@@ -72,6 +72,9 @@ func runInspect(o inspectOptions, w io.Writer) error {
 				fmt.Fprintf(w, "\ngrids: cannot compare: %v\n", err)
 			}
 		}
+		if gr, err := pipeline.CompareGrids(reports); err == nil {
+			writeGridMemory(w, gr)
+		}
 	}
 	if !ok {
 		return errFailed

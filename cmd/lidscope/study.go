@@ -170,6 +170,7 @@ func runStudyCheck(o studyCheckOptions, w io.Writer) error {
 		fmt.Fprintf(w, "# %s = %s (%s)\n", ov.Key, ov.Value, ov.Origin)
 	}
 	fmt.Fprintf(w, "# sha256 %s\n", r.Hash())
+	writeMemoryEstimates(w, r)
 	_, err = io.WriteString(w, r.Resolved())
 	return err
 }

@@ -1,0 +1,82 @@
+package analysis
+
+import (
+	"fmt"
+
+	"lidscope/config"
+	"lidscope/pipeline"
+	"lidscope/relations"
+)
+
+// MemoryEstimate is the memory a run of one dataset is expected to need,
+// from the sizes of its inputs (no data is read). The parts:
+//
+//   - state: the regime accumulator's per-cell statistics and the
+//     relationship analysis's per-cell bookkeeping, per grid cell, all cells;
+//   - buffers: the pipeline's step buffers and the read buffers;
+//   - per step: what the relationship analysis keeps of each time step (its
+//     only part that grows with the record);
+//   - end of run: the transient copies made while writing (the run state
+//     is encoded in memory, about twice the accumulator, and the output
+//     maps);
+//   - fixed: netCDF-C and HDF5 (chunk caches) and the Go runtime, about
+//     45 MB as measured by bench/readonly.
+//
+// Peak RSS is about the sum; Go's collector may hold up to as much again
+// of garbage between collections (GOGC), which the figure leaves out.
+type MemoryEstimate struct {
+	Dataset      string
+	Shape        pipeline.Shape
+	StatePerCell int64 // bytes per grid cell
+	State        int64
+	Buffers      int64
+	Relations    int64 // per-step and binned relationship state (0 when off)
+	EndOfRun     int64
+	Fixed        int64
+	Total        int64
+}
+
+// fixedBytes is netCDF-C, HDF5 and the Go runtime (bench/readonly's peak RSS).
+const fixedBytes = 45 << 20
+
+// EstimateMemory estimates the memory of a run of dataset d of r.
+func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) {
+	plan, err := pipeline.PlanFor(r, d)
+	if err != nil {
+		return MemoryEstimate{}, err
+	}
+	sh, err := pipeline.ShapeOf(plan)
+	if err != nil {
+		return MemoryEstimate{}, err
+	}
+	nq := len(sh.Quantities)
+	acc, buf := pipeline.StateBytesPerCell(nq, sh.Fields)
+	m := MemoryEstimate{Dataset: d.Name, Shape: sh, Fixed: fixedBytes}
+	m.StatePerCell = int64(acc)
+	m.Buffers = int64(buf)*int64(sh.Cells) + 4*int64(sh.NativeCells)
+	if NoRelations(plan) == "" && !r.RelationsOff {
+		cloud := ""
+		if plan.Cloud != nil {
+			cloud = string(plan.Cloud.Spec.Role)
+		}
+		rb, err := relations.MemoryBytes(r.RelationsFor(d), sh.Quantities, cloud, sh.Cells, sh.BandCells, sh.Steps)
+		if err != nil {
+			return MemoryEstimate{}, fmt.Errorf("relationship analysis: %w", err)
+		}
+		m.Relations = rb
+	}
+	m.State = m.StatePerCell * int64(sh.Cells)
+	// the run state holds the accumulator encoded (about its size, in a
+	// buffer that may have doubled) and the maps are float32 per
+	// quantity, regime and statistic
+	m.EndOfRun = 2*m.State + int64(sh.Cells)*int64(nq*3*8+12*4)
+	m.Total = m.Fixed + m.State + m.Buffers + m.Relations + m.EndOfRun
+	return m, nil
+}
+
+// String describes the estimate in one line.
+func (m MemoryEstimate) String() string {
+	mb := func(b int64) string { return fmt.Sprintf("%.0f MB", float64(b)/(1<<20)) }
+	return fmt.Sprintf("dataset %s: about %s peak for %d×%d cells and %d time steps (state %d B per cell = %s, step buffers %s, relationship analysis %s, end-of-run writing %s, netCDF and runtime %s)",
+		m.Dataset, mb(m.Total), m.Shape.NLat, m.Shape.NLon, m.Shape.Steps, m.StatePerCell, mb(m.State), mb(m.Buffers), mb(m.Relations), mb(m.EndOfRun), mb(m.Fixed))
+}

@@ -1,0 +1,60 @@
+package analysis
+
+import (
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"lidscope/config"
+	"lidscope/fixtures"
+	"lidscope/pipeline"
+)
+
+// TestEstimateMemory: the estimate of a run of the synthetic world
+// (invented data, 4°, 1 year) is made of the shape of its inputs — the
+// analysis grid, its steps and fields — and its parts add up; the
+// relationship part is gone with relationships.enabled: false.
+func TestEstimateMemory(t *testing.T) {
+	data := t.TempDir()
+	o := fixtures.DefaultOptions()
+	o.Resolution, o.Years, o.YearsPerFile = 4, 1, 1
+	if _, err := fixtures.Generate(data, o); err != nil {
+		t.Fatal(err)
+	}
+	load := func(flags map[string]string) *config.Study {
+		r, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: flags})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	r := load(nil)
+	m, err := EstimateMemory(r, &r.Datasets[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := m.Shape; s.NLat != 45 || s.NLon != 90 || s.Cells != 45*90 || s.Steps != 12 || s.Fields != 3 {
+		t.Errorf("shape %+v, want 45×90 cells, 12 steps, 3 fields", s)
+	}
+	acc, _ := pipeline.StateBytesPerCell(len(m.Shape.Quantities), m.Shape.Fields)
+	if m.StatePerCell != int64(acc) || m.State != int64(acc)*45*90 {
+		t.Errorf("state %d B per cell, %d B, want %d per cell", m.StatePerCell, m.State, acc)
+	}
+	if m.Relations <= 0 {
+		t.Errorf("relationship part %d B", m.Relations)
+	}
+	if m.Total != m.Fixed+m.State+m.Buffers+m.Relations+m.EndOfRun {
+		t.Errorf("parts do not add up: %+v", m)
+	}
+	if !strings.Contains(m.String(), "45×90 cells and 12 time steps") {
+		t.Errorf("text %q", m.String())
+	}
+	r = load(map[string]string{"relationships.enabled": "false"})
+	off, err := EstimateMemory(r, &r.Datasets[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if off.Relations != 0 || off.Total != m.Total-m.Relations {
+		t.Errorf("relationships off: %d B for relations, total %d (on: %d, relations %d)", off.Relations, off.Total, m.Total, m.Relations)
+	}
+}

@@ -1,0 +1,56 @@
+package pipeline
+
+import (
+	"unsafe"
+
+	"lidscope/regimes"
+)
+
+// Shape is what the size of a run depends on, found by opening the inputs
+// (headers and coordinates only) as a run would.
+type Shape struct {
+	NLat, NLon int
+	Cells      int // analysis grid cells
+	BandCells  int // cells with area inside the tropical band
+	Steps      int // time steps the run would take
+	Fields     int // fields read at every step
+	// NativeCells is the sum over those fields of their own grid's size
+	// (the read buffers before regridding).
+	NativeCells int
+	Quantities  []string
+}
+
+// ShapeOf opens the plan's inputs, as Run does before its first step,
+// and says how large the run is; it reads no data.
+func ShapeOf(p Plan) (Shape, error) {
+	in, err := openInputs(&p)
+	if err != nil {
+		return Shape{}, err
+	}
+	defer in.close()
+	g := in.grid
+	s := Shape{NLat: g.NLat(), NLon: g.NLon(), Cells: g.Size(), Steps: len(in.steps), Fields: len(in.timed), Quantities: p.Quantities()}
+	lb := make([][2]float64, g.NLat())
+	copy(lb, g.LatBounds)
+	for _, w := range p.Band.Weights(lb, g.CellAreas()) {
+		if w > 0 {
+			s.BandCells++
+		}
+	}
+	for _, f := range in.timed {
+		s.NativeCells += f.f.Len()
+	}
+	return s, nil
+}
+
+// StateBytesPerCell is the run's own per-cell memory: the regime
+// accumulator's statistics of nq quantities (package accumulate: valid and
+// regime counts, relative-SST moments, nq × 3 regimes of moments, the
+// crossing track) and the pipeline's step buffers for fields inputs
+// (three reader buffers, two sets of step outputs, masks and weights).
+func StateBytesPerCell(nq, fields int) (acc, buffers int) {
+	const moments = 32 // stats.Moments: N, W, Mean, M2
+	acc = 4 + 3*4 + moments + nq*3*moments + int(unsafe.Sizeof(regimes.Track{}))
+	buffers = nbufs*fields*4 + 2*(4+1+4+4+4) + 1 + 1 + 8 + 8 + 4
+	return acc, buffers
+}
