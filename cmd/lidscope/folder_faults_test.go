@@ -325,6 +325,20 @@ func TestIncompleteFolderIsRefused(t *testing.T) {
 			t.Errorf("%v wrote %s", c.args, c.out)
 		}
 	}
+	// Figures that plot adds to a committed run keep it complete, and a
+	// later --force run replaces them with the folder.
+	for _, args := range [][]string{{"plot", good, "--only", "series"}, {"plot", good, "--only", "series", "--force"}} {
+		if code := run(args, &so, &se); code != 0 {
+			t.Fatalf("%v: exit %d\n%s", args, code, se.String())
+		}
+	}
+	committedRun(t, good)
+	if code := run([]string{"run", "--force", "--out", good, "--quiet", "--no-plots", study(t)}, &so, &se); code != 0 {
+		t.Fatalf("run --force over plotted figures: exit %d\n%s", code, se.String())
+	}
+	if _, err := os.Stat(filepath.Join(good, "figures")); err == nil {
+		t.Error("the figures of the earlier run survived its replacement")
+	}
 }
 
 // mountTmpfs mounts a tmpfs with the options at dir (as root), or skips.
