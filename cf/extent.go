@@ -24,10 +24,17 @@ var errNotClassic = errors.New("not a classic netCDF header")
 // header; ok is false when the header is not classic or unreadable, or the
 // record count is "streaming" (unknown).
 func classicSize(r io.Reader) (need int64, ok bool) {
+	need, ok, _ = classicHeader(r)
+	return need, ok
+}
+
+// classicHeader is classicSize that also says whether the header ended
+// early (cut: the bytes ran out inside a classic header).
+func classicHeader(r io.Reader) (need int64, ok, cut bool) {
 	h := &hdr{r: r}
 	var magic [4]byte
 	if _, err := io.ReadFull(r, magic[:]); err != nil || string(magic[:3]) != "CDF" {
-		return 0, false
+		return 0, false, false
 	}
 	switch magic[3] {
 	case 1:
@@ -36,16 +43,18 @@ func classicSize(r io.Reader) (need int64, ok bool) {
 	case 5:
 		h.off64, h.cdf5 = true, true
 	default:
-		return 0, false
+		return 0, false, false
 	}
 	defer func() {
-		if recover() != nil { // a malformed header: no verdict
+		if p := recover(); p != nil { // a malformed header: no verdict on the size
 			need, ok = 0, false
+			err, _ := p.(error)
+			cut = errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF)
 		}
 	}()
 	numrecs := h.count()
 	if (!h.cdf5 && numrecs == 0xFFFFFFFF) || (h.cdf5 && numrecs == -1) {
-		return 0, false // streaming: record count unknown
+		return 0, false, false // streaming: record count unknown
 	}
 	// dimensions
 	var dims []int64
@@ -124,7 +133,7 @@ func classicSize(r io.Reader) (need int64, ok bool) {
 			need = end
 		}
 	}
-	return need, true
+	return need, true, false
 }
 
 // checkClassicSize returns an error when path is a classic-format file
@@ -139,11 +148,15 @@ func checkClassicSize(path string) error {
 	if err != nil {
 		return nil
 	}
-	need, ok := classicSize(&limitedReader{r: f, n: 1 << 26})
+	const limit = 1 << 26
+	need, ok, cut := classicHeader(&limitedReader{r: f, n: limit})
+	if cut && st.Size() < limit {
+		return fmt.Errorf("%s is damaged or truncated: the file (%d bytes) ends inside its classic NetCDF header, before the description of its variables is complete; copy or download the file again", QuotePath(path), st.Size())
+	}
 	if !ok || st.Size() >= need {
 		return nil
 	}
-	return fmt.Errorf("%s is truncated: its header describes %d bytes of data but the file has %d bytes (netCDF-C would return zeros for the rest); copy or download the file again", path, need, st.Size())
+	return fmt.Errorf("%s is truncated: its header describes %d bytes of data but the file has %d bytes (netCDF-C would return zeros for the rest); copy or download the file again", QuotePath(path), need, st.Size())
 }
 
 // hdr reads big-endian header fields; it panics on a short or malformed

@@ -27,6 +27,10 @@ type Spec struct {
 	// collect, when set (Inspect only), receives each problem that the
 	// open can read past instead of stopping at it; see openCollecting.
 	collect *[]string
+	// MemoryBudget bounds the bytes reading one time step may allocate
+	// (0: DefaultMemoryBudget); a larger grid is refused before reading
+	// its coordinates, with an error wrapping ErrOverBudget.
+	MemoryBudget int64
 }
 
 // segment is one file's part of a field's record. Only the segment being
@@ -135,6 +139,9 @@ func Open(paths []string, spec Spec) (*Field, error) {
 		return nil, err
 	}
 	for _, p := range paths {
+		if err := CheckRegular(p); err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
 		if err := checkClassicSize(p); err != nil {
 			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
 		}
@@ -152,6 +159,12 @@ func Open(paths []string, spec Spec) (*Field, error) {
 			continue
 		}
 		if err := fld.appendSegment(one); err != nil {
+			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
+		}
+		// Files are opened again as reading reaches them, so a record of
+		// many files needs one open file at a time, whatever the
+		// open-file limit.
+		if err := fld.segs[len(fld.segs)-1].close(); err != nil {
 			return fail(fmt.Errorf("role %s: %w", spec.Role, err))
 		}
 	}
@@ -183,6 +196,9 @@ func (s *segment) close() error {
 // needed and closing the others. Call with fld.mu held.
 func (fld *Field) use(seg *segment) error {
 	if seg.file == nil {
+		if err := CheckRegular(seg.path); err != nil {
+			return fmt.Errorf("role %s: reopening: %w", fld.Role, err)
+		}
 		nf, err := netcdf.Open(seg.path)
 		if err != nil {
 			return fmt.Errorf("role %s: reopening %s: %w%s", fld.Role, seg.path, err, openHint(err))
@@ -386,6 +402,16 @@ func openOne(nf *netcdf.File, spec Spec, kind units.Kind) (*Field, error) {
 	if len(unknown) > 0 {
 		d := v.Dims[unknown[0]]
 		return nil, fmt.Errorf("%s: variable %s has dimension %s (length %d) that is neither latitude, longitude, a vertical nor a time axis; lidscope cannot tell what it is — select one index with e.g. `ncks -d %s,0`, or name its coordinate in the study (coordinates.%s)", path, name, d.Name, d.Len, d.Name, spec.Role)
+	}
+	// Refuse what would not fit in memory before reading anything large.
+	if ny, nx := v.Dims[fld.yi].Len, v.Dims[fld.xi].Len; slabBytes(ny, nx) > budgetOf(spec) {
+		return nil, overBudget(path, name, fmt.Sprintf("%d×%d (%s×%s)", ny, nx, v.Dims[fld.yi].Name, v.Dims[fld.xi].Name), slabBytes(ny, nx), budgetOf(spec))
+	}
+	if fld.ti >= 0 {
+		// a time axis is decoded whole: its values and dates
+		if nt := v.Dims[fld.ti].Len; mulCap(int64(nt), 64) > budgetOf(spec) {
+			return nil, overBudget(path, name, fmt.Sprintf("%d-step time (%s)", nt, v.Dims[fld.ti].Name), mulCap(int64(nt), 64), budgetOf(spec))
+		}
 	}
 	// Horizontal layout.
 	latV, lonV := cs[fld.yi].Var, cs[fld.xi].Var
@@ -810,7 +836,19 @@ func roleCandidates(nf *netcdf.File) (map[Role]RoleMatch, []string, []rejection,
 	var all []RoleMatch
 	var rej []rejection
 	for _, v := range vars {
-		if skip[v.Name] || len(v.Dims) < 2 || !v.Type.Numeric() {
+		if skip[v.Name] || !v.Type.Numeric() {
+			continue
+		}
+		if len(v.Dims) == 1 {
+			// A 1-D series (e.g. a station's or an area mean's SST) is not
+			// a field; say so when its name suggests a role.
+			roles, hint := roleHints(v)
+			for _, r := range roles {
+				rej = append(rej, rejection{r, v.Name, hint, fmt.Errorf("it has 1 dimension (%s, length %d), but a field needs latitude and longitude dimensions (a map per time step, not a series)", v.Dims[0].Name, v.Dims[0].Len)})
+			}
+			continue
+		}
+		if len(v.Dims) < 2 {
 			continue
 		}
 		cs, err := findCoords(nf, v, Overrides{})

@@ -3,12 +3,9 @@ package cf
 import (
 	"fmt"
 	"math"
-	"slices"
 	"sort"
-	"strings"
 
 	"lidscope/netcdf"
-	"lidscope/units"
 )
 
 // FileReport is what inspect found in one file.
@@ -67,8 +64,22 @@ func levelFor(r Role) float64 {
 // Inspect reports on one file: which variables fill which roles, how they
 // will be decoded, and every problem found. It never panics on a damaged
 // file; an unreadable file gives a report with Usable false.
-func Inspect(path string) *FileReport {
+func Inspect(path string) *FileReport { return InspectWith(path, InspectOptions{}) }
+
+// InspectOptions are the settings of InspectWith.
+type InspectOptions struct {
+	// MemoryBudget bounds the bytes reading one time step of a field may
+	// take (0: DefaultMemoryBudget); larger fields are reported, not read.
+	MemoryBudget int64
+}
+
+// InspectWith is Inspect with options.
+func InspectWith(path string, o InspectOptions) *FileReport {
 	rep := &FileReport{Path: path}
+	if err := CheckRegular(path); err != nil {
+		rep.Problems = append(rep.Problems, err.Error())
+		return rep
+	}
 	if err := checkClassicSize(path); err != nil {
 		rep.Problems = append(rep.Problems, err.Error())
 		return rep
@@ -111,7 +122,7 @@ func Inspect(path string) *FileReport {
 	sort.Strings(roles)
 	for _, rs := range roles {
 		m := cands[Role(rs)]
-		vr := inspectVar(path, m)
+		vr := inspectVar(path, m, o)
 		used[m.Var] = true
 		if len(vr.Problems) == 0 {
 			rep.Usable = true
@@ -135,7 +146,7 @@ func Inspect(path string) *FileReport {
 	return rep
 }
 
-func inspectVar(path string, m RoleMatch) (vr VarReport) {
+func inspectVar(path string, m RoleMatch, o InspectOptions) (vr VarReport) {
 	vr = VarReport{Var: m.Var, Role: m.Role, How: m.How}
 	switch {
 	case m.ByLongName:
@@ -149,7 +160,7 @@ func inspectVar(path string, m RoleMatch) (vr VarReport) {
 	if m.NLevels > 1 {
 		level = levelFor(m.Role)
 	}
-	vr.Spec = Spec{Role: m.Role, Var: m.Var, Level: level}
+	vr.Spec = Spec{Role: m.Role, Var: m.Var, Level: level, MemoryBudget: o.MemoryBudget}
 	// Every problem of the variable in one pass: the open reads on past
 	// those it can (time, units, level, packing) and lists each.
 	var probs []string
@@ -191,33 +202,18 @@ func inspectVar(path string, m RoleMatch) (vr VarReport) {
 			vr.Notes = append(vr.Notes, n)
 		}
 	}
-	// Sample the first, middle and last steps for a plausibility check.
-	buf := make([]float32, fld.Len())
-	lo, hi := math.Inf(1), math.Inf(-1)
-	valid, total := 0, 0
-	nt := fld.NT()
-	for _, t := range uniq([]int{0, nt / 2, nt - 1}) {
-		if err := fld.ReadSlab(t, buf, nil); err != nil {
-			vr.Problems = append(vr.Problems, err.Error())
-			return vr
-		}
-		for _, x := range buf {
-			total++
-			if x == x {
-				valid++
-				lo, hi = math.Min(lo, float64(x)), math.Max(hi, float64(x))
-			}
-		}
+	a, err := Assess(fld)
+	if err != nil {
+		vr.Problems = append(vr.Problems, err.Error())
+		return vr
 	}
-	if valid > 0 {
-		vr.Min, vr.Max = &lo, &hi
+	if a.Valid > 0 {
+		vr.Min, vr.Max = &a.Min, &a.Max
 	}
-	if !slices.Contains(fld.Notes, notUnpacked) {
-		vr.Problems = append(vr.Problems, CheckValues(m.Role, fld.Conv, lo, hi, valid, total)...)
+	for _, p := range a.Problems {
+		vr.Problems = append(vr.Problems, p.Text)
 	}
-	if n := fld.InfCount(); n > 0 {
-		vr.Problems = append(vr.Problems, fmt.Sprintf("%d infinite values in the sampled steps (treated as missing)", n))
-	}
+	vr.Notes = append(vr.Notes, a.Notes...)
 	return vr
 }
 
@@ -279,67 +275,4 @@ func regular(x []float64, tol float64) bool {
 		}
 	}
 	return true
-}
-
-// CheckValues compares the range of SI values of a role with what is
-// physically possible and reports what looks like mislabelled units. It
-// never converts anything: the study must confirm or override the units.
-func CheckValues(r Role, conv units.Conversion, lo, hi float64, valid, total int) []string {
-	var out []string
-	if total > 0 && valid == 0 {
-		return []string{"every sampled value is missing (check _FillValue / missing_value and the variable)"}
-	}
-	if valid == 0 {
-		return nil
-	}
-	rawLo, rawHi := (lo-conv.Offset)/conv.Scale, (hi-conv.Offset)/conv.Scale
-	rng := fmt.Sprintf("stored values %.4g…%.4g %q", rawLo, rawHi, conv.From)
-	switch conv.Kind {
-	case units.Temperature:
-		switch {
-		case conv.Offset != 0 && rawLo > 150 && rawHi < 350:
-			out = append(out, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the study")
-		case conv.Offset == 0 && rawHi < 100 && rawLo > -100:
-			out = append(out, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the study")
-		case lo < 150 || hi > 350:
-			out = append(out, rng+": outside 150…350 K, impossible for "+string(r))
-		}
-		// (a tolerance: slabs are float32, so 0 °C comes back as 273.15f)
-		if r == RoleSST && math.Abs(rawLo) < 1e-3 && math.Abs(rawHi) < 1e-3 {
-			out = append(out, rng+": SST is 0 everywhere in the sampled steps; suspicious (a land mask or fill?)")
-		}
-	case units.Fraction:
-		switch {
-		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the study which values are ocean")
-		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
-			out = append(out, rng+": small whole numbers, not a 0–1 fraction (oktas 0–8? tenths 0–10? category codes?); for cloud cover in oktas set units."+string(r)+": oktas (× 0.125), in tenths units."+string(r)+": tenths (× 0.1) in the study; otherwise convert them to a fraction first")
-		case conv.Scale == 0.125 && hi > 1.0001 && hi <= 1.126:
-			out = append(out, rng+": okta 9 means sky obscured (WMO code table 2700, from memory), not a cover; declare it missing in the file (e.g. ncatted -a missing_value,VAR,o,f,9)")
-		case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
-			out = append(out, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the study")
-		case hi > 1.05 || lo < -0.05:
-			out = append(out, rng+": a fraction must lie in 0…1")
-		case conv.Scale == 0.01 && rawHi <= 1.0 && rawHi > 0:
-			out = append(out, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the study")
-		}
-	case units.Pressure:
-		if hi < 2000 && hi > 0 {
-			out = append(out, rng+": far too small for Pa; if these are hPa set units."+string(r)+": hPa in the study")
-		} else if hi > 120000 {
-			out = append(out, rng+": above 1200 hPa; check the units")
-		}
-	case units.Flux:
-		if hi > 1500 || lo < -1 {
-			out = append(out, rng+": outside 0…1500 W m-2; check the units")
-		}
-	case units.Omega:
-		if math.Max(math.Abs(lo), math.Abs(hi)) > 20 {
-			out = append(out, rng+": |omega| above 20 Pa s-1; check the units (hPa day-1?)")
-		}
-	}
-	if len(out) > 0 {
-		out[0] = strings.TrimSpace(out[0])
-	}
-	return out
 }
