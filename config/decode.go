@@ -321,6 +321,7 @@ func (d *decoder) decode(tree map[string]any, r *Study) {
 		dir = filepath.Join(r.Dir, dir)
 	}
 	r.Output = Output{Dir: filepath.Clean(dir), Plots: d.boolean(out, "output", "plots", true)}
+	r.Limits = d.limits(sub(tree, "limits"))
 
 	sets, _ := tree["datasets"].(map[string]any)
 	if _, isList := tree["datasets"].([]any); isList {
@@ -515,10 +516,11 @@ func (d *decoder) dataset(path, name string, m map[string]any, r *Study) Dataset
 		Coordinates: map[cf.Role]Coordinates{},
 		Inputs:      map[cf.Role][]string{},
 	}
-	if !nameRE.MatchString(ds.Name) {
-		d.fail(path, "%q: a dataset name is made of lower-case letters, digits, _ and -, starting with a letter or digit (it is a key of the study and a folder name of the results)", ds.Name)
+	if err := CheckDatasetName(ds.Name); err != nil {
+		d.fail(path, "%v", err)
 	}
 	ds.Description = d.str(m, path, "about", "")
+	ds.Accept = d.acceptList(m, path)
 
 	// files
 	inPath := join(path, "files")

@@ -95,6 +95,12 @@
 // writes them. Each entry is a table with:
 //
 //   - about: free text, shown in the titles of the outputs.
+//   - accept: names of usability checks (cf.CheckNames: all_missing,
+//     looks_kelvin, looks_percent, sst_zero, …) whose NOT USABLE verdict
+//     the study overrides for this dataset. Without it, run stops on an
+//     input that lidscope inspect calls NOT USABLE, with the same message;
+//     with it, the run goes on and records the accepted check in its notes
+//     (summary.json, provenance.json).
 //   - files (required): role → a file, a glob, or a list of files and
 //     globs, relative to the study's folder. Several files of one role are
 //     one record along time (cf.Open sorts them). The roles are those of
@@ -198,6 +204,14 @@
 //   - dir (default "out", relative to the study's folder): each dataset
 //     writes into dir/<dataset name> ([Dataset].OutputDir).
 //   - plots (default true).
+//
+// limits:
+//
+//   - memory_budget (default a quarter of the machine's memory, at most
+//     8 GiB): bytes, or a size such as "4GiB" or "512MB". One time step of
+//     an input, or the per-column arrays of a run, larger than this are
+//     refused before anything is allocated, with the grid and the budget
+//     in the message. The flag --memory-budget sets it too.
 //
 // relationships (shared by all datasets; the regime-conditioned
 // cloud–inversion relationships of package relations, run with every

@@ -122,12 +122,19 @@ func parse(path, format string, src []byte) (tree map[string]any, err error) {
 			tree, err = nil, fmt.Errorf("study %s: the %s text cannot be read (%v); check its syntax", path, format, p)
 		}
 	}()
+	if err := checkDepth(path, format, src); err != nil {
+		return nil, err
+	}
 	v := viper.NewWithOptions(viper.KeyDelimiter("\x1f"))
 	v.SetConfigType(format)
 	if err := v.ReadConfig(bytes.NewReader(src)); err != nil {
 		return nil, fmt.Errorf("study %s is not valid %s: %w", path, strings.ToUpper(format), unwrapParse(err))
 	}
-	return v.AllSettings(), nil
+	tree = v.AllSettings()
+	if d := treeDepth(tree, MaxDepth); d > MaxDepth {
+		return nil, fmt.Errorf("study %s: tables and lists nest more than %d levels deep (a study needs about 5); check the brackets, braces, dotted keys and indentation", path, MaxDepth)
+	}
+	return tree, nil
 }
 
 // unwrapParse drops viper's own "While parsing config:" wrapper (the

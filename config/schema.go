@@ -83,6 +83,7 @@ var roleTime = table(map[string]*key{"units": str, "calendar": str, "climatology
 
 var datasetKeys = table(map[string]*key{
 	"about":     str,
+	"accept":    strs,
 	"files":     {kind: kRoles, elem: strs, all: true},
 	"variables": {kind: kRoles, elem: str},
 	"units":     {kind: kRoles, elem: str},
@@ -141,6 +142,7 @@ var schema = table(map[string]*key{
 		}),
 	}),
 	"output": table(map[string]*key{"dir": str, "plots": boolean}),
+	"limits": table(map[string]*key{"memory_budget": scalar}),
 	"relationships": table(map[string]*key{
 		"enabled": boolean,
 		"mode":    str,

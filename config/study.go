@@ -34,6 +34,8 @@ type Study struct {
 	Analysis Analysis
 	// Output says where results go.
 	Output Output
+	// Limits bound the resources a run may use.
+	Limits Limits
 	// Relations is the relationship analysis (the relationships section),
 	// shared by all datasets: relations.Defaults() with the study's
 	// settings, the regime definition of Analysis as Classifier and
@@ -71,6 +73,10 @@ type Dataset struct {
 	// used in output paths.
 	Name        string
 	Description string
+	// Accept names the usability checks of lidscope inspect (cf.CheckNames)
+	// whose verdict the study overrides for this dataset: the run goes on
+	// and records the accepted check in its notes.
+	Accept []string
 	// Inputs are the files of each role the analysis reads, each list
 	// sorted, with globs expanded and relative patterns resolved against
 	// the study's folder. Roles the settings need but the study lists
@@ -479,4 +485,12 @@ func sortedRoles[T any](m map[cf.Role]T) []cf.Role {
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i] < out[j] })
 	return out
+}
+
+// Limits bound the resources a run may use.
+type Limits struct {
+	// MemoryBudget is the most bytes one input's time step, or a run's
+	// per-column arrays, may take (limits.memory_budget, e.g. "4GiB");
+	// 0 means cf.DefaultMemoryBudget.
+	MemoryBudget int64
 }
