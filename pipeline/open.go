@@ -81,6 +81,7 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		}
 	}()
 	open := func(x Input) (*field, error) {
+		x.Spec.MemoryBudget = p.MemoryBudget
 		f, err := cf.Open(x.Paths, x.Spec)
 		if err != nil {
 			return nil, err
@@ -176,8 +177,19 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		in.all = append(in.all, in.mask)
 	}
 
+	// The checks of lidscope inspect, before anything is computed.
+	for _, f := range in.all {
+		if err := checkUsable(p, f, f == in.mask, &in.notes); err != nil {
+			return nil, err
+		}
+	}
+
 	// Analysis grid.
 	if in.grid, err = analysisGrid(p.Grid, in.all); err != nil {
+		return nil, err
+	}
+	// every timed input, LTS, EIS and ECTEI are accumulated per column
+	if err := checkRunBudget(p, in.all, in.grid.NLat(), in.grid.NLon(), len(in.timed)+3); err != nil {
 		return nil, err
 	}
 	if err := attachWeights(p.Grid, in.grid, in.all, &in.notes); err != nil {

@@ -90,6 +90,13 @@ type Plan struct {
 	Log     *slog.Logger
 	// Progress, when set, is called after each time step.
 	Progress func(done, total int)
+	// Accept names the usability checks (cf.CheckNames) whose verdict the
+	// study overrides for this dataset; any other failed check stops the
+	// run as `lidscope inspect` calls the input NOT USABLE.
+	Accept map[string]bool
+	// MemoryBudget bounds the bytes of one field's slab and of the run's
+	// per-column arrays (0: cf.DefaultMemoryBudget).
+	MemoryBudget int64
 	// Sinks receive every time step, in time order, after the run's own
 	// accumulator (e.g. relationship statistics). The step's slices are
 	// reused for the next step: a sink must copy what it keeps.
