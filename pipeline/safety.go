@@ -37,7 +37,11 @@ func checkUsable(p *Plan, f *field, isMask bool, notes *[]string) error {
 	if len(refused) == 0 {
 		return nil
 	}
-	return &UnusableError{Role: f.role, Var: f.f.Var, Paths: f.f.Paths(), Checks: checks,
+	units := fmt.Sprintf("units attribute %q", f.f.Conv.From)
+	if f.studyUnits {
+		units = fmt.Sprintf("units %q from the study, units.%s", f.f.Conv.From, f.role)
+	}
+	return &UnusableError{Role: f.role, Var: f.f.Var, Paths: f.f.Paths(), Units: units, Checks: checks,
 		Text: strings.Join(refused, "; ")}
 }
 
@@ -47,18 +51,24 @@ type UnusableError struct {
 	Role   cf.Role
 	Var    string
 	Paths  []string
+	Units  string   // where the units come from, e.g. `units attribute "K"`
 	Checks []string // the failed checks, by name
 	Text   string
 }
 
 func (e *UnusableError) Error() string {
-	files := make([]string, len(e.Paths))
-	for i, p := range e.Paths {
-		files[i] = cf.QuotePath(p)
+	where := ""
+	if len(e.Paths) > 0 {
+		where = cf.QuotePath(e.Paths[0])
 	}
-	where := strings.Join(files, ", ")
-	if len(files) > 3 {
-		where = fmt.Sprintf("%s … %s (%d files)", files[0], files[len(files)-1], len(files))
+	if e.Units != "" {
+		where += " (" + e.Units + ")"
+	}
+	switch n := len(e.Paths) - 1; {
+	case n == 1:
+		where += " and 1 more file of its record"
+	case n > 1:
+		where += fmt.Sprintf(" and %d more files of its record", n)
 	}
 	return fmt.Sprintf("role %s, variable %s in %s is NOT USABLE (as lidscope inspect reports): %s; fix the input, or, if the values are right, accept the check for this dataset in the study (accept: [%s])",
 		e.Role, e.Var, where, e.Text, strings.Join(e.Checks, ", "))

@@ -132,13 +132,13 @@ func TestBadUnits(t *testing.T) {
 			replaceSST(t, d, -1, netcdf.FormatNetCDF4Classic, attr("K"))
 			return badStudy(t, d, nil)
 		}, func(d string) []string {
-			return []string{"role sst, variable sst in " + first(d) + ` (units attribute "K"), time step 2001-01`,
+			return []string{"role sst, variable sst in " + first(d) + ` (units attribute "K")`,
 				"these look like degrees Celsius, not kelvin; if so set units.sst: degC in the study"}
 		}},
 		{"study says K over a degC file", func(t *testing.T, d string) string {
 			return badStudy(t, d, func(s string) string { return replaceOnce(s, "    ocean:\n", "    units: {sst: K}\n    ocean:\n") })
 		}, func(d string) []string {
-			return []string{"role sst, variable sst in " + first(d) + ` (units "K" from the study, units.sst), time step 2001-01`,
+			return []string{"role sst, variable sst in " + first(d) + ` (units "K" from the study, units.sst)`,
 				"these look like degrees Celsius, not kelvin"}
 		}},
 		{"file units are not a temperature", func(t *testing.T, d string) string {
