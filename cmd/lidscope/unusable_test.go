@@ -104,7 +104,7 @@ func TestUnusableInputsDoNotRun(t *testing.T) {
 		d := badWorld(t, nil)
 		landInPercentLabelledOne(t, d)
 		study := badStudy(t, d, func(s string) string {
-			return replaceOnce(s, "  - name: bad-input\n", "  - name: bad-input\n    accept: [looks_percent]\n")
+			return replaceOnce(s, "    ocean:\n", "    accept: [looks_percent]\n    ocean:\n")
 		})
 		stdout, out := badSucceeds(t, study)
 		note := "land_fraction (land_fraction): check looks_percent accepted by the study (accept)"
@@ -122,8 +122,8 @@ func TestUnusableInputsDoNotRun(t *testing.T) {
 	t.Run("unknown check name", func(t *testing.T) {
 		d := badWorld(t, nil)
 		study := badStudy(t, d, func(s string) string {
-			return replaceOnce(s, "  - name: bad-input\n", "  - name: bad-input\n    accept: [looks_percnt]\n")
+			return replaceOnce(s, "    ocean:\n", "    accept: [looks_percnt]\n    ocean:\n")
 		})
-		badFails(t, study, "datasets.0.accept", `"looks_percnt" is not a check`, cf.CheckLooksPercent)
+		badFails(t, study, "datasets.bad-input.accept", `"looks_percnt" is not a check`, cf.CheckLooksPercent)
 	})
 }
