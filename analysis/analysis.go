@@ -196,6 +196,9 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		plan.Progress = func(done, total int) { opt.Progress(d.Name, done, total) }
 	}
 	log.Info("run", "dataset", d.Name)
+	// Stamp every input before reading it, to tell at the end whether
+	// one changed meanwhile.
+	watch := watchInputs(datasetPaths(d))
 	relCfg := r.RelationsFor(d)
 	// The relationship analysis relates cloud to EIS, LTS and relative
 	// SST: it needs both optional inputs.
@@ -236,6 +239,9 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	}
 	meta, err := metaFor(r, d, res, opt, start)
 	if err != nil {
+		return nil, err
+	}
+	if err := watch.verify(meta.Inputs); err != nil {
 		return nil, err
 	}
 	meta.Absent = plan.Lacks()
