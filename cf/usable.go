@@ -34,6 +34,9 @@ const (
 	CheckPressureLarge    = "pressure_large"    // above 1200 hPa
 	CheckFluxRange        = "flux_range"        // outside 0…1500 W m-2
 	CheckOmegaRange       = "omega_range"       // |omega| above 20 Pa s-1
+	// CheckNoOceanValues is made by run only (inspect does not know the
+	// ocean mask): a quantity without any value over the band's ocean.
+	CheckNoOceanValues = "no_ocean_values"
 )
 
 // checkWhat describes each check, for messages and the documentation.
@@ -53,6 +56,7 @@ var checkWhat = map[string]string{
 	CheckPressureLarge:    "a pressure above 1200 hPa",
 	CheckFluxRange:        "a flux outside 0…1500 W m-2",
 	CheckOmegaRange:       "|omega| above 20 Pa s-1",
+	CheckNoOceanValues:    "(run only) a quantity without any value over the ocean columns of the band, in every time step",
 }
 
 // CheckNames lists the names of the usability checks, sorted.

@@ -277,6 +277,9 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	if rejected > 0 {
 		res.Notes = append(res.Notes, fmt.Sprintf("%d column-steps had physically impossible inputs (temperatures outside 123–332 K, …) and were left out of LTS/EIS", rejected))
 	}
+	if err := checkOceanValues(&p, out.acc, bandW, len(res.Labels), &res.Notes); err != nil {
+		return nil, err
+	}
 	for _, f := range in.all {
 		if c := f.f.NaNCount(); c > 0 {
 			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s): %d NaN values (not the declared fill value) treated as missing", f.role, f.f.Var, c))

@@ -5,6 +5,7 @@ import (
 	"strings"
 	"unsafe"
 
+	"lidscope/accumulate"
 	"lidscope/cf"
 	"lidscope/regimes"
 	"lidscope/stats"
@@ -108,4 +109,34 @@ func checkRunBudget(p *Plan, all []*field, nlat, nlon, nq int) error {
 	}
 	return fmt.Errorf("the analysis grid of %d×%d (lat×lon) cells with %d inputs needs at least %s, more than the memory budget of %s; choose a coarser analysis grid (analysis.grid.target, e.g. 2deg), or, if the machine has the memory, raise the budget (--memory-budget, or limits.memory_budget in the study): %w",
 		nlat, nlon, len(all), cf.FormatBytes(need), cf.FormatBytes(budget), cf.ErrOverBudget)
+}
+
+// checkOceanValues refuses a run in which a quantity has no value over any
+// ocean column of the band in any time step (a cloud field present only
+// over land, an LTS that every column rejected): each of its regime means
+// would be empty, null in summary.json, and a null must never stand for a
+// bad input. The study may accept it (cf.CheckNoOceanValues).
+func checkOceanValues(p *Plan, acc *accumulate.Acc, bandW []float64, steps int, notes *[]string) error {
+	for q, name := range acc.L.Quantities {
+		var n int64
+		for r := range acc.Cells.Values[q] {
+			col := acc.Cells.Values[q][r]
+			for i, w := range bandW {
+				if w > 0 && i < len(col) {
+					n += col[i].N
+				}
+			}
+		}
+		if n > 0 {
+			continue
+		}
+		what := fmt.Sprintf("no %s value over any ocean column of the band %g…%g°N in any of the %d time steps", name, p.Band.South, p.Band.North, steps)
+		if p.Accept[cf.CheckNoOceanValues] {
+			*notes = append(*notes, fmt.Sprintf("check %s accepted by the study (accept): %s", cf.CheckNoOceanValues, what))
+			continue
+		}
+		return fmt.Errorf("%s: every regime mean of %s would be empty (null in summary.json); check that input's missing values and the ocean mask (ocean.mask, ocean.min_ocean_fraction), or, if that is right, accept the check for this dataset in the study (accept: [%s])",
+			what, name, cf.CheckNoOceanValues)
+	}
+	return nil
 }
