@@ -220,6 +220,9 @@ func drawFrom(runDir string, opt Options) ([]string, error) {
 		return nil, fmt.Errorf("figures: %s: %w; nothing was drawn. Allow replacing them (--force) or choose another --out",
 			strings.Join(exist, ", "), fs.ErrExist)
 	}
+	if fi, err := os.Lstat(opt.OutDir); err == nil && fi.Mode()&fs.ModeSymlink != 0 {
+		return nil, fmt.Errorf("figures: %s is a symbolic link; lidscope does not write figures through links (they would land outside the run folder): remove the link, or give a real folder (--out)", opt.OutDir)
+	}
 	if err := os.MkdirAll(opt.OutDir, 0o777); err != nil {
 		return nil, fmt.Errorf("figures: cannot create the figure directory: %w", err)
 	}

@@ -8,8 +8,10 @@ import "C"
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 	"syscall"
+	"unicode"
 )
 
 // Error is an error status returned by the netCDF-C library, with the
@@ -28,7 +30,7 @@ func (e *Error) Error() string {
 	b.WriteString(e.Op)
 	if e.Path != "" {
 		b.WriteString(" ")
-		b.WriteString(e.Path)
+		b.WriteString(quotePath(e.Path))
 	}
 	if e.Name != "" {
 		fmt.Fprintf(&b, " (%s)", e.Name)
@@ -115,3 +117,14 @@ func checkIO(status C.int, errno error, op, path, name string) error {
 
 // cStatus converts a status code for checkIO (tests cannot use cgo).
 func cStatus(code int) C.int { return C.int(code) }
+
+// quotePath quotes a path that holds control or other unprintable
+// characters, so that messages never carry them raw.
+func quotePath(p string) string {
+	for _, r := range p {
+		if r == unicode.ReplacementChar || !unicode.IsPrint(r) {
+			return strconv.Quote(p)
+		}
+	}
+	return p
+}

@@ -18,6 +18,8 @@ func init() { addCommand(newInspectCmd) }
 type inspectOptions struct {
 	Files []string
 	JSON  bool
+	// MemoryBudget bounds what reading one time step of a field may take.
+	MemoryBudget byteSize
 }
 
 func newInspectCmd(e *env) *cobra.Command {
@@ -39,6 +41,7 @@ status 1 when a file cannot be used.`,
 		},
 	}
 	cmd.Flags().BoolVar(&o.JSON, "json", false, "write the report as JSON")
+	addMemoryBudget(cmd.Flags(), &o.MemoryBudget)
 	return cmd
 }
 
@@ -48,7 +51,7 @@ func runInspect(o inspectOptions, w io.Writer) error {
 	reports := make([]*cf.FileReport, 0, len(o.Files))
 	ok := true
 	for _, p := range o.Files {
-		r := cf.Inspect(p)
+		r := cf.InspectWith(p, cf.InspectOptions{MemoryBudget: int64(o.MemoryBudget)})
 		ok = ok && r.Usable
 		reports = append(reports, r)
 	}
@@ -87,7 +90,7 @@ func writeReport(w io.Writer, r *cf.FileReport) {
 	if !r.Usable {
 		status = "NOT USABLE"
 	}
-	fmt.Fprintf(w, "%s  [%s]\n", r.Path, status)
+	fmt.Fprintf(w, "%s  [%s]\n", cf.QuotePath(r.Path), status)
 	if r.Format != "" {
 		var dims []string
 		for _, d := range r.Dims {

@@ -11,6 +11,8 @@ import (
 
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
+
+	"lidscope/cf"
 )
 
 // env is what one command line runs with: its writers, and how a command
@@ -153,13 +155,15 @@ func execute(ctx context.Context, args []string, e *env) int {
 		err = usageErr("unknown command %q%s", typed, suggestion(cmd, typed))
 		fallthrough
 	case errors.Is(err, errUsage):
-		fmt.Fprintf(e.stderr, "%s: %s\n", name, usageText(err))
+		fmt.Fprintf(e.stderr, "%s: %s\n", name, cf.SafeText(usageText(err)))
 		if !errors.Is(err, errNoHint) {
 			fmt.Fprintf(e.stderr, "Run '%s --help' for usage.\n", name)
 		}
 		return 2
 	}
-	fmt.Fprintf(e.stderr, "%s: %s\n", name, flagWords.Replace(err.Error()))
+	// No raw control characters reach the terminal (a file name holding
+	// an escape sequence is shown escaped).
+	fmt.Fprintf(e.stderr, "%s: %s\n", name, cf.SafeText(flagWords.Replace(err.Error())))
 	return 1
 }
 

@@ -27,6 +27,8 @@ type runOptions struct {
 	Log      logOptions
 	Progress bool // draw a progress line (terminal only)
 	Profile  profileOptions
+	// MemoryBudget, when set, overrides the study's limits.memory_budget.
+	MemoryBudget byteSize
 }
 
 func newRunCmd(e *env) *cobra.Command {
@@ -58,6 +60,7 @@ into the folder --out (default: the study's output.dir/DATASET).`,
 	addNoPlots(fs, &o.NoPlots, "do not draw figures")
 	addWorkers(fs, &o.Workers)
 	addSet(fs, o.Set, "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
+	addMemoryBudget(fs, &o.MemoryBudget)
 	o.Log.register(fs)
 	o.Profile.register(fs)
 	return cmd
@@ -77,6 +80,9 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 			err = perr
 		}
 	}()
+	if o.MemoryBudget > 0 {
+		o.Set["limits.memory_budget"] = fmt.Sprint(int64(o.MemoryBudget))
+	}
 	r, err := config.Load(o.Study, config.LoadOptions{Flags: o.Set})
 	if err != nil {
 		return err
