@@ -12,6 +12,7 @@ import (
 	"lidscope/config"
 	"lidscope/figures"
 	"lidscope/fixtures"
+	"lidscope/internal/testutil"
 	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/relations"
@@ -170,6 +171,20 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 					t.Errorf("%s written without a relationship analysis", n)
 				}
 			}
+			// every figure's footer says what the run lacks
+			svgs, err := figures.Draw(rep.OutDir, figures.Options{Format: "svg", OutDir: filepath.Join(t.TempDir(), "svg"), NoCoastlines: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, p := range svgs {
+				b, err := os.ReadFile(p)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if !strings.Contains(string(b), "no cloud statistics") {
+					t.Errorf("%s: the footer does not say what the run lacks", filepath.Base(p))
+				}
+			}
 			figDir := filepath.Join(rep.OutDir, figures.DefaultDirName)
 			for _, n := range c.figures {
 				if _, err := os.Stat(filepath.Join(figDir, n+".png")); err != nil {
@@ -208,5 +223,49 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 		if c.Maps[0].Corr != 1 || c.Maps[0].CRMS != 0 {
 			t.Errorf("%s: the convective-fraction map differs from the full run's (SST alone decides it): %+v", c.Dir, c.Maps[0])
 		}
+	}
+}
+
+// allInOneCDL is an invented file (synthetic fixture) holding SST and
+// temperature on levels but no cloud: read through inputs.all.
+const allInOneCDL = `netcdf all_in_one {
+dimensions: time = 2 ; plev = 2 ; lat = 2 ; lon = 3 ;
+variables:
+	double time(time) ; time:units = "days since 2001-01-01" ; time:calendar = "standard" ;
+	double plev(plev) ; plev:units = "hPa" ; plev:axis = "Z" ;
+	float lat(lat) ; lat:units = "degrees_north" ;
+	float lon(lon) ; lon:units = "degrees_east" ;
+	float tos(time, lat, lon) ; tos:standard_name = "sea_surface_temperature" ; tos:units = "K" ;
+	float ta(time, plev, lat, lon) ; ta:standard_name = "air_temperature" ; ta:units = "K" ;
+data:
+	time = 15, 45 ; plev = 850, 700 ; lat = -10, 10 ; lon = 0, 120, 240 ;
+	tos = 300, 302, 298, 299, 301, 297,  300, 302, 298, 299, 301, 297 ;
+	ta = 290, 290, 290, 290, 290, 290,  283, 283, 283, 283, 283, 283,  290, 290, 290, 290, 290, 290,  283, 283, 283, 283, 283, 283 ;
+}
+`
+
+// A study that reads its roles from inputs.all runs without the optional
+// roles those files do not hold, and says so.
+func TestInputsAllWithoutCloud(t *testing.T) {
+	dir := t.TempDir()
+	nc := testutil.CDL(t, allInOneCDL, filepath.Join(dir, "all.nc"))
+	p := filepath.Join(dir, "study.yaml")
+	study := "datasets:\n  - name: all-in-one\n    inputs:\n      all: \"" + nc + "\"\n    ocean: {mask: sst}\noutput: {dir: \"" + dir + "\", plots: false}\n"
+	if err := os.WriteFile(p, []byte(study), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := config.Load(p, config.LoadOptions{LookupEnv: config.NoEnvironment})
+	if err != nil {
+		t.Fatal(err)
+	}
+	reps, err := Run(context.Background(), r, nil, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if q := reps[0].Result.Acc.L.Quantities; !slices.Equal(q, []string{"sst", "t700", "lts", "eis"}) {
+		t.Errorf("quantities %v", q)
+	}
+	if n := strings.Join(reps[0].Result.Notes, "\n"); !strings.Contains(n, "low_cloud is not in the files of inputs.all, so the run goes without it") {
+		t.Errorf("notes:\n%s", n)
 	}
 }

@@ -74,3 +74,40 @@ func dedupe(x []string) []string {
 	}
 	return out
 }
+
+// HasRole reports whether the files (read as one record) hold a variable
+// for spec's role: one the study names (spec.Var), or one found by
+// standard_name or name in the first file. When none is found it returns
+// false and why, in the words of FindRole (which also names a variable
+// that only its long name suggests, to be confirmed in the study). An
+// ambiguous role, or a file that cannot be read, is an error.
+func HasRole(paths []string, spec Spec) (bool, string, error) {
+	if spec.Var != "" {
+		return true, "", nil
+	}
+	if len(paths) == 0 {
+		return false, fmt.Sprintf("role %s: no input files", spec.Role), nil
+	}
+	nf, err := netcdf.Open(paths[0])
+	if err != nil {
+		return false, "", fmt.Errorf("role %s: %w%s", spec.Role, err, openHint(err))
+	}
+	defer nf.Close()
+	cands, amb, _, err := roleCandidates(nf)
+	if err != nil {
+		return false, "", err
+	}
+	if m, ok := cands[spec.Role]; ok && !m.ByLongName {
+		return true, "", nil
+	}
+	for _, a := range amb {
+		if strings.HasPrefix(a, "role "+string(spec.Role)+" ") {
+			return false, "", fmt.Errorf("%s: %s", nf.Path(), a)
+		}
+	}
+	_, err = FindRole(nf, spec.Role)
+	if err == nil {
+		return true, "", nil
+	}
+	return false, err.Error(), nil
+}

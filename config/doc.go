@@ -109,7 +109,8 @@
 //     relative_humidity, dew_point, specific_humidity, sea_fraction,
 //     land_fraction, sea_ice, precipitation. The key any lists files that
 //     may hold any role: every role the settings read and no other key
-//     gives is read from them. Required: sst (with a mask, the minimum:
+//     gives is read from them (an optional role those files do not hold
+//     is left out, with a note). Required: sst (with a mask, the minimum:
 //     regime statistics, crossings, dwell times and the tropical-mean
 //     series); air_temperature adds LTS and EIS, and low_cloud or cloud
 //     (see analysis.cloud) the cloud statistics and, with air_temperature,

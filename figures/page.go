@@ -208,6 +208,10 @@ func (f *fig) footer(width vg.Length) textBlock {
 		h = "not recorded"
 	}
 	s := fmt.Sprintf("lidscope %s · study %s · figure %s", v, h, f.name)
+	if len(r.Absent) > 0 {
+		// a run without an optional input says what it lacks
+		s += " · quantities: " + strings.Join(r.Quantities, ", ") + " · " + strings.Join(r.Absent, "; ")
+	}
 	st := withColour(style(sizeFooter, false), subtleColour)
 	return textBlock{wrap(f.t(s), st, width), st}
 }

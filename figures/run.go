@@ -27,6 +27,9 @@ type Run struct {
 	RegimeDefinition                   string
 	Delta, HalfWidth                   float64 // K
 	BandSouth, BandNorth               float64 // degrees_north
+	// Quantities are those the run has; Absent says what it lacks for
+	// want of an optional input (every figure's footer says so).
+	Quantities, Absent []string
 
 	maps      *mapsFile
 	series    *seriesFile
@@ -50,6 +53,8 @@ type summaryJSON struct {
 		HalfWidth jsonNum                        `json:"half_width"`
 		Band      struct{ South, North jsonNum } `json:"band"`
 	} `json:"regime_definition"`
+	Quantities []string `json:"quantities"`
+	Absent     []string `json:"absent_quantities"`
 }
 
 type jsonNum struct {
@@ -91,6 +96,7 @@ func Load(dir string) (*Run, error) {
 		Period: s.Period.Label, RegimeDefinition: s.Regime.Text,
 		Delta: s.Regime.Delta.get(), HalfWidth: s.Regime.HalfWidth.get(),
 		BandSouth: s.Regime.Band.South.get(), BandNorth: s.Regime.Band.North.get(),
+		Quantities: s.Quantities, Absent: s.Absent,
 	}, nil
 }
 

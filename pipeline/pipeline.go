@@ -68,6 +68,9 @@ type Plan struct {
 	// its outputs leave the absent quantities out (Plan.Quantities).
 	T700  *Input
 	Cloud *Input
+	// Notes are what planning decided, in plain words (e.g. an optional
+	// role absent from inputs.all); Run puts them first in Result.Notes.
+	Notes []string
 	// Optional inputs (nil when absent).
 	SurfaceAir      *Input // surface air temperature, when the metrics conventions uses it
 	SurfacePressure *Input
@@ -193,7 +196,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 		return nil, err
 	}
 	defer in.close()
-	res := &Result{Grid: in.grid, Paths: in.paths, Notes: in.notes, StepsPerYear: in.stepsPerYear,
+	res := &Result{Grid: in.grid, Paths: in.paths, Notes: append(append([]string{}, p.Notes...), in.notes...), StepsPerYear: in.stepsPerYear,
 		Calendar: in.axis.f.Time.Calendar, Sampling: in.axis.f.Time.Step}
 	log.Info("aligned", "dataset", p.Dataset, "steps", len(in.steps), "grid", in.grid.String())
 

@@ -41,9 +41,30 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		return &x
 	}
 	// T700 and cloud are optional (SST is the minimum); which quantities
-	// the run has follows from which of them are present.
-	p.T700 = opt(cf.RoleAirTemp)
-	p.Cloud = opt(d.Cloud)
+	// the run has follows from which of them are present. A role read from
+	// inputs.all (not named in the study) is absent when those files do
+	// not hold it.
+	fromAll := func(role cf.Role) (*Input, error) {
+		x := opt(role)
+		if x == nil || len(d.Patterns[string(role)]) > 0 {
+			return x, nil
+		}
+		ok, why, err := cf.HasRole(x.Paths, x.Spec)
+		if err != nil {
+			return nil, fmt.Errorf("dataset %s: %w", d.Name, err)
+		}
+		if !ok {
+			p.Notes = append(p.Notes, fmt.Sprintf("%s is not in the files of inputs.all, so the run goes without it (%s)", role, why))
+			return nil, nil
+		}
+		return x, nil
+	}
+	if p.T700, err = fromAll(cf.RoleAirTemp); err != nil {
+		return p, err
+	}
+	if p.Cloud, err = fromAll(d.Cloud); err != nil {
+		return p, err
+	}
 	if d.Surface.TemperatureRole == cf.RoleSurfaceAir {
 		if p.SurfaceAir = opt(cf.RoleSurfaceAir); p.SurfaceAir == nil {
 			return p, fmt.Errorf("dataset %s: the metrics use surface air temperature but no surface_air_temp input is given", d.Name)
