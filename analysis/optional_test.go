@@ -227,7 +227,7 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 }
 
 // allInOneCDL is an invented file (synthetic fixture) holding SST and
-// temperature on levels but no cloud: read through inputs.all.
+// temperature on levels but no cloud: read through files.any.
 const allInOneCDL = `netcdf all_in_one {
 dimensions: time = 2 ; plev = 2 ; lat = 2 ; lon = 3 ;
 variables:
@@ -244,13 +244,13 @@ data:
 }
 `
 
-// A study that reads its roles from inputs.all runs without the optional
+// A study that reads its roles from files.any runs without the optional
 // roles those files do not hold, and says so.
 func TestInputsAllWithoutCloud(t *testing.T) {
 	dir := t.TempDir()
 	nc := testutil.CDL(t, allInOneCDL, filepath.Join(dir, "all.nc"))
 	p := filepath.Join(dir, "study.yaml")
-	study := "datasets:\n  - name: all-in-one\n    inputs:\n      all: \"" + nc + "\"\n    ocean: {mask: sst}\noutput: {dir: \"" + dir + "\", plots: false}\n"
+	study := "datasets:\n  all-in-one:\n    files:\n      any: \"" + nc + "\"\n    ocean: {mask: sst}\noutput: {dir: \"" + dir + "\", plots: false}\n"
 	if err := os.WriteFile(p, []byte(study), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -265,7 +265,7 @@ func TestInputsAllWithoutCloud(t *testing.T) {
 	if q := reps[0].Result.Acc.L.Quantities; !slices.Equal(q, []string{"sst", "t700", "lts", "eis"}) {
 		t.Errorf("quantities %v", q)
 	}
-	if n := strings.Join(reps[0].Result.Notes, "\n"); !strings.Contains(n, "low_cloud is not in the files of inputs.all, so the run goes without it") {
+	if n := strings.Join(reps[0].Result.Notes, "\n"); !strings.Contains(n, "low_cloud is not in the files of files.any, so the run goes without it") {
 		t.Errorf("notes:\n%s", n)
 	}
 }

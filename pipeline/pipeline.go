@@ -69,7 +69,7 @@ type Plan struct {
 	T700  *Input
 	Cloud *Input
 	// Notes are what planning decided, in plain words (e.g. an optional
-	// role absent from inputs.all); Run puts them first in Result.Notes.
+	// role absent from files.any); Run puts them first in Result.Notes.
 	Notes []string
 	// Optional inputs (nil when absent).
 	SurfaceAir      *Input // surface air temperature, when the metrics conventions uses it

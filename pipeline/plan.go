@@ -42,8 +42,8 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	}
 	// T700 and cloud are optional (SST is the minimum); which quantities
 	// the run has follows from which of them are present. A role read from
-	// inputs.all (not named in the study) is absent when those files do
-	// not hold it.
+	// files.any (not named in the study) is absent when those files do not
+	// hold it.
 	fromAll := func(role cf.Role) (*Input, error) {
 		x := opt(role)
 		if x == nil || len(d.Patterns[string(role)]) > 0 {
@@ -54,7 +54,7 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 			return nil, fmt.Errorf("dataset %s: %w", d.Name, err)
 		}
 		if !ok {
-			p.Notes = append(p.Notes, fmt.Sprintf("%s is not in the files of inputs.all, so the run goes without it (%s)", role, why))
+			p.Notes = append(p.Notes, fmt.Sprintf("%s is not in the files of files.any, so the run goes without it (%s)", role, why))
 			return nil, nil
 		}
 		return x, nil
