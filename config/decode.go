@@ -591,7 +591,15 @@ func (d *decoder) dataset(path, name string, m map[string]any, r *Study) Dataset
 		}
 	}
 
-	d.timeSel(join(path, "time"), sub(m, "time"), &ds.Time, has)
+	var timed []cf.Role
+	if !ds.hasPattern(allKey) {
+		for _, r := range cf.Roles() {
+			if ds.hasPattern(r) && r != cf.RoleLandFraction && r != cf.RoleSeaFraction {
+				timed = append(timed, r)
+			}
+		}
+	}
+	d.timeSel(join(path, "time"), sub(m, "time"), &ds.Time, has, timed)
 	d.ocean(join(path, "ocean"), sub(m, "ocean"), &ds, has, explicit)
 
 	// sea ice
@@ -655,7 +663,10 @@ func sortedKeys(m map[string]any) []string {
 	return out
 }
 
-func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection, has func(cf.Role) bool) {
+// timeSel decodes the time table; timed are the roles with files of
+// their own that are read with a time axis (all of them unknown when
+// files.any is used: then timed is nil).
+func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection, has func(cf.Role) bool, timed []cf.Role) {
 	t.Units = d.str(m, path, "units", "")
 	t.Calendar = d.str(m, path, "calendar", "")
 	t.Climatology = d.boolean(m, path, "climatology", false)
@@ -694,7 +705,17 @@ func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection, has f
 		}
 		t.ByRole[role] = decl
 	}
-	climatology := t.Climatology || t.For(cf.RoleSST).Climatology
+	// start and end select years of the record the run follows; when every
+	// timed role is a declared climatology there are none
+	climatology := t.Climatology
+	if len(t.ByRole) > 0 && len(timed) > 0 {
+		climatology = true
+		for _, r := range timed {
+			if !t.For(r).Climatology {
+				climatology = false
+			}
+		}
+	}
 	for _, k := range []string{"start", "end"} {
 		s := d.str(m, path, k, "")
 		if s == "" {
@@ -706,7 +727,7 @@ func (d *decoder) timeSel(path string, m map[string]any, t *TimeSelection, has f
 			continue
 		}
 		if climatology {
-			d.fail(join(path, k), "a 12-month climatology has no years, so %s cannot be used when the sst time axis is declared a climatology (climatology: true)", k)
+			d.fail(join(path, k), "a 12-month climatology has no years, so %s cannot be used when every time axis is declared a climatology (climatology: true)", k)
 			continue
 		}
 		if k == "start" {

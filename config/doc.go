@@ -136,8 +136,10 @@
 //     land_fraction and sea_fraction are read as fixed fields, without
 //     time. start and end (inclusive year-months "YYYY-MM") and months (a
 //     list of 1–12) or season (DJF, MAM, JJA or SON; not both) select the
-//     steps used, by the sst time axis: start and end cannot be used when
-//     sst is declared a climatology. [TimeSelection.For] gives a role's
+//     steps of the record the run follows (the sst's, or, when sst is a
+//     12-month climatology beside a dated record of another role, that
+//     record's); start and end cannot be used when every time axis is
+//     declared a climatology. [TimeSelection.For] gives a role's
 //     declaration; [Dataset.Selects] applies the selection.
 //   - ocean: mask is sst (ocean where the SST is present), fraction or
 //     categorical; the default is fraction when a land_fraction or

@@ -370,8 +370,9 @@ func TestSelects(t *testing.T) {
 		{`{season: DJF, start: "1980-12"}`, [][2]int{{1980, 12}, {1981, 1}, {2050, 2}}, [][2]int{{1980, 1}, {1980, 11}, {1981, 3}}},
 		{`{months: [7], end: "2000-07"}`, [][2]int{{2000, 7}, {1, 7}}, [][2]int{{2001, 7}, {2000, 6}}},
 		{`{climatology: true, season: JJA}`, [][2]int{{1, 6}, {0, 8}, {9999, 7}}, [][2]int{{1, 5}, {1, 9}}},
-		// sst declared a climatology on its own: years are ignored too
-		{`{sst: {climatology: true}, season: JJA}`, [][2]int{{1, 6}, {0, 8}, {9999, 7}}, [][2]int{{1, 5}, {1, 9}}},
+		// sst declared a climatology beside dated records: start and end
+		// select the years of the record the run follows
+		{`{sst: {climatology: true}, season: JJA, start: "1990-01"}`, [][2]int{{1990, 6}, {2000, 8}}, [][2]int{{1989, 7}, {1990, 5}}},
 		// another role's climatology does not make the record one
 		{`{low_cloud: {climatology: true}, end: "2000-07"}`, [][2]int{{2000, 7}, {1, 7}}, [][2]int{{2001, 7}}},
 	}

@@ -16,7 +16,8 @@ import (
 // cf.Inspect reported on: each recognised role with its files and
 // variable, units overrides where inspect found values that contradict
 // their units (commented out, to be confirmed), a 12-month climatology
-// declaration where a 12-step time axis has non-CF units, a categorical
+// declaration where a 12-step time axis has non-CF units (for the dataset
+// when every time axis is a climatology, else for that role), a categorical
 // ocean mask where inspect saw one, the surface and sea-ice settings the
 // inputs allow, and every analysis default written out. Lines that need a
 // decision are marked CHECK; a missing SST (the one required role) is
@@ -437,16 +438,35 @@ func (s *starter) timeSection(w func(string, ...any)) {
 		w("      # its 12 steps are declared a 12-month climatology, January first")
 		w("      climatology: true")
 	case len(bad) > 0:
-		w("      # CHECK: inspect could not decode the time axis of %s:", describeFiles(bad))
+		// A 12-step axis that cannot be dated, beside dated records, is
+		// declared a climatology for its role alone: the run aligns it with
+		// the dated record by calendar month. Other axes get a hint.
+		declared := map[cf.Role]bool{}
+		var rest []starterField
 		for _, f := range bad {
-			p, _ := timeProblem(f.vr)
-			w("      #   %s", oneLine(p))
+			if f.steps != 12 {
+				rest = append(rest, f)
+				continue
+			}
+			if !declared[f.vr.Role] {
+				declared[f.vr.Role] = true
+				w("      # CHECK: inspect could not decode the time axis of %s; its 12 steps are", f.file)
+				w("      # declared a 12-month climatology, January first, aligned with the dated records by calendar month")
+				w("      %s: {climatology: true}", f.vr.Role)
+			}
 		}
-		w("      # declare how to read it: for that role only, e.g.")
-		r := bad[0].vr.Role
-		w("      # %s: {units: \"days since 1979-01-01\", calendar: standard}", r)
-		w("      # or, for 12 monthly means without years:  %s: {climatology: true}", r)
-		w("      # (units, calendar and climatology written here directly apply to every role)")
+		if len(rest) > 0 {
+			w("      # CHECK: inspect could not decode the time axis of %s:", describeFiles(rest))
+			for _, f := range rest {
+				p, _ := timeProblem(f.vr)
+				w("      #   %s", oneLine(p))
+			}
+			w("      # declare how to read it: for that role only, e.g.")
+			r := rest[0].vr.Role
+			w("      # %s: {units: \"days since 1979-01-01\", calendar: standard}", r)
+			w("      # or, for 12 monthly means without years:  %s: {climatology: true}", r)
+			w("      # (units, calendar and climatology written here directly apply to every role)")
+		}
 		w("      climatology: false")
 	default:
 		w("      climatology: false")

@@ -105,13 +105,19 @@ func TestStarter(t *testing.T) {
 					t.Error("climatology declared for a 480-step axis")
 				}
 			}},
-		{"climatology next to a monthly record is not declared", func(t *testing.T) []*cf.FileReport {
+		{"climatology next to a monthly record is declared for its role", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{
 				report("sst.nc", 12, field(cf.RoleSST, "sst", byStd, "", "", monthProblem)),
 				report("ta.nc", 480, field(cf.RoleAirTemp, "ta", byStd, grid2, monthly)),
 				report("cll.nc", 480, field(cf.RoleLowCloud, "cll", byStd, grid2, monthly)),
 			}
-		}, true, []string{"# or, for 12 monthly means without years:  sst: {climatology: true}"}, []string{"\n      climatology: true"}, nil},
+		}, true, []string{"\n      sst: {climatology: true}", "aligned with the dated records by calendar month", `# start: "1979-01"`}, []string{"\n      climatology: true", "# declare how to read it"},
+			func(t *testing.T, r *config.Study) {
+				tm := r.Datasets[0].Time
+				if tm.Climatology || !tm.For(cf.RoleSST).Climatology || tm.For(cf.RoleAirTemp).Climatology {
+					t.Errorf("time %+v", tm)
+				}
+			}},
 		{"missing roles", func(t *testing.T) []*cf.FileReport {
 			return []*cf.FileReport{report("sst.nc", 480, field(cf.RoleSST, "tos", byStd, grid2, monthly))}
 		}, true, []string{"# WITHOUT air_temperature: no file gave 700 hPa temperature, so the run will have no LTS, EIS", "# WITHOUT cloud: no file gave low_cloud or cloud, so the run will have no cloud statistics", "relationship analysis\n# will not run"}, []string{"# MISSING"},

@@ -138,7 +138,8 @@ type TimeSelection struct {
 	// set is the dataset's. [TimeSelection.For] gives any role's.
 	ByRole map[cf.Role]TimeDecl
 	// Start and End are the first and last year-month used (inclusive);
-	// nil means unbounded. Always nil for a climatology.
+	// nil means unbounded. Always nil when every time axis is declared a
+	// climatology.
 	Start, End *calendar.YearMonth
 	// Months are the calendar months used (1–12, in the order written);
 	// empty means every month. Season is the season name when the months
@@ -171,8 +172,10 @@ func (t TimeSelection) For(r cf.Role) TimeDecl {
 }
 
 // Selects reports whether the time step of the given year and month
-// (1–12) is part of the analysis. For a climatology (the time declaration
-// of sst) the year is ignored.
+// (1–12) is part of the analysis. For a climatology (Climatology) the year
+// is ignored. The run asks it of the record it follows: the SST's, or, when
+// SST is a 12-month climatology beside a dated record of another role,
+// that record's.
 func (t TimeSelection) Selects(year, month int) bool {
 	if month < 1 || month > 12 {
 		return false
@@ -189,7 +192,7 @@ func (t TimeSelection) Selects(year, month int) bool {
 			return false
 		}
 	}
-	if t.For(cf.RoleSST).Climatology {
+	if t.Climatology {
 		return true
 	}
 	ym := calendar.YearMonth{Year: year, Month: month}

@@ -111,7 +111,7 @@ func TestValidation(t *testing.T) {
 		{"role time calendar", "    time:\n      low_cloud:\n        calendar: gregorain\n", "datasets.base.time.low_cloud.calendar", 9, "unknown calendar"},
 		{"role time typo", "    time:\n      sst: {unit: days since 2000-01-01}\n", "datasets.base.time.sst.unit", 8, `did you mean "units"?`},
 		{"role in time misspelt", "    time:\n      low_clod: {calendar: noleap}\n", "datasets.base.time.low_clod", 8, `did you mean "low_cloud"?`},
-		{"role climatology with start", "    time:\n      sst: {climatology: true}\n      start: \"1979-01\"\n", "datasets.base.time.start", 9, "climatology"},
+		{"every role a climatology, with start", "    time:\n      sst: {climatology: true}\n      air_temperature: {climatology: true}\n      low_cloud: {climatology: true}\n      start: \"1979-01\"\n", "datasets.base.time.start", 11, "every time axis is declared a climatology"},
 		{"role climatology with units", "    time:\n      sst: {climatology: true, units: days since 2000-01-01}\n", "datasets.base.time.sst.units", 8, "climatology"},
 		{"role units with the dataset's calendar", "    time:\n      calendar: standard\n      sst: {units: days since 2000-02-30}\n", "datasets.base.time.sst.units", 9, "dataset's"},
 
