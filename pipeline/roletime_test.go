@@ -88,6 +88,7 @@ func TestPerRoleTime(t *testing.T) {
 		"cll_month0.nc": axisCDL("cll_month0", "cll", "low_type_cloud_area_fraction", "1", "Month", "", count(0, 12), nil, func(s int) float64 { return cloudOf(s + 1) }),
 		// CF axes, 2001
 		"ta_cf.nc":  axisCDL("ta_cf", "ta", "air_temperature", "K", "days since 2001-01-01", "standard", standardMidMonth, []float64{850, 700}, func(int) float64 { return 283 }),
+		"cll_cf.nc": axisCDL("cll_cf", "cll", "low_type_cloud_area_fraction", "1", "days since 2001-01-01", "standard", standardMidMonth, nil, func(s int) float64 { return cloudOf(s + 1) }),
 		"sst_cf.nc": axisCDL("sst_cf", "tos", "sea_surface_temperature", "K", "days since 2001-01-01", "standard", standardMidMonth, nil, func(s int) float64 { return sstOf(s + 1) }),
 		// a year-0 axis in the standard calendar, where year 0 does not
 		// exist (CF-1.10 §4.4.1)
@@ -106,7 +107,7 @@ func TestPerRoleTime(t *testing.T) {
 	const study = `datasets:
   mixed:
     files: {FILES}
-    time: {TIME}
+    time: TIME
 analysis:
   cloud: CLOUD
 output: {plots: false}
@@ -128,13 +129,18 @@ output: {plots: false}
 		{"year-0 axis declared a climatology beside a CF axis",
 			"{sst: sst_cf.nc, cloud: clt_year0.nc, air_temperature: ta_cf.nc}",
 			`{cloud: {climatology: true}}`, "cloud", "", "cloud (clt) is a 12-month climatology"},
+		// the Month SST axis declared a 12-month climatology on its own:
+		// the run follows the dated records, from the start the study sets
+		{"Month SST axis a climatology beside dated records",
+			"{sst: sst_month1.nc, low_cloud: cll_cf.nc, air_temperature: ta_cf.nc}",
+			`{sst: {climatology: true}, start: "2001-03"}`, "low_cloud", "", "sst (tos) is a 12-month climatology and air_temperature (ta) a dated record"},
 		{"year-0 axis undeclared",
 			"{sst: sst_cf.nc, cloud: clt_year0.nc}",
 			`{}`, "cloud", "year 0 does not exist in the standard calendar", ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			src := strings.NewReplacer("{FILES}", c.files, "{TIME}", c.time, "CLOUD", c.cloud).Replace(study)
+			src := strings.NewReplacer("{FILES}", c.files, "TIME", c.time, "CLOUD", c.cloud).Replace(study)
 			r, err := config.Parse([]byte(src), "yaml", dir, config.LoadOptions{LookupEnv: config.NoEnvironment})
 			if err != nil {
 				t.Fatalf("%v\n%s", err, src)
@@ -154,12 +160,15 @@ output: {plots: false}
 			if err != nil {
 				t.Fatal(err)
 			}
-			steps, last := 12, "2001-12"
-			if c.note == "shifted" {
+			steps, first, last := 12, "2001-01", "2001-12"
+			switch {
+			case c.note == "shifted":
 				steps, last = 11, "2001-11" // the cloud axis ends a month early
+			case strings.Contains(c.time, "start"):
+				steps, first = 10, "2001-03"
 			}
-			if len(res.Labels) != steps || res.Labels[0] != "2001-01" || res.Labels[steps-1] != last {
-				t.Fatalf("labels %v, want 2001-01 … %s", res.Labels, last)
+			if len(res.Labels) != steps || res.Labels[0] != first || res.Labels[steps-1] != last {
+				t.Fatalf("labels %v, want %s … %s", res.Labels, first, last)
 			}
 			qc := slices.Index(res.Acc.L.Quantities, c.cloud)
 			if qc < 0 {
@@ -175,7 +184,10 @@ output: {plots: false}
 				t.Errorf("notes lack %q:\n%s", c.note, strings.Join(res.Notes, "\n"))
 			}
 			for k, sp := range res.Acc.Series {
-				month := k + 1
+				month := k + 1 + 12 - steps
+				if c.note == "shifted" {
+					month = k + 1
+				}
 				if math.Abs(sp.TropMean-sstOf(month)) > 1e-4 {
 					t.Errorf("step %s: tropical-mean SST %v, want %v", sp.Label, sp.TropMean, sstOf(month))
 				}
