@@ -13,6 +13,7 @@ import (
 // classic files end exactly where their last variable's data ends or
 // within its 4-byte padding.
 func TestClassicSizeOfCompleteFiles(t *testing.T) {
+	t.Parallel()
 	var files []string
 	fixtures := map[string]bool{}
 	for _, name := range []string{"grid_ns_0360", "grid_gauss_extra", "packing", "levels", "calendars", "coords", "month_units", "units"} {
@@ -57,6 +58,7 @@ func TestClassicSizeOfCompleteFiles(t *testing.T) {
 // Cut anywhere inside its data, a classic file is refused by Open and
 // Inspect, instead of being read with zeros for the missing bytes.
 func TestClassicTruncationDetected(t *testing.T) {
+	t.Parallel()
 	for _, k := range ncgenKinds[:3] {
 		src := fixture(t, "grid_ns_0360", k)
 		data, err := os.ReadFile(src)

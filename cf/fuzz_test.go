@@ -83,6 +83,7 @@ func FuzzLayout(f *testing.F) {
 // A damaged or truncated file gives an error (or an unusable report),
 // never a panic: each fixture, in every format, cut at several sizes.
 func TestTruncatedFiles(t *testing.T) {
+	t.Parallel()
 	for _, name := range []string{"grid_ns_0360", "packing", "month_units"} {
 		for _, kind := range ncgenKinds {
 			src := fixture(t, name, kind)

@@ -24,6 +24,7 @@ import (
 var nugCase = []float64{nan, nan, -26.85, 273.15, 285.49, 573.15, nan, nan}
 
 func TestPackingFromFile(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		v    string
 		role Role

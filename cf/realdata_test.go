@@ -97,6 +97,7 @@ func compareWithNcdump(t *testing.T, path string, f *Field, latName, lonName str
 }
 
 func TestRealSSTClimatology(t *testing.T) {
+	t.Parallel()
 	path := testutil.RealData(t, "cdf/sstdata_netcdf.nc")
 	rep := Inspect(path)
 	if rep.Usable {
@@ -130,6 +131,7 @@ func TestRealSSTClimatology(t *testing.T) {
 }
 
 func TestRealLandSeaMask(t *testing.T) {
+	t.Parallel()
 	path := testutil.RealData(t, "cdf/landsea.nc")
 	rep := Inspect(path)
 	if len(rep.Fields) != 1 || rep.Fields[0].Role != RoleLandFraction || rep.Fields[0].Var != "LSMASK" {
@@ -147,6 +149,7 @@ func TestRealLandSeaMask(t *testing.T) {
 }
 
 func TestRealPressureLevels(t *testing.T) {
+	t.Parallel()
 	path := testutil.RealData(t, "nug/rectilinear_grid_3D.nc")
 	rep := Inspect(path)
 	if !rep.Usable || len(rep.Fields) != 1 || rep.Fields[0].Role != RoleAirTemp || rep.Fields[0].Var != "t" {
@@ -206,6 +209,7 @@ func TestRealLandFractionPercent(t *testing.T) {
 }
 
 func TestRealNetCDF4Strings(t *testing.T) {
+	t.Parallel()
 	path := testutil.RealData(t, "cdf/nc4uvt.nc")
 	rep := Inspect(path)
 	if rep.Format != "NetCDF-4" || len(rep.Fields) != 1 || rep.Fields[0].Var != "T" || rep.Fields[0].Role != RoleAirTemp {
@@ -262,6 +266,7 @@ func TestRealRotatedAndCurvilinear(t *testing.T) {
 // Every file of the real data folders gives a report, without panicking;
 // files that are not netCDF give an unusable report that says so.
 func TestRealEveryFileInspects(t *testing.T) {
+	t.Parallel()
 	dir := filepath.Dir(testutil.RealData(t, "cdf/ocean.nc"))
 	var files []string
 	for _, sub := range []string{"cdf", "nug"} {

@@ -143,6 +143,7 @@ print(json.dumps(out))
 `
 
 func TestDecodeAgainstXarrayAndNetCDF4(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "xarray", "netCDF4", "numpy")
 	path := filepath.Join(t.TempDir(), "rt.nc")
 	writeRoundTrip(t, path)

@@ -108,6 +108,7 @@ data:
 // is a leap year) day 3 is 1 March, days 6–8 are 4–6 March and day 14 is 12
 // March; in noleap from 2001-02-27, day 2 is 1 March and day 10 is 9 March.
 func TestTimeAxisKinds(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name, units, cal string
 		times            []float64

@@ -45,6 +45,7 @@ func containsAll(t *testing.T, tool, text string, want []string) {
 // deflate level, shuffle) the writer promises; `ncdump -v` shows the
 // missing values as "_", netCDF's notation for the fill value.
 func TestNcdumpDeclarations(t *testing.T) {
+	t.Parallel()
 	ncdump := testutil.Tool(t, "ncdump")
 	dir := t.TempDir()
 	maps := filepath.Join(dir, "maps.nc")
@@ -154,6 +155,7 @@ func python(t *testing.T, py, script string, v any, args ...string) {
 // ordinary calendar), masks the fill values as NaN, and finds the scalar
 // coordinate and the bounds by their attributes.
 func TestXarrayReadsMaps(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "xarray", "netCDF4", "cftime")
 	path := tempPath(t, "maps.nc")
 	writeMaps(t, path, "standard")
@@ -219,6 +221,7 @@ func TestXarrayReadsMaps(t *testing.T) {
 // 2000-03-01; 360_day has 30 + 30, so 2000-02-30. Non-standard calendars
 // decode to cftime objects.
 func TestXarrayCalendars(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "xarray", "netCDF4", "cftime")
 	dir := t.TempDir()
 	cals := []struct{ cal, typ, date string }{
@@ -252,6 +255,7 @@ func TestXarrayCalendars(t *testing.T) {
 // TestXarrayReadsTable: the categorical axis keeps its flag_values and
 // flag_meanings (CF-1.10 §3.5), the empty bin reads as NaN.
 func TestXarrayReadsTable(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "xarray", "netCDF4")
 	path := tempPath(t, "table.nc")
 	writeTable(t, path)
@@ -292,6 +296,7 @@ func TestXarrayReadsTable(t *testing.T) {
 // cell edges as great-circle arcs, which differ from the parallels by a
 // negligible area at that width (at 90° width they would not).
 func TestCdoReads(t *testing.T) {
+	t.Parallel()
 	cdo := testutil.Tool(t, "cdo")
 	dir := t.TempDir()
 	path := filepath.Join(dir, "maps.nc")

@@ -34,6 +34,7 @@ func TestSolidAngleWorked(t *testing.T) {
 // the rounding of a plain sum of up to 10⁶ terms),
 // and a duplicated wrap column adds nothing.
 func TestAreasSumToSphere(t *testing.T) {
+	t.Parallel()
 	m := must(t)
 	r1 := m(grid.GlobalRegular(1, 1, 0))
 	grids := map[string]*grid.Grid{

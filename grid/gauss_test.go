@@ -74,6 +74,7 @@ func TestGaussianT42(t *testing.T) {
 // prints for its built-in grids (cdo griddes): t42grid (64), n48 (96), n80
 // (160).
 func TestGaussianAgainstCDO(t *testing.T) {
+	t.Parallel()
 	testutil.Tool(t, "cdo")
 	for _, c := range []struct {
 		name string
@@ -146,6 +147,7 @@ func floats(t *testing.T, line string) []float64 {
 // poles for n = 1280 (found against 40-digit arithmetic, see TestGaussianHighPrecision),
 // so they are compared to 1e-7.
 func TestGaussianAgainstNumPy(t *testing.T) {
+	t.Parallel()
 	for _, n := range []int{64, 96, 320, 1280} {
 		out := python(t, "import numpy\nx, w = numpy.polynomial.legendre.leggauss("+strconv.Itoa(n)+")\n"+
 			"print(' '.join(repr(float(v)) for v in x))\nprint(' '.join(repr(float(v)) for v in w))\n", "numpy")
@@ -173,6 +175,7 @@ func TestGaussianAgainstNumPy(t *testing.T) {
 // carried out in 40 digits, and its weight 2/((1 − x²) P'_n(x)²) evaluated
 // there. Only +, −, × and ÷ are needed, all correctly rounded in decimal.
 func TestGaussianHighPrecision(t *testing.T) {
+	t.Parallel()
 	for _, n := range []int{64, 1280} {
 		lat, w := grid.GaussianLatitudes(n)
 		idx := []int{n - 1, n - 2, n - 3, n / 2, n/2 + 1}

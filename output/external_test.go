@@ -84,6 +84,7 @@ func xarrayRead(t *testing.T, dir string) map[string]any {
 }
 
 func TestXarrayReadsOutputs(t *testing.T) {
+	t.Parallel()
 	for _, bounded := range []bool{true, false} {
 		t.Run(map[bool]string{true: "with time bounds", false: "inferred bounds"}[bounded], func(t *testing.T) {
 			f := newFixture(t)
@@ -150,6 +151,7 @@ func fmtList(v any) string {
 // it. In the noleap calendar 2001-01-01 is 31 × 365 = 11315 days after
 // 1970-01-01 (CF-1.10 §4.4.1: every year has 365 days).
 func TestXarrayNoLeap(t *testing.T) {
+	t.Parallel()
 	f := newFixture(t)
 	f.meta.Calendar = "noleap"
 	for i := range f.meta.TimeValues {
@@ -213,6 +215,7 @@ func cdoValues(t *testing.T, out string) []float64 {
 // columns, and the band regime means, which are Σ w n m / Σ w n for the
 // per-column means m and counts n of maps.nc.
 func TestCDOWeightedMeans(t *testing.T) {
+	t.Parallel()
 	cdo := testutil.Tool(t, "cdo")
 	f := newFineFixture(t)
 	dir := filepath.Join(t.TempDir(), "out")
@@ -279,6 +282,7 @@ print(json.dumps(out))
 // tropical year 3.15569259747e7 s and month a twelfth of it
 // (udunits2-common.xml of UDUNITS-2.2.28).
 func TestUDUNITS(t *testing.T) {
+	t.Parallel()
 	testutil.Tool(t, "cdo")
 	py := testutil.Python(t, "ctypes")
 	if _, err := os.Stat("/usr/share/xml/udunits/udunits2.xml"); err != nil {

@@ -59,6 +59,7 @@ func remapOurs(t *testing.T, src, dst *grid.Grid, opt regrid.Options, data []flo
 }
 
 func TestAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	r2 := must(t)(grid.GlobalRegular(2, 2, 1))
 	r1 := must(t)(grid.GlobalRegular(1, 1, 0))
@@ -151,6 +152,7 @@ func skipPolarRows(t *testing.T, src, dst *grid.Grid, got, ref []float64) {
 // (0…360, 361 columns) must remap exactly like the same data without the
 // duplicate, which CDO remaps.
 func TestWrapColumnAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	r1 := must(t)(grid.GlobalRegular(1, 1, 0))
 	dup := must(t)(grid.New(r1.Lat, steps(0, 1, 361), nil, nil))
@@ -204,6 +206,7 @@ func holes(g *grid.Grid, data []float64) []float64 {
 // its four corners is missing. Ours match, with one documented difference,
 // checked in onLine.
 func TestMissingAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	r1 := must(t)(grid.GlobalRegular(1, 1, 0))
 	data := holes(r1, field(r1))
@@ -259,6 +262,7 @@ func landMask(g *grid.Grid) []bool {
 // the 0/1 field), thresholds it at 0.5 (CDO gec,0.5) and applies it to a 2°
 // field (CDO expr with a conditional).
 func TestMaskAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	r1 := must(t)(grid.GlobalRegular(1, 1, 0))
 	mask := landMask(r1)
@@ -343,6 +347,7 @@ func TestMaskAgainstCDO(t *testing.T) {
 // Gaussian): src_grid_area and dst_grid_area (steradians) and every link of
 // remap_matrix.
 func TestCellAreasAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	r2 := must(t)(grid.GlobalRegular(2, 2, 0)) // CDO's r180x90
 	dir := t.TempDir()

@@ -40,6 +40,7 @@ func realSST(t *testing.T) (full *grid.Grid, fullData []float64, plain *grid.Gri
 }
 
 func TestRealSSTAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	full, fullData, plain, plainData := realSST(t)
 	dir := t.TempDir()
@@ -69,6 +70,7 @@ func TestRealSSTAgainstCDO(t *testing.T) {
 // TestRealMaskAgainstCDO remaps the real 1° ocean mask to the SST's 2° grid,
 // thresholds it at 0.5 and applies it to the SST.
 func TestRealMaskAgainstCDO(t *testing.T) {
+	t.Parallel()
 	needCDO(t)
 	_, _, sstGrid, sst := realSST(t)
 	path := testutil.RealData(t, "cdf/landsea.nc")

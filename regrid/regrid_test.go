@@ -61,6 +61,7 @@ func integral(g *grid.Grid, f []float64) float64 {
 // is unchanged by conservative remapping (to 1e-10 relative), for every pair
 // of test grids.
 func TestConservation(t *testing.T) {
+	t.Parallel()
 	grids := testGrids(t)
 	names := slices.Sorted(func(yield func(string) bool) {
 		for k := range grids {
@@ -85,6 +86,7 @@ func TestConservation(t *testing.T) {
 // TestConstantAndIdentity: a constant stays constant (both methods), and a
 // field remapped to its own grid is unchanged.
 func TestConstantAndIdentity(t *testing.T) {
+	t.Parallel()
 	grids := testGrids(t)
 	for name, g := range grids {
 		for _, m := range []regrid.Method{regrid.Conservative, regrid.Bilinear} {

@@ -162,6 +162,7 @@ func TestSeasons(t *testing.T) {
 // (95 % width / 3.92) is within 20 % of the actual spread of the slopes
 // across records (the spread itself is known to about 7 %).
 func TestRegressionBootstrap(t *testing.T) {
+	t.Parallel()
 	w := synthWorld{cells: 16, steps: 240, a: 0.2, b: 0.05, sigma: 0.05, phiX: 0.6, phiE: 0.5, sdX: 1.5, meanX: 5, regime: regimes.Subsidence}
 	run := func(rng *rand.Rand, seed uint64) Regression {
 		cfg := Defaults()

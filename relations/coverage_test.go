@@ -32,6 +32,7 @@ func findReg(t *testing.T, res *Results, dom, season string, g regimes.Regime, r
 // The correlation interval (Fisher z at N_eff of eq. 31 with the
 // predictor and response series) is checked the same way.
 func TestCICoverage(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("coverage study skipped in -short mode")
 	}

@@ -22,6 +22,7 @@ import (
 // the truth record's own (unweighted) least-squares fit, and cover the
 // planted slope (Physics.CloudSlope) with its confidence interval.
 func TestEndToEndDemoWorld(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("end-to-end run skipped in -short mode")
 	}

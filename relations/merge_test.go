@@ -132,6 +132,7 @@ func closeEqual(path string, a, b reflect.Value, tol float64, errs *[]string) {
 // bootstrap and yearly estimates, omega composites), in both modes; the
 // anomaly-mode climatology is itself built in pieces and merged.
 func TestMergeEqualsSinglePass(t *testing.T) {
+	t.Parallel()
 	steps := richSteps(66, 5)
 	l := richLayout()
 	l.Regions = richConfig().Regions // so the climatology covers them

@@ -50,6 +50,7 @@ print(json.dumps({"simple": b1, "simple_se": se1, "partial": b2, "partial_se": s
 // weighted least squares on the same pooled samples (area weights of
 // cells at different latitudes), to 1e-9.
 func TestRegressionAgainstNumpy(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "numpy")
 	l := accumulate.Layout{NLat: 3, NLon: 6, Lat: []float64{-20, 0, 20}, Lon: []float64{-150, -90, -30, 30, 90, 150},
 		Quantities: []string{"sst", "lts", "eis", "cloud"}}

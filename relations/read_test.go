@@ -18,6 +18,7 @@ func same(a, b float64) bool {
 // checks, the regressions with their intervals and the partial
 // regressions (synthetic data from richResults).
 func TestReadResultsRoundTrip(t *testing.T) {
+	t.Parallel()
 	res := richResults(t)
 	dir := t.TempDir()
 	if _, err := Write(dir, res, testMeta, WriteOptions{}); err != nil {

@@ -87,6 +87,7 @@ func accOver(t testing.TB, cfg Config, clim *Climatology, steps []*accumulate.St
 // both modes. The decoded merge encodes and decodes again unchanged, so a
 // merged run can itself be merged.
 func TestEncodedHalvesMergeToTheSinglePass(t *testing.T) {
+	t.Parallel()
 	steps := richSteps(66, 5)
 	for _, mode := range []Mode{Climatological, Anomaly} {
 		t.Run(mode.String(), func(t *testing.T) {

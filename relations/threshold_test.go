@@ -43,6 +43,7 @@ print(json.dumps({"b0": float(r.x[0]), "b1": float(r.x[1]), "ok": bool(r.success
 `
 
 func TestLogisticAgainstScipy(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "numpy", "scipy.optimize")
 	rng := rand.New(rand.NewPCG(21, 22))
 	var x, y, n []float64
@@ -201,6 +202,7 @@ func TestPlantedThreshold(t *testing.T) {
 // the factor 1 − L/T (here 0.9), so about 5 misses are expected; a CI that
 // is too wide gives none, one that is much too narrow many.
 func TestThresholdCoverage(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("coverage study skipped in -short mode")
 	}

@@ -39,6 +39,7 @@ var testMeta = Meta{Dataset: "synthetic-test", Title: "relations test (invented 
 	Command: []string{"lidscope", "test"}, Created: time.Date(2026, 1, 2, 3, 4, 5, 0, time.UTC)}
 
 func TestWriteFilesAndContents(t *testing.T) {
+	t.Parallel()
 	res := richResults(t)
 	dir := filepath.Join(t.TempDir(), "out")
 	files, err := Write(dir, res, testMeta, WriteOptions{})
@@ -197,6 +198,7 @@ func TestWriteAtomicity(t *testing.T) {
 // relationships.nc, decodes the fill values and sees the bins and
 // categorical axes; ncdump -h (netcdf-bin) reads the header.
 func TestWriteReadByXarray(t *testing.T) {
+	t.Parallel()
 	py := testutil.Python(t, "numpy", "xarray", "netCDF4")
 	res := richResults(t)
 	dir := t.TempDir()

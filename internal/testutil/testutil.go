@@ -22,6 +22,21 @@ import (
 	"testing"
 )
 
+// HDF5 (1.10 and later) locks the files it opens with flock, and its file
+// descriptors are not close-on-exec: a reference tool one test starts
+// inherits the descriptor, and so the lock, of a file another test is
+// writing at that moment, and when that test then hands the finished file
+// to its own reference reader, the open fails with "HDF error". Tests run
+// in parallel, so the test binaries that use this package, and the tools
+// they start, do without HDF5's file locking (set only when the variable
+// is unset). lidscope's own run-folder lock is a separate flock and is
+// unaffected.
+func init() {
+	if _, ok := os.LookupEnv("HDF5_USE_FILE_LOCKING"); !ok {
+		os.Setenv("HDF5_USE_FILE_LOCKING", "FALSE")
+	}
+}
+
 // DebianPython is Debian's interpreter, where the python3-* packages that
 // make deps installs live.
 const DebianPython = "/usr/bin/python3"
