@@ -36,7 +36,7 @@ func CheckRegular(path string) error {
 	case m&fs.ModeDevice != 0:
 		what = "a block device"
 	}
-	return fmt.Errorf("%s is %s, not a regular file; lidscope reads NetCDF files only (give the file itself, not a pipe, device or folder)", QuotePath(path), what)
+	return fmt.Errorf("%s is %s, not a regular file; give the file itself, not a pipe, a device or a folder", QuotePath(path), what)
 }
 
 // QuotePath returns p as it is when it is plain printable text, and

@@ -60,6 +60,9 @@ func Load(path string, opt LoadOptions) (*Study, error) {
 	if err != nil {
 		return nil, err
 	}
+	if err := cf.CheckRegular(path); err != nil { // a FIFO would block the read
+		return nil, fmt.Errorf("reading study: %w", err)
+	}
 	src, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("reading study: %w", err)

@@ -1,8 +1,12 @@
 package config
 
 import (
+	"os"
+	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 )
 
 // TestDatasetNames: a dataset name becomes a folder below the output
@@ -78,5 +82,30 @@ func TestMemoryBudgetKey(t *testing.T) {
 		if d.limits(sub(tree, "limits")); len(d.probs) == 0 {
 			t.Errorf("memory_budget %s accepted", v)
 		}
+	}
+}
+
+// TestStudyNotRegular: a study path that is a named pipe is refused by its
+// kind instead of blocking in the read.
+func TestStudyNotRegular(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "study.yaml")
+	if err := syscall.Mkfifo(p, 0o644); err != nil {
+		t.Skipf("cannot make a FIFO here: %v", err)
+	}
+	done := make(chan error, 1)
+	go func() {
+		_, err := Load(p, LoadOptions{LookupEnv: NoEnvironment})
+		done <- err
+	}()
+	select {
+	case err := <-done:
+		if err == nil || !strings.Contains(err.Error(), "a named pipe (FIFO), not a regular file") {
+			t.Errorf("Load of a FIFO: %v", err)
+		}
+	case <-time.After(30 * time.Second): // a guard against a hang, not a timing
+		if w, err := os.OpenFile(p, os.O_WRONLY|syscall.O_NONBLOCK, 0); err == nil {
+			w.Close()
+		}
+		t.Fatal("Load of a FIFO blocked")
 	}
 }
