@@ -156,3 +156,75 @@ func readSeries(t *testing.T, path, a, b string) [][2]float64 {
 	}
 	return out
 }
+
+// TestRealSSTWithT700Study runs a study with SST and 700 hPa temperature
+// and no cloud on real files (the STR SST climatology, declared a
+// climatology for its role only, and the one-month T42 temperature field
+// of nug/rectilinear_grid_3D.nc): the run has LTS and EIS, their maps, no
+// cloud and no relationship analysis, and its single step is the month
+// of the temperature field. LTS is checked per cell against θ700 − θs
+// (Klein & Hartmann 1993, J. Climate 6, p. 1588; θ = T (p0/p)^κ, p0 = 1000
+// hPa, κ = Rd/cpd, common practice) at the conventions' surface pressure.
+func TestRealSSTWithT700Study(t *testing.T) {
+	sst := testutil.RealData(t, "cdf/sstdata_netcdf.nc")
+	ta := testutil.RealData(t, "nug/rectilinear_grid_3D.nc")
+	dir := t.TempDir()
+	p := filepath.Join(dir, "study.yaml")
+	study := `datasets:
+  str-t42:
+    files:
+      sst: "` + sst + `"
+      air_temperature: "` + ta + `"
+    time:
+      sst: {climatology: true}
+    ocean: {mask: sst}
+analysis:
+  grid: {target: sst}
+output: {dir: "` + dir + `", plots: true}
+`
+	if err := os.WriteFile(p, []byte(study), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := config.Load(p, config.LoadOptions{LookupEnv: config.NoEnvironment})
+	if err != nil {
+		t.Fatal(err)
+	}
+	reps, err := Run(context.Background(), r, nil, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep := reps[0]
+	l := rep.Result.Acc.L
+	if !slices.Equal(l.Quantities, []string{"sst", "t700", "lts", "eis"}) || l.Cloud != "" {
+		t.Fatalf("quantities %v, cloud %q", l.Quantities, l.Cloud)
+	}
+	if len(rep.Result.Labels) != 1 || rep.Result.Labels[0] != "2001-01" || rep.Relations != nil {
+		t.Errorf("labels %v, relationships %v", rep.Result.Labels, rep.Relations != nil)
+	}
+	for _, f := range []string{"map_eis", "map_lts", "map_convective_fraction", "series"} {
+		if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, f+".png")); err != nil {
+			t.Errorf("figure %s: %v", f, err)
+		}
+	}
+	conv := r.Datasets[0].Metrics
+	c := conv.Constants
+	theta := func(T, p float64) float64 { return T * math.Pow(c.P0/p, c.Rd/c.Cpd) }
+	qi := func(n string) int { return slices.Index(l.Quantities, n) }
+	checked := 0
+	for i := range rep.Result.Acc.Cells.Valid {
+		for rg := range 3 {
+			lts := rep.Result.Acc.Cells.Values[qi("lts")][rg][i]
+			if lts.N == 0 {
+				continue
+			}
+			s, t7 := rep.Result.Acc.Cells.Values[qi("sst")][rg][i].Mean, rep.Result.Acc.Cells.Values[qi("t700")][rg][i].Mean
+			if want := theta(t7, 70000) - theta(s, conv.SurfacePressure); math.Abs(lts.Mean-want) > 2e-3 {
+				t.Fatalf("cell %d: LTS %.5f K, θ700 − θs %.5f K", i, lts.Mean, want)
+			}
+			checked++
+		}
+	}
+	if checked < 1000 {
+		t.Errorf("only %d cells checked", checked)
+	}
+}
