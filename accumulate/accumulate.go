@@ -64,6 +64,10 @@ type Step struct {
 	Rel      []float32
 	Regime   []regimes.Regime
 	Values   [][]float32 // per quantity, aligned with Layout.Quantities
+	// Classifier, when not nil, is the step's classifier: for some regime
+	// rules (regimes.RuleSSTPercentile) δ is found at each step. Nil means
+	// the run's fixed classifier.
+	Classifier *regimes.Classifier
 }
 
 // Cells are per-column statistics over time.

@@ -26,7 +26,6 @@ import (
 	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/pipeline"
-	"lidscope/regimes"
 	"lidscope/relations"
 	"lidscope/runfolder"
 )
@@ -352,8 +351,6 @@ func estimateOutputs(p pipeline.Plan) int64 {
 const timeUnits = "days since 1850-01-01 00:00:00"
 
 func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Options, start time.Time) (output.Meta, error) {
-	c := r.Analysis.Classifier()
-	b := r.Analysis.Band
 	m := output.Meta{
 		Dataset:            d.Name,
 		Title:              fmt.Sprintf("lidscope regime diagnostics: %s", d.Name),
@@ -362,11 +359,7 @@ func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Optio
 		Study:              r.Resolved(),
 		StudyHash:          r.Hash(),
 		MetricsConventions: d.Metrics.Text(),
-		RegimeDefinition:   RegimeText(c, b),
-		Delta:              c.Delta,
-		HalfWidth:          c.HalfWidth,
-		BandSouth:          b.South,
-		BandNorth:          b.North,
+		Regimes:            r.Analysis.Regimes(),
 		StepsPerYear:       res.StepsPerYear,
 		Calendar:           res.Calendar,
 		Notes:              res.Notes,
@@ -416,21 +409,6 @@ func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Optio
 	}
 	m.Inputs = inputs
 	return m, nil
-}
-
-// RegimeText states the regime definition for titles and metadata.
-func RegimeText(c regimes.Classifier, b regimes.Band) string {
-	return fmt.Sprintf("%s; tropical mean: cell-area-weighted over ocean %s–%s", c, lat(b.South), lat(b.North))
-}
-
-func lat(x float64) string {
-	switch {
-	case x < 0:
-		return fmt.Sprintf("%g°S", -x)
-	case x > 0:
-		return fmt.Sprintf("%g°N", x)
-	}
-	return "0°"
 }
 
 // stepBounds gives the calendar month (or day) a time stamp stands for.

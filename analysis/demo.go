@@ -184,7 +184,7 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 		fmt.Fprintf(w, "    results: %s\n", r.OutDir)
 	}
 	if len(d.Reports) > 0 {
-		fmt.Fprintf(w, "  regimes: %s\n", d.Reports[0].Meta.RegimeDefinition)
+		fmt.Fprintf(w, "  regimes: %s\n", d.Reports[0].Meta.Regimes)
 	}
 	fmt.Fprintln(w, "  recovered vs built into the worlds:")
 	for _, c := range d.Checks {

@@ -278,7 +278,7 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 		}
 		check("dataset", a.Dataset, b.Dataset)
 		check("metrics conventions", a.MetricsConventions, b.MetricsConventions)
-		check("regime definition", a.RegimeDefinition, b.RegimeDefinition)
+		check("regime definition", a.Regimes.String(), b.Regimes.String())
 		check("time steps per year", a.StepsPerYear, b.StepsPerYear)
 		check("calendar", a.Calendar, b.Calendar)
 		check("time units", a.TimeUnits, b.TimeUnits)

@@ -131,10 +131,9 @@ func Mismatches(a, b Run) []string {
 		}
 	}
 	chk("metrics conventions", a.Meta.MetricsConventions, b.Meta.MetricsConventions)
-	chk("regime definition", a.Meta.RegimeDefinition, b.Meta.RegimeDefinition)
-	chk("threshold δ (K)", a.Meta.Delta, b.Meta.Delta)
-	chk("transition half-width (K)", a.Meta.HalfWidth, b.Meta.HalfWidth)
-	chk("band", fmt.Sprintf("%g…%g", a.Meta.BandSouth, a.Meta.BandNorth), fmt.Sprintf("%g…%g", b.Meta.BandSouth, b.Meta.BandNorth))
+	for _, d := range a.Meta.Regimes.Diff(b.Meta.Regimes) {
+		out = append(out, fmt.Sprintf("regime definition, %s differs: %s has %s, %s has %s", d.What, a.Label(), d.A, b.Label(), d.B))
+	}
 	chk("period", a.Meta.Period, b.Meta.Period)
 	chk("time steps per year", a.Meta.StepsPerYear, b.Meta.StepsPerYear)
 	if a.Acc.L.Cloud != "" && b.Acc.L.Cloud != "" {

@@ -52,7 +52,7 @@ func run(t *testing.T, name string, conv []float64) Run {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return Run{Name: name, Dir: name, Acc: a, Meta: output.Meta{Grid: g, Dataset: name, MetricsConventions: "m", RegimeDefinition: "r", Delta: 1.5, BandSouth: -30, BandNorth: 30, Period: "p", StepsPerYear: 12}}
+	return Run{Name: name, Dir: name, Acc: a, Meta: output.Meta{Grid: g, Dataset: name, MetricsConventions: "m", Regimes: regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Delta: 1.5}, Period: "p", StepsPerYear: 12}}
 }
 
 func TestSelfComparisonIsExact(t *testing.T) {
@@ -104,7 +104,7 @@ func TestMapStatsByHand(t *testing.T) {
 func TestMismatchesAreRefusedAndListed(t *testing.T) {
 	a := run(t, "obs", []float64{0, 1})
 	b := run(t, "model", []float64{0, 1})
-	b.Meta.Delta = 1.0
+	b.Meta.Regimes.Delta = 1.0
 	b.Meta.Period = "q"
 	b.Meta.MetricsConventions = "other"
 	_, err := Compare(a, []Run{b}, Options{})
@@ -164,7 +164,7 @@ func TestMismatchesNameTheFolders(t *testing.T) {
 	a := run(t, "obs", []float64{0, 1})
 	b := run(t, "obs", []float64{0, 1})
 	a.Dir, b.Dir = "/runs/obs-delta1.5", "/runs/obs-delta1.0"
-	b.Meta.Delta = 1.0
+	b.Meta.Regimes.Delta = 1.0
 	_, err := Compare(a, []Run{b}, Options{})
 	if err == nil || !strings.Contains(err.Error(), "obs (/runs/obs-delta1.5) has 1.5") || !strings.Contains(err.Error(), "obs (/runs/obs-delta1.0) has 1") {
 		t.Errorf("mismatch of two runs of one dataset: %v", err)

@@ -21,13 +21,15 @@ import (
 
 // Defaults of the analysis (see the package documentation for why).
 const (
-	DefaultBandSouth     = -30.0 // degrees north
-	DefaultBandNorth     = 30.0  // degrees north
-	DefaultThreshold     = 1.5   // K
-	DefaultMinOcean      = 0.5   // ocean fraction
-	DefaultMaxSeaIce     = 0.15  // sea-ice fraction
-	DefaultMinCoverage   = 0.5   // conservative remapping
-	DefaultMaskThreshold = 0.5   // remapped masks
+	DefaultBandSouth = -30.0 // degrees north
+	DefaultBandNorth = 30.0  // degrees north
+	// DefaultPercentile is p of the sst_percentile rule, percent.
+	DefaultPercentile    = 70.0
+	DefaultThreshold     = 1.5  // K
+	DefaultMinOcean      = 0.5  // ocean fraction
+	DefaultMaxSeaIce     = 0.15 // sea-ice fraction
+	DefaultMinCoverage   = 0.5  // conservative remapping
+	DefaultMaskThreshold = 0.5  // remapped masks
 	DefaultOutputDir     = "out"
 	// MaxThreshold bounds |δ|, K: relative SST rarely leaves ±5 K, so a
 	// larger δ is a units mistake.
@@ -383,6 +385,22 @@ func (d *decoder) analysis(m map[string]any, r *Study) {
 	a.Transition, _ = d.num(m, "analysis", "transition", 0)
 	if a.Transition < 0 {
 		d.fail("analysis.transition", "the half-width of the transition band must be ≥ 0 K, not %v (0 = no transition band)", a.Transition)
+	}
+	rule, _ := d.choice(m, "analysis", "rule", string(regimes.RuleRelativeSST), string(regimes.RuleRelativeSST), string(regimes.RuleSSTPercentile))
+	a.Rule = regimes.Rule(rule)
+	_, hasP := m["percentile"]
+	_, hasT := m["threshold"]
+	switch {
+	case a.Rule == regimes.RuleSSTPercentile:
+		a.Percentile, _ = d.num(m, "analysis", "percentile", DefaultPercentile)
+		if !(a.Percentile > 0 && a.Percentile < 100) {
+			d.fail("analysis.percentile", "p = %v is not a percentile: give 0 < p < 100 (default %v)", a.Percentile, DefaultPercentile)
+		}
+		if hasT {
+			d.fail("analysis.threshold", "the sst_percentile rule finds δ at each step from the percentile; leave threshold out or use rule: relative_sst")
+		}
+	case hasP:
+		d.fail("analysis.percentile", "percentile is used only with rule: sst_percentile (the rule here is relative_sst, a threshold δ); add rule: sst_percentile or remove percentile")
 	}
 	a.CloudChoice, _ = d.choice(m, "analysis", "cloud", "auto", "auto", "low_cloud", "cloud")
 

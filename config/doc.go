@@ -183,6 +183,12 @@
 //     the tropical-mean SST exceeds δ. Finite, |δ| < 10 K.
 //   - transition: half-width, K, of a transition band around δ (default 0:
 //     none). At least 0.
+//   - rule: the regime rule (package regimes): relative_sst (default: the
+//     fixed threshold δ on relative SST) or sst_percentile (convective where
+//     SST exceeds the p-th percentile of the band's ocean SST at each step,
+//     area-weighted; threshold is then refused).
+//   - percentile: p, percent (default 70), 0 < p < 100; only with rule:
+//     sst_percentile.
 //   - cloud: auto (default: low_cloud where a low_cloud input is given,
 //     else cloud; low_cloud when both come from files.any), low_cloud or
 //     cloud. [Dataset].Cloud holds the role used. Low cloud is preferred

@@ -78,6 +78,7 @@ func (d *decoder) relationships(m map[string]any, r *Study) {
 	r.RelationsOff = !d.boolean(m, P, "enabled", true)
 	c := relations.Defaults()
 	c.Classifier = r.Analysis.Classifier()
+	c.Regimes = r.Analysis.Regimes()
 	for _, rg := range r.Analysis.Regions {
 		c.Regions = append(c.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
 	}

@@ -221,6 +221,7 @@ analysis:
 	}
 	want := relations.Defaults()
 	want.Classifier = regimes.Classifier{Delta: 1.2, HalfWidth: 0.3}
+	want.Regimes = regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Rule: regimes.RuleRelativeSST, Delta: 1.2, HalfWidth: 0.3}
 	want.Regions = []accumulate.Region{{Name: "box_a", South: -10, North: 10, West: 170, East: -170}}
 	if got := r.Relations; !reflect.DeepEqual(clearNaN(got), clearNaN(want)) || !math.IsNaN(got.IndicatorThreshold) {
 		t.Errorf("Relations\n%+v\nwant\n%+v", got, want)

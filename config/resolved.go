@@ -2,6 +2,7 @@ package config
 
 import (
 	"encoding/json"
+	"lidscope/regimes"
 	"math"
 	"path/filepath"
 	"sort"
@@ -82,6 +83,11 @@ func (r *Study) Resolved() string {
 		},
 		"output":        object{"dir": r.rel(r.Output.Dir), "plots": r.Output.Plots},
 		"relationships": resolvedRelations(r.Relations),
+	}
+	if a.Rule == regimes.RuleSSTPercentile {
+		an := out["analysis"].(object)
+		an["rule"], an["percentile"] = string(a.Rule), a.Percentile
+		delete(an, "threshold")
 	}
 	var b strings.Builder
 	enc := json.NewEncoder(&b)

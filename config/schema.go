@@ -130,6 +130,8 @@ var schema = table(map[string]*key{
 		"band":       table(map[string]*key{"south": number, "north": number}),
 		"threshold":  number,
 		"transition": number,
+		"rule":       str,
+		"percentile": number,
 		"cloud":      str,
 		"regions": {kind: kList, elem: table(map[string]*key{
 			"name": str, "south": number, "north": number, "west": number, "east": number,

@@ -319,6 +319,11 @@ type Analysis struct {
 	// Transition is the half-width, K, of a transition band around δ
 	// (default 0: none).
 	Transition float64
+	// Rule is the regime rule (regimes.RuleRelativeSST, the default, or
+	// regimes.RuleSSTPercentile) and Percentile its p (percent) for the
+	// percentile rule (analysis.rule, analysis.percentile).
+	Rule       regimes.Rule
+	Percentile float64
 	// CloudChoice is "auto" (low_cloud where given, else cloud),
 	// "low_cloud" or "cloud"; each Dataset.Cloud holds the outcome.
 	CloudChoice string
@@ -328,9 +333,14 @@ type Analysis struct {
 	Grid Grid
 }
 
-// Classifier returns the regime definition of the analysis.
+// Classifier returns the fixed classifier (δ, h) of the analysis.
 func (a Analysis) Classifier() regimes.Classifier {
 	return regimes.Classifier{Delta: a.Threshold, HalfWidth: a.Transition}
+}
+
+// Regimes returns the regime definition of the analysis.
+func (a Analysis) Regimes() regimes.Definition {
+	return regimes.Definition{Band: a.Band, Rule: a.Rule, Delta: a.Threshold, HalfWidth: a.Transition, Percentile: a.Percentile}
 }
 
 // Region is a named box. West and East are degrees east in either

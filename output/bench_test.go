@@ -52,7 +52,7 @@ func benchFixture(b *testing.B) *fixture {
 		acc.AddStep(s)
 		times = append(times, 15+30*float64(t))
 	}
-	return &fixture{acc: acc, meta: Meta{Dataset: "bench", StepsPerYear: 12, BandSouth: -30, BandNorth: 30,
+	return &fixture{acc: acc, meta: Meta{Dataset: "bench", StepsPerYear: 12, Regimes: regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Delta: c.Delta, HalfWidth: c.HalfWidth},
 		TimeUnits: "days since 2001-01-01", Calendar: "360_day", TimeValues: times, Grid: g}}
 }
 

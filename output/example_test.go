@@ -36,7 +36,7 @@ func ExampleWrite() {
 	defer os.RemoveAll(dir)
 	files, err := output.Write(filepath.Join(dir, "results"), acc, output.Meta{
 		Dataset: "example (synthetic)", Version: "dev", Command: "lidscope example",
-		RegimeDefinition: c.String(), Delta: 0.5, BandSouth: -30, BandNorth: 30,
+		Regimes:      regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Delta: c.Delta},
 		StepsPerYear: 12, TimeUnits: "days since 2001-01-01", Calendar: "standard",
 		TimeValues: []float64{15, 45, 74}, Grid: g,
 	}, output.Options{})

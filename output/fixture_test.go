@@ -142,10 +142,9 @@ func newFixture(t testing.TB) *fixture {
 		Version: "0.0.0-test", Command: "lidscope run --study 'my study.toml' --out res",
 		Study: "[regimes]\ndelta = 0.5\n", StudyHash: "sha256:0123abcd",
 		MetricsConventions: "svp = murphy-koop\nlcl = romps\n",
-		RegimeDefinition:   regimes.Classifier{Delta: 0.5, HalfWidth: 0.25}.String() + "; band 30°S–30°N",
-		Delta:              0.5, HalfWidth: 0.25, BandSouth: -30, BandNorth: 30,
-		Inputs: []InputFile{{Role: "sst", Path: "/data/sst.nc", Size: 1234, ModTime: t0.Add(-time.Hour), SHA256: "ab12"}},
-		Start:  t0, End: t0.Add(90 * time.Second),
+		Regimes:            regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Delta: 0.5, HalfWidth: 0.25},
+		Inputs:             []InputFile{{Role: "sst", Path: "/data/sst.nc", Size: 1234, ModTime: t0.Add(-time.Hour), SHA256: "ab12"}},
+		Start:              t0, End: t0.Add(90 * time.Second),
 		Period: "2001-01 … 2001-06", StepsPerYear: 12,
 		TimeUnits: "days since 1970-01-01", Calendar: "standard",
 		TimeValues: append([]float64(nil), fixTimes...),
@@ -239,7 +238,7 @@ func newFineFixture(t testing.TB) *fixture {
 		times = append(times, 11337+30.4375*float64(ts))
 	}
 	f.meta = Meta{Dataset: "synthetic fine record", Version: "test", Command: "lidscope test",
-		RegimeDefinition: c.String(), Delta: 0.3, HalfWidth: 0.1, BandSouth: -30, BandNorth: 30,
+		Regimes:      regimes.Definition{Band: regimes.Band{South: -30, North: 30}, Delta: c.Delta, HalfWidth: c.HalfWidth},
 		StepsPerYear: 12, TimeUnits: "days since 1970-01-01", Calendar: "standard", TimeValues: times, Grid: g}
 	return f
 }

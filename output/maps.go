@@ -197,18 +197,14 @@ func (c *checked) globalAttrs(notes []string) map[string]any {
 		"lidscope_version":                 m.Version,
 		"study_hash":                       m.StudyHash,
 		"metrics_conventions":              m.MetricsConventions,
-		vocab.RegimeDefinition:             m.RegimeDefinition,
-		vocab.Delta:                        m.Delta,
-		vocab.Delta + "_units":             vocab.UnitKelvin,
-		vocab.HalfWidth:                    m.HalfWidth,
-		vocab.HalfWidth + "_units":         vocab.UnitKelvin,
-		vocab.Band:                         []float64{m.BandSouth, m.BandNorth},
-		vocab.Band + "_units":              vocab.UnitDegreesNorth,
 		"period":                           c.period(),
 		vocab.TimeSteps:                    len(c.acc.Series),
 		vocab.SamplingFrequency:            m.StepsPerYear,
 		vocab.SamplingFrequency + "_units": vocab.UnitPerYear,
 		vocab.RegimeIndex:                  regimeIndexText(),
+	}
+	for k, v := range m.Regimes.Attributes() {
+		a[k] = v
 	}
 	if len(m.Inputs) > 0 {
 		var b strings.Builder

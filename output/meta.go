@@ -10,6 +10,7 @@ import (
 	"lidscope/accumulate"
 	"lidscope/calendar"
 	"lidscope/grid"
+	"lidscope/regimes"
 )
 
 // Meta is what Write records about the run besides its statistics.
@@ -20,15 +21,13 @@ type Meta struct {
 	Study              string // the fully resolved study text
 	StudyHash          string
 	MetricsConventions string // metrics.Conventions.Text()
-	// RegimeDefinition is regimes.Classifier.String() plus the band, e.g.
-	// "δ = 1.5 K; band 30°S–30°N ...".
-	RegimeDefinition     string
-	Delta, HalfWidth     float64 // K
-	BandSouth, BandNorth float64 // degrees_north
-	Inputs               []InputFile
-	Start, End           time.Time // wall-clock of the run
-	Period               string    // first … last time step label
-	StepsPerYear         float64   // 12 for monthly
+	// Regimes is the regime definition (band, rule, δ/h or percentile):
+	// every file records it through its own encodings.
+	Regimes      regimes.Definition
+	Inputs       []InputFile
+	Start, End   time.Time // wall-clock of the run
+	Period       string    // first … last time step label
+	StepsPerYear float64   // 12 for monthly
 	// TimeUnits and Calendar describe the series time axis, e.g.
 	// "days since 1970-01-01" and "standard" (CF-1.10 §4.4, §4.4.1).
 	TimeUnits, Calendar string
@@ -159,16 +158,8 @@ func check(acc *accumulate.Acc, m Meta) (*checked, error) {
 	if !(m.StepsPerYear > 0) || math.IsInf(m.StepsPerYear, 0) {
 		return nil, invalid("Meta.StepsPerYear = %v must be a positive number of time steps per year (12 for monthly data)", m.StepsPerYear)
 	}
-	for _, f := range []struct {
-		name string
-		v    float64
-	}{{"Delta", m.Delta}, {"HalfWidth", m.HalfWidth}, {"BandSouth", m.BandSouth}, {"BandNorth", m.BandNorth}} {
-		if math.IsNaN(f.v) || math.IsInf(f.v, 0) {
-			return nil, invalid("Meta.%s = %v must be finite", f.name, f.v)
-		}
-	}
-	if !(m.BandSouth < m.BandNorth) {
-		return nil, invalid("Meta.BandSouth %g must be south of Meta.BandNorth %g", m.BandSouth, m.BandNorth)
+	if err := m.Regimes.Validate(); err != nil {
+		return nil, invalid("Meta.Regimes: %v", err)
 	}
 	if len(m.TimeValues) != len(acc.Series) {
 		return nil, invalid("Meta.TimeValues has %d values for %d time steps; give one time value per step", len(m.TimeValues), len(acc.Series))

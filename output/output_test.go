@@ -255,7 +255,7 @@ func TestMapsMetadata(t *testing.T) {
 	for name, want := range map[string]string{
 		"Conventions": "CF-1.10", "dataset": "synthetic test record", "lidscope_version": "0.0.0-test",
 		"study_hash": "sha256:0123abcd", "metrics_conventions": f.meta.MetricsConventions,
-		"regime_definition": f.meta.RegimeDefinition, "delta_units": "K", "half_width_units": "K",
+		"regime_definition": f.meta.Regimes.String(), "regime_rule": "relative_sst", "delta_units": "K", "half_width_units": "K",
 		"band_units": "degrees_north", "period": "2001-01 … 2001-06", "sampling_frequency_units": "yr-1",
 	} {
 		if got := g(name); got != want {
@@ -726,8 +726,8 @@ func TestInvalidRequests(t *testing.T) {
 		{"steps per year", func(f *fixture) { f.meta.StepsPerYear = 0 }, "StepsPerYear"},
 		{"time units", func(f *fixture) { f.meta.TimeUnits = "fortnights since 2001-01-01" }, `units "fortnights since 2001-01-01"`},
 		{"no calendar", func(f *fixture) { f.meta.Calendar = "" }, "Meta.Calendar"},
-		{"band", func(f *fixture) { f.meta.BandSouth, f.meta.BandNorth = 30, -30 }, "south of"},
-		{"delta", func(f *fixture) { f.meta.Delta = math.NaN() }, "Meta.Delta"},
+		{"band", func(f *fixture) { f.meta.Regimes.Band = regimes.Band{South: 30, North: -30} }, "south < north"},
+		{"delta", func(f *fixture) { f.meta.Regimes.Delta = math.NaN() }, "δ = NaN K must be finite"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

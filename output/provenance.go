@@ -105,10 +105,11 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 }
 
 func (c *checked) summaryRegime() sumRegime {
-	m := c.meta
+	d := c.meta.Regimes.Summarize()
 	return sumRegime{
-		Text: m.RegimeDefinition, Delta: num{Value: m.Delta, Units: "K"}, HalfWidth: num{Value: m.HalfWidth, Units: "K"},
-		Band:  sumBand{South: num{Value: m.BandSouth, Units: "degrees_north"}, North: num{Value: m.BandNorth, Units: "degrees_north"}},
-		Index: regimeIndexText(),
+		Text: d.Text, Rule: d.Rule, Delta: num{Value: d.Delta, Units: "K"}, HalfWidth: num{Value: d.HalfWidth, Units: "K"},
+		Percentile: num{Value: d.Percentile, Units: "%"},
+		Band:       sumBand{South: num{Value: d.Band.South, Units: "degrees_north"}, North: num{Value: d.Band.North, Units: "degrees_north"}},
+		Index:      regimeIndexText(),
 	}
 }

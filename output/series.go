@@ -14,7 +14,7 @@ import (
 // bandComment describes the averaging area of the band series.
 func (c *checked) bandComment(what string) string {
 	return fmt.Sprintf("area: mean where sea (comment: %s over the valid ocean cells between %s and %s degrees_north, weighted by their area inside the band)",
-		what, formatFloat(c.meta.BandSouth), formatFloat(c.meta.BandNorth))
+		what, formatFloat(c.meta.Regimes.Band.South), formatFloat(c.meta.Regimes.Band.North))
 }
 
 // writeSeriesNC writes series.nc at path.

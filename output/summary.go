@@ -60,11 +60,13 @@ type sumBand struct {
 }
 
 type sumRegime struct {
-	Text      string  `json:"text"`
-	Delta     num     `json:"delta"`
-	HalfWidth num     `json:"half_width"`
-	Band      sumBand `json:"band"`
-	Index     string  `json:"regime_index"`
+	Text       string  `json:"text"`
+	Rule       string  `json:"rule"`
+	Delta      num     `json:"delta"`
+	Percentile num     `json:"percentile"`
+	HalfWidth  num     `json:"half_width"`
+	Band       sumBand `json:"band"`
+	Index      string  `json:"regime_index"`
 }
 
 type sumCrossings struct {

@@ -111,7 +111,7 @@ func TestAlignClimatologyWithRecords(t *testing.T) {
 				Dataset: "align", SST: Input{Paths: []string{c.sst}, Spec: cf.Spec{Role: cf.RoleSST}},
 				T700:  &Input{Paths: []string{c.ta}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
 				Ocean: Ocean{Kind: "sst"}, Metrics: metrics.DefaultConventions(),
-				Classifier: regimes.Classifier{Delta: 1.5}, Band: regimes.Band{South: -30, North: 30},
+				Regimes: regimes.Definition{Delta: 1.5, Band: regimes.Band{South: -30, North: 30}},
 			}
 			res, err := Run(context.Background(), p)
 			if err != nil {

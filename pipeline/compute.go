@@ -184,10 +184,15 @@ func (s *stepper) prepare(st stepRef, v [][]float32, o int) (*accumulate.Step, m
 	stepOcean(s.oceanNow, s.ocean, sstV, ice, s.p.MaxSeaIce)
 	mean, _, ok := regimes.TropicalMean(sstV, s.bandW, s.oceanNow)
 	if !ok {
-		return nil, metrics.SlabInput{}, noBandSST(in.sst, sstV, s.bandW, s.ocean, st, s.p.Band)
+		return nil, metrics.SlabInput{}, noBandSST(in.sst, sstV, s.bandW, s.ocean, st, s.p.Regimes.Band)
 	}
 	regimes.Relative(sstV, mean, s.oceanNow, out.rel)
-	s.p.Classifier.ClassifySlab(out.rel, out.reg)
+	cls, _ := s.p.Regimes.StepClassifier(out.rel, s.bandW, s.oceanNow) // ok: the band has valid ocean (the mean above)
+	cls.ClassifySlab(out.rel, out.reg)
+	var stepCls *regimes.Classifier
+	if !s.p.Regimes.Fixed() {
+		stepCls = &cls
+	}
 
 	slot := func(f *field) []float32 {
 		if f == nil {
@@ -214,7 +219,7 @@ func (s *stepper) prepare(st stepRef, v [][]float32, o int) (*accumulate.Step, m
 	for _, e := range in.extras {
 		values = append(values, v[e.slot])
 	}
-	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: out.rel, Regime: out.reg, Values: values}
+	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: out.rel, Regime: out.reg, Values: values, Classifier: stepCls}
 	return step, mi, nil
 }
 

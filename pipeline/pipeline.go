@@ -81,12 +81,12 @@ type Plan struct {
 	MaxSeaIce       float64 // columns with more sea ice are excluded
 	Extras          []Input // further fields composited by regime (e.g. toa_sw_up)
 
-	Ocean      Ocean
-	Metrics    metrics.Conventions
-	Classifier regimes.Classifier
-	Band       regimes.Band
-	Regions    []accumulate.Region
-	Grid       GridPlan
+	Ocean   Ocean
+	Metrics metrics.Conventions
+	// Regimes is the regime definition (band, rule, δ/h or percentile).
+	Regimes regimes.Definition
+	Regions []accumulate.Region
+	Grid    GridPlan
 	// Select keeps a time step (nil keeps all).
 	Select  func(year, month int) bool
 	Workers int // 0: GOMAXPROCS
@@ -179,10 +179,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
 	}
-	if err := p.Classifier.Validate(); err != nil {
-		return nil, err
-	}
-	if err := p.Band.Validate(); err != nil {
+	if err := p.Regimes.Validate(); err != nil {
 		return nil, err
 	}
 	kern, err := metrics.NewKernel(p.Metrics)
@@ -208,7 +205,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	area := in.grid.CellAreas()
 	lb := make([][2]float64, in.grid.NLat())
 	copy(lb, in.grid.LatBounds)
-	bandW := p.Band.Weights(lb, area)
+	bandW := p.Regimes.Band.Weights(lb, area)
 
 	// sinks
 	out, err := newSinks(&p, in, area, bandW)

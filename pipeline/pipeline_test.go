@@ -82,15 +82,14 @@ func testPlan(t *testing.T) Plan {
 	writeField(t, tp, "ta", "air_temperature", "K", []float64{85000, 70000, 50000}, func(s, l, j, i int) float64 { return []float64{290, 285, 270}[l] }, 3)
 	writeField(t, cp, "cll", "low_type_cloud_area_fraction", "1", nil, func(s, _, j, i int) float64 { return 0.1 * float64(j+1) }, 3)
 	return Plan{
-		Dataset:    "tiny",
-		SST:        Input{Paths: []string{sp}, Spec: cf.Spec{Role: cf.RoleSST}},
-		T700:       &Input{Paths: []string{tp}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
-		Cloud:      &Input{Paths: []string{cp}, Spec: cf.Spec{Role: cf.RoleLowCloud}},
-		Ocean:      Ocean{Kind: "sst"},
-		Metrics:    metrics.DefaultConventions(),
-		Classifier: regimes.Classifier{Delta: 1.5},
-		Band:       regimes.Band{South: -30, North: 30},
-		Regions:    []accumulate.Region{{Name: "pool", South: 0, North: 10, West: 80, East: 100}},
+		Dataset: "tiny",
+		SST:     Input{Paths: []string{sp}, Spec: cf.Spec{Role: cf.RoleSST}},
+		T700:    &Input{Paths: []string{tp}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
+		Cloud:   &Input{Paths: []string{cp}, Spec: cf.Spec{Role: cf.RoleLowCloud}},
+		Ocean:   Ocean{Kind: "sst"},
+		Metrics: metrics.DefaultConventions(),
+		Regimes: regimes.Definition{Delta: 1.5, Band: regimes.Band{South: -30, North: 30}},
+		Regions: []accumulate.Region{{Name: "pool", South: 0, North: 10, West: 80, East: 100}},
 	}
 }
 

@@ -21,7 +21,7 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		}
 		return in(role), nil
 	}
-	p := Plan{Dataset: d.Name, Metrics: d.Metrics, Classifier: r.Analysis.Classifier(), Band: r.Analysis.Band, Select: d.Selects,
+	p := Plan{Dataset: d.Name, Metrics: d.Metrics, Regimes: r.Analysis.Regimes(), Select: d.Selects,
 		MemoryBudget: r.Limits.MemoryBudget}
 	if len(d.Accept) > 0 {
 		p.Accept = map[string]bool{}

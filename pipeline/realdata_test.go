@@ -35,8 +35,8 @@ func TestRealSSTWithT700(t *testing.T) {
 		SST:     Input{Paths: []string{sst}, Spec: cf.Spec{Role: cf.RoleSST, Overrides: cf.Overrides{Climatology: true}}},
 		T700:    &Input{Paths: []string{ta}, Spec: cf.Spec{Role: cf.RoleAirTemp, Level: 70000}},
 		Ocean:   Ocean{Kind: OceanWhereSST}, Metrics: conv,
-		Classifier: regimes.Classifier{Delta: 1.5}, Band: regimes.Band{South: -30, North: 30},
-		Grid: GridPlan{Target: "sst", Methods: map[cf.Role]regrid.Method{cf.RoleAirTemp: regrid.Conservative}},
+		Regimes: regimes.Definition{Delta: 1.5, Band: regimes.Band{South: -30, North: 30}},
+		Grid:    GridPlan{Target: "sst", Methods: map[cf.Role]regrid.Method{cf.RoleAirTemp: regrid.Conservative}},
 	}
 	res, err := Run(context.Background(), p)
 	if err != nil {

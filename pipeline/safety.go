@@ -130,7 +130,7 @@ func checkOceanValues(p *Plan, acc *accumulate.Acc, bandW []float64, steps int, 
 		if n > 0 {
 			continue
 		}
-		what := fmt.Sprintf("no %s value over any ocean column of the band %g…%g°N in any of the %d time steps", name, p.Band.South, p.Band.North, steps)
+		what := fmt.Sprintf("no %s value over any ocean column of the band %g…%g°N in any of the %d time steps", name, p.Regimes.Band.South, p.Regimes.Band.North, steps)
 		if p.Accept[cf.CheckNoOceanValues] {
 			*notes = append(*notes, fmt.Sprintf("check %s accepted by the study (accept): %s", cf.CheckNoOceanValues, what))
 			continue

@@ -29,7 +29,7 @@ func TestNoOceanValuesRefused(t *testing.T) {
 		acc.AddCells(s, 0, 4)
 		acc.AddStep(s)
 	}
-	p := &Plan{Band: regimes.Band{South: -30, North: 30}}
+	p := &Plan{Regimes: regimes.Definition{Band: regimes.Band{South: -30, North: 30}}}
 	var notes []string
 	err = checkOceanValues(p, acc, l.BandWeight, 3, &notes)
 	if err == nil {

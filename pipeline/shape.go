@@ -32,7 +32,7 @@ func ShapeOf(p Plan) (Shape, error) {
 	s := Shape{NLat: g.NLat(), NLon: g.NLon(), Cells: g.Size(), Steps: len(in.steps), Fields: len(in.timed), Quantities: p.Quantities()}
 	lb := make([][2]float64, g.NLat())
 	copy(lb, g.LatBounds)
-	for _, w := range p.Band.Weights(lb, g.CellAreas()) {
+	for _, w := range p.Regimes.Band.Weights(lb, g.CellAreas()) {
 		if w > 0 {
 			s.BandCells++
 		}

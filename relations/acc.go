@@ -590,7 +590,12 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 	if band == 0 {
 		return
 	}
+	// The run's classifier, or the step's when the regime rule finds δ at
+	// each step (held at its unperturbed value: see the README cautions).
 	cl := a.cfg.Classifier
+	if s.Classifier != nil {
+		cl = *s.Classifier
+	}
 	nk := len(a.cfg.DeltaT)
 	shiftIn, shiftOut := a.scratchShiftIn[:nk], a.scratchShiftOut[:nk]
 	for pi := range a.patches {

@@ -117,6 +117,10 @@ type Config struct {
 	// Classifier is the regime definition of the run (needed to
 	// reclassify perturbed SSTs in the flip analysis).
 	Classifier regimes.Classifier
+	// Regimes is the whole regime definition (for its text; its fixed
+	// classifier is Classifier). A zero Regimes leaves the text to
+	// Classifier.
+	Regimes regimes.Definition
 	// Partial are the two predictors of the partial regression (default
 	// "eis" and "sst").
 	Partial [2]string
@@ -390,7 +394,7 @@ func (c Config) Text() string {
 		line("threshold_fit", fmt.Sprintf("logistic regression on relative SST in %g K bins over %g…%g K, %d block-bootstrap replicates", c.ThresholdBinWidth, c.ThresholdRange[0], c.ThresholdRange[1], c.ThresholdReplicates))
 	}
 	line("omega_bins", strconv.FormatBool(c.OmegaBins))
-	line("regime_definition", c.Classifier.String())
+	line("regime_definition", c.regimeText())
 	line("partial_regression", c.Partial[0]+" + "+c.Partial[1])
 	line("decorrelation_length (m)", g(c.DecorrelationLength))
 	return b.String()
@@ -405,4 +409,12 @@ func sortedKeys[V any](m map[string]V) []string {
 	}
 	sort.Strings(out)
 	return out
+}
+
+// regimeText states the regime definition.
+func (c Config) regimeText() string {
+	if c.Regimes.Band != (regimes.Band{}) {
+		return c.Regimes.String()
+	}
+	return c.Classifier.String()
 }

@@ -257,7 +257,7 @@ func (a *Acc) Results() (*Results, error) {
 	}
 	c := a.cfg
 	res := &Results{Mode: c.Mode, Detrended: c.Detrend, ModeNote: ModeNote(c.Mode), Config: c.Text(),
-		RegimeDefinition: c.Classifier.String(), Uncertainty: c.uncertaintyText(), Steps: len(a.steps),
+		RegimeDefinition: c.regimeText(), Uncertainty: c.uncertaintyText(), Steps: len(a.steps),
 		First: a.steps[0].label, Last: a.steps[len(a.steps)-1].label}
 	years := map[int]bool{}
 	for _, s := range a.steps {

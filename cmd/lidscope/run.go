@@ -107,7 +107,7 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 func writeRunSummary(w io.Writer, rep analysis.Report) {
 	res := rep.Result
 	fmt.Fprintf(w, "dataset %s: %d time steps (%s) on %s\n", rep.Dataset, len(res.Labels), rep.Meta.Period, res.Grid)
-	fmt.Fprintf(w, "  regimes: %s\n", rep.Meta.RegimeDefinition)
+	fmt.Fprintf(w, "  regimes: %s\n", rep.Meta.Regimes)
 	for _, n := range res.Notes {
 		fmt.Fprintf(w, "  note: %s\n", n)
 	}
