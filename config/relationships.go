@@ -1,6 +1,7 @@
 package config
 
 import (
+	"lidscope/vocab"
 	"math"
 	"slices"
 	"strconv"
@@ -253,10 +254,10 @@ func (d *decoder) predictor(r *Study, path, name string) bool {
 		d.fail(path, "%q is not a predictor; %s", name, suggest(name, predictorNames))
 		return false
 	}
-	if name == "ectei" {
+	if q, ok := vocab.Lookup(name); ok && q.Enabled != nil {
 		for _, ds := range r.Datasets {
-			if !ds.Metrics.ECTEI {
-				d.fail(path, "ectei is computed only with conventions.ectei: true, and dataset %q does not compute it; set it in every dataset or choose another predictor", ds.Name)
+			if !q.IsEnabled(ds.Metrics) {
+				d.fail(path, "%s is computed only with %s: true, and dataset %q does not compute it; set it in every dataset or choose another predictor", name, q.Switch, ds.Name)
 				return false
 			}
 		}

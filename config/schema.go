@@ -1,10 +1,10 @@
 package config
 
 import (
+	"lidscope/vocab"
 	"sort"
 
 	"lidscope/cf"
-	"lidscope/relations"
 )
 
 // kind is the shape of a study value.
@@ -172,7 +172,7 @@ var schema = table(map[string]*key{
 
 // predictorNames are the predictors the relationship analysis bins and
 // regresses on (package relations; all in K).
-var predictorNames = []string{"eis", "lts", relations.RelSST, "sst", "t700", "ectei"}
+var predictorNames = vocab.Predictors() // the table of names: sst, t700, lts, eis, ectei, rel_sst
 
 // roleNames lists the role keys a kRoles table accepts.
 func roleNames(k *key) []string {

@@ -8,6 +8,7 @@ import (
 	"lidscope/accumulate"
 	"lidscope/metrics"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // Stage 4, step compute: find the ocean columns, the
@@ -22,11 +23,8 @@ const rowsPerBlock = 4
 
 // quantity names accumulated per column, in output order
 const (
-	qSST   = "sst"
-	qT700  = "t700"
-	qLTS   = "lts"
-	qEIS   = "eis"
-	qECTEI = "ectei"
+	qSST  = vocab.SST
+	qT700 = vocab.T700
 )
 
 // stepper holds what the step compute and block stages need for every
@@ -41,28 +39,31 @@ type stepper struct {
 	blocks  []block
 	workers int
 
+	kq       []vocab.Quantity // the kernel quantities (vocab.Computed)
 	outs     [2]stepOut
 	oceanNow []bool
 }
 
 // stepOut is one step's computed slabs.
 type stepOut struct {
-	rel      []float32
-	reg      []regimes.Regime
-	lts, eis []float32 // nil without T700
-	ectei    []float32 // nil unless the conventions compute ECTEI
+	rel []float32
+	reg []regimes.Regime
+	// kernel are the slabs of the quantities the metrics kernel computes
+	// (vocab.Computed of the conventions, in table order: lts, eis and
+	// ectei when on); nil without T700.
+	kernel [][]float32
 }
 
 func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW []float64) *stepper {
 	n := in.grid.Size()
 	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers, oceanNow: make([]bool, n)}
+	s.kq = s.computed()
 	for o := range s.outs {
 		out := &s.outs[o]
 		out.rel, out.reg = make([]float32, n), make([]regimes.Regime, n)
 		if in.t700 != nil {
-			out.lts, out.eis = make([]float32, n), make([]float32, n)
-			if p.Metrics.ECTEI {
-				out.ectei = make([]float32, n)
+			for range s.computed() {
+				out.kernel = append(out.kernel, make([]float32, n))
 			}
 		}
 	}
@@ -82,7 +83,7 @@ func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW [
 	// Metrics are computed for ocean columns only; the others stay NaN.
 	nan := float32(math.NaN())
 	for o := range s.outs {
-		for _, x := range [][]float32{s.outs[o].lts, s.outs[o].eis, s.outs[o].ectei} {
+		for _, x := range s.outs[o].kernel {
 			for i := range x {
 				if !ocean[i] {
 					x[i] = nan
@@ -104,7 +105,22 @@ type block struct {
 // packed holds a worker's gathered ocean columns of one block.
 type packed struct {
 	in  [6][]float32 // Ts, T700, Ps, Humidity, T850, Q700
-	out [3][]float32 // LTS, EIS, ECTEI
+	out [][]float32  // the kernel quantities, as stepOut.kernel
+	dst [][]float32  // scratch: the slabs handed to the kernel
+}
+
+// computed are the quantities the metrics kernel computes for the plan
+// (the table of names, package vocab).
+func (s *stepper) computed() []vocab.Quantity { return vocab.Computed(s.p.Metrics) }
+
+// slabOutput points the kernel's outputs at dst (one slab per computed
+// quantity, as stepOut.kernel), each through its table row's Slab.
+func (s *stepper) slabOutput(dst [][]float32) metrics.SlabOutput {
+	var o metrics.SlabOutput
+	for k, q := range s.kq {
+		q.Slab(&o, dst[k])
+	}
+	return o
 }
 
 // metricsOf computes the metrics of the block's ocean columns into res
@@ -114,11 +130,11 @@ func (s *stepper) metricsOf(b block, mi metrics.SlabInput, res *stepOut, pk *pac
 		return metrics.SlabStats{}, nil
 	}
 	if len(b.ocean) == b.hi-b.lo {
-		out := metrics.SlabOutput{LTS: res.lts[b.lo:b.hi], EIS: res.eis[b.lo:b.hi]}
-		if res.ectei != nil {
-			out.ECTEI = res.ectei[b.lo:b.hi]
+		pk.dst = pk.dst[:0]
+		for _, x := range res.kernel {
+			pk.dst = append(pk.dst, x[b.lo:b.hi])
 		}
-		return s.kern.Slab(sub(mi, b.lo, b.hi), out)
+		return s.kern.Slab(sub(mi, b.lo, b.hi), s.slabOutput(pk.dst))
 	}
 	n := len(b.ocean)
 	src := [6][]float32{mi.Ts, mi.T700, mi.Ps, mi.Humidity, mi.T850, mi.Q700}
@@ -135,26 +151,24 @@ func (s *stepper) metricsOf(b block, mi metrics.SlabInput, res *stepOut, pk *pac
 			g[k][j] = x[c]
 		}
 	}
-	dst := [3][]float32{res.lts, res.eis, res.ectei}
-	var o [3][]float32
-	for k, x := range dst {
-		if x == nil {
-			continue
-		}
+	dst := res.kernel
+	if len(pk.out) < len(dst) {
+		pk.out = make([][]float32, len(dst))
+	}
+	pk.dst = pk.dst[:0]
+	for k := range dst {
 		if cap(pk.out[k]) < n {
 			pk.out[k] = make([]float32, n)
 		}
-		o[k] = pk.out[k][:n]
+		pk.dst = append(pk.dst, pk.out[k][:n])
 	}
+	o := pk.dst
 	st, err := s.kern.Slab(metrics.SlabInput{Ts: g[0], T700: g[1], Ps: g[2], Humidity: g[3], T850: g[4], Q700: g[5]},
-		metrics.SlabOutput{LTS: o[0], EIS: o[1], ECTEI: o[2]})
+		s.slabOutput(o))
 	if err != nil {
 		return st, err
 	}
 	for k, x := range dst {
-		if x == nil {
-			continue
-		}
 		for j, c := range b.ocean {
 			x[c] = o[k][j]
 		}
@@ -208,13 +222,11 @@ func (s *stepper) prepare(st stepRef, v [][]float32, o int) (*accumulate.Step, m
 		if in.surfaceAir != nil {
 			mi.Ts = v[in.surfaceAir.slot]
 		}
-		values = append(values, v[in.t700.slot], out.lts, out.eis)
+		values = append(values, v[in.t700.slot])
+		values = append(values, out.kernel...)
 	}
 	if in.cloud != nil {
 		values = append(values, v[in.cloud.slot])
-	}
-	if out.ectei != nil {
-		values = append(values, out.ectei)
 	}
 	for _, e := range in.extras {
 		values = append(values, v[e.slot])
@@ -255,7 +267,7 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, o int, 
 			defer wg.Done()
 			var pk packed
 			for bl := range next {
-				if res.lts == nil {
+				if res.kernel == nil {
 					// no T700: no column metrics, only the accumulation
 					acc.AddCells(step, bl.lo, bl.hi)
 					continue

@@ -31,6 +31,7 @@ import (
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/regrid"
+	"lidscope/vocab"
 )
 
 // Input is one role's files and how to read them.
@@ -132,19 +133,19 @@ type Result struct {
 // the order of accumulate.Step.Values: sst always; t700, lts and eis when
 // p has a T700 input; the analysis cloud (named by its role, low_cloud or
 // cloud, so that outputs describe it correctly) when p has a cloud input;
-// ectei when the metrics conventions compute it (and T700 is present);
-// then the extra fields. Absent inputs give absent quantities, never
+// then the extra fields. The computed ones are the table's (vocab.Computed:
+// lts, eis, and ectei when the conventions compute it). Absent inputs give absent quantities, never
 // NaN-filled ones.
 func (p *Plan) Quantities() []string {
 	q := []string{qSST}
 	if p.T700 != nil {
-		q = append(q, qT700, qLTS, qEIS)
+		q = append(q, qT700)
+		for _, k := range vocab.Computed(p.Metrics) { // lts, eis (and ectei when on)
+			q = append(q, k.Name)
+		}
 	}
 	if c := p.cloudQuantity(); c != "" {
 		q = append(q, c)
-	}
-	if p.T700 != nil && p.Metrics.ECTEI {
-		q = append(q, qECTEI)
 	}
 	for _, e := range p.Extras {
 		q = append(q, string(e.Spec.Role))

@@ -92,7 +92,7 @@ var quantities = []Quantity{
 	{Name: ECTEI, Units: "K", LongName: "estimated cloud-top entrainment index",
 		TemperatureDifference: true, Roles: []string{RoleSST, RoleAirTemperature, RoleSpecificHumidity}, Source: FromKernel,
 		Slab:    func(o *metrics.SlabOutput, d []float32) { o.ECTEI = d },
-		Enabled: func(c metrics.Conventions) bool { return c.ECTEI }, Switch: "metrics.ectei", Predictor: true,
+		Enabled: func(c metrics.Conventions) bool { return c.ECTEI }, Switch: "conventions.ectei", Predictor: true,
 		Reference: "Kawai, Koshiro & Webb 2017, J. Climate 30, 9119–9131"},
 	{Name: Cloud, Units: "1", LongName: "total cloud area fraction", StandardName: "cloud_area_fraction",
 		Roles: []string{RoleCloud}, Source: FromInput, Response: true},
