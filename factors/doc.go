@@ -19,7 +19,10 @@
 // of samples, say), each with K = p + 1 variables, the p factors first and
 // the response last. Folds stay mergeable: pieces of a fold merged with
 // relations.CoMoments.Merge give the same fit as one pass, and the pooled
-// moments are the merge of the folds.
+// moments are the merge of the folds. Years keeps such folds per calendar
+// year and merges pieces of a record; a year's moments take
+// BytesPerYear(p) = 16 + 8(K + K²) bytes (592 for seven factors), so a
+// cell's state is that times its years.
 //
 // # Standardisation and the penalty scale
 //

@@ -69,3 +69,33 @@ func ExampleConstrain() {
 	// ΔC/ΔT = -0.0067 per K [-0.0092, -0.0042]
 	// EIS part 0.0036, SST part -0.0103
 }
+
+// Yearly co-moments of a cell from two pieces of its record, merged, as
+// the folds of cross-validation; and the bytes a year's moments take for
+// seven factors.
+func ExampleYears() {
+	a, b := factors.NewYears(2), factors.NewYears(2) // one factor and the response
+	for i := 0; i < 48; i++ {
+		x := math.Sin(float64(i))
+		piece := a
+		if i >= 30 {
+			piece = b
+		}
+		piece.Add(2001+i/12, []float64{x, 0.5 * x}, 1)
+	}
+	if err := a.Merge(b); err != nil {
+		fmt.Println(err)
+		return
+	}
+	fs := a.Folds()
+	for i, c := range fs.Pieces {
+		fmt.Println(fs.Labels[i], c.N)
+	}
+	fmt.Println(factors.BytesPerYear(7), "bytes per year for 7 factors")
+	// Output:
+	// 2001 12
+	// 2002 12
+	// 2003 12
+	// 2004 12
+	// 592 bytes per year for 7 factors
+}
