@@ -108,6 +108,13 @@ func writeRunSummary(w io.Writer, rep analysis.Report) {
 	res := rep.Result
 	fmt.Fprintf(w, "dataset %s: %d time steps (%s) on %s\n", rep.Dataset, len(res.Labels), rep.Meta.Period, res.Grid)
 	fmt.Fprintf(w, "  regimes: %s\n", rep.Meta.Regimes)
+	if len(rep.Meta.Absent) > 0 {
+		// a run without an optional input says what it has and lacks
+		fmt.Fprintf(w, "  quantities: %s\n", strings.Join(res.Acc.L.Quantities, ", "))
+		for _, a := range rep.Meta.Absent {
+			fmt.Fprintf(w, "  without: %s\n", a)
+		}
+	}
 	for _, n := range res.Notes {
 		fmt.Fprintf(w, "  note: %s\n", n)
 	}
