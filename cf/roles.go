@@ -6,31 +6,32 @@ import (
 
 	"lidscope/netcdf"
 	"lidscope/units"
+	"lidscope/vocab"
 )
 
 // Role is what lidscope uses a variable for.
 type Role string
 
-// Roles. The names are lidscope's own; the standard_names that identify
-// them come from the CF Standard Name Table.
+// Roles. The names come from the table of names (package vocab); the
+// standard_names that identify them come from the CF Standard Name Table.
 const (
-	RoleSST          Role = "sst"              // sea-surface temperature
-	RoleAirTemp      Role = "air_temperature"  // on pressure levels (T700, T850)
-	RoleSurfaceAir   Role = "surface_air_temp" // near-surface air temperature
-	RoleLowCloud     Role = "low_cloud"        // low-cloud area fraction
-	RoleCloud        Role = "cloud"            // total cloud area fraction
-	RoleSWUp         Role = "toa_sw_up"        // TOA outgoing shortwave flux
-	RoleOLR          Role = "olr"              // TOA outgoing longwave flux
-	RoleOmega        Role = "omega"            // vertical pressure velocity (on levels: omega500)
-	RoleSurfacePres  Role = "surface_pressure" // surface air pressure
-	RoleSeaLevelPres Role = "sea_level_pressure"
-	RoleRH           Role = "relative_humidity"
-	RoleDewPoint     Role = "dew_point"
-	RoleSpecHum      Role = "specific_humidity"
-	RoleSeaFraction  Role = "sea_fraction"
-	RoleLandFraction Role = "land_fraction"
-	RoleSeaIce       Role = "sea_ice"
-	RolePrecip       Role = "precipitation"
+	RoleSST          Role = vocab.RoleSST                   // sea-surface temperature
+	RoleAirTemp      Role = vocab.RoleAirTemperature        // on pressure levels (T700, T850)
+	RoleSurfaceAir   Role = vocab.RoleSurfaceAirTemperature // near-surface air temperature
+	RoleLowCloud     Role = vocab.RoleLowCloud              // low-cloud area fraction
+	RoleCloud        Role = vocab.RoleCloud                 // total cloud area fraction
+	RoleSWUp         Role = vocab.RoleTOASWUp               // TOA outgoing shortwave flux
+	RoleOLR          Role = vocab.RoleOLR                   // TOA outgoing longwave flux
+	RoleOmega        Role = vocab.RoleOmega                 // vertical pressure velocity (on levels: omega500)
+	RoleSurfacePres  Role = vocab.RoleSurfacePressure       // surface air pressure
+	RoleSeaLevelPres Role = vocab.RoleSeaLevelPressure
+	RoleRH           Role = vocab.RoleRelativeHumidity
+	RoleDewPoint     Role = vocab.RoleDewPointTemperature
+	RoleSpecHum      Role = vocab.RoleSpecificHumidity
+	RoleSeaFraction  Role = vocab.RoleSeaFraction
+	RoleLandFraction Role = vocab.RoleLandFraction
+	RoleSeaIce       Role = vocab.RoleSeaIce
+	RolePrecip       Role = vocab.RolePrecipitation
 )
 
 // roleSpec says how a role is recognised and in which units it is read.

@@ -878,7 +878,7 @@ func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, expli
 	if temp == "air" {
 		mr.Surface, s.TemperatureRole = metrics.SurfaceAir, cf.RoleSurfaceAir
 		if !has(cf.RoleSurfaceAir) {
-			d.fail(join(path, "temperature"), "air needs a surface_air_temp input (files.surface_air_temp); give one or use sst")
+			d.fail(join(path, "temperature"), "air needs a surface_air_temperature input (files.surface_air_temperature); give one or use sst")
 		}
 	} else {
 		mr.Surface, s.TemperatureRole = metrics.SurfaceSST, cf.RoleSST
@@ -920,9 +920,9 @@ func (d *decoder) surface(path string, m map[string]any, ds *Dataset, has, expli
 			case len(given) > 1:
 				d.fail(p, "field is ambiguous: the files give %v; write the role to use instead (humidity: %s)", given, given[0])
 			case has(cf.RoleRH): // no explicit humidity input, but files.any
-				d.fail(p, "field with files.any: write which humidity role to read (relative_humidity, dew_point or specific_humidity)")
+				d.fail(p, "field with files.any: write which humidity role to read (relative_humidity, dew_point_temperature or specific_humidity)")
 			default:
-				d.fail(p, "field needs a humidity input: files.relative_humidity, files.dew_point or files.specific_humidity; or give an assumed relative humidity such as 0.8")
+				d.fail(p, "field needs a humidity input: files.relative_humidity, files.dew_point_temperature or files.specific_humidity; or give an assumed relative humidity such as 0.8")
 			}
 		case isStr && slices.Contains(humidityRoles, cf.Role(str)):
 			s.HumidityRole = cf.Role(str)
@@ -1019,7 +1019,7 @@ func (d *decoder) conventions(path string, m map[string]any, ds *Dataset, has fu
 			d.fail(join(path, "ectei"), "ECTEI needs specific humidity at 700 hPa: give files.specific_humidity (on pressure levels) or set ectei: false")
 		}
 		if ds.Surface.HumidityRole == cf.RoleSpecHum {
-			d.fail(join(path, "ectei"), "the specific_humidity input cannot be both the 700-hPa humidity of ECTEI and the surface humidity; use relative_humidity or dew_point for surface.humidity, or set ectei: false")
+			d.fail(join(path, "ectei"), "the specific_humidity input cannot be both the 700-hPa humidity of ECTEI and the surface humidity; use relative_humidity or dew_point_temperature for surface.humidity, or set ectei: false")
 		}
 	}
 	if err := mr.Validate(); err != nil {

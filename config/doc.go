@@ -104,9 +104,9 @@
 //   - files (required): role → a file, a glob, or a list of files and
 //     globs, relative to the study's folder. Several files of one role are
 //     one record along time (cf.Open sorts them). The roles are those of
-//     package cf: sst, air_temperature, surface_air_temp, low_cloud, cloud,
+//     package cf: sst, air_temperature, surface_air_temperature, low_cloud, cloud,
 //     toa_sw_up, olr, omega, surface_pressure, sea_level_pressure,
-//     relative_humidity, dew_point, specific_humidity, sea_fraction,
+//     relative_humidity, dew_point_temperature, specific_humidity, sea_fraction,
 //     land_fraction, sea_ice, precipitation. The key any lists files that
 //     may hold any role: every role the settings read and no other key
 //     gives is read from them (an optional role those files do not hold
@@ -155,9 +155,9 @@
 //   - surface: pressure is a constant with units (default 1000hPa; a bare
 //     number is Pa) or "field" (needs a surface_pressure input); humidity
 //     is an assumed relative humidity (default 0.8; 0.8 or "80%"), "field"
-//     (the one humidity input given: relative_humidity, dew_point or
+//     (the one humidity input given: relative_humidity, dew_point_temperature or
 //     specific_humidity) or one of those role names; temperature is sst
-//     (default) or air (needs a surface_air_temp input).
+//     (default) or air (needs a surface_air_temperature input).
 //   - conventions: the metrics conventions, the formula choices and
 //     constants with which LTS, EIS and ECTEI are computed, by the names of
 //     package metrics: svp (murphy-koop, default; bolton), lcl (romps,

@@ -237,9 +237,9 @@ func TestTypedSettings(t *testing.T) {
       sst: sst.nc
       air_temperature: ta.nc
       cloud: clt.nc
-      surface_air_temp: tas.nc
+      surface_air_temperature: tas.nc
       surface_pressure: ps.nc
-      dew_point: tdps.nc
+      dew_point_temperature: tdps.nc
       specific_humidity: hus.nc
       land_fraction: lsm.nc
       sea_ice: siconc.nc

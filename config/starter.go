@@ -554,7 +554,7 @@ func (s *starter) surfaceSection(w func(string, ...any)) {
 		w("      humidity: %s%s", hum[0], note)
 	}
 	if s.has(cf.RoleSurfaceAir) {
-		w("      temperature: sst  # or air: the surface_air_temp input")
+		w("      temperature: sst  # or air: the surface_air_temperature input")
 	} else {
 		w("      temperature: sst")
 	}

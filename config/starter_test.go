@@ -154,7 +154,7 @@ func TestStarter(t *testing.T) {
 					field(cf.RoleSurfaceAir, "tas", byStd, grid2, monthly), field(cf.RoleSeaFraction, "sftof", byStd, grid2, "")),
 				report("hus.nc", 480, q),
 			}
-		}, true, []string{"humidity: relative_humidity", "pressure: field", "ectei: true", "max_fraction: 0.15", "or air: the surface_air_temp input", "from: sea_fraction", "mask: fraction"}, nil,
+		}, true, []string{"humidity: relative_humidity", "pressure: field", "ectei: true", "max_fraction: 0.15", "or air: the surface_air_temperature input", "from: sea_fraction", "mask: fraction"}, nil,
 			func(t *testing.T, r *config.Study) {
 				d := r.Datasets[0]
 				if !d.Metrics.ECTEI || !d.Metrics.PressureField || d.Surface.HumidityRole != cf.RoleRH || !d.SeaIce.Use || d.Ocean.Role != cf.RoleSeaFraction {

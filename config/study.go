@@ -303,7 +303,7 @@ type Surface struct {
 	// PressureRole is cf.RoleSurfacePres when surface pressure is a
 	// field, else empty (Metrics.SurfacePressure is used).
 	PressureRole cf.Role
-	// HumidityRole is the humidity input (relative_humidity, dew_point or
+	// HumidityRole is the humidity input (relative_humidity, dew_point_temperature or
 	// specific_humidity) when humidity is a field, else empty
 	// (Metrics.AssumedRH is used).
 	HumidityRole cf.Role

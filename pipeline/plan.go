@@ -67,7 +67,7 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	}
 	if d.Surface.TemperatureRole == cf.RoleSurfaceAir {
 		if p.SurfaceAir = opt(cf.RoleSurfaceAir); p.SurfaceAir == nil {
-			return p, fmt.Errorf("dataset %s: the metrics use surface air temperature but no surface_air_temp input is given", d.Name)
+			return p, fmt.Errorf("dataset %s: the metrics use surface air temperature but no surface_air_temperature input is given", d.Name)
 		}
 	}
 	p.SurfacePressure = opt(d.Surface.PressureRole)

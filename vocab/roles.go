@@ -6,7 +6,7 @@ package vocab
 const (
 	RoleSST                   = "sst"
 	RoleAirTemperature        = "air_temperature"
-	RoleSurfaceAirTemperature = "surface_air_temp"
+	RoleSurfaceAirTemperature = "surface_air_temperature"
 	RoleLowCloud              = "low_cloud"
 	RoleCloud                 = "cloud"
 	RoleTOASWUp               = "toa_sw_up"
@@ -15,7 +15,7 @@ const (
 	RoleSurfacePressure       = "surface_pressure"
 	RoleSeaLevelPressure      = "sea_level_pressure"
 	RoleRelativeHumidity      = "relative_humidity"
-	RoleDewPointTemperature   = "dew_point"
+	RoleDewPointTemperature   = "dew_point_temperature"
 	RoleSpecificHumidity      = "specific_humidity"
 	RoleSeaFraction           = "sea_fraction"
 	RoleLandFraction          = "land_fraction"

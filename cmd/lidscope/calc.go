@@ -70,12 +70,12 @@ func init() { addCommand(newCalcCmd) }
 func newCalcCmd(e *env) *cobra.Command {
 	o := calcOptions{Constants: metrics.DefaultConstants()}
 	cmd := &cobra.Command{
-		Use:   "calc (--sst TEMP | --surface-air-temp TEMP) --t700 TEMP [flags]",
+		Use:   "calc (--sst TEMP | --surface-air-temperature TEMP) --t700 TEMP [flags]",
 		Short: "compute LTS, EIS and their ingredients for one column",
 		Long: `Computes LTS, EIS and their ingredients for one column, printing every
 intermediate value with its unit and the metrics conventions used. Quantities take a unit
 (290K, 16.85degC, 1013hPa, 80%, 12g/kg); a bare number is in SI units
-(K, Pa, fraction, kg/kg). Without --relative-humidity, --dew-point or
+(K, Pa, fraction, kg/kg). Without --relative-humidity, --dew-point-temperature or
 --specific-humidity the near-surface relative humidity is assumed to be 0.8
 (--surface-humidity), and the output says so.
 
@@ -84,8 +84,8 @@ keys of the same settings (--svp bolton is conventions.svp: bolton, --surface-pr
 1013hPa is surface.pressure: 1013hPa, --lv-slope 2370 is conventions.constants.lv_slope:
 2370), so a column computed here uses what a study with the same keys uses.`,
 		Example: `  lidscope calc --sst 16.85degC --t700 282K
-  lidscope calc --sst 300K --t700 10.85degC --surface-pressure 1015hPa --dew-point 295K --t850 290K --q700 4g/kg --json
-  lidscope calc --surface-air-temp 289K --t700 281K --svp bolton --lcl bolton --lv-slope 2370`,
+  lidscope calc --sst 300K --t700 10.85degC --surface-pressure 1015hPa --dew-point-temperature 295K --t850 290K --q700 4g/kg --json
+  lidscope calc --surface-air-temperature 289K --t700 281K --svp bolton --lcl bolton --lv-slope 2370`,
 		Args: noArgs("calc takes no arguments, only flags"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.ECTEISet = cmd.Flags().Changed("ectei")
@@ -96,15 +96,15 @@ keys of the same settings (--svp bolton is conventions.svp: bolton, --surface-pr
 	fs.SortFlags = false
 	d := metrics.DefaultConventions()
 	textVar(fs, &o.SST, "sst", "", "TEMP", "sea surface temperature (role sst)")
-	textVar(fs, &o.SurfaceAirTemp, "surface-air-temp", "", "TEMP", "near-surface air temperature (role surface_air_temp), instead of or beside --sst")
+	textVar(fs, &o.SurfaceAirTemp, "surface-air-temperature", "", "TEMP", "near-surface air temperature (role surface_air_temperature), instead of or beside --sst")
 	textVar(fs, &o.T700, "t700", "", "TEMP", "temperature at 700 hPa (required)")
 	textVar(fs, &o.RH, "relative-humidity", "", "RH", "near-surface relative humidity over liquid water, 0.8 or 80% (role relative_humidity)")
-	textVar(fs, &o.DewPoint, "dew-point", "", "TEMP", "near-surface dew point (role dew_point)")
+	textVar(fs, &o.DewPoint, "dew-point-temperature", "", "TEMP", "near-surface dew point (role dew_point_temperature)")
 	textVar(fs, &o.SpecificHum, "specific-humidity", "", "Q", "near-surface specific humidity, kg/kg or g/kg (role specific_humidity)")
 	textVar(fs, &o.Q700, "q700", "", "Q", "specific humidity at 700 hPa; turns --ectei on unless it is given")
 	textVar(fs, &o.SurfaceTemperature, "surface-temperature", "", "sst|air", "which temperature is the surface's: sst or air (default: the one given, sst when both are)")
 	textVar(fs, &o.SurfacePressure, "surface-pressure", "1000hPa", "PRESSURE", "surface pressure")
-	textVar(fs, &o.SurfaceHumidity, "surface-humidity", calcDefaultRH, "RH|ROLE|field", "assumed near-surface relative humidity (0.8 or 80%), or the humidity input to use: relative_humidity, dew_point, specific_humidity or field")
+	textVar(fs, &o.SurfaceHumidity, "surface-humidity", calcDefaultRH, "RH|ROLE|field", "assumed near-surface relative humidity (0.8 or 80%), or the humidity input to use: relative_humidity, dew_point_temperature, specific_humidity or field")
 	textVar(fs, &o.SVP, "svp", d.SVP.String(), metrics.SVPMurphyKoop.String()+"|"+metrics.SVPBolton.String(), "saturation vapour pressure: murphy-koop or bolton")
 	textVar(fs, &o.LCL, "lcl", d.LCL.String(), metrics.LCLRomps.String()+"|"+metrics.LCLBolton.String()+"|"+metrics.LCLLinear.String(), "lifting condensation level: romps, bolton or linear")
 	textVar(fs, &o.T850, "t850", "mean", "mean|TEMP", "temperature at the lapse-rate level: mean ((T_surface + T700)/2) or its value, e.g. 288K")
@@ -184,7 +184,7 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 		source            metrics.HumiditySource
 	}{
 		{"relative-humidity", "relative_humidity", o.RH, units.Fraction, metrics.HumidityRH},
-		{"dew-point", "dew_point", o.DewPoint, units.Temperature, metrics.HumidityDewPoint},
+		{"dew-point-temperature", "dew_point_temperature", o.DewPoint, units.Temperature, metrics.HumidityDewPoint},
 		{"specific-humidity", "specific_humidity", o.SpecificHum, units.MixingRatio, metrics.HumiditySpecific},
 	}
 	var flags []string
@@ -196,7 +196,7 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 		}
 	}
 	if len(flags) > 1 {
-		return usageErr("give one of --relative-humidity, --dew-point and --specific-humidity, not several (%s)", strings.Join(flags, ", "))
+		return usageErr("give one of --relative-humidity, --dew-point-temperature and --specific-humidity, not several (%s)", strings.Join(flags, ", "))
 	}
 	choice := o.SurfaceHumidity
 	named := -1
@@ -212,7 +212,7 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 		}
 	case choice == "field":
 		if use < 0 {
-			return usageErr("--surface-humidity field needs a humidity value: give --relative-humidity, --dew-point or --specific-humidity")
+			return usageErr("--surface-humidity field needs a humidity value: give --relative-humidity, --dew-point-temperature or --specific-humidity")
 		}
 	case use >= 0 && choice != "" && choice != calcDefaultRH:
 		return usageErr("--surface-humidity %s assumes a relative humidity, and --%s gives one: give one of them", choice, given[use].flag)
@@ -223,11 +223,11 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 		}
 		rh, _, err := units.ParseQuantity(units.Fraction, choice)
 		if err != nil || !(rh > 0 && rh <= 1) {
-			return usageErr("--surface-humidity %q: give an assumed relative humidity in (0, 1] (0.8 or 80%%), or relative_humidity, dew_point, specific_humidity or field", choice)
+			return usageErr("--surface-humidity %q: give an assumed relative humidity in (0, 1] (0.8 or 80%%), or relative_humidity, dew_point_temperature, specific_humidity or field", choice)
 		}
 		r.Humidity = metrics.HumidityAssumedRH
 		r.AssumedRH = rh
-		rep.Assumptions = append(rep.Assumptions, fmt.Sprintf("near-surface relative humidity %g assumed (--surface-humidity; no --relative-humidity, --dew-point or --specific-humidity given)", rh))
+		rep.Assumptions = append(rep.Assumptions, fmt.Sprintf("near-surface relative humidity %g assumed (--surface-humidity; no --relative-humidity, --dew-point-temperature or --specific-humidity given)", rh))
 		return nil
 	}
 	g := given[use]
@@ -269,11 +269,11 @@ func runCalc(o calcOptions, w io.Writer) error {
 	rep := calcReport{Inputs: map[string]calcQuantity{}}
 	in := metrics.ColumnInput{}
 
-	// surface temperature: surface.temperature, from --sst or --surface-air-temp
+	// surface temperature: surface.temperature, from --sst or --surface-air-temperature
 	which := o.SurfaceTemperature
 	switch {
 	case o.SST == "" && o.SurfaceAirTemp == "":
-		return usageErr("give the surface temperature with --sst (sea surface) or --surface-air-temp (near-surface air)")
+		return usageErr("give the surface temperature with --sst (sea surface) or --surface-air-temperature (near-surface air)")
 	case which == "" && o.SST != "":
 		which = metrics.SurfaceSST.String()
 	case which == "":
@@ -285,7 +285,7 @@ func runCalc(o calcOptions, w io.Writer) error {
 		r.Surface = metrics.SurfaceSST
 	case metrics.SurfaceAir.String():
 		r.Surface = metrics.SurfaceAir
-		flag, s = "surface-air-temp", o.SurfaceAirTemp
+		flag, s = "surface-air-temperature", o.SurfaceAirTemp
 	default:
 		return usageErr("--surface-temperature: %q is not sst or air", o.SurfaceTemperature)
 	}
@@ -378,7 +378,7 @@ func runCalc(o calcOptions, w io.Writer) error {
 	add("theta_surface", res.ThetaSurface, "K", fmt.Sprintf("potential temperature at the surface (%v at %g hPa)", r.Surface, res.SurfacePressure/100))
 	add("lts", res.LTS, "K", "lower-tropospheric stability θ700 − θ_surface (Klein & Hartmann 1993)")
 	add("rh_surface", res.RH, "1", "near-surface relative humidity over liquid water used for the LCL")
-	add("dew_point", res.DewPoint, "K", "near-surface dew point")
+	add("dew_point_temperature", res.DewPoint, "K", "near-surface dew point")
 	add("lcl", res.LCL, "m", fmt.Sprintf("lifting condensation level above the surface (%v)", r.LCL))
 	add("z700", res.Z700, "m", "height of 700 hPa above the surface (hypsometric)")
 	add("t850", res.T850, "K", "temperature where the lapse rates are evaluated, at "+lp)
@@ -418,7 +418,7 @@ var calcInputOrder = []struct{ key, label string }{
 	{"t700", "T700"},
 	{"surface_pressure", "surface pressure"},
 	{"relative_humidity", "relative humidity"},
-	{"dew_point", "dew point"},
+	{"dew_point_temperature", "dew point"},
 	{"specific_humidity", "specific humidity"},
 	{"t850", "T at lapse level"},
 	{"q700", "q700"},
