@@ -187,7 +187,7 @@ func (f *fig) comparisonMapPage(variable, specName string, ref, cand *Run) (*pag
 	bw := bodyWidth()
 	aspect := (w.north - w.south) / w.span
 	const bar = 0.11 * vg.Inch
-	barBlock := 0.16*vg.Inch + colourBarHeight(bar)
+	barBlock := 0.16*vg.Inch + colourBarHeight(bar) + 0.14*vg.Inch // gap: the bar label must not touch the next panel title
 	var plots []*plot.Plot
 	var ph, pw vg.Length
 	for _, pn := range panels {
@@ -343,14 +343,21 @@ func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
 	for i, e := range spec {
 		lbl := e.Name
 		if i := strings.Index(e.Name, "_on_"); i >= 0 && e.Kind == "slope" {
-			lbl = "slope on " + strings.ToUpper(e.Name[i+4:])
+			lbl = "slope on " + predictorLabel(e.Name[i+4:])
 		} else if i := strings.Index(e.Name, "_partial_"); i >= 0 {
-			lbl = "partial " + strings.Replace(e.Name[i+9:], "_given_", " | ", 1)
+			// low_cloud_partial_eis_given_sst: the partial slope on EIS
+			// with SST held fixed.
+			on, given, ok := strings.Cut(e.Name[i+9:], "_given_")
+			if ok {
+				lbl = "partial on " + predictorLabel(on) + ", " + predictorLabel(given) + " fixed"
+			} else {
+				lbl = "partial on " + predictorLabel(on)
+			}
 		}
 		ticks = append(ticks, plot.Tick{Value: float64(i), Label: lbl})
 	}
 	p.X.Tick.Marker = plot.ConstantTicks(ticks)
-	p.X.Label.Text = f.t("Sensitivity of " + cloudResponseOf(res) + " (subsidence regime, tropical band, whole record)")
+	p.X.Label.Text = f.t("Sensitivity of the " + lowerFirst(responseLabel(cloudResponseOf(res))) + " (subsidence regime, tropical band, whole record)")
 	u, _ := displayUnits(spec[0].Units)
 	p.Y.Label.Text = f.t("Sensitivity (" + u + "), 95 % interval")
 	p.Legend.Top, p.Legend.Left = true, false

@@ -276,6 +276,17 @@ func (n note) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 }
 
+// slopeUnitsNote explains, when the response axis is drawn in % but the
+// printed slope keeps the units of the output files (a fraction 0–1 per
+// predictor unit), how the two relate, so a reader does not take the slope
+// as % per K.
+func slopeUnitsNote(rf float64, pu string) string {
+	if rf != 100 {
+		return ""
+	}
+	return fmt.Sprintf(", in the units of the output files (fraction 0–1 per %s; ×100 gives %% per %s as on the axis)", pu, pu)
+}
+
 func (f *fig) relationPage(pred string) (*page, error) {
 	res := f.run.relations
 	bs, _ := pickBinned(res, pred)
@@ -310,7 +321,7 @@ func (f *fig) relationPage(pred string) (*page, error) {
 	for k, b := range bs {
 		p := f.newPlot()
 		p.Add(lightGrid())
-		p.Title.Text = f.t(b.Regime.String() + " regime")
+		p.Title.Text = f.t(upperFirst(b.Regime.String()) + " regime")
 		setTitleStyle(p, f.bold(sizeLabel))
 		p.X.Label.Text = f.t(fmt.Sprintf("%s (%s)", predictorLabel(pred), pu))
 		if k == 0 {
@@ -370,7 +381,7 @@ func (f *fig) relationPage(pred string) (*page, error) {
 	bw := bodyWidth()
 	title := fmt.Sprintf("%s against %s per regime (tropical band, %s)", responseLabel(resp), predictorLabel(pred), modeText(res))
 	head := f.header(title, bw)
-	key := textBlock{wrap(f.t("Points: bin means with 95 % intervals (Student t, N_eff − 1 dof). Line and band: area-weighted least squares with its 95 % confidence band; slope ± 95 % interval. Grey bars: samples per bin (tallest "+
+	key := textBlock{wrap(f.t("Points: bin means with 95 % intervals (Student t, N_eff − 1 dof). Line and band: area-weighted least squares with its 95 % confidence band; slope ± 95 % interval"+slopeUnitsNote(rf, pu)+". Grey bars: samples per bin (tallest "+
 		fmt.Sprintf("%d", int64(nmax))+" cell-steps)."), withColour(style(sizeFooter+0.5, false), subtleColour), bw), withColour(style(sizeFooter+0.5, false), subtleColour)}
 	const panelH = 2.6 * vg.Inch
 	pg := &page{header: head, footer: f.footer(bw), bodyH: panelH + 6 + key.height()}

@@ -210,11 +210,21 @@ func (f *fig) jointPage() (*page, error) {
 	return pg, nil
 }
 
+// lowerFirst lower-cases the first letter of a label for use inside a
+// sentence; a label that starts with an acronym (EIS, LTS, TOA) is kept.
 func lowerFirst(s string) string {
+	if s == "" || (len(s) > 1 && s[1] >= 'A' && s[1] <= 'Z') {
+		return s
+	}
+	return strings.ToLower(s[:1]) + s[1:]
+}
+
+// upperFirst capitalises the first letter of a panel title.
+func upperFirst(s string) string {
 	if s == "" {
 		return s
 	}
-	return string(s[0]|0x20) + s[1:]
+	return strings.ToUpper(s[:1]) + s[1:]
 }
 
 func (f *fig) flipsPage() (*page, error) {
