@@ -24,6 +24,7 @@ type compareOptions struct {
 	Force         bool
 	AllowMismatch bool
 	NoPlots       bool
+	NoCoastlines  bool // leave Earth\'s coastlines off the maps (synthetic worlds)
 	Set           setFlags
 	Log           logOptions
 }
@@ -59,6 +60,7 @@ first into DIR/NAME and the first dataset (or --reference NAME) is the reference
 	addForce(fs, &o.Force, "replace existing results")
 	fs.BoolVar(&o.AllowMismatch, "allow-mismatch", false, "compare runs made with different studies, periods or regime definitions (every mismatch is listed)")
 	addNoPlots(fs, &o.NoPlots, "do not draw the comparison figures")
+	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")
 	addSet(fs, o.Set, "with a study: override a study key, KEY=VALUE (repeatable)")
 	o.Log.register(fs)
 	return cmd
@@ -69,7 +71,7 @@ func runCompare(ctx context.Context, o compareOptions, stdout, stderr io.Writer)
 	if err != nil {
 		return err
 	}
-	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log, NoPlots: o.NoPlots}, AllowMismatch: o.AllowMismatch}
+	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines}, AllowMismatch: o.AllowMismatch}
 	var res *compare.Result
 	var files []string
 	if fi, err := os.Stat(o.Args[0]); err == nil && !fi.IsDir() && len(o.Args) == 1 {

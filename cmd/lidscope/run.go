@@ -17,16 +17,17 @@ func init() { addCommand(newRunCmd) }
 
 // runOptions are the options of `lidscope run`.
 type runOptions struct {
-	Study    string
-	Datasets []string
-	Out      string
-	Force    bool
-	NoPlots  bool
-	Workers  int
-	Set      setFlags
-	Log      logOptions
-	Progress bool // draw a progress line (terminal only)
-	Profile  profileOptions
+	Study        string
+	Datasets     []string
+	Out          string
+	Force        bool
+	NoPlots      bool
+	NoCoastlines bool // leave Earth\'s coastlines off the maps (synthetic worlds)
+	Workers      int
+	Set          setFlags
+	Log          logOptions
+	Progress     bool // draw a progress line (terminal only)
+	Profile      profileOptions
 	// MemoryBudget, when set, overrides the study's limits.memory_budget.
 	MemoryBudget byteSize
 }
@@ -58,6 +59,7 @@ into the folder --out (default: the study's output.dir/DATASET).`,
 	addOutDir(fs, &o.Out, "", "folder for the results (default: the study's output.dir/DATASET)")
 	addForce(fs, &o.Force, "replace existing results")
 	addNoPlots(fs, &o.NoPlots, "do not draw figures")
+	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")
 	addWorkers(fs, &o.Workers)
 	addSet(fs, o.Set, "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
 	addMemoryBudget(fs, &o.MemoryBudget)
@@ -87,7 +89,7 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 	if err != nil {
 		return err
 	}
-	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}
+	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines, Workers: o.Workers, Log: log}
 	if o.Progress {
 		opt.Progress = progressLine(stderr)
 	}
