@@ -30,19 +30,19 @@
 //
 // Variables, all over (time, lat, lon) or (time, regime, lat, lon):
 //
-//   - convective_fraction, transition_fraction, subsidence_fraction (1):
+//   - convective_time_fraction, transition_time_fraction,
+//     subsidence_time_fraction (1):
 //     the fraction of the column's valid time steps (ocean, data present) in
 //     each regime; NaN (fill) where the column was never valid.
-//   - crossings_per_year (yr-1): convective↔subsidence crossings per year of
+//   - crossing_rate (yr-1): convective↔subsidence crossings per year of
 //     record (record length = steps / Meta.StepsPerYear); the UDUNITS-2 yr is
 //     the tropical year, 365.242198781 days (udunits2-common.xml).
-//   - dwell_convective, dwell_subsidence (1): mean run length in the regime
-//     in time steps (regimes.Track.MeanDwell: runs cut off by the ends of the
-//     record included). When Meta.StepsPerYear is 12 the same values are
-//     also written as dwell_convective_months and dwell_subsidence_months
-//     with units "month" (UDUNITS-2: a twelfth of a year), so that tools
-//     that convert units see a duration. Steps are the primary variable
-//     because their meaning does not depend on the cadence.
+//   - convective_dwell, subsidence_dwell: mean run length in the regime
+//     (regimes.Track.MeanDwell: runs cut off by the ends of the record
+//     included), in units "month" (UDUNITS-2: a twelfth of a year) when
+//     Meta.StepsPerYear is 12, else in time steps (units "1", with
+//     sampling_frequency saying how long a step is). The unit is in the
+//     units attribute, never in the name.
 //   - valid_steps (int): time steps in which the column was valid.
 //   - rel_sst_mean, rel_sst_std (K): time mean and population standard
 //     deviation of SST − tropical-mean SST over the valid steps.
@@ -73,8 +73,10 @@
 // Global attributes (both NetCDF files) besides those cfwrite writes
 // (Conventions, title, source, history from Meta.Command and Meta.End):
 // dataset, lidscope_version, study_hash, metrics_conventions, regime_definition,
-// delta_K, transition_half_width_K, band, period, time_steps,
-// time_steps_per_year, regime_index, input_files, processing_notes,
+// the regime definition's attributes (regimes.Definition.Attributes:
+// regime_rule, delta or percentile, half_width, band [south, north], each
+// number typed with its units in NAME_units), period, time_steps (int),
+// sampling_frequency (yr-1), regime_index, input_files, processing_notes,
 // quantities (the per-column quantities the run has, space-separated) and
 // absent_quantities (what it lacks for want of an optional input: without
 // air_temperature there is no t700, lts, eis; without low_cloud or cloud no
@@ -93,44 +95,45 @@
 // series.csv has a header row whose columns carry their units in brackets,
 // "name [units]": label, year, month, time [Meta.TimeUnits], date (the time
 // value decoded in Meta.Calendar, ISO 8601), tropical_mean_sst [K],
-// area_fraction_R [1] and q_band_mean_R [units] for each regime R in the
+// R_area_fraction [1] and R_q_band_mean [units] for each regime R in the
 // order convective, transition, subsidence. Numbers are the shortest text
 // that reads back to the same float64; missing values are NaN.
 //
 // # regions.csv
 //
 // One row per region and regime: region, regime, the box (south, north
-// [degrees_north], west, east [degrees_east]), area_time_share [1] (the
-// regime's share of the region's valid area × time), region_rel_sst_mean
-// and region_rel_sst_std [K] (area-weighted over the region and all
+// [degrees_north], west, east [degrees_east]), area_time_fraction [1] (the
+// regime's share of the region's valid area × time), rel_sst_mean
+// and rel_sst_std [K] (area-weighted over the region and all
 // regimes, repeated on each of its rows), and for every quantity q_mean,
 // q_std (area-weighted population standard deviation over cells and steps)
-// and q_n [1] (number of cell-steps).
+// and q_count [1] (number of cell-steps).
 //
 // # summary.json
 //
-// An object with "format": "lidscope-summary" and "format_version": 2.
+// An object with "format": "lidscope-summary" and "format_version": 3.
 // Every number is written as {"value": x, "units": "K"} ("value": null for
 // no data; counts have units "1"). A statistic over a sample is
-// {"mean": N, "std": N, "n": N} with those numbers; std is the population
+// {"mean": N, "std": N, "count": N} with those numbers; std is the population
 // standard deviation. Keys:
 //
 //   - dataset, title, lidscope_version, study_hash (strings);
-//   - period: label, first and last {label, date, time}, steps,
-//     steps_per_year, calendar;
-//   - regime_definition: text, delta, half_width, band {south, north},
-//     netcdf_regime_index;
-//   - band_convective_area_fraction, band_area_fraction.{convective,
-//     transition, subsidence}, tropical_mean_sst: statistics over the time
+//   - period: label, first and last {label, date, time}, time_steps,
+//     sampling_frequency, calendar;
+//   - regime_definition: text, rule, delta (null for the percentile rule),
+//     half_width, percentile (null for the relative_sst rule), band
+//     {south, north}, regime_index;
+//   - area_fraction.{convective, transition, subsidence},
+//     tropical_mean_sst: statistics over the time
 //     steps (steps without valid band ocean left out);
-//   - band_regime_means.Q.R: the mean over the band and the record of
+//   - band_mean.Q.R: the mean over the band and the record of
 //     quantity Q in regime R, each column's values weighted by its area
 //     inside the band (Σ w x / Σ w over columns and steps in the regime);
-//     std and n over the same cell-steps;
-//   - crossings_per_year: mean, the band-area-weighted mean over the columns
+//     std and count over the same cell-steps;
+//   - crossing_rate: mean, the band-area-weighted mean over the columns
 //     inside the band that were ever valid ocean, and cells, their number;
 //   - regions: [{name, box {south, north, west, east}, rel_sst,
-//     regimes.R {area_time_share, quantities.Q}}];
+//     regimes.R {area_time_fraction, quantities.Q}}];
 //   - notes: what the run converted or dropped, in plain words;
 //   - quantities and absent_quantities: as the NetCDF attributes, as lists.
 //

@@ -218,16 +218,17 @@
 //     names), season (all DJF MAM JJA SON) and regime (0 convective,
 //     1 transition, 2 subsidence), a bin axis P_bin with bounds per
 //     predictor, and omega_bin (hPa d-1). Variables R_vs_P_mean, _std,
-//     _stderr (response units), _neff (1), _count (int), _area (m2) over
+//     _stderr (response units), _n_eff (1), _count (int), _area (m2) over
 //     (domain, season, regime, P_bin); rel_sst_eis_frequency,
 //     rel_sst_eis_count and R_vs_rel_sst_eis_mean over (domain, season,
 //     rel_sst_bin, eis_bin); omega_frequency, omega_pdf (d hPa-1),
 //     omega_count, R_vs_omega_mean and R_vs_omega_std over (domain,
 //     season, omega_bin). Empty bins are _FillValue. Global attributes:
-//     relations_mode, relations_mode_description, detrended,
-//     regime_definition, uncertainty_method, relations_config (Text),
-//     period, time_steps, regime_index, dataset, lidscope_version,
-//     study_hash; every variable also has relations_mode.
+//     relationships_mode, relationships_mode_description, detrended (byte
+//     1/0), regime_definition, uncertainty_method, relationships_config
+//     (Text), period, time_steps (int), regime_index, dataset,
+//     lidscope_version, study_hash; every variable also has
+//     relationships_mode. All names come from package vocab.
 //   - regressions.csv: one row per simple regression (kind "simple") and
 //     two per two-predictor fit (kind "partial": the coefficient of
 //     predictor with controls held fixed); columns with units in brackets,
