@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"sort"
@@ -61,11 +62,11 @@ func Load(path string, opt LoadOptions) (*Study, error) {
 		return nil, err
 	}
 	if err := cf.CheckRegular(path); err != nil { // a FIFO would block the read
-		return nil, fmt.Errorf("reading study: %w", err)
+		return nil, readErr(path, err)
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("reading study: %w", err)
+		return nil, readErr(path, err)
 	}
 	return load(path, filepath.Dir(path), format, src, opt)
 }
@@ -260,4 +261,13 @@ func expand(dir string, patterns []string, key, dataset, role string, w *where, 
 	}
 	sort.Strings(files)
 	return files, probs
+}
+
+// readErr words a study that cannot be read; a missing one is told what to
+// give instead.
+func readErr(path string, err error) error {
+	if errors.Is(err, fs.ErrNotExist) {
+		return fmt.Errorf("study %s does not exist: give the path of a study file (lidscope study init FILE... --output %s writes a starter): %w", path, path, err)
+	}
+	return fmt.Errorf("reading study: %w", err)
 }

@@ -84,6 +84,14 @@ func Open(dir string, need ...string) (_ *Folder, err error) {
 				e.Missing = append(e.Missing, n)
 			}
 		}
+		switch {
+		case exists(filepath.Join(dir, "comparison.json")):
+			// A comparison folder is not a run: "run it again" would mislead.
+			e.Reason = "it holds a comparison (comparison.json), not a run: give the folder of a finished run; lidscope compare draws the comparison figures when it writes them"
+		case len(need) > 0 && len(e.Missing) == 1+len(need):
+			// None of a run's files: a data folder, or a typo.
+			e.Reason = "it holds none of a run's files: give the folder a finished lidscope run wrote (its --out, or the study's output.dir/DATASET)"
+		}
 		return nil, e
 	}
 	e := &IncompleteError{Dir: dir, Reason: "the folder was changed after its run was committed; run it again"}
@@ -166,4 +174,10 @@ func Leftovers(dir string) []string {
 		}
 	}
 	return out
+}
+
+// exists reports whether path names something on disk.
+func exists(path string) bool {
+	_, err := os.Lstat(path)
+	return err == nil
 }

@@ -264,6 +264,16 @@ func TestOpenRefusesIncompleteFolders(t *testing.T) {
 		{mk("truncated", func(d string) { os.WriteFile(filepath.Join(d, "maps.nc"), []byte("ma"), 0o644) }), nil, []string{"changed since the run: maps.nc (2 bytes, the run wrote 4)"}},
 		{mk("notrun", func(string) {}), []string{"run-state.gob"}, []string{"missing: run-state.gob", "did not write"}},
 		{mk("damaged", func(d string) { os.WriteFile(filepath.Join(d, ManifestFile), []byte("{"), 0o644) }), nil, []string{ManifestFile + " is damaged"}},
+		// A data folder or a comparison folder given where a run belongs is
+		// told so, not to "run it again".
+		{func() string { d := filepath.Join(dir, "data"); os.MkdirAll(d, 0o755); return d }(),
+			[]string{"maps.nc", "summary.json"}, []string{"missing: " + ManifestFile + ", maps.nc, summary.json", "none of a run's files"}},
+		{func() string {
+			d := filepath.Join(dir, "comparison")
+			os.MkdirAll(d, 0o755)
+			os.WriteFile(filepath.Join(d, "comparison.json"), []byte("{}"), 0o644)
+			return d
+		}(), []string{"maps.nc"}, []string{"holds a comparison (comparison.json), not a run"}},
 	} {
 		_, err := Open(c.dir, c.need...)
 		for _, w := range c.want {

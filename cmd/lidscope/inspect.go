@@ -41,7 +41,7 @@ status 1 when a file cannot be used.`,
 		},
 	}
 	cmd.Flags().BoolVar(&o.JSON, "json", false, "write the report as JSON")
-	addMemoryBudget(cmd.Flags(), &o.MemoryBudget)
+	addInspectMemoryBudget(cmd.Flags(), &o.MemoryBudget)
 	return cmd
 }
 

@@ -28,7 +28,14 @@ func (b *byteSize) Set(s string) error {
 
 func (b *byteSize) Type() string { return "SIZE" }
 
-// addMemoryBudget declares --memory-budget.
+// addMemoryBudget declares --memory-budget (run: a time step or a run's
+// per-column arrays; the study's limits.memory_budget is the default).
 func addMemoryBudget(fs *pflag.FlagSet, p *byteSize) {
 	fs.Var(p, "memory-budget", "refuse an input whose time step, or a run whose per-column arrays, need more memory than SIZE, e.g. 4GiB (default: the study's limits.memory_budget, else a quarter of the machine's memory, at most 8 GiB)")
+}
+
+// addInspectMemoryBudget declares inspect's --memory-budget: inspect reads
+// no study, so only the time-step bound and the machine default apply.
+func addInspectMemoryBudget(fs *pflag.FlagSet, p *byteSize) {
+	fs.Var(p, "memory-budget", "report, without reading it, a field whose time step needs more memory than SIZE, e.g. 4GiB (default: a quarter of the machine's memory, at most 8 GiB)")
 }
