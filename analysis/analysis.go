@@ -48,7 +48,14 @@ type Options struct {
 	// synthetic worlds have invented continents).
 	NoCoastlines bool
 	Workers      int
-	Log          *slog.Logger
+	// Piece, unless whole, runs only that contiguous piece of each
+	// dataset's selected record (pipeline.Piece); a piece whose folder
+	// already holds the committed run of the same piece, study and
+	// unchanged inputs is skipped (Report.Skipped) unless Force.
+	Piece pipeline.Piece
+	// Batch describes the batch job running this (recorded in provenance).
+	Batch []string
+	Log   *slog.Logger
 	// Progress, when set, is told about each dataset's time steps.
 	Progress func(dataset string, done, total int)
 }
@@ -63,40 +70,58 @@ type Report struct {
 	// Relations are the relationship results (of the merged accumulators
 	// for a merged run).
 	Relations *relations.Results
+	// Skipped, when set, says why the run was not done: its folder already
+	// holds it (Result and Relations are then nil, Meta is the earlier run's).
+	Skipped string
 }
 
 // Run runs the named datasets of r (all when names is empty), in study order.
 func Run(ctx context.Context, r *config.Study, names []string, opt Options) ([]Report, error) {
-	var ds []*config.Dataset
-	if len(names) == 0 {
-		for i := range r.Datasets {
-			ds = append(ds, &r.Datasets[i])
-		}
-	} else {
-		for _, n := range names {
-			d, err := r.Dataset(n)
-			if err != nil {
-				return nil, err
-			}
-			ds = append(ds, d)
-		}
+	ds, err := Datasets(r, names)
+	if err != nil {
+		return nil, err
 	}
 	var reps []Report
 	for _, d := range ds {
-		out := d.OutputDir
-		if opt.OutDir != "" {
-			out = opt.OutDir
-			if len(ds) > 1 {
-				out = filepath.Join(opt.OutDir, d.Name)
-			}
-		}
-		rep, err := RunDataset(ctx, r, d, out, opt)
+		rep, err := RunDataset(ctx, r, d, OutDirFor(d, opt.OutDir, len(ds) > 1), opt)
 		if err != nil {
 			return reps, fmt.Errorf("dataset %s: %w", d.Name, err)
 		}
 		reps = append(reps, rep)
 	}
 	return reps, nil
+}
+
+// Datasets returns the named datasets of r (all when names is empty), in
+// study order.
+func Datasets(r *config.Study, names []string) ([]*config.Dataset, error) {
+	var ds []*config.Dataset
+	if len(names) == 0 {
+		for i := range r.Datasets {
+			ds = append(ds, &r.Datasets[i])
+		}
+		return ds, nil
+	}
+	for _, n := range names {
+		d, err := r.Dataset(n)
+		if err != nil {
+			return nil, err
+		}
+		ds = append(ds, d)
+	}
+	return ds, nil
+}
+
+// OutDirFor is the run folder of dataset d: the study's output folder of
+// d, or outDir when set (outDir/<dataset name> when several datasets run).
+func OutDirFor(d *config.Dataset, outDir string, several bool) string {
+	switch {
+	case outDir == "":
+		return d.OutputDir
+	case several:
+		return filepath.Join(outDir, d.Name)
+	}
+	return outDir
 }
 
 // Outcome is one dataset's finished analysis, not yet written: what
@@ -125,6 +150,12 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 	plan, err := pipeline.PlanFor(r, d)
 	if err != nil {
 		return Report{}, err
+	}
+	if !opt.Piece.Whole() && !opt.Force {
+		if meta, ok := donePiece(out, r, plan, opt.Piece); ok {
+			return Report{Dataset: d.Name, OutDir: out, Meta: meta,
+				Skipped: fmt.Sprintf("piece %s of dataset %s is already complete in %s (same study and unchanged inputs); skipped", opt.Piece, d.Name, out)}, nil
+		}
 	}
 	st, err := CreateFolder(out, opt, estimateOutputs(plan))
 	if err != nil {
@@ -190,6 +221,7 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	}
 	start := time.Now()
 	plan.Workers = opt.Workers
+	plan.Piece = opt.Piece
 	plan.Log = log
 	if opt.Progress != nil {
 		plan.Progress = func(done, total int) { opt.Progress(d.Name, done, total) }
@@ -244,6 +276,10 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		return nil, err
 	}
 	meta.Absent = plan.Lacks()
+	if !opt.Piece.Whole() {
+		meta.Piece = opt.Piece.String()
+	}
+	meta.Batch = opt.Batch
 	var relRes *relations.Results
 	if rel != nil {
 		if relRes, err = rel.Results(); err != nil {

@@ -11,6 +11,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -18,6 +19,7 @@ import (
 
 	"lidscope/accumulate"
 	"lidscope/output"
+	"lidscope/pipeline"
 	"lidscope/relations"
 	"lidscope/runfolder"
 )
@@ -226,6 +228,30 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 	if len(dirs) < 2 {
 		return Report{}, fmt.Errorf("give at least two run folders to merge")
 	}
+	// The output folder first: locked, and refused when it holds results
+	// (without --force), before the pieces are read.
+	st, err := CreateFolder(out, opt, 0)
+	if err != nil {
+		return Report{}, err
+	}
+	defer st.Close()
+	return MergeInto(ctx, st, dirs, opt, nil)
+}
+
+// MergeAs makes a merge of the pieces of one run (lidscope run --jobs)
+// look like that run: its study and hash, its command, its notes, and
+// its figures.
+type MergeAs struct {
+	Study, StudyHash string
+	Plots            bool   // draw the figures (unless opt.NoPlots)
+	Note             string // replaces the note naming the merged folders
+}
+
+// MergeInto merges the runs in dirs (see Merge) into the staged run
+// folder st and commits it. With as, the merged run is presented as one
+// run (MergeAs).
+func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Options, as *MergeAs) (Report, error) {
+	out := st.Target()
 	type run struct {
 		dir  string
 		meta output.Meta
@@ -234,13 +260,6 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 		// noRel: the run has no relationship analysis, and why
 		noRel string
 	}
-	// The output folder first: locked, and refused when it holds results
-	// (without --force), before the pieces are read.
-	st, err := CreateFolder(out, opt, 0)
-	if err != nil {
-		return Report{}, err
-	}
-	defer st.Close()
 	var runs []run
 	var problems []string
 	for _, d := range dirs {
@@ -294,6 +313,11 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 			problems = append(problems, fmt.Sprintf("periods overlap: %s (%s) and %s (%s)", p.dir, p.meta.Period, q.dir, q.meta.Period))
 			continue
 		}
+		if consecutivePieces(p.meta.Piece, q.meta.Piece) {
+			// pieces K and K+1 of one selected record: what lies between
+			// them was not selected (e.g. the months outside a season)
+			continue
+		}
 		if missing, ok := gapBetween(p.meta, q.meta); ok {
 			gaps = append(gaps, fmt.Sprintf("%s ends at %s and %s starts at %s (about %d time steps missing)",
 				p.dir, lastOf(p.meta.Period), q.dir, firstOf(q.meta.Period), missing))
@@ -336,13 +360,17 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 		} else {
 			meta.TimeBounds = nil
 		}
-		meta.Inputs = append(meta.Inputs, r.meta.Inputs...)
-		meta.Notes = append(meta.Notes, r.meta.Notes...)
+		meta.Inputs = appendNew(meta.Inputs, r.meta.Inputs...)
+		meta.Notes = appendNew(meta.Notes, r.meta.Notes...)
 		if r.meta.Start.Before(meta.Start) {
 			meta.Start = r.meta.Start
 		}
 	}
-	meta.Notes = append(meta.Notes, fmt.Sprintf("merged from %d runs: %s", len(runs), strings.Join(dirs, ", ")))
+	if as != nil && as.Note != "" {
+		meta.Notes = append(meta.Notes, as.Note)
+	} else {
+		meta.Notes = append(meta.Notes, fmt.Sprintf("merged from %d runs: %s", len(runs), strings.Join(dirs, ", ")))
+	}
 	for _, g := range gaps {
 		meta.Notes = append(meta.Notes, "merged across a gap in the record (--allow-gaps): "+g)
 	}
@@ -350,6 +378,11 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 	meta.Study = strings.Join(studies, "\n")
 	sum := sha256.Sum256([]byte(strings.Join(hashes, "+")))
 	meta.StudyHash = hex.EncodeToString(sum[:])
+	if as != nil {
+		meta.Study, meta.StudyHash = as.Study, as.StudyHash
+	}
+	meta.Piece = ""
+	meta.Batch = opt.Batch
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()
@@ -363,7 +396,7 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
 		}
 	}
-	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel}
+	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel, Plots: as != nil && as.Plots}
 	files, err := WriteRun(ctx, st, o, opt)
 	if err != nil {
 		return Report{}, err
@@ -372,6 +405,24 @@ func MergeContext(ctx context.Context, dirs []string, out string, opt Options) (
 		return Report{}, err
 	}
 	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
+}
+
+// consecutivePieces reports whether a and b are pieces K/N and K+1/N.
+func consecutivePieces(a, b string) bool {
+	pa, err1 := pipeline.ParsePiece(a)
+	pb, err2 := pipeline.ParsePiece(b)
+	return a != "" && b != "" && err1 == nil && err2 == nil && pa.N == pb.N && pa.K > 0 && pb.K == pa.K+1
+}
+
+// appendNew appends the elements of add that dst does not hold yet (the
+// notes and inputs each piece repeats).
+func appendNew[T comparable](dst []T, add ...T) []T {
+	for _, x := range add {
+		if !slices.Contains(dst, x) {
+			dst = append(dst, x)
+		}
+	}
+	return dst
 }
 
 // gapBetween reports whether time steps are missing between the end of

@@ -51,6 +51,12 @@ type Meta struct {
 	// … Dec.
 	Climatology bool
 	Grid        *grid.Grid // analysis grid (bounds for the NetCDF)
+	// Piece is "K/N" for a run over the K-th of N pieces of the record
+	// ("" for a whole record or a merge).
+	Piece string
+	// Batch describes the batch job that ran it (e.g. "slurm job 123,
+	// array task 4"), one line each; empty outside a batch scheduler.
+	Batch []string
 }
 
 // InputFile identifies one file the run read.

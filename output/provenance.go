@@ -44,6 +44,10 @@ type provRun struct {
 	Start    string `json:"start"`
 	End      string `json:"end"`
 	Duration num    `json:"duration"`
+	// Piece is K/N for a run over one piece of the record.
+	Piece string `json:"piece,omitempty"`
+	// Batch names the batch jobs that ran it.
+	Batch []string `json:"batch,omitempty"`
 }
 
 type provHost struct {
@@ -84,7 +88,7 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 		Study:              provStudy{Text: m.Study, SHA256: m.StudyHash},
 		MetricsConventions: m.MetricsConventions,
 		Inputs:             []provInput{},
-		Run:                provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}},
+		Run:                provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}, Piece: m.Piece, Batch: m.Batch},
 		Host: provHost{OS: runtime.GOOS, Arch: runtime.GOARCH, GoVersion: runtime.Version(),
 			CPUs: jsonnum.Count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
 		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: jsonnum.Count(len(c.acc.Series)), Bounds: "none"},

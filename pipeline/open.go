@@ -210,6 +210,9 @@ func openInputs(p *Plan) (in *inputs, err error) {
 	if len(steps) == 0 {
 		return nil, fmt.Errorf("no time step is common to every input after the time selection (%s); the inputs cover: %s; give files of one period for every role, or a time range (time.start, time.end) that they share", strings.Join(dropped, "; "), coverage(in.timed))
 	}
+	if err := pieceOf(in, p); err != nil {
+		return nil, err
+	}
 	return in, nil
 }
 

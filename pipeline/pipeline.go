@@ -89,7 +89,11 @@ type Plan struct {
 	Regions []accumulate.Region
 	Grid    GridPlan
 	// Select keeps a time step (nil keeps all).
-	Select  func(year, month int) bool
+	Select func(year, month int) bool
+	// Piece, unless whole, keeps only that contiguous piece of the
+	// selected steps (see Piece.Bounds); merging the results of every
+	// piece gives the result of the whole record.
+	Piece   Piece
 	Workers int // 0: GOMAXPROCS
 	Log     *slog.Logger
 	// Progress, when set, is called after each time step.

@@ -56,12 +56,14 @@ func runDemo(ctx context.Context, o demoOptions, stdout, stderr io.Writer) error
 		return err
 	}
 	opt := analysis.DemoOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, NoPlots: o.NoPlots, Workers: o.Workers, Log: log}}
+	var bars *progressBars
 	if o.Progress {
-		opt.Progress = progressLine(stderr)
+		bars = newProgressBars(stderr)
+		opt.Progress = bars.set
 	}
 	d, err := analysis.Demo(ctx, o.Out, opt)
-	if o.Progress {
-		fmt.Fprint(stderr, "\r\033[K")
+	if bars != nil {
+		bars.stop()
 	}
 	if err != nil {
 		return err

@@ -31,6 +31,8 @@ func TestMain(m *testing.M) {
 		main()
 		return
 	}
+	// run --jobs starts this binary for its pieces: make it act as lidscope.
+	childEnv = []string{asLidscope + "=1"}
 	testutil.Main(m) // runs the tests, removes the shared worlds (testutil.World), exits
 }
 

@@ -6,11 +6,13 @@ import (
 	"io"
 	"os"
 	"strings"
+	"sync"
 
 	"github.com/spf13/cobra"
 
 	"lidscope/analysis"
 	"lidscope/config"
+	"lidscope/fanout"
 )
 
 func init() { addCommand(newRunCmd) }
@@ -26,10 +28,18 @@ type runOptions struct {
 	Workers      int
 	Set          setFlags
 	Log          logOptions
-	Progress     bool // draw a progress line (terminal only)
+	Progress     bool // draw progress bars (terminal only)
 	Profile      profileOptions
 	// MemoryBudget, when set, overrides the study's limits.memory_budget.
 	MemoryBudget byteSize
+	// Piece is --piece: "K/N", "/N" (K from a Slurm job array) or "".
+	Piece string
+	// Jobs is how many processes run the pieces of each dataset (0 or 1:
+	// this process alone).
+	Jobs int
+	// ProgressLines prints machine-readable progress lines on stdout
+	// (for the parent of run --jobs).
+	ProgressLines bool
 }
 
 func newRunCmd(e *env) *cobra.Command {
@@ -42,13 +52,18 @@ func newRunCmd(e *env) *cobra.Command {
 streaming pass and writes maps, series, tables, summary.json and provenance.json
 into the folder --out (default: the study's output.dir/DATASET).`,
 		Example: `  lidscope run obs/study.yaml --out out/obs
-  lidscope run obs/study.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet --no-plots`,
+  lidscope run obs/study.yaml --set analysis.threshold=1.0 --out out/obs-delta1.0 --quiet --no-plots
+  lidscope run obs/study.yaml --jobs 2 --out out/obs-2jobs --no-plots
+  lidscope run obs/study.yaml --piece 1/2 --out out/obs-piece1 --no-plots`,
 		Args:              exactArgs(1, "give exactly one study file"),
 		ValidArgsFunction: fileArgs(studyExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Study = args[0]
 			o.Datasets = datasets
-			o.Progress = isTerminal(e.stderr) && !o.Log.Quiet
+			o.Progress = isTerminal(e.stderr) && !o.Log.Quiet && !o.ProgressLines
+			if !cmd.Flags().Changed("jobs") {
+				o.Jobs = fanout.CPUs()
+			}
 			ctx, stop := e.interruptible(cmd.Context())
 			defer stop()
 			return runRun(ctx, o, e.stdout, e.stderr)
@@ -63,6 +78,10 @@ into the folder --out (default: the study's output.dir/DATASET).`,
 	addWorkers(fs, &o.Workers)
 	addSet(fs, o.Set, "override a study key, KEY=VALUE (repeatable; wins over LIDSCOPE_* variables and the file)")
 	addMemoryBudget(fs, &o.MemoryBudget)
+	fs.StringVar(&o.Piece, "piece", "", "run only the K-th of N contiguous pieces of each dataset's selected record, K/N (or /N: K from the Slurm job array); merge the N run folders afterwards")
+	fs.IntVar(&o.Jobs, "jobs", 0, "processes running pieces of each dataset at once, merged at the end (default: the CPUs available: SLURM_CPUS_PER_TASK, else the affinity mask)")
+	fs.BoolVar(&o.ProgressLines, "progress-lines", false, "print progress as machine-readable lines on stdout (used by --jobs)")
+	_ = fs.MarkHidden("progress-lines")
 	o.Log.register(fs)
 	o.Profile.register(fs)
 	return cmd
@@ -89,47 +108,80 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 	if err != nil {
 		return err
 	}
-	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines, Workers: o.Workers, Log: log}
-	if o.Progress {
-		opt.Progress = progressLine(stderr)
+	piece, err := resolvePiece(o.Piece, os.Getenv)
+	if err != nil {
+		return err
+	}
+	workers := o.Workers
+	if workers == 0 {
+		workers = slurmCPUs() // 0 outside Slurm: one per CPU
+	}
+	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines, Workers: workers, Log: log,
+		Piece: piece, Batch: batchInfo(os.Getenv)}
+	jobs := o.Jobs
+	if jobs < 1 || !piece.Whole() {
+		jobs = 1
+	}
+	var bars *progressBars
+	switch {
+	case o.ProgressLines:
+		var mu sync.Mutex
+		opt.Progress = func(_ string, done, total int) {
+			mu.Lock()
+			fmt.Fprint(stdout, fanout.ProgressLine(done, total))
+			mu.Unlock()
+		}
+	case o.Progress:
+		bars = newProgressBars(stderr)
+		opt.Progress = bars.set
+	}
+	stopBars := func() {
+		if bars != nil {
+			bars.stop()
+			bars = nil
+		}
+	}
+	defer stopBars()
+	if jobs > 1 {
+		err := runJobs(ctx, o, r, opt, jobs, bars, log, stdout, stderr)
+		stopBars()
+		return err
 	}
 	reps, err := analysis.Run(ctx, r, o.Datasets, opt)
-	if o.Progress {
-		fmt.Fprint(stderr, "\r\033[K")
-	}
+	stopBars()
 	if err != nil {
 		return err
 	}
 	for _, rep := range reps {
+		if rep.Skipped != "" {
+			fmt.Fprintln(stdout, rep.Skipped)
+			continue
+		}
 		writeRunSummary(stdout, rep)
 	}
 	return nil
 }
 
 func writeRunSummary(w io.Writer, rep analysis.Report) {
-	res := rep.Result
-	fmt.Fprintf(w, "dataset %s: %d time steps (%s) on %s\n", rep.Dataset, len(res.Labels), rep.Meta.Period, res.Grid)
+	steps, grid, notes := len(rep.Meta.TimeValues), rep.Meta.Grid.String(), rep.Meta.Notes
+	if res := rep.Result; res != nil {
+		steps, grid, notes = len(res.Labels), res.Grid.String(), res.Notes
+	}
+	fmt.Fprintf(w, "dataset %s: %d time steps (%s) on %s\n", rep.Dataset, steps, rep.Meta.Period, grid)
 	fmt.Fprintf(w, "  regimes: %s\n", rep.Meta.Regimes)
 	if len(rep.Meta.Absent) > 0 {
 		// a run without an optional input says what it has and lacks
-		fmt.Fprintf(w, "  quantities: %s\n", strings.Join(res.Acc.L.Quantities, ", "))
+		if res := rep.Result; res != nil {
+			fmt.Fprintf(w, "  quantities: %s\n", strings.Join(res.Acc.L.Quantities, ", "))
+		}
 		for _, a := range rep.Meta.Absent {
 			fmt.Fprintf(w, "  without: %s\n", a)
 		}
 	}
-	for _, n := range res.Notes {
+	for _, n := range notes {
 		fmt.Fprintf(w, "  note: %s\n", n)
 	}
 	fmt.Fprintf(w, "  results in %s\n", rep.OutDir)
-}
-
-// progressLine returns a progress callback that redraws one line.
-func progressLine(w io.Writer) func(string, int, int) {
-	return func(ds string, done, total int) {
-		const width = 30
-		k := done * width / max(total, 1)
-		fmt.Fprintf(w, "\r\033[K%s [%s%s] %d/%d steps", ds, strings.Repeat("#", k), strings.Repeat(".", width-k), done, total)
-	}
 }
 
 // isTerminal reports whether w is a character device (a terminal).

@@ -1,0 +1,150 @@
+package analysis
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"lidscope/config"
+	"lidscope/fixtures"
+	"lidscope/internal/runcmp"
+	"lidscope/pipeline"
+)
+
+// Maps are stored as float32 (ε ≈ 6e-8), and merged means and variances
+// are summed in another order: 1e-6 relative is rounding.
+//
+// mergeKeys are the outputs' records of how a run was made, which differ
+// between a merge and one run by design: the study text and hash (a merge
+// records each piece's), and the notes (a merge names its pieces).
+var mergeKeys = []string{"study_hash", "study", "notes", "lidscope_command", "command", "processing_notes"}
+
+// Pieces K/N of the selected record, merged, give the single run's
+// results, file by file (to rounding); a piece already done is skipped,
+// and redone when an input changed. The record is the synthetic world
+// (invented data), with a season selection so that pieces are split after
+// selecting.
+func TestPiecesMergeToTheSingleRun(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "data")
+	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
+		t.Fatal(err)
+	}
+	rp := filepath.Join(data, fixtures.StudyFile)
+	for _, tc := range []struct {
+		name  string
+		n     int
+		flags map[string]string
+	}{
+		{"whole-record-3", 3, nil},
+		{"summer-months-4", 4, map[string]string{"datasets.*.time.months": "6,7,8"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: tc.flags})
+			if err != nil {
+				t.Fatal(err)
+			}
+			base := filepath.Join(dir, tc.name)
+			whole, err := Run(context.Background(), r, nil, Options{OutDir: filepath.Join(base, "whole"), NoPlots: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var dirs []string
+			steps := 0
+			for k := 1; k <= tc.n; k++ {
+				out := filepath.Join(base, fmt.Sprintf("piece-%d", k))
+				reps, err := Run(context.Background(), r, nil, Options{OutDir: out, NoPlots: true, Piece: pipeline.Piece{K: k, N: tc.n}})
+				if err != nil {
+					t.Fatal(err)
+				}
+				if reps[0].Meta.Piece != fmt.Sprintf("%d/%d", k, tc.n) {
+					t.Errorf("piece %d records piece %q", k, reps[0].Meta.Piece)
+				}
+				steps += len(reps[0].Result.Labels)
+				dirs = append(dirs, out)
+			}
+			if n := len(whole[0].Result.Labels); steps != n {
+				t.Fatalf("the pieces hold %d steps, the record %d", steps, n)
+			}
+			m, err := Merge(dirs, filepath.Join(base, "merged"), Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			names, _ := runcmp.Names(whole[0].OutDir)
+			if len(names) < 8 {
+				t.Fatalf("only %d result files to compare: %v", len(names), names)
+			}
+			d, err := runcmp.Folders(whole[0].OutDir, m.OutDir, runcmp.Options{Tol: 1e-6, IgnoreKeys: mergeKeys})
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, x := range d {
+				t.Errorf("merged pieces differ from the single run: %s", x)
+			}
+			// A control: one piece alone is not the whole record.
+			if d, _ := runcmp.Folders(whole[0].OutDir, dirs[0], runcmp.Options{IgnoreKeys: mergeKeys}); len(d) == 0 {
+				t.Error("piece 1 compares equal to the whole record: the comparison cannot fail")
+			}
+		})
+	}
+}
+
+func TestPieceAlreadyDoneIsSkipped(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "data")
+	if _, err := fixtures.Generate(data, *smallWorld()); err != nil {
+		t.Fatal(err)
+	}
+	r, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "p2")
+	opt := Options{OutDir: out, NoPlots: true, Piece: pipeline.Piece{K: 2, N: 3}}
+	first, err := Run(context.Background(), r, nil, opt)
+	if err != nil || first[0].Skipped != "" {
+		t.Fatalf("first run: %v, skipped %q", err, first[0].Skipped)
+	}
+	again, err := Run(context.Background(), r, nil, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(again[0].Skipped, "already complete") {
+		t.Errorf("the same piece again was not skipped: %q", again[0].Skipped)
+	}
+	// Another piece into the folder is not skipped (refused: results there).
+	other := opt
+	other.Piece = pipeline.Piece{K: 1, N: 3}
+	if reps, err := Run(context.Background(), r, nil, other); err == nil {
+		t.Errorf("piece 1/3 into the folder of piece 2/3: no error, skipped %q", reps[0].Skipped)
+	}
+	// An input touched since: redone (refused without Force, run with it).
+	in := first[0].Meta.Inputs[0].Path
+	later := time.Now().Add(time.Hour)
+	if err := os.Chtimes(in, later, later); err != nil {
+		t.Fatal(err)
+	}
+	if reps, err := Run(context.Background(), r, nil, opt); err == nil {
+		t.Errorf("a changed input: no error, skipped %q", reps[0].Skipped)
+	}
+	// A different study (another threshold) is not the same piece.
+	r2, err := config.Load(filepath.Join(data, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"analysis.threshold": "0.5"}})
+	if err == nil {
+		if m, ok := donePiece(out, r2, mustPlan(t, r2), opt.Piece); ok {
+			t.Errorf("a piece of another study counts as done: %+v", m.StudyHash)
+		}
+	}
+}
+
+func mustPlan(t *testing.T, r *config.Study) pipeline.Plan {
+	t.Helper()
+	p, err := pipeline.PlanFor(r, &r.Datasets[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}

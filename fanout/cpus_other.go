@@ -1,0 +1,5 @@
+//go:build !linux
+
+package fanout
+
+func affinityCPUs() int { return 0 }
