@@ -380,9 +380,16 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 	meta.StudyHash = hex.EncodeToString(sum[:])
 	if as != nil {
 		meta.Study, meta.StudyHash = as.Study, as.StudyHash
+	} else if allPieces(metasOf(runs, func(r run) output.Meta { return r.meta })) {
+		// Every piece K/N of one study: the merge is that study's run
+		// over the whole record.
+		meta.Study, meta.StudyHash = first.meta.Study, first.meta.StudyHash
 	}
 	meta.Piece = ""
-	meta.Batch = opt.Batch
+	meta.Batch = append([]string{}, opt.Batch...)
+	for _, r := range runs {
+		meta.Batch = appendNew(meta.Batch, r.meta.Batch...)
+	}
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()
@@ -405,6 +412,26 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 		return Report{}, err
 	}
 	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
+}
+
+// allPieces reports whether runs (in time order) are the pieces 1/N … N/N
+// of one study.
+func allPieces(metas []output.Meta) bool {
+	for i, m := range metas {
+		p, err := pipeline.ParsePiece(m.Piece)
+		if m.Piece == "" || err != nil || p.N != len(metas) || p.K != i+1 || m.StudyHash != metas[0].StudyHash {
+			return false
+		}
+	}
+	return len(metas) > 0
+}
+
+func metasOf[R any](runs []R, meta func(R) output.Meta) []output.Meta {
+	var out []output.Meta
+	for _, r := range runs {
+		out = append(out, meta(r))
+	}
+	return out
 }
 
 // consecutivePieces reports whether a and b are pieces K/N and K+1/N.

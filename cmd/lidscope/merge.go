@@ -51,7 +51,7 @@ written into the folder --out.`,
 }
 
 func runMerge(ctx context.Context, o mergeOptions, stdout io.Writer) error {
-	rep, err := analysis.MergeContext(ctx, o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force, AllowGaps: o.AllowGaps})
+	rep, err := analysis.MergeContext(ctx, o.Runs, o.Out, analysis.Options{Version: version, Command: os.Args, Force: o.Force, AllowGaps: o.AllowGaps, Batch: batchInfo(os.Getenv)})
 	if err != nil {
 		return err
 	}
