@@ -55,7 +55,13 @@ type Options struct {
 	Piece pipeline.Piece
 	// Batch describes the batch job running this (recorded in provenance).
 	Batch []string
-	Log   *slog.Logger
+	// Climatology, when set, is the climatology of the whole record that
+	// anomaly mode takes its anomalies against (stage 2 of a run in
+	// pieces: the merged climatologies of every piece, see
+	// ComputeClimatology); otherwise a run in anomaly mode builds it in a
+	// first pass over its own record.
+	Climatology *relations.Climatology
+	Log         *slog.Logger
 	// Progress, when set, is told about each dataset's time steps.
 	Progress func(dataset string, done, total int)
 }
@@ -238,7 +244,9 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		noRel = "no relationship analysis (relationships.enabled: false in the study)"
 	}
 	var clim *relations.Climatology
-	if noRel == "" && relCfg.Mode == relations.Anomaly {
+	if noRel == "" && relCfg.Mode == relations.Anomaly && opt.Climatology != nil {
+		clim = opt.Climatology // stage 1 was done (and merged) already
+	} else if noRel == "" && relCfg.Mode == relations.Anomaly {
 		// Pass 1: the climatology of every cell and calendar month.
 		p1 := plan
 		p1.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {

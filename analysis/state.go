@@ -215,9 +215,11 @@ func LoadState(dir string) (output.Meta, *accumulate.Acc, error) {
 // piece must be a complete, committed run folder with an intact run state.
 // Pieces that leave a gap in the record (a missing year, say) are refused
 // unless opt.AllowGaps; the gaps are then recorded in the merged
-// provenance. Runs whose relationships are anomalies (relations.Anomaly) are refused: each piece took its
-// anomalies against the climatology of its own period, so no merge gives
-// what one run over the record gives; run such a record in one piece.
+// provenance. Runs whose relationships are anomalies (relations.Anomaly)
+// merge only when every piece took its anomalies against the same
+// climatology (that of the whole record, built by ComputeClimatology over
+// every piece and merged: run --jobs does that); pieces that each took the
+// climatology of their own period are refused.
 func Merge(dirs []string, out string, opt Options) (Report, error) {
 	return MergeContext(context.Background(), dirs, out, opt)
 }
@@ -330,12 +332,6 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
-	if first.rel != nil && first.rel.Mode() == relations.Anomaly {
-		// relations.Acc.Merge would refuse too (the climatologies differ);
-		// say what to do at the level of lidscope's runs.
-		return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and each of %s took its anomalies against the climatology of its own period, so no merge gives what one run over the whole record gives; "+
-			"run the whole record in one run, or use relationships.mode: %s for runs meant to be merged", relations.Anomaly, strings.Join(dirs, ", "), relations.Climatological)
-	}
 	acc, rel := first.acc, first.rel
 	meta := first.meta
 	hashes := []string{}
@@ -352,6 +348,12 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 		if rel == nil {
 			// no relationship analysis in any piece (checked above)
 		} else if err := rel.Merge(r.rel); err != nil {
+			if rel.Mode() == relations.Anomaly {
+				// The pieces took their anomalies against different
+				// climatologies; say what to do at the level of runs.
+				return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and %s took its anomalies against the climatology of its own period, not the one the other pieces used, so no merge gives what one run over the whole record gives; "+
+					"run the whole record in one run, run it with --jobs (which builds one climatology of the whole record for every piece), or use relationships.mode: %s for runs meant to be merged (%v)", relations.Anomaly, r.dir, relations.Climatological, err)
+			}
 			return Report{}, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
 		}
 		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)

@@ -113,8 +113,6 @@ func onePieceReason(r *config.Study, d *config.Dataset, plan pipeline.Plan, rec 
 	switch {
 	case rec.Climatology:
 		return "the record is a 12-month climatology, whose seasonal cycle is one piece"
-	case analysis.NoRelations(plan) == "" && r.RelationsFor(d).Mode == relations.Anomaly:
-		return "relationships.mode: anomaly needs the climatology of the whole record"
 	case rec.Steps < 2:
 		return fmt.Sprintf("the record has %d time step", rec.Steps)
 	}
@@ -191,40 +189,92 @@ func runDatasetJobs(ctx context.Context, o runOptions, r *config.Study, d *confi
 		workers = fanout.CPUs()
 	}
 	workers = max(1, workers/n)
-	spec := fanout.Spec{Program: self, Env: append(os.Environ(), childEnv...), Stderr: stderr}
-	var dirs, names []string
-	for k := 1; k <= n; k++ {
-		p := pipeline.Piece{K: k, N: n}
-		dir := filepath.Join(tmp, fmt.Sprintf("piece-%d", k))
-		args := []string{"run", o.Study, "--dataset", d.Name, "--piece", p.String(), "--out", dir,
-			"--no-plots", "--jobs", "1", "--workers", strconv.Itoa(workers), "--progress-lines", "--log-format", o.Log.Format}
-		switch {
-		case o.Log.Quiet:
-			args = append(args, "--quiet")
-		case o.Log.Verbose:
-			args = append(args, "--verbose")
+	anomaly := analysis.NoRelations(plan) == "" && r.RelationsFor(d).Mode == relations.Anomaly
+	run := func(stage string, extra func(k int) []string) ([]string, error) {
+		spec := fanout.Spec{Program: self, Env: append(os.Environ(), childEnv...), Stderr: stderr}
+		var dirs, names []string
+		for k := 1; k <= n; k++ {
+			p := pipeline.Piece{K: k, N: n}
+			dir := filepath.Join(tmp, fmt.Sprintf("piece-%d", k))
+			args := []string{"run", o.Study, "--dataset", d.Name, "--piece", p.String(), "--out", dir,
+				"--no-plots", "--jobs", "1", "--workers", strconv.Itoa(workers), "--progress-lines", "--log-format", o.Log.Format}
+			switch {
+			case o.Log.Quiet:
+				args = append(args, "--quiet")
+			case o.Log.Verbose:
+				args = append(args, "--verbose")
+			}
+			for k, v := range o.Set {
+				args = append(args, "--set", k+"="+v)
+			}
+			args = append(args, extra(k)...)
+			name := fmt.Sprintf("%s %s%s", d.Name, p, stage)
+			spec.Jobs = append(spec.Jobs, fanout.Job{Name: "piece " + name, Args: args})
+			dirs, names = append(dirs, dir), append(names, name)
+			if bars != nil {
+				lo, hi := p.Bounds(rec.Steps)
+				bars.add(name, hi-lo)
+			}
 		}
-		for k, v := range o.Set {
-			args = append(args, "--set", k+"="+v)
-		}
-		name := fmt.Sprintf("%s %s", d.Name, p)
-		spec.Jobs = append(spec.Jobs, fanout.Job{Name: "piece " + name, Args: args})
-		dirs, names = append(dirs, dir), append(names, name)
 		if bars != nil {
-			lo, hi := p.Bounds(rec.Steps)
-			bars.add(name, hi-lo)
+			spec.Progress = func(i, done, total int) { bars.set(names[i], done, total) }
 		}
-	}
-	if bars != nil {
-		spec.Progress = func(i, done, total int) { bars.set(names[i], done, total) }
-	}
-	log.Info("running pieces", "dataset", d.Name, "pieces", n, "workers per piece", workers)
-	if err := fanout.Run(ctx, spec); err != nil {
-		if e, ok := fanout.Failed(err); ok {
-			return analysis.Report{}, fmt.Errorf("%s failed (%v); nothing was written to %s", e.Job, e.Err, out)
+		log.Info("running pieces", "dataset", d.Name, "pieces", n, "workers per piece", workers, "stage", stage)
+		if err := fanout.Run(ctx, spec); err != nil {
+			if e, ok := fanout.Failed(err); ok {
+				return nil, fmt.Errorf("%s failed (%v); nothing was written to %s", e.Job, e.Err, out)
+			}
+			return nil, err
 		}
+		return dirs, nil
+	}
+	none := func(int) []string { return nil }
+	stage2 := none
+	if anomaly {
+		// Stage 1: each piece's climatology; merged into the whole
+		// record's, which every piece's anomalies are taken against.
+		climOf := func(k int) string { return filepath.Join(tmp, fmt.Sprintf("climatology-%d.gob", k)) }
+		if _, err := run(" climatology", func(k int) []string { return []string{"--climatology-out", climOf(k)} }); err != nil {
+			return analysis.Report{}, err
+		}
+		var paths []string
+		for k := 1; k <= n; k++ {
+			paths = append(paths, climOf(k))
+		}
+		clim, err := analysis.MergeClimatologies(paths)
+		if err != nil {
+			return analysis.Report{}, err
+		}
+		all := filepath.Join(tmp, "climatology.gob")
+		if err := analysis.WriteClimatology(all, clim); err != nil {
+			return analysis.Report{}, err
+		}
+		stage2 = func(int) []string { return []string{"--climatology", all} }
+	}
+	dirs, err := run("", stage2)
+	if err != nil {
 		return analysis.Report{}, err
 	}
-	return analysis.MergeInto(ctx, st, dirs, opt, &analysis.MergeAs{Study: r.Resolved(), StudyHash: r.Hash(), Plots: r.Output.Plots,
-		Note: fmt.Sprintf("computed as %d pieces of the record in %d processes (run --jobs) and merged", n, n)})
+	note := fmt.Sprintf("computed as %d pieces of the record in %d processes (run --jobs) and merged", n, n)
+	if anomaly {
+		note += "; anomalies against the merged climatology of every piece"
+	}
+	return analysis.MergeInto(ctx, st, dirs, opt, &analysis.MergeAs{Study: r.Resolved(), StudyHash: r.Hash(), Plots: r.Output.Plots, Note: note})
+}
+
+// runClimatologyStage is run --climatology-out FILE: stage 1 of anomaly
+// mode for each dataset (one, from run --jobs) of the piece.
+func runClimatologyStage(ctx context.Context, o runOptions, r *config.Study, opt analysis.Options) error {
+	ds, err := analysis.Datasets(r, o.Datasets)
+	if err != nil {
+		return err
+	}
+	if len(ds) != 1 {
+		return usageErr("--climatology-out FILE wants one dataset (--dataset NAME)")
+	}
+	c, err := analysis.ComputeClimatology(ctx, r, ds[0], opt)
+	if err != nil {
+		return err
+	}
+	return analysis.WriteClimatology(o.ClimatologyOut, c)
 }

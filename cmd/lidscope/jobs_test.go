@@ -117,3 +117,32 @@ func TestResolvePiece(t *testing.T) {
 		}
 	}
 }
+
+// Anomaly mode under --jobs 2: stage 1 (each piece's climatology) in two
+// processes, merged, then stage 2 in two processes against it; the
+// results are those of --jobs 1 (one process, both stages over the whole
+// record), file by file.
+func TestJobsAnomalyTwoStages(t *testing.T) {
+	dir := t.TempDir()
+	s := study(t)
+	res := map[int]string{}
+	for _, jobs := range []int{1, 2} {
+		out := filepath.Join(dir, "anomaly-jobs"+string(rune('0'+jobs)))
+		var stdout, stderr bytes.Buffer
+		o := runOptions{Study: s, Out: out, NoPlots: true, Jobs: jobs, Set: setFlags{"relationships.mode": "anomaly"}, Log: logOptions{Format: "text"}}
+		if err := runRun(context.Background(), o, &stdout, &stderr); err != nil {
+			t.Fatalf("--jobs %d: %v\n%s", jobs, err, stderr.String())
+		}
+		if got := strings.Contains(stdout.String(), "merged climatology"); got != (jobs == 2) {
+			t.Errorf("--jobs %d: the summary mentions the merged climatology: %v\n%s", jobs, got, stdout.String())
+		}
+		res[jobs] = out
+	}
+	d, err := runcmp.Folders(res[1], res[2], runcmp.Options{Tol: 1e-6, IgnoreKeys: jobsKeys})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, x := range d {
+		t.Errorf("anomaly --jobs 2 differs from --jobs 1: %s", x)
+	}
+}

@@ -40,6 +40,10 @@ type runOptions struct {
 	// ProgressLines prints machine-readable progress lines on stdout
 	// (for the parent of run --jobs).
 	ProgressLines bool
+	// ClimatologyOut runs stage 1 of anomaly mode only (the climatology
+	// of the piece, written to this file); Climatology is the file of the
+	// merged climatology that stage 2 takes its anomalies against.
+	ClimatologyOut, Climatology string
 }
 
 func newRunCmd(e *env) *cobra.Command {
@@ -82,6 +86,10 @@ into the folder --out (default: the study's output.dir/DATASET).`,
 	fs.IntVar(&o.Jobs, "jobs", 0, "processes running pieces of each dataset at once, merged at the end (default: the CPUs available: SLURM_CPUS_PER_TASK, else the affinity mask)")
 	fs.BoolVar(&o.ProgressLines, "progress-lines", false, "print progress as machine-readable lines on stdout (used by --jobs)")
 	_ = fs.MarkHidden("progress-lines")
+	fs.StringVar(&o.ClimatologyOut, "climatology-out", "", "anomaly mode, stage 1: write the climatology of the record (or piece) to FILE and stop (used by --jobs)")
+	fs.StringVar(&o.Climatology, "climatology", "", "anomaly mode, stage 2: take the anomalies against the climatology in FILE (used by --jobs)")
+	_ = fs.MarkHidden("climatology-out")
+	_ = fs.MarkHidden("climatology")
 	o.Log.register(fs)
 	o.Profile.register(fs)
 	return cmd
@@ -118,6 +126,11 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 	}
 	opt := analysis.Options{Version: version, Command: os.Args, OutDir: o.Out, Force: o.Force, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines, Workers: workers, Log: log,
 		Piece: piece, Batch: batchInfo(os.Getenv)}
+	if o.Climatology != "" {
+		if opt.Climatology, err = analysis.ReadClimatology(o.Climatology); err != nil {
+			return err
+		}
+	}
 	jobs := o.Jobs
 	if jobs < 1 || !piece.Whole() {
 		jobs = 1
@@ -142,6 +155,9 @@ func runRun(ctx context.Context, o runOptions, stdout, stderr io.Writer) (err er
 		}
 	}
 	defer stopBars()
+	if o.ClimatologyOut != "" {
+		return runClimatologyStage(ctx, o, r, opt)
+	}
 	if jobs > 1 {
 		err := runJobs(ctx, o, r, opt, jobs, bars, log, stdout, stderr)
 		stopBars()

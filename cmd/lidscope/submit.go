@@ -16,6 +16,7 @@ import (
 	"lidscope/analysis"
 	"lidscope/config"
 	"lidscope/pipeline"
+	"lidscope/relations"
 	"lidscope/runfolder"
 	"lidscope/slurm"
 )
@@ -156,7 +157,11 @@ func runSubmit(ctx context.Context, o submitOptions, stdout io.Writer) error {
 			if err != nil {
 				return fmt.Errorf("dataset %s: %w", d.Name, err)
 			}
-			if why := onePieceReason(r, d, plan, rec, o.Pieces); why != "" {
+			why := onePieceReason(r, d, plan, rec, o.Pieces)
+			if why == "" && analysis.NoRelations(plan) == "" && r.RelationsFor(d).Mode == relations.Anomaly {
+				why = "relationships.mode: anomaly takes its anomalies against the climatology of the whole record, which the job array does not build yet (run --jobs on one node does)"
+			}
+			if why != "" {
 				return fmt.Errorf("dataset %s: cannot be split into pieces: %s; submit it with --pieces 1", d.Name, why)
 			}
 			if rec.Steps < o.Pieces {
