@@ -343,15 +343,15 @@ func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
 	for i, e := range spec {
 		lbl := e.Name
 		if i := strings.Index(e.Name, "_on_"); i >= 0 && e.Kind == "slope" {
-			lbl = "slope on " + predictorLabel(e.Name[i+4:])
+			lbl = "slope on " + lowerFirst(predictorLabel(e.Name[i+4:]))
 		} else if i := strings.Index(e.Name, "_partial_"); i >= 0 {
 			// low_cloud_partial_eis_given_sst: the partial slope on EIS
 			// with SST held fixed.
 			on, given, ok := strings.Cut(e.Name[i+9:], "_given_")
 			if ok {
-				lbl = "partial on " + predictorLabel(on) + ", " + predictorLabel(given) + " fixed"
+				lbl = "partial on " + lowerFirst(predictorLabel(on)) + ", " + lowerFirst(predictorLabel(given)) + " fixed"
 			} else {
-				lbl = "partial on " + predictorLabel(on)
+				lbl = "partial on " + lowerFirst(predictorLabel(on))
 			}
 		}
 		ticks = append(ticks, plot.Tick{Value: float64(i), Label: lbl})

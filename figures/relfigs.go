@@ -379,7 +379,7 @@ func (f *fig) relationPage(pred string) (*page, error) {
 		plots = append(plots, p)
 	}
 	bw := bodyWidth()
-	title := fmt.Sprintf("%s against %s per regime (tropical band, %s)", responseLabel(resp), predictorLabel(pred), modeText(res))
+	title := fmt.Sprintf("%s against %s per regime (tropical band, %s)", responseLabel(resp), lowerFirst(predictorLabel(pred)), modeText(res))
 	head := f.header(title, bw)
 	key := textBlock{wrap(f.t("Points: bin means with 95 % intervals (Student t, N_eff − 1 dof). Line and band: area-weighted least squares with its 95 % confidence band; slope ± 95 % interval"+slopeUnitsNote(rf, pu)+". Grey bars: samples per bin (tallest "+
 		fmt.Sprintf("%d", int64(nmax))+" cell-steps)."), withColour(style(sizeFooter+0.5, false), subtleColour), bw), withColour(style(sizeFooter+0.5, false), subtleColour)}
