@@ -148,6 +148,12 @@ func TestCreateRefuses(t *testing.T) {
 			t.Errorf("%s %+v: %v, want an error with %q", c.target, c.opt, err, c.want)
 		}
 	}
+	// The refusal to replace is fs.ErrExist for callers, and its message
+	// ends with what to do, not with a bare "file already exists".
+	_, err := Create(committed, Options{})
+	if !errors.Is(err, fs.ErrExist) || strings.HasSuffix(err.Error(), fs.ErrExist.Error()) {
+		t.Errorf("Create over a committed run: %v; want fs.ErrExist without its text appended", err)
+	}
 }
 
 // A second writer fails at once and names the process that holds the

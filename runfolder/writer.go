@@ -171,7 +171,7 @@ func (s *Stage) checkTarget(abs string) error {
 		if !committed {
 			what = "files of an earlier run that was never committed (no " + ManifestFile + ")"
 		}
-		return fmt.Errorf("%s already holds %s; use --force to replace them (the earlier run stays untouched until the new one is complete) or choose another --out: %w", s.target, what, fs.ErrExist)
+		return existError{fmt.Sprintf("%s already holds %s; use --force to replace them (the earlier run stays untouched until the new one is complete) or choose another --out", s.target, what)}
 	}
 	return nil
 }
@@ -350,3 +350,11 @@ func syncDir(dir string) {
 		f.Close()
 	}
 }
+
+// existError is a refusal to replace an earlier run: errors.Is(err,
+// fs.ErrExist) holds, without the bare "file already exists" appended to a
+// message that already says what to do.
+type existError struct{ msg string }
+
+func (e existError) Error() string { return e.msg }
+func (e existError) Unwrap() error { return fs.ErrExist }
