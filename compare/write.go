@@ -10,10 +10,10 @@ import (
 	"path/filepath"
 	"strconv"
 
-	"lidscope/cfwrite"
-	"lidscope/jsonnum"
+	"lidscope/internal/cfwrite"
+	"lidscope/internal/jsonnum"
+	"lidscope/internal/stage"
 	"lidscope/relations"
-	"lidscope/stage"
 	"lidscope/vocab"
 )
 

@@ -5,7 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"lidscope/figures/figurestest"
+	"lidscope/internal/figurestest"
 )
 
 // benchRun writes an invented global 1° run (180 × 360 cells, 12 months).

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"lidscope/figures/figurestest"
+	"lidscope/internal/figurestest"
 )
 
 // A run over a 12-month climatology (invented data) is drawn with its

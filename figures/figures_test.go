@@ -15,7 +15,7 @@ import (
 
 	"gonum.org/v1/plot/cmpimg"
 
-	"lidscope/figures/figurestest"
+	"lidscope/internal/figurestest"
 	"lidscope/relations"
 )
 

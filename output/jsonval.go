@@ -4,7 +4,7 @@ import (
 	"math"
 	"strconv"
 
-	"lidscope/jsonnum"
+	"lidscope/internal/jsonnum"
 )
 
 // num is jsonnum.Num under a short name, for the many literals of the

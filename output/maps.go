@@ -7,7 +7,7 @@ import (
 	"strconv"
 	"strings"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/regimes"
 	"lidscope/vocab"
 )

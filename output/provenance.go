@@ -5,7 +5,7 @@ import (
 	"runtime"
 	"time"
 
-	"lidscope/jsonnum"
+	"lidscope/internal/jsonnum"
 	"lidscope/netcdf"
 )
 

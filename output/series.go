@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"strconv"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/regimes"
 	"lidscope/vocab"
 )

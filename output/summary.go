@@ -3,7 +3,7 @@ package output
 import (
 	"math"
 
-	"lidscope/jsonnum"
+	"lidscope/internal/jsonnum"
 	"lidscope/regimes"
 	"lidscope/stats"
 )

@@ -12,8 +12,8 @@ import (
 	"strings"
 
 	"lidscope/accumulate"
-	"lidscope/jsonnum"
-	"lidscope/stage"
+	"lidscope/internal/jsonnum"
+	"lidscope/internal/stage"
 )
 
 // Test hooks: called after each file is staged and before each file is

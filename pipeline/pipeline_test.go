@@ -10,7 +10,7 @@ import (
 
 	"lidscope/accumulate"
 	"lidscope/cf"
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/metrics"
 	"lidscope/regimes"
 )

@@ -1,6 +1,6 @@
 package relations
 
-import "lidscope/jsonnum"
+import "lidscope/internal/jsonnum"
 
 // num is jsonnum.Num under a short name, for the many literals below:
 // num{Value: x, Units: "K"} is written as {"value": x, "units": "K"}, the

@@ -13,10 +13,10 @@ import (
 	"strings"
 	"time"
 
-	"lidscope/cfwrite"
-	"lidscope/jsonnum"
+	"lidscope/internal/cfwrite"
+	"lidscope/internal/jsonnum"
+	"lidscope/internal/stage"
 	"lidscope/regimes"
-	"lidscope/stage"
 	"lidscope/vocab"
 )
 

@@ -12,7 +12,7 @@ import (
 
 	"lidscope/analysis"
 	"lidscope/config"
-	"lidscope/fanout"
+	"lidscope/internal/fanout"
 	"lidscope/pipeline"
 	"lidscope/relations"
 )

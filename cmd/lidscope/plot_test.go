@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"lidscope/figures/figurestest"
+	"lidscope/internal/figurestest"
 )
 
 func TestPlotCommand(t *testing.T) {

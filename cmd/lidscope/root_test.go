@@ -9,7 +9,7 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"lidscope/figures/figurestest"
+	"lidscope/internal/figurestest"
 )
 
 // The command line follows the GNU conventions (common practice, GNU

@@ -18,7 +18,7 @@ import (
 	"lidscope/pipeline"
 	"lidscope/relations"
 	"lidscope/runfolder"
-	"lidscope/slurm"
+	"lidscope/internal/slurm"
 )
 
 func init() { addCommand(newSubmitCmd) }

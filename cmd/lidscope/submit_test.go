@@ -15,7 +15,7 @@ import (
 	"lidscope/analysis"
 	"lidscope/fixtures"
 	"lidscope/internal/runcmp"
-	"lidscope/slurm"
+	"lidscope/internal/slurm"
 )
 
 // twoWorlds writes the synthetic demo world (invented data) and its

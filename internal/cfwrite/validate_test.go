@@ -8,7 +8,7 @@ import (
 	"sync"
 	"testing"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/netcdf"
 )
 

@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 )
 
 // Independent readers: the files are checked with tools that share no code

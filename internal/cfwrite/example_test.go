@@ -7,7 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/netcdf"
 )
 

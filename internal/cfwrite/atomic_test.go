@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/netcdf"
 )
 

@@ -7,7 +7,7 @@ import (
 	"testing"
 	"time"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 )
 
 // Synthetic-truth fixtures: invented values, chosen to be exact in float32

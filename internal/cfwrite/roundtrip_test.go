@@ -5,7 +5,7 @@ import (
 	"reflect"
 	"testing"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 	"lidscope/netcdf"
 )
 

@@ -6,7 +6,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"lidscope/cfwrite"
+	"lidscope/internal/cfwrite"
 )
 
 // benchMaps writes b.N one-degree global maps (180×360, float32) into one

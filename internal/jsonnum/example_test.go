@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"lidscope/jsonnum"
+	"lidscope/internal/jsonnum"
 )
 
 func Example() {

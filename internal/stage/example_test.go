@@ -5,7 +5,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"lidscope/stage"
+	"lidscope/internal/stage"
 )
 
 // Two files appear in the destination together, or not at all.
