@@ -15,10 +15,10 @@ import (
 
 	"lidscope/analysis"
 	"lidscope/config"
+	"lidscope/internal/slurm"
 	"lidscope/pipeline"
 	"lidscope/relations"
 	"lidscope/runfolder"
-	"lidscope/internal/slurm"
 )
 
 func init() { addCommand(newSubmitCmd) }
