@@ -26,6 +26,19 @@
 //	      air_temperature: ta.nc
 //	      low_cloud: cll.nc
 //
+// # Ensembles
+//
+// A top-level ensemble block names many datasets from one template:
+// names ("{model}-{member}") and the dataset table are filled in for every
+// combination of the lists under over ({model: [alpha, beta], member:
+// [m1, m2]}); each holds per-dataset changes keyed by expanded name, laid
+// over the template key by key. The expanded datasets join those under
+// datasets, in name order at the place of the block in the file. A
+// placeholder not under over, a names template that leaves one out, an
+// expanded name also written under datasets and an each entry naming no
+// expanded dataset are problems at their lines; problems inside an
+// expanded dataset are reported at the template's line.
+//
 // # Checking a study: lidscope study check
 //
 // `lidscope study check STUDY` loads a study exactly as `lidscope run`
