@@ -192,20 +192,30 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 		if !c.OK() {
 			mark = vocab.Fail
 		}
-		fmt.Fprintf(w, "    %-8s %s: %.6g (truth %.6g) %s\n", mark, c.What, c.Got, c.Want, c.Units)
+		fmt.Fprintf(w, "    %-8s %s: %.6g%s (truth %.6g%s)\n", mark, c.What, c.Got, spaceUnits(c.Units), c.Want, spaceUnits(c.Units))
 	}
 	fmt.Fprintf(w, "  true subsidence cloud–EIS slope: reference %.3g K-1, model %.3g K-1\n", d.Truth.CloudEIS.TrueSlope, d.ModelTruth.CloudEIS.TrueSlope)
 	if d.Comparison != nil {
 		fmt.Fprintf(w, "  comparison (model − reference): %s\n", d.CompareDir)
 		for _, c := range d.Comparison.Candidates {
 			for _, m := range c.Maps {
-				fmt.Fprintf(w, "    %-22s pattern correlation %.3f, centred RMS difference %.3g %s, bias %+.3g %s\n", m.Name, m.Corr, m.CRMS, m.Units, m.Bias, m.Units)
+				fmt.Fprintf(w, "    %-22s pattern correlation %.3f, centred RMS difference %.3g%s, bias %+.3g%s\n", m.Name, m.Corr, m.CRMS, spaceUnits(m.Units), m.Bias, spaceUnits(m.Units))
 			}
 			fmt.Fprintf(w, "    %-34s %10s  %10s\n", "", "reference", "model")
 			for _, s := range c.Scalars {
-				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%+.3g %s)\n", s.Name, s.Ref, s.Cand, s.Diff, s.Units)
+				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%+.3g%s)\n", s.Name, s.Ref, s.Cand, s.Diff, spaceUnits(s.Units))
 			}
 		}
 		compare.WriteEstimates(w, d.Comparison, "    ")
 	}
+}
+
+// spaceUnits is the units text printed after a console number: " K" for
+// K, nothing for the dimensionless "1" (a fraction reads better without a
+// dangling 1; the files keep their units attribute "1").
+func spaceUnits(u string) string {
+	if u == "" || u == "1" {
+		return ""
+	}
+	return " " + u
 }
