@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"lidscope/calendar"
+	"lidscope/internal/jsonnum"
 	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/relations"
@@ -57,17 +58,11 @@ type summaryJSON struct {
 	Absent     []string `json:"absent_quantities"`
 }
 
-type jsonNum struct {
-	Value *float64 `json:"value"`
-	Units string   `json:"units"`
-}
+// jsonNum is a {"value", "units"} number of summary.json, read by package
+// jsonnum (null reads as NaN).
+type jsonNum struct{ jsonnum.Num }
 
-func (n jsonNum) get() float64 {
-	if n.Value == nil {
-		return math.NaN()
-	}
-	return *n.Value
-}
+func (n jsonNum) get() float64 { return n.Value }
 
 // Load reads a run directory's summary.json (which every figure's title
 // needs) and checks that the directory holds a run.

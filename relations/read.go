@@ -9,27 +9,22 @@ import (
 	"os"
 	"path/filepath"
 
+	"lidscope/internal/jsonnum"
 	"lidscope/regimes"
 )
 
-// rjv is a number of relationships.json: {"value": x or null, "units": u}.
-type rjv struct {
-	Value *float64 `json:"value"`
-	Units string   `json:"units"`
-}
+// rjv is a number of relationships.json ({"value": x or null, "units": u},
+// read by package jsonnum; null reads as NaN).
+type rjv struct{ jsonnum.Num }
 
-func (v rjv) f() float64 {
-	if v.Value == nil {
-		return math.NaN()
-	}
-	return *v.Value
-}
+func (v rjv) f() float64 { return v.Value }
 
+// i is the value as a count (0 when null).
 func (v rjv) i() int64 {
-	if v.Value == nil {
+	if v.Value != v.Value {
 		return 0
 	}
-	return int64(math.Round(*v.Value))
+	return int64(math.Round(v.Value))
 }
 
 type rjci struct {

@@ -38,6 +38,23 @@ func (n Num) MarshalJSON() ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// UnmarshalJSON reads {"value":x,"units":u} back; a null or missing value
+// (no data) reads as NaN, so a write-read round trip keeps NaN.
+func (n *Num) UnmarshalJSON(b []byte) error {
+	var v struct {
+		Value *float64 `json:"value"`
+		Units string   `json:"units"`
+	}
+	if err := json.Unmarshal(b, &v); err != nil {
+		return err
+	}
+	n.Value, n.Units = math.NaN(), v.Units
+	if v.Value != nil {
+		n.Value = *v.Value
+	}
+	return nil
+}
+
 // Count is a number of things (time steps, cells, values), in units "1".
 func Count[T ~int | ~int32 | ~int64](n T) Num { return Num{float64(n), "1"} }
 

@@ -124,3 +124,43 @@ func BenchmarkMarshalJSON(b *testing.B) {
 		}
 	}
 }
+
+// TestUnmarshalRoundTrip: what Marshal writes reads back to the same
+// number and units; null (no data) and a missing value read as NaN
+// (RFC 8259 has no NaN, so null stands for it, common practice).
+func TestUnmarshalRoundTrip(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		in   Num
+	}{
+		{"kelvin", Num{301.5, "K"}},
+		{"shortest decimal", Num{0.1 + 0.2, "1"}},
+		{"tiny", Num{5e-324, "K-1"}},
+		{"negative", Num{-2.25e7, "Pa s-1"}},
+		{"nan", Num{math.NaN(), "K"}},
+		{"inf", Num{math.Inf(1), "W m-2"}},
+	} {
+		b, err := tc.in.MarshalJSON()
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		var got Num
+		if err := got.UnmarshalJSON(b); err != nil {
+			t.Fatalf("%s: reading %s: %v", tc.name, b, err)
+		}
+		want := tc.in.Value
+		if math.IsInf(want, 0) {
+			want = math.NaN() // written as null
+		}
+		if got.Units != tc.in.Units || !(got.Value == want || (got.Value != got.Value && want != want)) {
+			t.Errorf("%s: %s read back as %v, want %v %q", tc.name, b, got, want, tc.in.Units)
+		}
+	}
+	var n Num
+	if err := n.UnmarshalJSON([]byte(`{"units":"K"}`)); err != nil || n.Value == n.Value || n.Units != "K" {
+		t.Errorf("missing value: %v %v, want NaN K", n, err)
+	}
+	if err := n.UnmarshalJSON([]byte(`{"value":"3","units":"K"}`)); err == nil {
+		t.Errorf("a value given as text was accepted")
+	}
+}
