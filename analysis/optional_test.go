@@ -85,10 +85,10 @@ func TestOptionalInputsEndToEnd(t *testing.T) {
 		absentWords []string
 	}{
 		{"sst_only", []string{"air_temperature", "low_cloud"}, []string{"sst"},
-			[]string{"map_convective_fraction", "map_crossings", "map_relative_sst", "series"}, []string{"map_eis", "map_lts", "map_low_cloud"},
+			[]string{"map_convective_time_fraction", "map_crossing_rate", "map_relative_sst", "series"}, []string{"map_eis", "map_lts", "map_low_cloud"},
 			[]string{"no 700 hPa temperature, LTS or EIS", "no cloud statistics", "no relationship analysis"}},
 		{"sst_t700", []string{"low_cloud"}, []string{"sst", "t700", "lts", "eis"},
-			[]string{"map_convective_fraction", "map_crossings", "map_eis", "map_lts", "series"}, []string{"map_low_cloud"},
+			[]string{"map_convective_time_fraction", "map_crossing_rate", "map_eis", "map_lts", "series"}, []string{"map_low_cloud"},
 			[]string{"no cloud statistics", "no relationship analysis"}},
 	}
 	reps := map[string]Report{}

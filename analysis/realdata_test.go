@@ -102,7 +102,7 @@ output: {dir: "` + dir + `", plots: true}
 			if l := rep.Result.Labels; l[0] != "Jan" || l[11] != "Dec" || !rep.Meta.Climatology || rep.Meta.Period != "Jan … Dec" {
 				t.Errorf("labels %v, climatology %v, period %q", l, rep.Meta.Climatology, rep.Meta.Period)
 			}
-			for _, f := range []string{"map_convective_fraction", "map_crossings", "map_relative_sst", "series"} {
+			for _, f := range []string{"map_convective_time_fraction", "map_crossing_rate", "map_relative_sst", "series"} {
 				if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, f+".png")); err != nil {
 					t.Errorf("figure %s: %v", f, err)
 				}
@@ -201,7 +201,7 @@ output: {dir: "` + dir + `", plots: true}
 	if len(rep.Result.Labels) != 1 || rep.Result.Labels[0] != "2001-01" || rep.Relations != nil {
 		t.Errorf("labels %v, relationships %v", rep.Result.Labels, rep.Relations != nil)
 	}
-	for _, f := range []string{"map_eis", "map_lts", "map_convective_fraction", "series"} {
+	for _, f := range []string{"map_eis", "map_lts", "map_convective_time_fraction", "series"} {
 		if _, err := os.Stat(filepath.Join(rep.OutDir, figures.DefaultDirName, f+".png")); err != nil {
 			t.Errorf("figure %s: %v", f, err)
 		}

@@ -35,8 +35,8 @@ type CompareOptions struct {
 
 // compareMaps are the maps a comparison draws, with the figures' specs.
 var compareMaps = []struct{ variable, spec string }{
-	{"convective_time_fraction", "map_convective_fraction"},
-	{"crossing_rate", "map_crossings"},
+	{"convective_time_fraction", "map_convective_time_fraction"},
+	{"crossing_rate", "map_crossing_rate"},
 }
 
 // DrawComparison draws the figures of a comparison (package compare) and

@@ -125,7 +125,7 @@ func TestEachFigureRenders(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantNames := []string{"map_convective_fraction", "map_crossings", "map_eis", "map_lts", "map_cloud", "map_relative_sst",
+	wantNames := []string{"map_convective_time_fraction", "map_crossing_rate", "map_eis", "map_lts", "map_cloud", "map_relative_sst",
 		"relationships_eis", "relationships_lts", "relationships_rel_sst", "joint_composite", "flips", "threshold", "series"}
 	if len(pngs) != len(wantNames) || len(svgs) != len(wantNames) {
 		t.Fatalf("drew %d PNG and %d SVG figures, want %d each (%v): %v", len(pngs), len(svgs), len(wantNames), wantNames, pngs)
@@ -222,7 +222,7 @@ func TestOptionsErrors(t *testing.T) {
 // there, and not elsewhere.
 func TestMissingBoxIsGrey(t *testing.T) {
 	const dpi = 100
-	for _, name := range []string{"map_convective_fraction", "map_eis"} {
+	for _, name := range []string{"map_convective_time_fraction", "map_eis"} {
 		fg, pg := build(t, name, "png", dpi)
 		img, err := png.Decode(bytes.NewReader(renderBytes(t, fg, pg)))
 		if err != nil {

@@ -53,11 +53,11 @@ func meanOf(q string) func(r *Run) (*Field, error) {
 }
 
 var mapSpecs = []mapSpec{
-	{name: "map_convective_fraction", title: "Fraction of time in the convective regime",
+	{name: "map_convective_time_fraction", title: "Fraction of time in the convective regime",
 		read: mapVar("convective_time_fraction"), vars: []string{"convective_time_fraction"}, factor: 100,
 		label: "Time in the convective regime (%)", palette: "fraction", limits: fixedLimits(0, 100),
 		describe: "map of the fraction of each column's valid time steps in the convective regime"},
-	{name: "map_crossings", title: "Crossings between the convective and subsidence regimes",
+	{name: "map_crossing_rate", title: "Crossings between the convective and subsidence regimes",
 		read: mapVar("crossing_rate"), vars: []string{"crossing_rate"}, factor: 1,
 		label: "Regime crossings (number per year of record)", palette: "frequency",
 		limits: func(v []float64) (float64, float64) {

@@ -80,7 +80,7 @@ func TestPlotUsage(t *testing.T) {
 		}
 	}
 	var out, errb bytes.Buffer
-	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_fraction") {
+	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_time_fraction") {
 		t.Errorf("--list: exit %d, %q", code, out.String())
 	}
 }
