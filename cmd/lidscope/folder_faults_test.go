@@ -12,7 +12,6 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
-	"sync"
 	"syscall"
 	"testing"
 	"time"
@@ -50,30 +49,20 @@ func lidscope(t *testing.T, args ...string) (*exec.Cmd, *bytes.Buffer) {
 	return cmd, &stderr
 }
 
-// demoWorld is a small version of the synthetic demo world (invented
-// data: 4° grid, four years), generated once.
-var demoWorld = sync.OnceValues(func() (string, error) {
-	dir, err := os.MkdirTemp("", "lidscope-folder-faults-")
-	if err != nil {
-		return "", err
-	}
-	o := fixtures.DefaultOptions()
-	o.Resolution = 4
-	o.Years = 4
-	o.YearsPerFile = 2
-	if _, err := fixtures.Generate(dir, o); err != nil {
-		return "", err
-	}
-	return filepath.Join(dir, fixtures.StudyFile), nil
-})
-
+// study returns the study file of a small version of the synthetic demo
+// world (invented data: 4° grid, four years), generated once per test
+// binary and removed at the end by testutil.Main.
 func study(t *testing.T) string {
 	t.Helper()
-	s, err := demoWorld()
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
+	dir := testutil.World(t, "folder-faults", func(dir string) error {
+		o := fixtures.DefaultOptions()
+		o.Resolution = 4
+		o.Years = 4
+		o.YearsPerFile = 2
+		_, err := fixtures.Generate(dir, o)
+		return err
+	})
+	return filepath.Join(dir, fixtures.StudyFile)
 }
 
 // committedRun checks that dir holds one complete, committed run whose
