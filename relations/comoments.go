@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 
+	"lidscope/stats"
+
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -69,7 +71,8 @@ func (c *CoMoments) add(x []float64, w float64) {
 	}
 }
 
-// Merge adds the sample b (same K) to c.
+// Merge adds the sample b (same K) to c, element by element with
+// stats.ChanMerge (the same update as stats.Moments.Merge).
 func (c *CoMoments) Merge(b CoMoments) {
 	if b.W == 0 {
 		return
@@ -81,19 +84,18 @@ func (c *CoMoments) Merge(b CoMoments) {
 		copy(c.C, b.C)
 		return
 	}
-	w := c.W + b.W
-	g := c.W * b.W / w
+	p := stats.NewChanMerge(c.W, b.W)
 	for j := 0; j < k; j++ {
 		dj := b.Mean[j] - c.Mean[j]
 		for l := j; l < k; l++ {
 			dl := b.Mean[l] - c.Mean[l]
-			c.C[j*k+l] += b.C[j*k+l] + g*dj*dl
+			c.C[j*k+l] = p.CoMoment(c.C[j*k+l], b.C[j*k+l], dj, dl)
 		}
 	}
 	for j := 0; j < k; j++ {
-		c.Mean[j] += (b.Mean[j] - c.Mean[j]) * b.W / w
+		c.Mean[j] = p.Mean(c.Mean[j], b.Mean[j])
 	}
-	c.W = w
+	c.W = p.W
 	c.N += b.N
 }
 

@@ -35,7 +35,8 @@ func (m *Moments) Add(x, w float64) {
 	m.M2 += w0 * d * r
 }
 
-// Merge adds the sample b to m.
+// Merge adds the sample b to m (Chan, Golub & LeVeque 1979, through
+// ChanMerge, the one copy of the pairwise update).
 func (m *Moments) Merge(b Moments) {
 	if b.W == 0 {
 		return
@@ -44,11 +45,11 @@ func (m *Moments) Merge(b Moments) {
 		*m = b
 		return
 	}
-	w := m.W + b.W
+	p := NewChanMerge(m.W, b.W)
 	d := b.Mean - m.Mean
-	m.Mean += d * b.W / w
-	m.M2 += b.M2 + d*d*m.W*b.W/w
-	m.W = w
+	m.Mean = p.Mean(m.Mean, b.Mean)
+	m.M2 = p.CoMoment(m.M2, b.M2, d, d)
+	m.W = p.W
 	m.N += b.N
 }
 
