@@ -10,8 +10,19 @@
 // Surv. Geophys. 38, 1307–1329; Ceppi & Nowack 2021, PNAS 118,
 // e2026290118, for ridge regression).
 //
-// Every function here is pure; nothing reads or writes files. The package
-// is not yet wired into the pipeline, the outputs or the command line.
+// The fitting functions are pure. Acc is the step sink of a run's factor
+// analysis: per domain (the tropical band and the study's regions) and
+// regime slot (subsidence, convective, all) it keeps each month's
+// area-weighted domain means of the factor and response anomalies (against
+// the first-pass climatology, relations.Climatology), fitted with one fold
+// per calendar year; per mapped cell (ocean cells of the band) it keeps
+// co-moments per block of Config.CellFoldYears years and the lag-1 sums
+// of its effective sample size (BytesPerCell). Effective sample sizes
+// follow Bretherton et al. (1999, J. Climate 12, eq. 31) as the
+// relationships' multiple regression does: n(1 − ρ)/(1 + ρ) with ρ the
+// largest product of a factor's lag-1 autocorrelation and the residual's
+// (per cell: the response's, since a cell keeps no series). Stage writes
+// factors.json, factors.csv and factors.nc; ReadRun reads them back.
 //
 // # Folds and moments
 //
