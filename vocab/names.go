@@ -208,6 +208,9 @@ var syntheticWords = strings.Fields(`
 	equator pole warm_pool cold_tongue upwelling seasonal amplitude
 	oscillation gain polar drop true sample noise land other months
 	autocorrelated at
+	factor factors names warming global planted sensitivity per advection missing
+	weather shared variance fraction base trade meridional wind eastward_wind northward_wind
+	rh700 omega700 t_adv
 	`)
 
 // Terms returns the whole table of terms: quantities, statistics,
