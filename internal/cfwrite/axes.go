@@ -236,40 +236,129 @@ func (w *Writer) defCoord(name string, t netcdf.Type, dims []string, values []fl
 	return v, nil
 }
 
-// SetGrid declares the lat and lon dimensions with their coordinate and
-// bounds variables (CF-1.10 §4.1, §4.2, §7.1).
-func (w *Writer) SetGrid(g Grid) error {
+// declaring runs one declaration under the lock, in define mode; a
+// declaration that fails fails the writer (the file is discarded).
+func (w *Writer) declaring(what string, declare func() error) error {
 	w.mu.Lock()
 	defer w.mu.Unlock()
 	if err := w.state(); err != nil {
 		return err
 	}
-	if err := w.define("SetGrid"); err != nil {
+	if err := w.define(what); err != nil {
 		return err
 	}
-	if err := w.setGrid(g); err != nil {
+	if err := declare(); err != nil {
 		return w.fail(err)
 	}
 	return nil
 }
 
+// coordDecl is one coordinate axis to declare: a dimension, the
+// coordinate variable of the same name and, when bounds are given,
+// NAME_bnds(NAME, bnds).
+type coordDecl struct {
+	name   string
+	what   string // what the name is claimed as (named in later clash messages)
+	bwhat  string // what NAME_bnds is claimed as
+	axis   byte   // 'X', 'Y', 'Z' or 0
+	typ    netcdf.Type
+	values []float64    // copied
+	bounds [][2]float64 // nil: no bounds variable
+	attrs  []attr       // with "bounds" naming NAME_bnds when there are bounds
+}
+
+func (c coordDecl) boundsName() string { return c.name + "_bnds" }
+
+// declareCoords declares the axes in phases (every name claimed, every
+// dimension defined, the bnds dimension if any axis has bounds, then each
+// coordinate variable followed by its bounds), which fixes the order of
+// the dimensions and variables in the file.
+func (w *Writer) declareCoords(cs ...coordDecl) error {
+	for _, c := range cs {
+		if err := w.claim(c.name, c.what); err != nil {
+			return err
+		}
+	}
+	withBounds := false
+	for _, c := range cs {
+		if c.bounds != nil {
+			withBounds = true
+			if err := w.claim(c.boundsName(), c.bwhat); err != nil {
+				return err
+			}
+		}
+	}
+	for _, c := range cs {
+		if err := w.defDim(c.name, len(c.values), c.axis); err != nil {
+			return err
+		}
+	}
+	if withBounds {
+		if err := w.needBounds(); err != nil {
+			return err
+		}
+	}
+	for _, c := range cs {
+		if _, err := w.defCoord(c.name, c.typ, []string{c.name}, append([]float64(nil), c.values...), c.attrs); err != nil {
+			return err
+		}
+		if c.bounds != nil {
+			if _, err := w.defCoord(c.boundsName(), netcdf.Double, []string{c.name, DimBounds}, flatten(c.bounds), nil); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// given returns the attributes whose value is not the empty string.
+func given(attrs ...attr) []attr {
+	var out []attr
+	for _, a := range attrs {
+		if a.value != "" {
+			out = append(out, a)
+		}
+	}
+	return out
+}
+
+// SetGrid declares the lat and lon dimensions with their coordinate and
+// bounds variables (CF-1.10 §4.1, §4.2, §7.1).
+func (w *Writer) SetGrid(g Grid) error {
+	return w.declaring("SetGrid", func() error { return w.setGrid(g) })
+}
+
 func (w *Writer) setGrid(g Grid) error {
+	latB, lonB, err := w.gridBounds(g)
+	if err != nil {
+		return err
+	}
+	return w.declareCoords(
+		coordDecl{name: DimLat, what: "grid", bwhat: "grid", axis: 'Y', typ: netcdf.Double, values: g.Lat, bounds: latB,
+			attrs: []attr{{"standard_name", "latitude"}, {"long_name", "latitude"}, {"units", "degrees_north"}, {"axis", "Y"}, {"bounds", "lat_bnds"}}},
+		coordDecl{name: DimLon, what: "grid", bwhat: "grid", axis: 'X', typ: netcdf.Double, values: g.Lon, bounds: lonB,
+			attrs: []attr{{"standard_name", "longitude"}, {"long_name", "longitude"}, {"units", "degrees_east"}, {"axis", "X"}, {"bounds", "lon_bnds"}}},
+	)
+}
+
+// gridBounds checks the grid and returns its cell edges (derived from the
+// centres when not given, latitude edges clipped to ±90).
+func (w *Writer) gridBounds(g Grid) (latB, lonB [][2]float64, err error) {
 	if _, err := monotonic(g.Lat); err != nil {
-		return fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
+		return nil, nil, fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
 	}
 	if _, err := monotonic(g.Lon); err != nil {
-		return fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
+		return nil, nil, fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
 	}
 	for i, v := range g.Lat {
 		if v < -90 || v > 90 {
-			return fmt.Errorf("cfwrite: %s: latitude %d is %g, outside [-90, 90]", w.path, i, v)
+			return nil, nil, fmt.Errorf("cfwrite: %s: latitude %d is %g, outside [-90, 90]", w.path, i, v)
 		}
 	}
-	latB, lonB := g.LatBounds, g.LonBounds
-	var err error
+	latB, lonB = g.LatBounds, g.LonBounds
 	if latB == nil {
 		if latB, err = edgesFromCentres(g.Lat); err != nil {
-			return fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
+			return nil, nil, fmt.Errorf("cfwrite: %s: latitudes: %w", w.path, err)
 		}
 		for i := range latB {
 			for k := range latB[i] {
@@ -279,76 +368,35 @@ func (w *Writer) setGrid(g Grid) error {
 	}
 	if lonB == nil {
 		if lonB, err = edgesFromCentres(g.Lon); err != nil {
-			return fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
+			return nil, nil, fmt.Errorf("cfwrite: %s: longitudes: %w", w.path, err)
 		}
 	}
 	if err := checkBounds(g.Lat, latB); err != nil {
-		return fmt.Errorf("cfwrite: %s: latitude bounds: %w", w.path, err)
+		return nil, nil, fmt.Errorf("cfwrite: %s: latitude bounds: %w", w.path, err)
 	}
 	for i, p := range latB {
 		if p[0] < -90 || p[0] > 90 || p[1] < -90 || p[1] > 90 {
-			return fmt.Errorf("cfwrite: %s: latitude bounds %d (%v) lie outside [-90, 90]", w.path, i, p)
+			return nil, nil, fmt.Errorf("cfwrite: %s: latitude bounds %d (%v) lie outside [-90, 90]", w.path, i, p)
 		}
 	}
 	if err := checkBounds(g.Lon, lonB); err != nil {
-		return fmt.Errorf("cfwrite: %s: longitude bounds: %w", w.path, err)
+		return nil, nil, fmt.Errorf("cfwrite: %s: longitude bounds: %w", w.path, err)
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, p := range lonB {
 		lo, hi = math.Min(lo, math.Min(p[0], p[1])), math.Max(hi, math.Max(p[0], p[1]))
 	}
 	if hi-lo > 360+1e-9 {
-		return fmt.Errorf("cfwrite: %s: longitude bounds span %g degrees, more than 360", w.path, hi-lo)
+		return nil, nil, fmt.Errorf("cfwrite: %s: longitude bounds span %g degrees, more than 360", w.path, hi-lo)
 	}
-	for _, n := range []string{DimLat, DimLon, "lat_bnds", "lon_bnds"} {
-		if err := w.claim(n, "grid"); err != nil {
-			return err
-		}
-	}
-	if err := w.defDim(DimLat, len(g.Lat), 'Y'); err != nil {
-		return err
-	}
-	if err := w.defDim(DimLon, len(g.Lon), 'X'); err != nil {
-		return err
-	}
-	if err := w.needBounds(); err != nil {
-		return err
-	}
-	if _, err := w.defCoord(DimLat, netcdf.Double, []string{DimLat}, append([]float64(nil), g.Lat...), []attr{
-		{"standard_name", "latitude"}, {"long_name", "latitude"}, {"units", "degrees_north"},
-		{"axis", "Y"}, {"bounds", "lat_bnds"},
-	}); err != nil {
-		return err
-	}
-	if _, err := w.defCoord("lat_bnds", netcdf.Double, []string{DimLat, DimBounds}, flatten(latB), nil); err != nil {
-		return err
-	}
-	if _, err := w.defCoord(DimLon, netcdf.Double, []string{DimLon}, append([]float64(nil), g.Lon...), []attr{
-		{"standard_name", "longitude"}, {"long_name", "longitude"}, {"units", "degrees_east"},
-		{"axis", "X"}, {"bounds", "lon_bnds"},
-	}); err != nil {
-		return err
-	}
-	_, err = w.defCoord("lon_bnds", netcdf.Double, []string{DimLon, DimBounds}, flatten(lonB), nil)
-	return err
+	return latB, lonB, nil
 }
 
 // SetLevels declares the plev dimension and coordinate (CF-1.10 §4.3):
 // air_pressure in Pa, positive "down", axis Z, with plev_bnds if bounds are
 // given.
 func (w *Writer) SetLevels(l Levels) error {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	if err := w.state(); err != nil {
-		return err
-	}
-	if err := w.define("SetLevels"); err != nil {
-		return err
-	}
-	if err := w.setLevels(l); err != nil {
-		return w.fail(err)
-	}
-	return nil
+	return w.declaring("SetLevels", func() error { return w.setLevels(l) })
 }
 
 func (w *Writer) setLevels(l Levels) error {
@@ -368,31 +416,8 @@ func (w *Writer) setLevels(l Levels) error {
 		}
 		attrs = append(attrs, attr{"bounds", "plev_bnds"})
 	}
-	if err := w.claim(DimPlev, "pressure levels"); err != nil {
-		return err
-	}
-	if l.Bounds != nil {
-		if err := w.claim("plev_bnds", "pressure levels"); err != nil {
-			return err
-		}
-	}
-	if err := w.defDim(DimPlev, len(l.Pa), 'Z'); err != nil {
-		return err
-	}
-	if l.Bounds != nil {
-		if err := w.needBounds(); err != nil {
-			return err
-		}
-	}
-	if _, err := w.defCoord(DimPlev, netcdf.Double, []string{DimPlev}, append([]float64(nil), l.Pa...), attrs); err != nil {
-		return err
-	}
-	if l.Bounds != nil {
-		if _, err := w.defCoord("plev_bnds", netcdf.Double, []string{DimPlev, DimBounds}, flatten(l.Bounds), nil); err != nil {
-			return err
-		}
-	}
-	return nil
+	return w.declareCoords(coordDecl{name: DimPlev, what: "pressure levels", bwhat: "pressure levels", axis: 'Z',
+		typ: netcdf.Double, values: l.Pa, bounds: l.Bounds, attrs: attrs})
 }
 
 // timeAxis is the state of the time coordinate.
@@ -408,18 +433,7 @@ type timeAxis struct {
 // (CF-1.10 §4.4): double, standard_name time, axis T, the given units and
 // calendar, and time_bnds when t.Bounds is set.
 func (w *Writer) SetTime(t TimeAxis) error {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	if err := w.state(); err != nil {
-		return err
-	}
-	if err := w.define("SetTime"); err != nil {
-		return err
-	}
-	if err := w.setTime(t); err != nil {
-		return w.fail(err)
-	}
-	return nil
+	return w.declaring("SetTime", func() error { return w.setTime(t) })
 }
 
 func (w *Writer) setTime(t TimeAxis) error {
@@ -544,18 +558,7 @@ func (w *Writer) Times() int {
 // AddAxis declares a further axis: a dimension and a double coordinate
 // variable of the same name, with NAME_bnds when bounds are given.
 func (w *Writer) AddAxis(a Axis) error {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	if err := w.state(); err != nil {
-		return err
-	}
-	if err := w.define("AddAxis"); err != nil {
-		return err
-	}
-	if err := w.addAxis(a); err != nil {
-		return w.fail(err)
-	}
-	return nil
+	return w.declaring("AddAxis", func() error { return w.addAxis(a) })
 }
 
 func (w *Writer) addAxis(a Axis) error {
@@ -565,53 +568,22 @@ func (w *Writer) addAxis(a Axis) error {
 	if err := checkStandardName(a.StandardName); err != nil {
 		return fmt.Errorf("cfwrite: %s: axis %q: %w", w.path, a.Name, err)
 	}
-	bname := a.Name + "_bnds"
-	var attrs []attr
-	if a.StandardName != "" {
-		attrs = append(attrs, attr{"standard_name", a.StandardName})
-	}
-	if a.LongName != "" {
-		attrs = append(attrs, attr{"long_name", a.LongName})
-	}
-	if a.Units != "" {
-		attrs = append(attrs, attr{"units", a.Units})
-	}
 	if a.Bounds != nil {
 		if err := checkBounds(a.Values, a.Bounds); err != nil {
 			return fmt.Errorf("cfwrite: %s: axis %q bounds: %w", w.path, a.Name, err)
 		}
-		attrs = append(attrs, attr{"bounds", bname})
 	}
 	extra, err := extraAttrs(a.Attributes, []string{"standard_name", "long_name", "units", "bounds", "_FillValue"}, netcdf.Double)
 	if err != nil {
 		return fmt.Errorf("cfwrite: %s: axis %q: %w", w.path, a.Name, err)
 	}
-	attrs = append(attrs, extra...)
-	if err := w.claim(a.Name, "axis"); err != nil {
-		return err
-	}
+	attrs := given(attr{"standard_name", a.StandardName}, attr{"long_name", a.LongName}, attr{"units", a.Units})
 	if a.Bounds != nil {
-		if err := w.claim(bname, "bounds of axis "+a.Name); err != nil {
-			return err
-		}
+		attrs = append(attrs, attr{"bounds", a.Name + "_bnds"})
 	}
-	if err := w.defDim(a.Name, len(a.Values), 0); err != nil {
-		return err
-	}
-	if a.Bounds != nil {
-		if err := w.needBounds(); err != nil {
-			return err
-		}
-	}
-	if _, err := w.defCoord(a.Name, netcdf.Double, []string{a.Name}, append([]float64(nil), a.Values...), attrs); err != nil {
-		return err
-	}
-	if a.Bounds != nil {
-		if _, err := w.defCoord(bname, netcdf.Double, []string{a.Name, DimBounds}, flatten(a.Bounds), nil); err != nil {
-			return err
-		}
-	}
-	return nil
+	d := coordDecl{name: a.Name, what: "axis", bwhat: "bounds of axis " + a.Name, typ: netcdf.Double,
+		values: a.Values, bounds: a.Bounds, attrs: append(attrs, extra...)}
+	return w.declareCoords(d)
 }
 
 // checkMeaning checks one flag_meanings word (CF-1.10 §3.5).
@@ -631,18 +603,7 @@ func checkMeaning(s string) error {
 // coordinate variable of the same name carrying flag_values and
 // flag_meanings.
 func (w *Writer) AddCategories(c Categories) error {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	if err := w.state(); err != nil {
-		return err
-	}
-	if err := w.define("AddCategories"); err != nil {
-		return err
-	}
-	if err := w.addCategories(c); err != nil {
-		return w.fail(err)
-	}
-	return nil
+	return w.declaring("AddCategories", func() error { return w.addCategories(c) })
 }
 
 func (w *Writer) addCategories(c Categories) error {
@@ -678,43 +639,19 @@ func (w *Writer) addCategories(c Categories) error {
 	if err := checkStandardName(c.StandardName); err != nil {
 		return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
 	}
-	var attrs []attr
-	if c.StandardName != "" {
-		attrs = append(attrs, attr{"standard_name", c.StandardName})
-	}
-	if c.LongName != "" {
-		attrs = append(attrs, attr{"long_name", c.LongName})
-	}
+	attrs := given(attr{"standard_name", c.StandardName}, attr{"long_name", c.LongName})
 	attrs = append(attrs, attr{"flag_values", flagValues}, attr{"flag_meanings", strings.Join(c.Meanings, " ")})
 	extra, err := extraAttrs(c.Attributes, []string{"standard_name", "long_name", "flag_values", "flag_meanings", "_FillValue"}, netcdf.Int)
 	if err != nil {
 		return fmt.Errorf("cfwrite: %s: categories %q: %w", w.path, c.Name, err)
 	}
-	attrs = append(attrs, extra...)
-	if err := w.claim(c.Name, "categorical axis"); err != nil {
-		return err
-	}
-	if err := w.defDim(c.Name, len(vals), 0); err != nil {
-		return err
-	}
-	_, err = w.defCoord(c.Name, netcdf.Int, []string{c.Name}, fv, attrs)
-	return err
+	return w.declareCoords(coordDecl{name: c.Name, what: "categorical axis", typ: netcdf.Int, values: fv,
+		attrs: append(attrs, extra...)})
 }
 
 // AddScalarCoord declares a scalar coordinate variable (CF-1.10 §5.7).
 func (w *Writer) AddScalarCoord(s ScalarCoord) error {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	if err := w.state(); err != nil {
-		return err
-	}
-	if err := w.define("AddScalarCoord"); err != nil {
-		return err
-	}
-	if err := w.addScalar(s); err != nil {
-		return w.fail(err)
-	}
-	return nil
+	return w.declaring("AddScalarCoord", func() error { return w.addScalar(s) })
 }
 
 func (w *Writer) addScalar(s ScalarCoord) error {
@@ -737,13 +674,8 @@ func (w *Writer) addScalar(s ScalarCoord) error {
 	if s.StandardName == "" && s.LongName == "" {
 		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: give a StandardName or a LongName", w.path, s.Name)
 	}
-	var attrs []attr
-	for _, a := range []attr{{"standard_name", s.StandardName}, {"long_name", s.LongName},
-		{"units", s.Units}, {"positive", s.Positive}, {"axis", s.Axis}} {
-		if a.value != "" {
-			attrs = append(attrs, a)
-		}
-	}
+	attrs := given(attr{"standard_name", s.StandardName}, attr{"long_name", s.LongName},
+		attr{"units", s.Units}, attr{"positive", s.Positive}, attr{"axis", s.Axis})
 	extra, err := extraAttrs(s.Attributes, []string{"standard_name", "long_name", "units", "positive", "axis", "_FillValue"}, netcdf.Double)
 	if err != nil {
 		return fmt.Errorf("cfwrite: %s: scalar coordinate %q: %w", w.path, s.Name, err)

@@ -126,6 +126,8 @@ func (w *Writer) AddVar(s VarSpec) (*Var, error) {
 
 var axisOrder = map[byte]int{'T': 0, 'Z': 1, 'Y': 2, 'X': 3}
 
+// addVar checks the spec in named steps (name, type, dimensions, metadata,
+// fill value, chunks) and then defines the variable.
 func (w *Writer) addVar(s VarSpec) (*Var, error) {
 	if err := checkName(s.Name); err != nil {
 		return nil, err
@@ -133,115 +135,28 @@ func (w *Writer) addVar(s VarSpec) (*Var, error) {
 	if prev, ok := w.names[s.Name]; ok {
 		return nil, fmt.Errorf("the name is already used by the %s", prev)
 	}
-	var nt netcdf.Type
-	size := 4
-	switch s.Type {
-	case Float32:
-		nt = netcdf.Float
-	case Float64:
-		nt, size = netcdf.Double, 8
-	case Int32:
-		nt = netcdf.Int
-	default:
-		return nil, fmt.Errorf("unknown Type %v; use Float32, Float64 or Int32", s.Type)
-	}
-	v := &Var{w: w, name: s.Name, typ: s.Type, slab: 1}
-	seen := map[string]bool{}
-	last := -1
-	for i, dn := range s.Dims {
-		d, ok := w.dims[dn]
-		if !ok {
-			return nil, fmt.Errorf("dimension %q is not declared; declare it first (SetGrid, SetLevels, SetTime, AddAxis or AddCategories)", dn)
-		}
-		if seen[dn] {
-			return nil, fmt.Errorf("dimension %q appears twice in %v", dn, s.Dims)
-		}
-		seen[dn] = true
-		if dn == DimTime {
-			if i != 0 {
-				return nil, fmt.Errorf("time must be the first dimension, got %v", s.Dims)
-			}
-			v.timed = true
-		} else {
-			v.shape = append(v.shape, d.n)
-			v.slab *= d.n
-		}
-		if o, ok := axisOrder[d.axis]; ok {
-			if o < last {
-				return nil, fmt.Errorf("dimensions %v are not in the order T, Z, Y, X that CF-1.10 §2.4 recommends", s.Dims)
-			}
-			last = o
-		}
-		v.dims = append(v.dims, d)
-	}
-	if strings.TrimSpace(s.Units) == "" {
-		return nil, fmt.Errorf("Units is empty; give the UDUNITS units (\"1\" for a dimensionless quantity)")
-	}
-	if s.LongName == "" && s.StandardName == "" {
-		return nil, fmt.Errorf("give a LongName or a StandardName (CF-1.10 §3.2, §3.3)")
-	}
-	if err := checkStandardName(s.StandardName); err != nil {
+	nt, size, err := ncType(s.Type)
+	if err != nil {
 		return nil, err
 	}
-	if s.CellMethods != "" {
-		if _, err := parseCellMethods(s.CellMethods); err != nil {
-			return nil, err
-		}
+	v := &Var{w: w, name: s.Name, typ: s.Type, slab: 1}
+	if err := v.placeDims(s.Dims); err != nil {
+		return nil, err
 	}
-	for _, c := range words(s.Coordinates) {
-		if _, ok := w.names[c]; !ok {
-			if _, ok := w.varNames[c]; !ok {
-				return nil, fmt.Errorf("coordinates names %q, which is not a variable of the file; declare it first", c)
-			}
-		}
+	if err := w.checkVarMeta(s); err != nil {
+		return nil, err
 	}
-	// Fill value.
-	fill := s.Fill
-	switch s.Type {
-	case Float32:
-		if fill == 0 {
-			fill = DefaultFill
-		}
-		if math.IsNaN(fill) || math.IsInf(fill, 0) || math.Abs(fill) > math.MaxFloat32 {
-			return nil, fmt.Errorf("Fill %v is not a finite float32", s.Fill)
-		}
-		v.fill32 = float32(fill)
-		v.fill = float64(v.fill32)
-	case Float64:
-		if fill == 0 {
-			fill = DefaultFill
-		}
-		if math.IsNaN(fill) || math.IsInf(fill, 0) {
-			return nil, fmt.Errorf("Fill %v is not finite", s.Fill)
-		}
-		v.fill = fill
-	case Int32:
-		if fill == 0 {
-			fill = DefaultFillInt32
-		}
-		if fill != math.Trunc(fill) || fill < math.MinInt32 || fill > math.MaxInt32 {
-			return nil, fmt.Errorf("Fill %v is not an int32", s.Fill)
-		}
-		v.fill = fill
+	if err := v.setFill(s.Fill); err != nil {
+		return nil, err
 	}
 	extra, err := extraAttrs(s.Attributes, []string{"standard_name", "long_name", "units", "cell_methods", "coordinates", "_FillValue"}, nt)
 	if err != nil {
 		return nil, err
 	}
-	chunks := s.Chunks
-	if chunks == nil {
-		chunks = defaultChunks(v.dims, size)
-	} else {
-		if len(chunks) != len(v.dims) {
-			return nil, fmt.Errorf("Chunks %v has %d sizes for %d dimensions", chunks, len(chunks), len(v.dims))
-		}
-		for i, c := range chunks {
-			if c < 1 || (v.dims[i].n > 0 && c > v.dims[i].n) {
-				return nil, fmt.Errorf("chunk size %d for dimension %s must be 1..%d", c, v.dims[i].name, v.dims[i].n)
-			}
-		}
+	chunks, err := v.chunks(s.Chunks, size)
+	if err != nil {
+		return nil, err
 	}
-
 	nv, err := w.nc.DefVar(s.Name, nt, s.Dims)
 	if err != nil {
 		return nil, err
@@ -254,13 +169,146 @@ func (w *Writer) addVar(s VarSpec) (*Var, error) {
 	if err := w.deflate(nv); err != nil {
 		return nil, err
 	}
-	var attrs []attr
-	if s.StandardName != "" {
-		attrs = append(attrs, attr{"standard_name", s.StandardName})
+	if err := putAttrs(nv, append(v.attrs(s), extra...)); err != nil {
+		return nil, err
 	}
-	if s.LongName != "" {
-		attrs = append(attrs, attr{"long_name", s.LongName})
+	v.nv = nv
+	w.names[s.Name] = "data variable"
+	w.varNames[s.Name] = v
+	w.vars = append(w.vars, v)
+	return v, nil
+}
+
+// ncType is the netCDF type of a DataType and its size in bytes.
+func ncType(t DataType) (netcdf.Type, int, error) {
+	switch t {
+	case Float32:
+		return netcdf.Float, 4, nil
+	case Float64:
+		return netcdf.Double, 8, nil
+	case Int32:
+		return netcdf.Int, 4, nil
 	}
+	return 0, 0, fmt.Errorf("unknown Type %v; use Float32, Float64 or Int32", t)
+}
+
+// placeDims resolves the variable's dimensions, which must be declared,
+// distinct, time first if at all, and in the CF order T, Z, Y, X.
+func (v *Var) placeDims(names []string) error {
+	seen := map[string]bool{}
+	last := -1
+	for i, dn := range names {
+		d, ok := v.w.dims[dn]
+		if !ok {
+			return fmt.Errorf("dimension %q is not declared; declare it first (SetGrid, SetLevels, SetTime, AddAxis or AddCategories)", dn)
+		}
+		if seen[dn] {
+			return fmt.Errorf("dimension %q appears twice in %v", dn, names)
+		}
+		seen[dn] = true
+		if dn == DimTime {
+			if i != 0 {
+				return fmt.Errorf("time must be the first dimension, got %v", names)
+			}
+			v.timed = true
+		} else {
+			v.shape = append(v.shape, d.n)
+			v.slab *= d.n
+		}
+		if o, ok := axisOrder[d.axis]; ok {
+			if o < last {
+				return fmt.Errorf("dimensions %v are not in the order T, Z, Y, X that CF-1.10 §2.4 recommends", names)
+			}
+			last = o
+		}
+		v.dims = append(v.dims, d)
+	}
+	return nil
+}
+
+// checkVarMeta checks the units, names, cell methods and coordinates of a
+// variable spec.
+func (w *Writer) checkVarMeta(s VarSpec) error {
+	if strings.TrimSpace(s.Units) == "" {
+		return fmt.Errorf("Units is empty; give the UDUNITS units (\"1\" for a dimensionless quantity)")
+	}
+	if s.LongName == "" && s.StandardName == "" {
+		return fmt.Errorf("give a LongName or a StandardName (CF-1.10 §3.2, §3.3)")
+	}
+	if err := checkStandardName(s.StandardName); err != nil {
+		return err
+	}
+	if s.CellMethods != "" {
+		if _, err := parseCellMethods(s.CellMethods); err != nil {
+			return err
+		}
+	}
+	for _, c := range words(s.Coordinates) {
+		if _, ok := w.names[c]; !ok {
+			if _, ok := w.varNames[c]; !ok {
+				return fmt.Errorf("coordinates names %q, which is not a variable of the file; declare it first", c)
+			}
+		}
+	}
+	return nil
+}
+
+// setFill sets the fill value (0: the default of the type), which must be
+// representable in the variable's type.
+func (v *Var) setFill(want float64) error {
+	fill := want
+	switch v.typ {
+	case Float32:
+		if fill == 0 {
+			fill = DefaultFill
+		}
+		if math.IsNaN(fill) || math.IsInf(fill, 0) || math.Abs(fill) > math.MaxFloat32 {
+			return fmt.Errorf("Fill %v is not a finite float32", want)
+		}
+		v.fill32 = float32(fill)
+		v.fill = float64(v.fill32)
+	case Float64:
+		if fill == 0 {
+			fill = DefaultFill
+		}
+		if math.IsNaN(fill) || math.IsInf(fill, 0) {
+			return fmt.Errorf("Fill %v is not finite", want)
+		}
+		v.fill = fill
+	case Int32:
+		if fill == 0 {
+			fill = DefaultFillInt32
+		}
+		if fill != math.Trunc(fill) || fill < math.MinInt32 || fill > math.MaxInt32 {
+			return fmt.Errorf("Fill %v is not an int32", want)
+		}
+		v.fill = fill
+	}
+	return nil
+}
+
+// chunks returns the chunk sizes of the spec, checked against the dimensions,
+// or the default ones for values of size bytes.
+func (v *Var) chunks(spec []int, size int) ([]int, error) {
+	if spec == nil {
+		return defaultChunks(v.dims, size), nil
+	}
+	if len(spec) != len(v.dims) {
+		return nil, fmt.Errorf("Chunks %v has %d sizes for %d dimensions", spec, len(spec), len(v.dims))
+	}
+	for i, c := range spec {
+		if c < 1 || (v.dims[i].n > 0 && c > v.dims[i].n) {
+			return nil, fmt.Errorf("chunk size %d for dimension %s must be 1..%d", c, v.dims[i].name, v.dims[i].n)
+		}
+	}
+	return spec, nil
+}
+
+// attrs are the variable's CF attributes in their order in the file:
+// standard_name, long_name, units, _FillValue (in the variable's type),
+// cell_methods, coordinates.
+func (v *Var) attrs(s VarSpec) []attr {
+	attrs := given(attr{"standard_name", s.StandardName}, attr{"long_name", s.LongName})
 	attrs = append(attrs, attr{"units", strings.TrimSpace(s.Units)})
 	switch s.Type {
 	case Float32:
@@ -276,15 +324,7 @@ func (w *Writer) addVar(s VarSpec) (*Var, error) {
 	if s.Coordinates != "" {
 		attrs = append(attrs, attr{"coordinates", strings.Join(words(s.Coordinates), " ")})
 	}
-	attrs = append(attrs, extra...)
-	if err := putAttrs(nv, attrs); err != nil {
-		return nil, err
-	}
-	v.nv = nv
-	w.names[s.Name] = "data variable"
-	w.varNames[s.Name] = v
-	w.vars = append(w.vars, v)
-	return v, nil
+	return attrs
 }
 
 const (
