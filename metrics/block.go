@@ -52,13 +52,13 @@ func (k *Kernel) check(b *block, i int, w want) fault {
 		return faultTs
 	case badT(t700):
 		return faultT700
-	case !(ps > P700 && ps <= maxSurfacePressure):
+	case !SurfacePressureOK(ps):
 		return faultPs
 	}
 	if needHum {
 		switch r.Humidity {
 		case HumidityRH:
-			if !(hum >= 0 && hum <= maxRH) || (hum == 0 && r.LCL == LCLLinear) {
+			if !RelativeHumidityOK(hum) || (hum == 0 && r.LCL == LCLLinear) {
 				return faultHumidity
 			}
 		case HumidityDewPoint:

@@ -226,10 +226,10 @@ func (r Conventions) Validate() error {
 	case r.ECTEISurface != ECTEIAir && r.ECTEISurface != ECTEISaturated:
 		return fmt.Errorf("metrics: Conventions.ECTEISurface is %v, not air or saturated%s", r.ECTEISurface, startHint)
 	}
-	if !r.PressureField && !(r.SurfacePressure > P700 && r.SurfacePressure <= maxSurfacePressure) {
+	if !r.PressureField && !SurfacePressureOK(r.SurfacePressure) {
 		return fmt.Errorf("metrics: Conventions.SurfacePressure = %g Pa must be above 70000 Pa (700 hPa) and at most %g Pa; give it in Pa (1000 hPa = 100000 Pa)", r.SurfacePressure, float64(maxSurfacePressure))
 	}
-	if r.Humidity == HumidityAssumedRH && !(r.AssumedRH > 0 && r.AssumedRH <= 1) {
+	if r.Humidity == HumidityAssumedRH && !AssumedRHOK(r.AssumedRH) {
 		return fmt.Errorf("metrics: Conventions.AssumedRH = %g must be a fraction in (0, 1] (0.8 means 80 %%)", r.AssumedRH)
 	}
 	if !(r.LapsePressure > P700 && r.LapsePressure < maxSurfacePressure) {

@@ -228,11 +228,11 @@ func (k *Kernel) explain(f fault, in *colIn) error {
 	case faultT700:
 		return fmt.Errorf("metrics: %w: 700-hPa temperature %g K is outside %s%s", ErrImpossibleInput, in.t700, rangeT, tempHint(in.t700))
 	case faultPs:
-		return fmt.Errorf("metrics: %w: surface pressure %g Pa must be above 70000 Pa (the 700-hPa level must be above the surface) and at most %g Pa; give hPa with a unit, e.g. 1013hPa", ErrImpossibleInput, in.ps, float64(maxSurfacePressure))
+		return fmt.Errorf("metrics: %w: %w", ErrImpossibleInput, CheckSurfacePressure(in.ps))
 	case faultHumidity:
 		switch r.Humidity {
 		case HumidityRH:
-			return fmt.Errorf("metrics: %w: relative humidity %g is outside [0, %g] (a fraction: 80 %% is 0.8)", ErrImpossibleInput, in.hum, maxRH)
+			return fmt.Errorf("metrics: %w: %w", ErrImpossibleInput, CheckRelativeHumidity(in.hum))
 		case HumidityDewPoint:
 			if badT(in.hum) {
 				return fmt.Errorf("metrics: %w: dew point %g K is outside %s%s", ErrImpossibleInput, in.hum, rangeT, tempHint(in.hum))

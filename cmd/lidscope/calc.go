@@ -222,7 +222,7 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 			choice = calcDefaultRH
 		}
 		rh, _, err := units.ParseQuantity(units.Fraction, choice)
-		if err != nil || !(rh > 0 && rh <= 1) {
+		if err != nil || !metrics.AssumedRHOK(rh) {
 			return usageErr("--surface-humidity %q: give an assumed relative humidity in (0, 1] (0.8 or 80%%), or relative_humidity, dew_point_temperature, specific_humidity or field", choice)
 		}
 		r.Humidity = metrics.HumidityAssumedRH
@@ -235,8 +235,10 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 	if err != nil {
 		return err
 	}
-	if g.source == metrics.HumidityRH && !(q.Value >= 0 && q.Value <= 1.05) {
-		return usageErr("--relative-humidity %s is %g: relative humidity must be a fraction in [0, 1.05] (write 0.8 or 80%%)", g.value, q.Value)
+	if g.source == metrics.HumidityRH {
+		if err := metrics.CheckRelativeHumidity(q.Value); err != nil {
+			return usageErr("--relative-humidity %s: %v", g.value, err)
+		}
 	}
 	r.Humidity = g.source
 	rep.Inputs[g.role] = q
@@ -247,29 +249,70 @@ func calcHumidity(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput
 // calcDefaultRH is the --surface-humidity default as written.
 var calcDefaultRH = strconv.FormatFloat(metrics.DefaultAssumedRH, 'g', -1, 64)
 
-// runCalc computes one column from o and writes the report to w.
+// runCalc computes one column from o and writes the report to w. The
+// steps fill the conventions, the column's inputs and the report; the
+// ranges of the inputs are metrics' (metrics.CheckSurfacePressure and the
+// kernel's own checks), the flags' mistakes are usage errors here.
 func runCalc(o calcOptions, w io.Writer) error {
+	r, err := calcConventions(o)
+	if err != nil {
+		return err
+	}
+	rep := calcReport{Inputs: map[string]calcQuantity{}}
+	in := metrics.ColumnInput{}
+	for _, step := range []func(calcOptions, *metrics.Conventions, *metrics.ColumnInput, *calcReport) error{
+		calcSurfaceTemperature, calcT700, calcPressures, calcHumidity, calcLapseLevel, calcECTEI,
+	} {
+		if err := step(o, &r, &in, &rep); err != nil {
+			return err
+		}
+	}
+	k, err := metrics.NewKernel(r)
+	if err != nil {
+		return usageErr("%v", err)
+	}
+	res, err := k.Column(in)
+	if err != nil {
+		if errors.Is(err, metrics.ErrImpossibleInput) {
+			return usageErr("%v", err)
+		}
+		return err
+	}
+	rep.Conventions = r.Text()
+	rep.Results = calcResults(r, res)
+	if o.JSON {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(jsonSafe(rep))
+	}
+	return writeCalcText(w, rep)
+}
+
+// calcConventions are the default conventions with the choices of the
+// flags.
+func calcConventions(o calcOptions) (metrics.Conventions, error) {
 	r := metrics.DefaultConventions()
 	var err error
 	if r.SVP, err = metrics.ParseSVPFormula(o.SVP); err != nil {
-		return usageErr("--svp: %v", err)
+		return r, usageErr("--svp: %v", err)
 	}
 	if r.LCL, err = metrics.ParseLCLMethod(o.LCL); err != nil {
-		return usageErr("--lcl: %v", err)
+		return r, usageErr("--lcl: %v", err)
 	}
 	if r.LapseMoisture, err = metrics.ParseLapseMoisture(o.LapseMoisture); err != nil {
-		return usageErr("--lapse-moisture: %v", err)
+		return r, usageErr("--lapse-moisture: %v", err)
 	}
 	if r.ECTEISurface, err = metrics.ParseECTEISurface(o.ECTEISurface); err != nil {
-		return usageErr("--ectei-surface: %v", err)
+		return r, usageErr("--ectei-surface: %v", err)
 	}
 	r.Constants = o.Constants
 	r.ECTEIBeta = o.Beta
+	return r, nil
+}
 
-	rep := calcReport{Inputs: map[string]calcQuantity{}}
-	in := metrics.ColumnInput{}
-
-	// surface temperature: surface.temperature, from --sst or --surface-air-temperature
+// calcSurfaceTemperature sets surface.temperature and its value, from
+// --sst or --surface-air-temperature.
+func calcSurfaceTemperature(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput, rep *calcReport) error {
 	which := o.SurfaceTemperature
 	switch {
 	case o.SST == "" && o.SurfaceAirTemp == "":
@@ -299,79 +342,92 @@ func runCalc(o calcOptions, w io.Writer) error {
 	q.Note = map[metrics.SurfaceTemperature]string{metrics.SurfaceSST: "sea surface temperature", metrics.SurfaceAir: "near-surface air temperature"}[r.Surface]
 	rep.Inputs["surface_temperature"] = q
 	in.Ts = q.Value
+	return nil
+}
 
+// calcT700 sets the 700-hPa temperature.
+func calcT700(o calcOptions, _ *metrics.Conventions, in *metrics.ColumnInput, rep *calcReport) error {
 	if o.T700 == "" {
 		return usageErr("give the 700-hPa temperature with --t700")
 	}
-	if q, err = parseQ("t700", units.Temperature, o.T700); err != nil {
+	q, err := parseQ("t700", units.Temperature, o.T700)
+	if err != nil {
 		return err
 	}
 	rep.Inputs["t700"] = q
 	in.T700 = q.Value
+	return nil
+}
 
+// calcPressures sets the surface pressure (one column: the constant of
+// the conventions) and the lapse-rate level.
+func calcPressures(o calcOptions, r *metrics.Conventions, _ *metrics.ColumnInput, rep *calcReport) error {
 	if o.SurfacePressure == "field" {
 		return usageErr("--surface-pressure field reads a surface_pressure file in a study; for one column give its value, e.g. --surface-pressure 1013hPa")
 	}
-	if q, err = parseQ("surface-pressure", units.Pressure, o.SurfacePressure); err != nil {
+	q, err := parseQ("surface-pressure", units.Pressure, o.SurfacePressure)
+	if err != nil {
 		return err
 	}
 	if o.SurfacePressure == "1000hPa" {
 		q.Note = "default"
 	}
 	rep.Inputs["surface_pressure"] = q
-	r.SurfacePressure = q.Value // one column: the constant of the conventions
-	if !(q.Value > metrics.P700 && q.Value <= 120000) {
-		return usageErr("--surface-pressure %s is %g Pa: the surface must be below the 700-hPa level (above 70000 Pa) and at most 120000 Pa; give hPa with a unit, e.g. 1013hPa", o.SurfacePressure, q.Value)
+	r.SurfacePressure = q.Value
+	if err := metrics.CheckSurfacePressure(q.Value); err != nil {
+		return usageErr("--surface-pressure %s: %v", o.SurfacePressure, err)
 	}
-
 	if q, err = parseQ("lapse-pressure", units.Pressure, o.LapsePressure); err != nil {
 		return err
 	}
 	r.LapsePressure = q.Value
+	return nil
+}
 
-	if err := calcHumidity(o, &r, &in, &rep); err != nil {
-		return err
-	}
-
+// calcLapseLevel sets the temperature at the lapse-rate level: the mean
+// of the surface and 700-hPa temperatures, or the value of --t850.
+func calcLapseLevel(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput, rep *calcReport) error {
 	switch o.T850 {
 	case "", "mean":
 		rep.Assumptions = append(rep.Assumptions, "temperature at the lapse-rate level = (T_surface + T700)/2 (Wood & Bretherton 2006; --t850 mean)")
 	case "field":
 		return usageErr("--t850 field reads the air_temperature file at the lapse-rate level in a study; for one column give its value, e.g. --t850 288K")
 	default:
-		if q, err = parseQ("t850", units.Temperature, o.T850); err != nil {
+		q, err := parseQ("t850", units.Temperature, o.T850)
+		if err != nil {
 			return err
 		}
 		r.T850Field = true
 		rep.Inputs["t850"] = q
 		in.T850 = q.Value
 	}
+	return nil
+}
+
+// calcECTEI turns ECTEI on (--ectei, or a --q700 without --ectei=false)
+// and sets the 700-hPa specific humidity it needs.
+func calcECTEI(o calcOptions, r *metrics.Conventions, in *metrics.ColumnInput, rep *calcReport) error {
 	r.ECTEI = o.ECTEI || (!o.ECTEISet && o.Q700 != "")
 	switch {
 	case r.ECTEI && o.Q700 == "":
 		return usageErr("--ectei needs the specific humidity at 700 hPa: give --q700, e.g. --q700 4g/kg")
 	case r.ECTEI:
-		if q, err = parseQ("q700", units.MixingRatio, o.Q700); err != nil {
+		q, err := parseQ("q700", units.MixingRatio, o.Q700)
+		if err != nil {
 			return err
 		}
 		rep.Inputs["q700"] = q
 		in.Q700 = q.Value
 	}
+	return nil
+}
 
-	k, err := metrics.NewKernel(r)
-	if err != nil {
-		return usageErr("%v", err)
-	}
-	res, err := k.Column(in)
-	if err != nil {
-		if errors.Is(err, metrics.ErrImpossibleInput) {
-			return usageErr("%v", err)
-		}
-		return err
-	}
-	rep.Conventions = r.Text()
+// calcResults are the column's results in the report's order, each with
+// its units and what it is.
+func calcResults(r metrics.Conventions, res metrics.ColumnResult) []calcNamed {
+	var out []calcNamed
 	add := func(name string, v float64, unit, about string) {
-		rep.Results = append(rep.Results, calcNamed{name, calcValue{v, unit, about}})
+		out = append(out, calcNamed{name, calcValue{v, unit, about}})
 	}
 	lp := fmt.Sprintf("%g hPa", r.LapsePressure/100)
 	add("theta700", res.Theta700, "K", "potential temperature at 700 hPa")
@@ -390,12 +446,7 @@ func runCalc(o calcOptions, w io.Writer) error {
 		add("q_surface", res.QSurface, "kg kg-1", fmt.Sprintf("q_surface of ECTEI (%v)", r.ECTEISurface))
 		add("ectei", res.ECTEI, "K", fmt.Sprintf("EIS − β (Lv/cp)(q_surface − q700), β = %g (Kawai, Koshiro & Webb 2017)", r.ECTEIBeta))
 	}
-	if o.JSON {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(jsonSafe(rep))
-	}
-	return writeCalcText(w, rep)
+	return out
 }
 
 // jsonSafe leaves out results that are NaN (the dew point of perfectly dry
