@@ -42,7 +42,7 @@ func addSet(fs *pflag.FlagSet, s setFlags, usage string) {
 
 // addWorkers declares --workers.
 func addWorkers(fs *pflag.FlagSet, p *int) {
-	fs.IntVar(p, "workers", 0, "worker goroutines for the column math (0: one per CPU)")
+	fs.IntVar(p, "workers", 0, "`N` worker goroutines for the column math (0: one per CPU)")
 }
 
 // addNoPlots declares --no-plots.

@@ -79,7 +79,7 @@ lacks are skipped unless named with --only.`,
 	fs.Var(&only, "only", "draw only the named figure (repeat the flag or separate names with commas; see --list)")
 	addOutDir(fs, &o.Out, "", "folder for the figures (default RUN_DIR/"+figures.DefaultDirName+")")
 	addForce(fs, &o.Force, "replace figures that exist already")
-	fs.Float64Var(&o.DPI, "dpi", 200, "resolution of PNG figures, dots per inch")
+	fs.Float64Var(&o.DPI, "dpi", 200, "resolution of PNG figures, `DPI` (dots per inch)")
 	fs.Var(paletteFlag(o.Palettes), "palette", "colour map for a kind of quantity, KIND=MAP (repeatable; kinds: "+
 		strings.Join(figures.PaletteKeys(), ", ")+"; maps: "+strings.Join(figures.PaletteNames(), ", ")+", each also NAME-reversed)")
 	fs.BoolVar(&o.NoCoastlines, "no-coastlines", false, "leave Earth's coastlines off the maps (for synthetic worlds such as the demo's)")

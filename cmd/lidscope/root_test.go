@@ -91,6 +91,12 @@ func TestCommandTreeHelp(t *testing.T) {
 			if f.Usage == "" {
 				t.Errorf("%s --%s has no help text", cmd.CommandPath(), f.Name)
 			}
+			// the placeholder help shows (--workers N, not --workers int):
+			// pflag takes it from a `backticked` word of the usage, else
+			// from the value's Go type name
+			if ph, _ := pflag.UnquoteUsage(f); goTypeNames[ph] {
+				t.Errorf("%s --%s shows the Go type %q as its placeholder; put the placeholder in backticks in its usage (e.g. \"`N` worker goroutines\")", cmd.CommandPath(), f.Name, ph)
+			}
 			if s, ok := shared[f.Name]; ok && (f.Shorthand != s.short || f.Value.Type() != s.kind) {
 				t.Errorf("%s --%s: short -%s of type %s, want -%s of type %s", cmd.CommandPath(), f.Name, f.Shorthand, f.Value.Type(), s.short, s.kind)
 			}
@@ -100,6 +106,11 @@ func TestCommandTreeHelp(t *testing.T) {
 		}
 	}
 }
+
+// goTypeNames are the placeholders pflag shows for a flag of a Go type
+// whose usage names none.
+var goTypeNames = map[string]bool{"int": true, "int32": true, "int64": true, "uint": true, "float": true,
+	"float32": true, "float64": true, "string": true, "strings": true, "duration": true, "ints": true, "stringArray": true}
 
 // A refusal to replace earlier results names the command-line flag that
 // allows it (--force), never the Go option behind it.
