@@ -1,10 +1,12 @@
 package cf
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"sort"
 
+	"lidscope/internal/jsonnum"
 	"lidscope/netcdf"
 )
 
@@ -30,24 +32,63 @@ type DimReport struct {
 
 // VarReport is one variable recognised for a role.
 type VarReport struct {
-	Var        string   `json:"variable"`
-	Role       Role     `json:"role"`
-	How        string   `json:"recognised_by"`
-	Units      string   `json:"units"`
-	Conversion string   `json:"conversion"`
-	Grid       string   `json:"grid,omitempty"`
-	Level      string   `json:"level,omitempty"`
-	Time       string   `json:"time,omitempty"`
-	Calendar   string   `json:"calendar,omitempty"`
-	Decoding   string   `json:"decoding,omitempty"`
-	Min        *float64 `json:"sample_min_si,omitempty"`
-	Max        *float64 `json:"sample_max_si,omitempty"`
-	SIUnits    string   `json:"si_units,omitempty"`
-	Notes      []string `json:"notes,omitempty"`
-	Problems   []string `json:"problems,omitempty"`
+	Var        string `json:"variable"`
+	Role       Role   `json:"role"`
+	How        string `json:"recognised_by"`
+	Units      string `json:"units"`
+	Conversion string `json:"conversion"`
+	Grid       string `json:"grid,omitempty"`
+	Level      string `json:"level,omitempty"`
+	Time       string `json:"time,omitempty"`
+	Calendar   string `json:"calendar,omitempty"`
+	Decoding   string `json:"decoding,omitempty"`
+	// Min and Max are the smallest and largest values of the sample
+	// inspect read, after conversion to SIUnits. In JSON they are
+	// "sample_min" and "sample_max", {"value": x, "units": SIUnits}: units
+	// live in the units field, never in a name.
+	Min      *float64 `json:"-"`
+	Max      *float64 `json:"-"`
+	SIUnits  string   `json:"-"`
+	Notes    []string `json:"notes,omitempty"`
+	Problems []string `json:"problems,omitempty"`
 	// Spec is how Inspect opened the field (variable and level), so that
 	// callers can open it again the same way.
 	Spec Spec `json:"-"`
+}
+
+// varReportJSON is VarReport as JSON: the sample range as numbers with
+// their units.
+type varReportJSON struct {
+	plainVarReport
+	Min *jsonnum.Num `json:"sample_min,omitempty"`
+	Max *jsonnum.Num `json:"sample_max,omitempty"`
+}
+
+type plainVarReport VarReport
+
+// MarshalJSON writes the sample range as "sample_min" and "sample_max",
+// each {"value": x, "units": "K"}.
+func (v VarReport) MarshalJSON() ([]byte, error) {
+	j := varReportJSON{plainVarReport: plainVarReport(v)}
+	if v.Min != nil && v.Max != nil {
+		j.Min = &jsonnum.Num{Value: *v.Min, Units: v.SIUnits}
+		j.Max = &jsonnum.Num{Value: *v.Max, Units: v.SIUnits}
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads what MarshalJSON writes.
+func (v *VarReport) UnmarshalJSON(b []byte) error {
+	var j varReportJSON
+	if err := json.Unmarshal(b, &j); err != nil {
+		return err
+	}
+	*v = VarReport(j.plainVarReport)
+	if j.Min != nil && j.Max != nil {
+		lo, hi := j.Min.Value, j.Max.Value
+		v.Min, v.Max, v.SIUnits = &lo, &hi, j.Min.Units
+	}
+	return nil
 }
 
 // levelFor is the pressure inspect uses for a role with a vertical axis.

@@ -199,6 +199,7 @@ var plain = strings.Fields(`
 	grid ocean mask rule percentile tropical detrended all verdict
 	flips flip perturbation crossing metrics conventions absent
 	committed id manifest
+	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
 	`)
 
 // syntheticWords are the parameters and records of the synthetic demo

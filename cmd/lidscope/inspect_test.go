@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"lidscope/cf"
+	"lidscope/vocab"
 )
 
 // inspectFixture compiles a CDL fixture of package cf (synthetic, invented
@@ -74,10 +75,49 @@ func TestInspectJSON(t *testing.T) {
 		t.Errorf("problems %q", p)
 	}
 	// the raw JSON keys are the documented ones
-	for _, key := range []string{`"path"`, `"usable"`, `"fields"`, `"recognised_by"`, `"sample_min_si"`, `"problems"`} {
+	for _, key := range []string{`"path"`, `"usable"`, `"fields"`, `"recognised_by"`, `"sample_min"`, `"sample_max"`, `"problems"`} {
 		if !strings.Contains(buf.String(), key) {
 			t.Errorf("JSON lacks key %s", key)
 		}
+	}
+	// every key is a name of the table (vocab), and units live in units
+	// fields, never in names (no sample_min_si, si_units)
+	var doc any
+	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
+		t.Fatal(err)
+	}
+	var walk func(any)
+	walk = func(x any) {
+		switch x := x.(type) {
+		case map[string]any:
+			for k, v := range x {
+				if strings.HasSuffix(k, "_si") || strings.HasPrefix(k, "si_") {
+					t.Errorf("JSON key %q carries units in its name", k)
+				}
+				if err := vocab.Check(k); err != nil {
+					t.Errorf("JSON key: %v", err)
+				}
+				walk(v)
+			}
+		case []any:
+			for _, v := range x {
+				walk(v)
+			}
+		}
+	}
+	walk(doc)
+	var raw []struct {
+		Fields []map[string]json.RawMessage `json:"fields"`
+	}
+	if err := json.Unmarshal(buf.Bytes(), &raw); err != nil {
+		t.Fatal(err)
+	}
+	var lo struct {
+		Value float64 `json:"value"`
+		Units string  `json:"units"`
+	}
+	if err := json.Unmarshal(raw[0].Fields[0]["sample_min"], &lo); err != nil || lo.Value != 281 || lo.Units != "K" {
+		t.Errorf("sample_min = %s (%v), want {\"value\": 281, \"units\": \"K\"}", raw[0].Fields[0]["sample_min"], err)
 	}
 }
 
