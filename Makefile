@@ -15,7 +15,7 @@ BIN       := bin/lidscope
 # C netCDF library and tools; CDO and Debian's python3-xarray/cftime/scipy/sklearn are
 # independent reference tools the tests compare against.
 DEB_BUILD := gcc pkg-config libnetcdf-dev netcdf-bin
-DEB_TEST  := cdo python3-xarray python3-cftime python3-netcdf4 python3-scipy python3-numpy python3-yaml python3-colorspacious python3-sklearn
+DEB_TEST  := cdo udunits-bin python3-xarray python3-cftime python3-netcdf4 python3-scipy python3-numpy python3-yaml python3-colorspacious python3-sklearn
 # Real NetCDF files nobody here wrote (Debian's libncarg-data), fetched and
 # unpacked into a temporary folder for the tests; never committed.
 REALDATA  ?= $(or $(TMPDIR),/tmp)/lidscope-realdata

@@ -183,20 +183,20 @@ var words = []Term{
 
 // plain lists the other words, each documented by its use.
 var plain = strings.Fields(`
-	absolute area arch band bin bins binned bootstrap box candidate candidates cells
+	absolute area arch bin bins binned bootstrap box candidate candidates cells
 	changed changes command condition config controls coefficients
 	dataset date definition description dir domain domains duration
 	east edges end failed first format version from go host inside
 	independent areas indicator input files inputs joint composites kind
 	label last layout lidscope library logistic maps method mode modified month
-	name netcdf note notes omega_regimes os out of range outputs outside
+	name netcdf note notes omega_regimes os out of range outputs
 	partial regressions patch path period predictor predictors processing
 	quantities reference regions region relative replicates residual response responses
 	rows run scalars scope season seasons sensitivities sha256 size south north west
 	start steps study hash text threshold thresholds to tracking uncertainty
 	value values weighting year years role cpus estimates
-	inside before after change given on vs c
-	grid ocean mask rule percentile tropical detrended all verdict
+	before after change given on vs c
+	grid ocean mask rule tropical detrended all
 	flips flip perturbation crossing metrics conventions absent
 	committed id manifest
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields

@@ -43,13 +43,14 @@ const DebianPython = "/usr/bin/python3"
 
 // toolPackages names the Debian package of each reference tool.
 var toolPackages = map[string]string{
-	"ncgen":   "netcdf-bin",
-	"ncdump":  "netcdf-bin",
-	"nccopy":  "netcdf-bin",
-	"cdo":     "cdo",
-	"ncks":    "nco",
-	"ncap2":   "nco",
-	"python3": "python3",
+	"ncgen":    "netcdf-bin",
+	"ncdump":   "netcdf-bin",
+	"nccopy":   "netcdf-bin",
+	"cdo":      "cdo",
+	"udunits2": "udunits-bin",
+	"ncks":     "nco",
+	"ncap2":    "nco",
+	"python3":  "python3",
 }
 
 // modulePackages names the Debian package of each Python module the tests
