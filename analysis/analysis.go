@@ -233,9 +233,11 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		plan.Progress = func(done, total int) { opt.Progress(d.Name, done, total) }
 	}
 	log.Info("run", "dataset", d.Name)
-	// Stamp every input before reading it, to tell at the end whether
-	// one changed meanwhile.
+	// Stamp every input before opening it, and hash the files the run
+	// reads data from before reading them, to tell at the end whether one
+	// changed meanwhile.
 	watch := watchInputs(datasetPaths(d))
+	plan.BeforeRead = watch.hash
 	relCfg := r.RelationsFor(d)
 	// The relationship analysis relates cloud to EIS, LTS and relative
 	// SST: it needs both optional inputs.
@@ -283,6 +285,7 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	if err := watch.verify(meta.Inputs); err != nil {
 		return nil, err
 	}
+	meta.Listed = watch.listed()
 	meta.Absent = plan.Lacks()
 	if !opt.Piece.Whole() {
 		meta.Piece = opt.Piece.String()

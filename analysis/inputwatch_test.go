@@ -104,6 +104,9 @@ func TestInputChangedWhileRead(t *testing.T) {
 			t.Fatal(err)
 		}
 		w := watchInputs(datasetPaths(&r.Datasets[0]))
+		if err := w.hash(datasetPaths(&r.Datasets[0])); err != nil {
+			t.Fatal(err)
+		}
 		reps, err := Run(context.Background(), r, nil, Options{OutDir: filepath.Join(t.TempDir(), "out"), NoPlots: true})
 		if err != nil {
 			t.Fatal(err)

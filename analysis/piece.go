@@ -4,6 +4,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"lidscope/cf"
 	"lidscope/config"
 	"lidscope/output"
 	"lidscope/pipeline"
@@ -11,32 +12,58 @@ import (
 
 // donePiece reports whether out already holds a complete, committed run of
 // piece p of the dataset of plan under the same study (the same study
-// hash) with unchanged inputs: every file the earlier run read has the
-// size and modification time it had then, and every input of the plan was
-// read by it. Anything unreadable or different means "not done".
+// hash) with unchanged inputs: every file the earlier run read data from,
+// and every file the study listed for the dataset then, has the size and
+// modification time it had then, and the study lists the same files now
+// (a file added to or removed from a record moves the pieces' steps).
+// Anything unreadable or different means "not done".
 func donePiece(out string, r *config.Study, plan pipeline.Plan, p pipeline.Piece) (output.Meta, bool) {
 	s, err := loadState(out, false)
 	if err != nil {
 		return output.Meta{}, false
 	}
 	m := s.meta
-	if m.Piece != p.String() || m.StudyHash != r.Hash() || m.Dataset != plan.Dataset {
+	if m.Piece != p.String() || m.StudyHash != r.Hash() || m.Dataset != plan.Dataset || len(m.Listed) == 0 {
 		return m, false
 	}
-	read := map[string]bool{}
-	for _, f := range m.Inputs {
+	unchanged := func(f output.InputFile) bool {
 		fi, err := os.Stat(f.Path)
-		if err != nil || fi.Size() != f.Size || !fi.ModTime().Equal(f.ModTime) {
-			return m, false
-		}
-		read[absPath(f.Path)] = true
+		return err == nil && fi.Size() == f.Size && fi.ModTime().Equal(f.ModTime)
 	}
-	for _, path := range planPaths(plan) {
-		if !read[absPath(path)] {
+	for _, f := range m.Inputs {
+		if !unchanged(f) {
 			return m, false
 		}
 	}
-	return m, true
+	listed := map[string]bool{}
+	for _, f := range m.Listed {
+		if !unchanged(f) {
+			return m, false
+		}
+		listed[absPath(f.Path)] = true
+	}
+	var d *config.Dataset
+	for i := range r.Datasets {
+		if r.Datasets[i].Name == plan.Dataset {
+			d = &r.Datasets[i]
+		}
+	}
+	if d == nil {
+		return m, false
+	}
+	now := map[string]bool{}
+	for _, ps := range datasetPaths(d) {
+		for _, path := range ps {
+			if cf.CheckRegular(path) != nil {
+				continue // not stamped either (watchInputs)
+			}
+			now[absPath(path)] = true
+			if !listed[absPath(path)] {
+				return m, false
+			}
+		}
+	}
+	return m, len(now) == len(listed)
 }
 
 func absPath(p string) string {
@@ -44,18 +71,4 @@ func absPath(p string) string {
 		return a
 	}
 	return filepath.Clean(p)
-}
-
-// planPaths lists every input file of a plan.
-func planPaths(p pipeline.Plan) []string {
-	out := append([]string{}, p.SST.Paths...)
-	for _, in := range []*pipeline.Input{p.T700, p.Cloud, p.SurfaceAir, p.SurfacePressure, p.Humidity, p.T850, p.Q700, p.SeaIce, p.Ocean.Input} {
-		if in != nil {
-			out = append(out, in.Paths...)
-		}
-	}
-	for _, e := range p.Extras {
-		out = append(out, e.Paths...)
-	}
-	return out
 }

@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -209,5 +210,91 @@ func TestAnomalyPiecesMergeByTwoStages(t *testing.T) {
 				t.Errorf("anomaly pieces by two stages differ from the single run: %s", x)
 			}
 		})
+	}
+}
+
+// A piece of a multi-file record hashes and records only the files that
+// hold its steps (the synthetic world with one file per year and role, two
+// years, in two pieces: each piece reads one year's files); the skip still
+// sees a change to the other year's files (it could move the piece's
+// steps), and a file added to the record.
+func TestPieceReadsOnlyItsFiles(t *testing.T) {
+	dir := badLibWorld(t)
+	sst := badLibSST(t, dir) // 2001, 2002
+	load := func() *config.Study {
+		r, err := config.Load(filepath.Join(dir, fixtures.StudyFile), config.LoadOptions{LookupEnv: config.NoEnvironment})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	r := load()
+	all := 0
+	for _, ps := range datasetPaths(&r.Datasets[0]) {
+		all += len(ps)
+	}
+	out := filepath.Join(t.TempDir(), "p1")
+	opt := Options{OutDir: out, NoPlots: true, Piece: pipeline.Piece{K: 1, N: 2}}
+	reps, err := Run(context.Background(), r, nil, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := reps[0].Meta
+	if len(m.Listed) != all {
+		t.Errorf("%d files listed, the study lists %d", len(m.Listed), all)
+	}
+	roles := map[string]bool{}
+	for _, in := range m.Inputs {
+		roles[in.Role] = true
+		if strings.Contains(filepath.Base(in.Path), "2002") {
+			t.Errorf("piece 1/2 (2001) read %s", in.Path)
+		}
+		if len(in.SHA256) != 64 {
+			t.Errorf("%s: SHA-256 %q", in.Path, in.SHA256)
+		}
+	}
+	// sst, air_temperature and low_cloud have a file per year; the land
+	// mask is one file: 4 files of 7
+	if len(m.Inputs) != len(roles) || len(m.Inputs) != 4 || all != 7 {
+		t.Errorf("piece 1/2 read %d files of %d roles, want 4 of 4; the record has %d files, want 7", len(m.Inputs), len(roles), all)
+	}
+	if again, err := Run(context.Background(), r, nil, opt); err != nil || again[0].Skipped == "" {
+		t.Fatalf("the same piece again: %v, not skipped", err)
+	}
+	// a file added to the record: the steps move
+	extra := filepath.Join(filepath.Dir(sst[1]), "zz-extra.nc")
+	b, err := os.ReadFile(sst[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(extra, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); ok {
+		t.Error("a file added to the record went unseen by the skip")
+	}
+	if err := os.Remove(extra); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); !ok {
+		t.Fatal("control: with the file removed again the piece is not done")
+	}
+	// the other year's SST file touched: redone
+	later := time.Now().Add(time.Hour)
+	if err := os.Chtimes(sst[1], later, later); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); ok {
+		t.Error("a change to a file outside the piece went unseen by the skip")
+	}
+	// a file outside the piece changed while the piece runs: its time
+	// axis was read when the record was opened, so the run fails
+	p2 := Options{OutDir: filepath.Join(t.TempDir(), "p2"), NoPlots: true, Piece: pipeline.Piece{K: 2, N: 2}, Progress: func(_ string, done, _ int) {
+		if done == 3 {
+			os.Chtimes(sst[0], later.Add(time.Hour), later.Add(time.Hour))
+		}
+	}}
+	if _, err := Run(context.Background(), load(), nil, p2); !errors.Is(err, ErrInputChanged) || !strings.Contains(err.Error(), sst[0]) {
+		t.Errorf("2001 touched while piece 2/2 ran: %v, want ErrInputChanged naming %s", err, sst[0])
 	}
 }

@@ -363,11 +363,17 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			meta.TimeBounds = nil
 		}
 		meta.Inputs = appendNew(meta.Inputs, r.meta.Inputs...)
+		meta.Listed = appendNew(meta.Listed, r.meta.Listed...)
 		meta.Notes = appendNew(meta.Notes, r.meta.Notes...)
 		if r.meta.Start.Before(meta.Start) {
 			meta.Start = r.meta.Start
 		}
 	}
+	// by role as one run lists them (describeInputs), each role's files in
+	// time order (the runs are)
+	byRole := func(a, b output.InputFile) int { return strings.Compare(a.Role, b.Role) }
+	slices.SortStableFunc(meta.Inputs, byRole)
+	slices.SortStableFunc(meta.Listed, byRole)
 	if as != nil && as.Note != "" {
 		meta.Notes = append(meta.Notes, as.Note)
 	} else {

@@ -24,7 +24,14 @@ type Meta struct {
 	// Regimes is the regime definition (band, rule, δ/h or percentile):
 	// every file records it through its own encodings.
 	Regimes      regimes.Definition
-	Inputs       []InputFile
+	// Inputs are the files the run read data from (with their SHA-256);
+	// of a multi-file record only those holding a kept step.
+	Inputs []InputFile
+	// Listed are every input file of the dataset as the study listed them
+	// when the run started, with their size and modification time (no
+	// checksum): what a piece's skip compares against (the run state
+	// keeps them; the provenance lists Inputs).
+	Listed       []InputFile
 	Start, End   time.Time // wall-clock of the run
 	Period       string    // first … last time step label
 	StepsPerYear float64   // 12 for monthly

@@ -3,6 +3,7 @@ package pipeline
 import (
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 
 	"lidscope/cf"
@@ -50,6 +51,9 @@ type inputs struct {
 	// stepsPerYear, calendar, sampling describe SST's time axis.
 	stepsPerYear float64
 
+	// paths are the files the run reads data from, by role, in time
+	// order (readPaths): after the time selection and the piece, a file
+	// of a multi-file record none of whose steps is kept is not among them.
 	paths map[cf.Role][]string
 	notes []string
 }
@@ -71,7 +75,7 @@ type optionalInput struct {
 // openInputs opens the plan's inputs, chooses the analysis grid and aligns
 // the time steps. On error the files opened so far are closed.
 func openInputs(p *Plan) (in *inputs, err error) {
-	in = &inputs{paths: map[cf.Role][]string{}}
+	in = &inputs{}
 	var opened []*field
 	defer func() {
 		if err != nil {
@@ -88,7 +92,6 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		}
 		fd := &field{role: x.Spec.Role, f: f, slot: -1, studyUnits: x.Spec.Units != ""}
 		opened = append(opened, fd)
-		in.paths[x.Spec.Role] = append(in.paths[x.Spec.Role], f.Paths()...)
 		for _, n := range f.Notes {
 			in.notes = append(in.notes, fmt.Sprintf("%s (%s): %s", x.Spec.Role, f.Var, n))
 		}
@@ -213,7 +216,39 @@ func openInputs(p *Plan) (in *inputs, err error) {
 	if err := pieceOf(in, p); err != nil {
 		return nil, err
 	}
+	in.paths = readPaths(in)
 	return in, nil
+}
+
+// readPaths lists, by role and in time order, the files the kept steps are
+// read from: for a field with a time axis the files holding one of the
+// steps' indices, for a field without one (and for the static mask) its
+// files. Only these files' data is read; the other files of a record were
+// opened for their time axes only.
+func readPaths(in *inputs) map[cf.Role][]string {
+	out := map[cf.Role][]string{}
+	for _, f := range in.all {
+		if f.slot < 0 || f.f.Time == nil {
+			out[f.role] = append(out[f.role], f.f.Paths()...)
+			continue
+		}
+		seen := map[string]bool{}
+		var ps []string
+		for _, st := range in.steps {
+			if p := f.f.PathAt(st.idx[f.slot]); p != "" && !seen[p] {
+				seen[p] = true
+				ps = append(ps, p)
+			}
+		}
+		// in time order (a selection can keep steps of one file in two runs)
+		order := map[string]int{}
+		for i, p := range f.f.Paths() {
+			order[p] = i
+		}
+		sort.SliceStable(ps, func(i, j int) bool { return order[ps[i]] < order[ps[j]] })
+		out[f.role] = append(out[f.role], ps...)
+	}
+	return out
 }
 
 // gridOf turns a field's canonical layout into a grid description.

@@ -112,6 +112,10 @@ type Plan struct {
 	// NewSinks, when set, makes further sinks once the analysis layout is
 	// known (grid, areas, band weights, quantities).
 	NewSinks func(l accumulate.Layout) ([]StepSink, error)
+	// BeforeRead, when set, is called once the inputs are open and the
+	// steps chosen, before any data is read, with the files the run will
+	// read data from (Result.Paths); an error stops the run.
+	BeforeRead func(paths map[cf.Role][]string) error
 }
 
 // StepSink consumes the time steps of a run.
@@ -129,8 +133,11 @@ type Result struct {
 	StepsPerYear float64
 	Calendar     string
 	Notes        []string // conversions, reorderings, drops, in plain words
-	Paths        map[cf.Role][]string
-	Rejected     int // columns with physically impossible inputs (metrics NaN)
+	// Paths are the files data was read from, by role, in time order:
+	// of a multi-file record only those holding a kept step (so a piece
+	// lists the files of its piece).
+	Paths    map[cf.Role][]string
+	Rejected int // columns with physically impossible inputs (metrics NaN)
 }
 
 // Quantities lists the per-column quantities a run of p accumulates, in
@@ -201,6 +208,11 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	res := &Result{Grid: in.grid, Paths: in.paths, Notes: append(append([]string{}, p.Notes...), in.notes...), StepsPerYear: in.stepsPerYear,
 		Calendar: in.axis.f.Time.Calendar, Sampling: in.axis.f.Time.Step}
 	log.Info("aligned", "dataset", p.Dataset, "steps", len(in.steps), "grid", in.grid.String())
+	if p.BeforeRead != nil {
+		if err := p.BeforeRead(in.paths); err != nil {
+			return nil, err
+		}
+	}
 
 	// masks
 	ocean, err := staticOcean(in, &p)
