@@ -23,7 +23,7 @@ type Meta struct {
 	MetricsConventions string // metrics.Conventions.Text()
 	// Regimes is the regime definition (band, rule, δ/h or percentile):
 	// every file records it through its own encodings.
-	Regimes      regimes.Definition
+	Regimes regimes.Definition
 	// Inputs are the files the run read data from (with their SHA-256);
 	// of a multi-file record only those holding a kept step.
 	Inputs []InputFile
