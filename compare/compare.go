@@ -114,6 +114,10 @@ type Result struct {
 	// thresholds (in Ref and RefCI).
 	ReferenceEstimates []Estimate
 	Mismatches         []string
+	// Version and RegimeText are set by Read: the lidscope version that
+	// wrote the comparison and the reference's regime definition as
+	// written (a read-back Result has no regimes.Definition).
+	Version, RegimeText string
 }
 
 // mapNames are the maps compared, with their units.

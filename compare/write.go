@@ -301,7 +301,7 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 		Scalars    map[string]jnum `json:"reference_scalars"`
 		Estimates  map[string]any  `json:"reference_estimates"`
 		Method     string          `json:"difference_uncertainty_method"`
-	}{Format: "lidscope-comparison/3", Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
+	}{Format: jsonFormat, Version: opt.Version, Mismatches: res.Mismatches, Scalars: map[string]jnum{},
 		Estimates: map[string]any{}, Method: CombinedMethod}
 	if doc.Mismatches == nil {
 		doc.Mismatches = []string{}

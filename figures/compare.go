@@ -31,6 +31,8 @@ type CompareOptions struct {
 	// Palettes and NoCoastlines are as in Options.
 	Palettes     map[string]string
 	NoCoastlines bool
+	// Only, when set, names the figures to draw (see DrawComparison).
+	Only []string
 }
 
 // compareMaps are the maps a comparison draws, with the figures' specs.
@@ -47,15 +49,24 @@ var compareMaps = []struct{ variable, spec string }{
 //     candidate (one sequential colour scale for both) and the difference
 //     candidate − reference (the diverging colour map, limits symmetric
 //     about zero) — over the tropical band;
-//   - compare_sensitivities: the subsidence-regime cloud sensitivities (the
+//   - compare_sensitivities, with at most four candidates (one colour
+//     each): the subsidence-regime cloud sensitivities (the
 //     slopes on EIS and LTS and the partial sensitivities) of every run in
 //     one panel, one column per sensitivity, the reference first and the
 //     candidates after it, each a point with its 95 % interval, behind them
-//     a grey band across the column marking the reference's interval.
+//     a grey band across the column marking the reference's interval;
+//   - compare_ensemble_<sensitivity>, with EnsembleMin or more candidates:
+//     per sensitivity, every candidate's value and 95 % interval, one row
+//     each, sorted by value, marked by its verdict against the reference;
+//     the reference's value and interval as a line and a band; and the
+//     ensemble's spread (mean ± 1 sd, min–max).
 //
 // The maps are read from each run's maps.nc (Dir of compare.Run), the
-// sensitivities from the comparison. Without Force it refuses, before
-// drawing, when a figure file exists already (errors.Is(err, fs.ErrExist)).
+// sensitivities from the comparison, so a comparison read back from its
+// folder (compare.Read) draws the sensitivity and ensemble figures
+// without its runs. opt.Only, when set, names the figures to draw.
+// Without Force it refuses, before drawing, when a figure file exists
+// already (errors.Is(err, fs.ErrExist)).
 func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 	if opt.OutDir == "" {
 		return nil, errors.New("figures: DrawComparison needs an output folder (CompareOptions.OutDir)")
@@ -64,31 +75,86 @@ func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	ref, err := Load(res.Reference.Dir)
-	if err != nil {
-		return nil, fmt.Errorf("figures: the comparison's reference: %w", err)
-	}
+	head := comparisonRun(res)
 	type job struct {
 		f   figure
 		run *Run
+		// load, for the map figures, reads the runs' folders
+		load func() error
 	}
 	var jobs []job
-	for _, c := range res.Candidates {
-		cand, err := Load(c.Dir)
+	var ref *Run
+	loadRef := func() error {
+		if ref != nil {
+			return nil
+		}
+		r, err := Load(res.Reference.Dir)
 		if err != nil {
-			return nil, fmt.Errorf("figures: the comparison's candidate %s: %w", c.Name, err)
+			return fmt.Errorf("the comparison's reference %s: %w", res.Reference.Name, err)
+		}
+		ref = r
+		return nil
+	}
+	for _, c := range res.Candidates {
+		c := c
+		var cand *Run
+		load := func() error {
+			if err := loadRef(); err != nil {
+				return err
+			}
+			if cand != nil {
+				return nil
+			}
+			r, err := Load(c.Dir)
+			if err != nil {
+				return fmt.Errorf("the comparison's candidate %s: %w", c.Name, err)
+			}
+			cand = r
+			return nil
 		}
 		for _, m := range compareMaps {
-			m, c := m, c
-			hr := *ref
-			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, ref.Dataset)
+			m := m
+			hr := *head
+			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, res.Reference.Name)
 			jobs = append(jobs, job{figure{name: "compare_" + m.variable + "_" + safeName(c.Name),
-				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr})
+				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr, load})
 		}
 	}
-	if len(res.ReferenceEstimates) > 0 {
-		hr := *ref
-		jobs = append(jobs, job{figure{name: "compare_sensitivities", build: func(f *fig) (*page, error) { return f.sensitivityPage(res) }}, &hr})
+	if len(res.ReferenceEstimates) > 0 && len(res.Candidates) <= sensitivitiesMax {
+		jobs = append(jobs, job{figure{name: "compare_sensitivities", build: func(f *fig) (*page, error) { return f.sensitivityPage(res) }}, head, nil})
+	}
+	if len(res.Candidates) >= EnsembleMin {
+		for _, e := range res.ReferenceEstimates {
+			if e.Kind != "slope" && e.Kind != "partial" {
+				continue
+			}
+			e := e
+			jobs = append(jobs, job{figure{name: "compare_ensemble_" + safeName(e.Name), build: func(f *fig) (*page, error) { return f.ensemblePage(res, e) }}, head, nil})
+		}
+	}
+	if len(opt.Only) > 0 {
+		want := map[string]bool{}
+		for _, n := range opt.Only {
+			want[n] = true
+		}
+		var kept []job
+		var names []string
+		for _, j := range jobs {
+			names = append(names, j.f.name)
+			if want[j.f.name] {
+				kept = append(kept, j)
+				delete(want, j.f.name)
+			}
+		}
+		if len(want) > 0 {
+			var miss []string
+			for n := range want {
+				miss = append(miss, n)
+			}
+			sort.Strings(miss)
+			return nil, fmt.Errorf("figures: this comparison has no figure %s; its figures are %s", strings.Join(miss, ", "), strings.Join(names, ", "))
+		}
+		jobs = kept
 	}
 	var exist []string
 	for _, j := range jobs {
@@ -100,6 +166,24 @@ func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 	if len(exist) > 0 && !o.Force {
 		sort.Strings(exist)
 		return nil, fmt.Errorf("figures: %s: %w; nothing was drawn. Allow replacing them (--force) or choose another --out", strings.Join(exist, ", "), fs.ErrExist)
+	}
+	for _, j := range jobs {
+		if j.load == nil {
+			continue
+		}
+		if err := j.load(); err != nil {
+			var own []string
+			for _, k := range jobs {
+				if k.load == nil {
+					own = append(own, k.f.name)
+				}
+			}
+			hint := ""
+			if len(own) > 0 {
+				hint = "; the figures drawn from the comparison alone are " + strings.Join(own, ", ") + " (plot --only NAME,…)"
+			}
+			return nil, fmt.Errorf("figures: the map figures read the compared runs' folders: %w%s", err, hint)
+		}
 	}
 	if err := os.MkdirAll(o.OutDir, 0o777); err != nil {
 		return nil, fmt.Errorf("figures: cannot create the figure directory: %w", err)
@@ -113,6 +197,21 @@ func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 		out = append(out, p)
 	}
 	return out, nil
+}
+
+// comparisonRun is what the headers and footers of a comparison's figures
+// say: the reference's name, period and regime definition, the version
+// and study hash.
+func comparisonRun(res *compare.Result) *Run {
+	m := res.Reference.Meta
+	r := &Run{Dir: res.Reference.Dir, Dataset: res.Reference.Name, Version: m.Version, StudyHash: m.StudyHash, Period: m.Period, RegimeDefinition: res.RegimeText}
+	if r.RegimeDefinition == "" {
+		r.RegimeDefinition = m.Regimes.String()
+	}
+	if res.Version != "" {
+		r.Version = res.Version
+	}
+	return r
 }
 
 // safeName keeps letters, digits, '-' and '_' of a run name for a file name.

@@ -3,11 +3,15 @@ package main
 import (
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/spf13/cobra"
 
+	"lidscope/compare"
 	"lidscope/figures"
+	"lidscope/runfolder"
 )
 
 func init() { addCommand(newPlotCmd) }
@@ -44,15 +48,21 @@ func newPlotCmd(e *env) *cobra.Command {
 	o := plotOptions{Palettes: map[string]string{}}
 	var only listFlag
 	cmd := &cobra.Command{
-		Use:   "plot RUN_DIR",
-		Short: "draw the figures of a finished run",
+		Use:   "plot (RUN_DIR | COMPARISON_DIR)",
+		Short: "draw the figures of a finished run or comparison",
 		Long: `Draws the figures of a finished run from its output files (maps.nc, series.nc,
 summary.json, and the relationship files when present), without recomputing, into
 the folder --out (default RUN_DIR/` + figures.DefaultDirName + `). Figures whose inputs the run
-lacks are skipped unless named with --only.`,
+lacks are skipped unless named with --only.
+
+Given a comparison folder (lidscope compare --out), draws the comparison's figures again from
+its comparison.json: the sensitivity and ensemble figures from the comparison alone, the map
+figures from the compared runs' folders (which must still be there; --only NAME,... draws
+only some).`,
 		Example: `  lidscope plot --list
   lidscope plot demo-out/results/synthetic-demo --no-coastlines --out figures
-  lidscope plot demo-out/results/synthetic-demo --no-coastlines --format svg --only map_eis,series --out figures-svg`,
+  lidscope plot demo-out/results/synthetic-demo --no-coastlines --format svg --only map_eis,series --out figures-svg
+  lidscope plot demo-out/results/comparison --no-coastlines --out comparison-figures`,
 		ValidArgsFunction: dirArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Only = only
@@ -65,6 +75,9 @@ lacks are skipped unless named with --only.`,
 			o.RunDir = args[0]
 			if !plotContains(figures.Formats, strings.ToLower(o.Format)) {
 				return usageErr("--format must be one of %s, not %q", strings.Join(figures.Formats, ", "), o.Format)
+			}
+			if isComparison(o.RunDir) {
+				return runPlotComparison(o, e.stdout) // its own figure names
 			}
 			for _, n := range o.Only {
 				if !plotContains(figures.Names(), n) {
@@ -115,6 +128,40 @@ func runPlot(o plotOptions, w io.Writer) error {
 	}
 	if len(paths) == 0 {
 		return fmt.Errorf("no figure could be drawn from %s", o.RunDir)
+	}
+	return nil
+}
+
+// isComparison reports whether dir holds a comparison (comparison.json)
+// rather than a run (whose manifest a comparison lacks).
+func isComparison(dir string) bool {
+	if _, err := os.Stat(filepath.Join(dir, compare.JSONFile)); err != nil {
+		return false
+	}
+	_, err := os.Stat(filepath.Join(dir, runfolder.ManifestFile))
+	return err != nil
+}
+
+// runPlotComparison draws a comparison's figures again from its folder.
+func runPlotComparison(o plotOptions, w io.Writer) error {
+	res, err := compare.Read(o.RunDir)
+	if err != nil {
+		return err
+	}
+	out := o.Out
+	if out == "" {
+		out = filepath.Join(o.RunDir, compare.FiguresDir)
+	}
+	paths, err := figures.DrawComparison(res, figures.CompareOptions{OutDir: out, Format: o.Format, DPI: o.DPI, Force: o.Force,
+		Palettes: o.Palettes, NoCoastlines: o.NoCoastlines, Only: o.Only})
+	for _, p := range paths {
+		fmt.Fprintln(w, p)
+	}
+	if err != nil {
+		return err
+	}
+	if len(paths) == 0 {
+		return fmt.Errorf("no figure could be drawn from the comparison in %s", o.RunDir)
 	}
 	return nil
 }

@@ -2,12 +2,16 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"image/png"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
+	"lidscope/analysis"
+	"lidscope/compare"
+	"lidscope/fixtures"
 	"lidscope/internal/figurestest"
 )
 
@@ -82,5 +86,48 @@ func TestPlotUsage(t *testing.T) {
 	var out, errb bytes.Buffer
 	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_time_fraction") {
 		t.Errorf("--list: exit %d, %q", code, out.String())
+	}
+}
+
+// plot COMPARISON_DIR draws the comparison's figures again from its
+// comparison.json and the compared runs: byte for byte those compare drew
+// (the demo's comparison, on a coarse two-year world). A
+// figure name it has not is refused naming those it has.
+func TestPlotRedrawsAComparison(t *testing.T) {
+	sc := fixtures.DefaultOptions()
+	sc.Resolution, sc.Years, sc.YearsPerFile = 5, 2, 2
+	sc.Command = []string{"lidscope-test", "plot"}
+	demo := filepath.Join(t.TempDir(), "demo-out")
+	d, err := analysis.Demo(context.Background(), demo, analysis.DemoOptions{Options: analysis.Options{Version: version, Command: sc.Command, NoPlots: true}, Scenario: &sc})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// the comparison again, with its figures (the runs' are not needed)
+	if _, _, err := analysis.CompareDirs(d.Reports[0].OutDir, []string{d.Reports[1].OutDir}, d.CompareDir,
+		analysis.CompareOptions{Options: analysis.Options{Version: version, Force: true, NoCoastlines: true}}); err != nil {
+		t.Fatal(err)
+	}
+	drawn, _ := filepath.Glob(filepath.Join(d.CompareDir, compare.FiguresDir, "*.png"))
+	if len(drawn) < 3 {
+		t.Fatalf("compare drew %v", drawn)
+	}
+	out := filepath.Join(t.TempDir(), "again")
+	var stdout, stderr bytes.Buffer
+	if code := run([]string{"plot", d.CompareDir, "--no-coastlines", "--out", out}, &stdout, &stderr); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr.String())
+	}
+	if n := len(strings.Fields(stdout.String())); n != len(drawn) {
+		t.Errorf("plot drew %d figures, compare %d", n, len(drawn))
+	}
+	for _, p := range drawn {
+		a, _ := os.ReadFile(p)
+		b, err := os.ReadFile(filepath.Join(out, filepath.Base(p)))
+		if err != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s: redrawn differs from compare's (%v)", filepath.Base(p), err)
+		}
+	}
+	stderr.Reset()
+	if code := run([]string{"plot", d.CompareDir, "--only", "map_eis", "--out", t.TempDir()}, &stdout, &stderr); code != 1 || !strings.Contains(stderr.String(), "compare_sensitivities") {
+		t.Errorf("--only map_eis on a comparison: exit %d, %q; want 1 naming its figures", code, stderr.String())
 	}
 }
