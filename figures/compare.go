@@ -75,86 +75,9 @@ func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	head := comparisonRun(res)
-	type job struct {
-		f   figure
-		run *Run
-		// load, for the map figures, reads the runs' folders
-		load func() error
-	}
-	var jobs []job
-	var ref *Run
-	loadRef := func() error {
-		if ref != nil {
-			return nil
-		}
-		r, err := Load(res.Reference.Dir)
-		if err != nil {
-			return fmt.Errorf("the comparison's reference %s: %w", res.Reference.Name, err)
-		}
-		ref = r
-		return nil
-	}
-	for _, c := range res.Candidates {
-		c := c
-		var cand *Run
-		load := func() error {
-			if err := loadRef(); err != nil {
-				return err
-			}
-			if cand != nil {
-				return nil
-			}
-			r, err := Load(c.Dir)
-			if err != nil {
-				return fmt.Errorf("the comparison's candidate %s: %w", c.Name, err)
-			}
-			cand = r
-			return nil
-		}
-		for _, m := range compareMaps {
-			m := m
-			hr := *head
-			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, res.Reference.Name)
-			jobs = append(jobs, job{figure{name: "compare_" + m.variable + "_" + safeName(c.Name),
-				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr, load})
-		}
-	}
-	if len(res.ReferenceEstimates) > 0 && len(res.Candidates) <= sensitivitiesMax {
-		jobs = append(jobs, job{figure{name: "compare_sensitivities", build: func(f *fig) (*page, error) { return f.sensitivityPage(res) }}, head, nil})
-	}
-	if len(res.Candidates) >= EnsembleMin {
-		for _, e := range res.ReferenceEstimates {
-			if e.Kind != "slope" && e.Kind != "partial" {
-				continue
-			}
-			e := e
-			jobs = append(jobs, job{figure{name: "compare_ensemble_" + safeName(e.Name), build: func(f *fig) (*page, error) { return f.ensemblePage(res, e) }}, head, nil})
-		}
-	}
-	if len(opt.Only) > 0 {
-		want := map[string]bool{}
-		for _, n := range opt.Only {
-			want[n] = true
-		}
-		var kept []job
-		var names []string
-		for _, j := range jobs {
-			names = append(names, j.f.name)
-			if want[j.f.name] {
-				kept = append(kept, j)
-				delete(want, j.f.name)
-			}
-		}
-		if len(want) > 0 {
-			var miss []string
-			for n := range want {
-				miss = append(miss, n)
-			}
-			sort.Strings(miss)
-			return nil, fmt.Errorf("figures: this comparison has no figure %s; its figures are %s", strings.Join(miss, ", "), strings.Join(names, ", "))
-		}
-		jobs = kept
+	jobs, err := comparisonJobs(res, opt.Only)
+	if err != nil {
+		return nil, err
 	}
 	var exist []string
 	for _, j := range jobs {
@@ -197,6 +120,101 @@ func DrawComparison(res *compare.Result, opt CompareOptions) ([]string, error) {
 		out = append(out, p)
 	}
 	return out, nil
+}
+
+// compJob is one figure of a comparison.
+type compJob struct {
+	f   figure
+	run *Run
+	// load, for the map figures, reads the runs' folders
+	load func() error
+}
+
+// comparisonJobs lists the figures of a comparison (see DrawComparison),
+// those named in only when given.
+func comparisonJobs(res *compare.Result, only []string) ([]compJob, error) {
+	head := comparisonRun(res)
+	var jobs []compJob
+	var ref *Run
+	loadRef := func() error {
+		if ref != nil {
+			return nil
+		}
+		r, err := Load(res.Reference.Dir)
+		if err != nil {
+			return fmt.Errorf("the comparison's reference %s: %w", res.Reference.Name, err)
+		}
+		ref = r
+		return nil
+	}
+	for _, c := range res.Candidates {
+		c := c
+		var cand *Run
+		load := func() error {
+			if err := loadRef(); err != nil {
+				return err
+			}
+			if cand != nil {
+				return nil
+			}
+			r, err := Load(c.Dir)
+			if err != nil {
+				return fmt.Errorf("the comparison's candidate %s: %w", c.Name, err)
+			}
+			cand = r
+			return nil
+		}
+		for _, m := range compareMaps {
+			m := m
+			hr := *head
+			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, res.Reference.Name)
+			jobs = append(jobs, compJob{figure{name: "compare_" + m.variable + "_" + safeName(c.Name),
+				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr, load})
+		}
+	}
+	if len(res.ReferenceEstimates) > 0 && len(res.Candidates) <= sensitivitiesMax {
+		jobs = append(jobs, compJob{figure{name: "compare_sensitivities", build: func(f *fig) (*page, error) { return f.sensitivityPage(res) }}, head, nil})
+	}
+	if len(res.Candidates) >= EnsembleMin {
+		for _, e := range res.ReferenceEstimates {
+			if e.Kind != "slope" && e.Kind != "partial" {
+				continue
+			}
+			e := e
+			jobs = append(jobs, compJob{figure{name: "compare_ensemble_" + safeName(e.Name), build: func(f *fig) (*page, error) { return f.ensemblePage(res, e) }}, head, nil})
+		}
+	}
+	return onlyJobs(jobs, only)
+}
+
+// onlyJobs keeps the jobs of the figures named in only (all without it),
+// refusing a name the comparison has no figure of.
+func onlyJobs(jobs []compJob, only []string) ([]compJob, error) {
+	if len(only) > 0 {
+		want := map[string]bool{}
+		for _, n := range only {
+			want[n] = true
+		}
+		var kept []compJob
+		var names []string
+		for _, j := range jobs {
+			names = append(names, j.f.name)
+			if want[j.f.name] {
+				kept = append(kept, j)
+				delete(want, j.f.name)
+			}
+		}
+		if len(want) > 0 {
+			var miss []string
+			for n := range want {
+				miss = append(miss, n)
+			}
+			sort.Strings(miss)
+			return nil, fmt.Errorf("figures: this comparison has no figure %s; its figures are %s", strings.Join(miss, ", "), strings.Join(names, ", "))
+		}
+		jobs = kept
+	}
+	return jobs, nil
 }
 
 // comparisonRun is what the headers and footers of a comparison's figures

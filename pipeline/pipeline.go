@@ -185,6 +185,16 @@ func (p *Plan) Lacks() []string {
 	return out
 }
 
+// beforeRead logs the aligned inputs and calls the plan's BeforeRead
+// with the files the run will read.
+func beforeRead(p *Plan, in *inputs, log *slog.Logger) error {
+	log.Info("aligned", "dataset", p.Dataset, "steps", len(in.steps), "grid", in.grid.String())
+	if p.BeforeRead == nil {
+		return nil
+	}
+	return p.BeforeRead(in.paths)
+}
+
 // Run executes the plan.
 func Run(ctx context.Context, p Plan) (*Result, error) {
 	log := p.Log
@@ -207,11 +217,8 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	defer in.close()
 	res := &Result{Grid: in.grid, Paths: in.paths, Notes: append(append([]string{}, p.Notes...), in.notes...), StepsPerYear: in.stepsPerYear,
 		Calendar: in.axis.f.Time.Calendar, Sampling: in.axis.f.Time.Step}
-	log.Info("aligned", "dataset", p.Dataset, "steps", len(in.steps), "grid", in.grid.String())
-	if p.BeforeRead != nil {
-		if err := p.BeforeRead(in.paths); err != nil {
-			return nil, err
-		}
+	if err := beforeRead(&p, in, log); err != nil {
+		return nil, err
 	}
 
 	// masks
