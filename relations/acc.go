@@ -54,12 +54,68 @@ type binStat struct {
 	last  int32 // seq of the last contributing step, -1 none
 }
 
-func (b *binStat) add(x, w float64, seq int32) {
-	b.m.Add(x, w)
+// count counts the step seq for the bin (once per step).
+func (b *binStat) count(seq int32) {
 	if b.last != seq {
 		b.steps++
 		b.last = seq
 	}
+}
+
+// stepSums are one time step's weighted sums of the samples that go to one
+// running moments accumulator, taken about a shift k (the accumulator's
+// mean before the step, or the step's first sample when it is empty):
+// W = Σw, S1 = Σw(x−k), S2 = Σw(x−k)². Adding a sample costs no division;
+// at the end of the step the sums become the step's moments (mean
+// k + S1/W, M2 = S2 − S1²/W, exact algebra; with k near the mean S1 is
+// small and the subtraction loses nothing of note) and are merged into the
+// running moments with Chan, Golub & LeVeque's (1979) pairwise update. So
+// the result differs from one West/Welford update per sample only by
+// rounding (the within-step sums of a bin are shorter than the record).
+type stepSums struct {
+	k, w, s1, s2 float64
+	n            int64
+}
+
+// stepMoments gathers one step's samples for a set of running moments,
+// indexed like them; dst returns the running moments of index i.
+type stepMoments struct {
+	sums    []stepSums
+	touched []int32
+	dst     func(i int) *stats.Moments
+}
+
+func newStepMoments(n int, dst func(i int) *stats.Moments) stepMoments {
+	return stepMoments{sums: make([]stepSums, n), dst: dst}
+}
+
+// add adds x with weight w (> 0, x not NaN: the callers check) to index i.
+func (s *stepMoments) add(i int, x, w float64) {
+	e := &s.sums[i]
+	if e.n == 0 {
+		e.k = x
+		if m := s.dst(i); m.W > 0 {
+			e.k = m.Mean
+		}
+		s.touched = append(s.touched, int32(i))
+	}
+	d := x - e.k
+	wd := w * d
+	e.n++
+	e.w += w
+	e.s1 += wd
+	e.s2 += wd * d
+}
+
+// flush merges the step's sums into the running moments and clears them.
+func (s *stepMoments) flush() {
+	for _, i := range s.touched {
+		e := &s.sums[i]
+		r := e.s1 / e.w
+		s.dst(int(i)).Merge(stats.Moments{N: e.n, W: e.w, Mean: e.k + r, M2: math.Max(0, e.s2-e.s1*r)})
+		*e = stepSums{}
+	}
+	s.touched = s.touched[:0]
 }
 
 type flipSums struct {
@@ -114,6 +170,8 @@ type Acc struct {
 	cells   []int // cells in any domain
 
 	binned []binStat
+	// one step's sums of binned, jointM and omegaM (AddStep)
+	stepBinned, stepJoint, stepOmega stepMoments
 	outCnt []int64 // [(d*ns+s)*nreg+g)*np+p] samples outside the bins
 
 	jointOn                bool
@@ -299,6 +357,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 	for i := range a.binned {
 		a.binned[i].last = -1
 	}
+	a.stepBinned = newStepMoments(len(a.binned), func(i int) *stats.Moments { return &a.binned[i].m })
 	a.outCnt = make([]int64, nd*a.ns*nreg*len(a.preds))
 	a.jRel, a.jEIS = -1, -1
 	for p, name := range a.preds {
@@ -316,6 +375,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.jointArea = make([]float64, nd*a.ns*a.nJ)
 		a.jointCount = make([]int64, nd*a.ns*a.nJ)
 		a.jointTotal = make([]float64, nd*a.ns)
+		a.stepJoint = newStepMoments(len(a.jointM), func(i int) *stats.Moments { return &a.jointM[i] })
 	}
 	if k, ok := qi["omega"]; ok && cfg.OmegaBins {
 		a.omegaOn, a.omegaQ = true, k
@@ -325,6 +385,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.omegaCount = make([]int64, nd*a.ns*a.nO)
 		a.omegaTotal = make([]float64, nd*a.ns)
 		a.omegaOut = make([]int64, nd*a.ns)
+		a.stepOmega = newStepMoments(len(a.omegaM), func(i int) *stats.Moments { return &a.omegaM[i] })
 	}
 	for _, p := range cfg.Patches {
 		pa := patchAcc{p: p, inside: make([]bool, n), sums: make([]flipSums, len(cfg.DeltaT)), fMin: math.Inf(1), fMax: math.Inf(-1)}
@@ -506,7 +567,8 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 					base := (ds*nreg+int(g))*nr*a.nbTot + a.boff[p] + b
 					for r := 0; r < nr; r++ {
 						if y := rv[r]; y == y {
-							a.binned[base+r*a.nbTot].add(y, w, seq)
+							a.binned[base+r*a.nbTot].count(seq)
+							a.stepBinned.add(base+r*a.nbTot, y, w)
 						}
 					}
 				}
@@ -520,7 +582,9 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 							a.jointArea[ds*a.nJ+j] += w
 							a.jointCount[ds*a.nJ+j]++
 							for r := 0; r < nr; r++ {
-								a.jointM[(ds*nr+r)*a.nJ+j].Add(rv[r], w)
+								if y := rv[r]; y == y {
+									a.stepJoint.add((ds*nr+r)*a.nJ+j, y, w)
+								}
 							}
 						}
 					}
@@ -535,7 +599,9 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 							a.omegaArea[ds*a.nO+b] += w
 							a.omegaCount[ds*a.nO+b]++
 							for r := 0; r < nr; r++ {
-								a.omegaM[(ds*nr+r)*a.nO+b].Add(rraw[r], w)
+								if y := rraw[r]; y == y {
+									a.stepOmega.add((ds*nr+r)*a.nO+b, y, w)
+								}
 							}
 						}
 					}
@@ -543,6 +609,9 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 			}
 		}
 	}
+	a.stepBinned.flush()
+	a.stepJoint.flush()
+	a.stepOmega.flush()
 	a.addFlips(s)
 	if a.indQ >= 0 {
 		rec.thr = make([]float64, 2*a.nthr)

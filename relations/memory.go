@@ -37,7 +37,9 @@ func MemoryBytes(cfg Config, quantities []string, cloud string, cells, bandCells
 	perStep := int64(nd*nreg*nr)*cm + int64(unsafe.Sizeof(stepRec{})) + int64(2*a.nthr)*8
 	perCell := int64(24 + 8 + np) // cellDom header, cells list, patch masks
 	perBand := int64(16 + 8)      // one domain entry, the band cell list
-	binned := int64(len(a.binned))*int64(unsafe.Sizeof(binStat{})) + int64(len(a.jointM)+len(a.omegaM))*32
+	// the running moments and, beside each, its step's sums (AddStep)
+	nm := int64(len(a.binned) + len(a.jointM) + len(a.omegaM))
+	binned := int64(len(a.binned))*int64(unsafe.Sizeof(binStat{})) + int64(len(a.jointM)+len(a.omegaM))*32 + nm*int64(unsafe.Sizeof(stepSums{})+4)
 	total := perCell*int64(cells) + perBand*int64(bandCells) + perStep*int64(steps) + binned*int64(nd)
 	if cfg.Mode == Anomaly {
 		total += int64(cells)*(4+1) + int64(bandCells)*12*int64(len(quantities)+1)*int64(unsafe.Sizeof(trendStat{}))
