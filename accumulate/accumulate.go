@@ -53,6 +53,13 @@ type Layout struct {
 	// study's cloud role: low_cloud or cloud).
 	Cloud   string
 	Regions []Region
+	// Columns are the grid cells (row-major, ascending) that keep
+	// per-column statistics: the ocean cells of the static mask inside the
+	// analysis domain (a cell outside them is never in a regime there, or
+	// is not analysed). Nil keeps every cell. The step slabs still cover
+	// the whole grid: the band series, regions and relationship statistics
+	// do not depend on Columns.
+	Columns []int32
 }
 
 // Step is one time step's input to Add. All slices have NLat*NLon cells.
@@ -70,13 +77,16 @@ type Step struct {
 	Classifier *regimes.Classifier
 }
 
-// Cells are per-column statistics over time.
+// Cells are per-column statistics over time, by slot of the kept columns
+// (Layout.Columns; Acc.Index maps grid cells to slots). Read them by grid
+// cell with the Acc methods ValidSteps, RegimeSteps, Moments, RelMoments
+// and Track.
 type Cells struct {
-	Steps  int                     // time steps added
-	Valid  []int32                 // steps with a regime (ocean, data present)
-	Count  [nreg][]int32           // steps per regime
-	Rel    []stats.Moments         // relative SST over valid steps
-	Values [][nreg][]stats.Moments // [quantity][regime][cell], over time
+	Steps  int           // time steps added
+	Valid  []int32       // steps with a regime (ocean, data present)
+	Count  [nreg][]int32 // steps per regime
+	Rel    []Sum         // relative SST over valid steps
+	Values [][nreg][]Sum // [quantity][regime][slot]
 	Tracks []regimes.Track
 }
 
@@ -104,7 +114,9 @@ type Acc struct {
 	Cells   Cells
 	Series  []SeriesPoint
 	Regions []RegionStats
-	member  [][]int // cells of each region
+	// Index maps grid cells to the slots of Cells.
+	Index  Index
+	member [][]int // cells of each region
 }
 
 // New returns an empty accumulator.
@@ -113,20 +125,33 @@ func New(l Layout) (*Acc, error) {
 	if len(l.Lat) != l.NLat || len(l.Lon) != l.NLon || len(l.Area) != n || len(l.BandWeight) != n {
 		return nil, fmt.Errorf("accumulate: layout sizes disagree (%d×%d grid, %d lat, %d lon, %d areas, %d band weights)", l.NLat, l.NLon, len(l.Lat), len(l.Lon), len(l.Area), len(l.BandWeight))
 	}
-	a := &Acc{L: l}
-	c := &a.Cells
-	c.Valid = make([]int32, n)
-	for r := 0; r < nreg; r++ {
-		c.Count[r] = make([]int32, n)
-	}
-	c.Rel = make([]stats.Moments, n)
-	c.Values = make([][nreg][]stats.Moments, len(l.Quantities))
-	for q := range c.Values {
-		for r := 0; r < nreg; r++ {
-			c.Values[q][r] = make([]stats.Moments, n)
+	for k, c := range l.Columns {
+		if c < 0 || int(c) >= n || (k > 0 && c <= l.Columns[k-1]) {
+			return nil, fmt.Errorf("accumulate: layout columns must be ascending grid cells below %d (column %d is %d)", n, k, c)
 		}
 	}
-	c.Tracks = make([]regimes.Track, n)
+	a := &Acc{L: l, Index: NewIndex(n, l.Columns)}
+	m := a.Index.Len()
+	c := &a.Cells
+	c.Valid = make([]int32, m)
+	for r := 0; r < nreg; r++ {
+		c.Count[r] = make([]int32, m)
+	}
+	c.Rel = make([]Sum, m)
+	for k := range c.Rel {
+		c.Rel[k] = emptySum()
+	}
+	c.Values = make([][nreg][]Sum, len(l.Quantities))
+	for q := range c.Values {
+		for r := 0; r < nreg; r++ {
+			v := make([]Sum, m)
+			for k := range v {
+				v[k] = emptySum()
+			}
+			c.Values[q][r] = v
+		}
+	}
+	c.Tracks = make([]regimes.Track, m)
 	for i := range c.Tracks {
 		c.Tracks[i] = regimes.NewTrack()
 	}
@@ -152,19 +177,27 @@ func New(l Layout) (*Acc, error) {
 // AddCells updates the per-column statistics of cells [lo, hi) for one step.
 // Different goroutines may call it for disjoint ranges of the same step;
 // AddStep must then be called once for the step's series and regions.
+//
+// Only the kept columns (Layout.Columns) among them are added.
 func (a *Acc) AddCells(s *Step, lo, hi int) {
 	c := &a.Cells
-	for i := lo; i < hi; i++ {
+	from, to := a.Index.Slots(lo, hi)
+	for k := from; k < to; k++ {
+		i := a.Index.Cell[k]
 		r := s.Regime[i]
-		c.Tracks[i].Add(r)
+		c.Tracks[k].Add(r)
 		if r == regimes.Missing {
 			continue
 		}
-		c.Valid[i]++
-		c.Count[r][i]++
-		c.Rel[i].Add(float64(s.Rel[i]), 1)
+		c.Valid[k]++
+		c.Count[r][k]++
+		if x := s.Rel[i]; x == x {
+			c.Rel[k].add(x)
+		}
 		for q, v := range s.Values {
-			c.Values[q][r][i].Add(float64(v[i]), 1)
+			if x := v[i]; x == x {
+				c.Values[q][r][k].add(x)
+			}
 		}
 	}
 }
@@ -235,13 +268,16 @@ func (a *Acc) Merge(b *Acc) error {
 		for r := 0; r < nreg; r++ {
 			c.Count[r][i] += d.Count[r][i]
 		}
-		c.Rel[i].Merge(d.Rel[i])
-		for q := range c.Values {
-			for r := 0; r < nreg; r++ {
-				c.Values[q][r][i].Merge(d.Values[q][r][i])
+		c.Tracks[i].Merge(d.Tracks[i])
+		c.Rel[i].merge(d.Rel[i])
+	}
+	for q := range c.Values {
+		for r := 0; r < nreg; r++ {
+			x, y := c.Values[q][r], d.Values[q][r]
+			for k := range x {
+				x[k].merge(y[k])
 			}
 		}
-		c.Tracks[i].Merge(d.Tracks[i])
 	}
 	c.Steps += d.Steps
 	a.Series = append(a.Series, b.Series...)
@@ -268,6 +304,14 @@ func sameLayout(a, b Layout) error {
 	if fmt.Sprint(a.Regions) != fmt.Sprint(b.Regions) {
 		return fmt.Errorf("accumulate: cannot merge runs with different regions")
 	}
+	if len(a.Columns) != len(b.Columns) || (a.Columns == nil) != (b.Columns == nil) {
+		return fmt.Errorf("accumulate: cannot merge runs that keep different columns (%d vs %d; a different ocean mask or analysis domain)", len(a.Columns), len(b.Columns))
+	}
+	for k := range a.Columns {
+		if a.Columns[k] != b.Columns[k] {
+			return fmt.Errorf("accumulate: cannot merge runs that keep different columns (a different ocean mask or analysis domain: column %d is cell %d vs %d)", k, a.Columns[k], b.Columns[k])
+		}
+	}
 	for i := range a.Lat {
 		if a.Lat[i] != b.Lat[i] {
 			return fmt.Errorf("accumulate: grids differ at latitude %d (%g vs %g)", i, a.Lat[i], b.Lat[i])
@@ -284,26 +328,80 @@ func sameLayout(a, b Layout) error {
 // ConvectiveFraction returns, per cell, the fraction of valid steps that
 // were convective (NaN where never valid).
 func (a *Acc) ConvectiveFraction() []float64 {
-	out := make([]float64, len(a.Cells.Valid))
-	for i, v := range a.Cells.Valid {
-		out[i] = math.NaN()
+	out := a.nanGrid()
+	for k, v := range a.Cells.Valid {
 		if v > 0 {
-			out[i] = float64(a.Cells.Count[regimes.Convective][i]) / float64(v)
+			out[a.Index.Cell[k]] = float64(a.Cells.Count[regimes.Convective][k]) / float64(v)
 		}
 	}
 	return out
+}
+
+// nanGrid returns a grid of NaN.
+func (a *Acc) nanGrid() []float64 {
+	out := make([]float64, a.L.NLat*a.L.NLon)
+	for i := range out {
+		out[i] = math.NaN()
+	}
+	return out
+}
+
+// NCells is the number of grid cells.
+func (a *Acc) NCells() int { return a.L.NLat * a.L.NLon }
+
+// ValidSteps returns the number of steps grid cell i was in a regime.
+func (a *Acc) ValidSteps(i int) int32 {
+	if k := a.Index.Slot(i); k >= 0 {
+		return a.Cells.Valid[k]
+	}
+	return 0
+}
+
+// RegimeSteps returns the number of steps grid cell i was in regime r.
+func (a *Acc) RegimeSteps(r regimes.Regime, i int) int32 {
+	if k := a.Index.Slot(i); k >= 0 {
+		return a.Cells.Count[r][k]
+	}
+	return 0
+}
+
+// Moments returns the moments over time of quantity q (index in
+// Layout.Quantities) at grid cell i in the steps it was in regime r
+// (unit weights; empty where never).
+func (a *Acc) Moments(q int, r regimes.Regime, i int) stats.Moments {
+	if k := a.Index.Slot(i); k >= 0 {
+		return a.Cells.Values[q][r][k].Moments()
+	}
+	return stats.Moments{}
+}
+
+// RelMoments returns the moments of relative SST over the valid steps of
+// grid cell i.
+func (a *Acc) RelMoments(i int) stats.Moments {
+	if k := a.Index.Slot(i); k >= 0 {
+		return a.Cells.Rel[k].Moments()
+	}
+	return stats.Moments{}
+}
+
+// Track returns the crossing track of grid cell i (an empty one where no
+// state is kept).
+func (a *Acc) Track(i int) regimes.Track {
+	if k := a.Index.Slot(i); k >= 0 {
+		return a.Cells.Tracks[k]
+	}
+	return regimes.NewTrack()
 }
 
 // CrossingsPerYear returns convective↔subsidence crossings per year of
 // record at each cell, for a record of stepsPerYear steps a year (12 for
 // monthly data). NaN where the cell was never valid.
 func (a *Acc) CrossingsPerYear(stepsPerYear float64) []float64 {
-	out := make([]float64, len(a.Cells.Valid))
+	out := a.nanGrid()
 	years := float64(a.Cells.Steps) / stepsPerYear
-	for i, t := range a.Cells.Tracks {
-		out[i] = math.NaN()
-		if a.Cells.Valid[i] > 0 && years > 0 {
-			out[i] = float64(t.Crossings) / years
+	for k, t := range a.Cells.Tracks {
+		if a.Cells.Valid[k] > 0 && years > 0 {
+			out[a.Index.Cell[k]] = float64(t.Crossings) / years
 		}
 	}
 	return out

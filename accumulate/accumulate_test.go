@@ -2,9 +2,12 @@ package accumulate
 
 import (
 	"bytes"
+	"encoding/gob"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"reflect"
+	"strings"
 	"testing"
 
 	"lidscope/regimes"
@@ -72,12 +75,12 @@ func TestMergeEqualsSinglePass(t *testing.T) {
 	}
 	close := func(x, y float64) bool { return x == y || math.Abs(x-y) <= 1e-12*math.Max(1, math.Abs(y)) }
 	for i := 0; i < 12; i++ {
-		if a.Cells.Valid[i] != whole.Cells.Valid[i] || a.Cells.Tracks[i].Crossings != whole.Cells.Tracks[i].Crossings {
+		if a.ValidSteps(i) != whole.ValidSteps(i) || a.Track(i).Crossings != whole.Track(i).Crossings {
 			t.Fatalf("cell %d: counts differ", i)
 		}
 		for q := 0; q < 2; q++ {
-			for r := 0; r < nreg; r++ {
-				x, y := a.Cells.Values[q][r][i], whole.Cells.Values[q][r][i]
+			for r := regimes.Regime(0); r < nreg; r++ {
+				x, y := a.Moments(q, r, i), whole.Moments(q, r, i)
 				if x.N != y.N || !close(x.Mean, y.Mean) || !close(x.M2, y.M2) {
 					t.Fatalf("cell %d q %d r %d: %+v vs %+v", i, q, r, x, y)
 				}
@@ -147,10 +150,35 @@ func TestEncodeDecodeRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(a.Cells.Tracks, b.Cells.Tracks) || a.Cells.Values[1][2][3] != b.Cells.Values[1][2][3] || len(b.Series) != 20 || !reflect.DeepEqual(a.member, b.member) {
+	if !reflect.DeepEqual(a.Cells.Tracks, b.Cells.Tracks) || len(b.Series) != 20 || !reflect.DeepEqual(a.member, b.member) {
 		t.Fatal("state did not round-trip")
+	}
+	for i := range a.NCells() {
+		for q := range a.L.Quantities {
+			for r := regimes.Regime(0); r < nreg; r++ {
+				if a.Moments(q, r, i) != b.Moments(q, r, i) {
+					t.Fatalf("cell %d quantity %d regime %d did not round-trip", i, q, r)
+				}
+			}
+		}
+		if a.RelMoments(i) != b.RelMoments(i) {
+			t.Fatalf("cell %d: relative SST did not round-trip", i)
+		}
 	}
 	if _, err := Decode(bytes.NewReader([]byte("not a state"))); err == nil {
 		t.Error("garbage decoded")
+	}
+}
+
+// TestDecodeRefusesAnEarlierFormat: a state of the earlier per-grid-cell
+// format is refused with ErrFormat and a message to run again.
+func TestDecodeRefusesAnEarlierFormat(t *testing.T) {
+	var buf bytes.Buffer
+	if err := gob.NewEncoder(&buf).Encode(state{Format: "lidscope-accumulator/1", L: layout()}); err != nil {
+		t.Fatal(err)
+	}
+	_, err := Decode(&buf)
+	if !errors.Is(err, ErrFormat) || !strings.Contains(err.Error(), "run the analysis again") {
+		t.Fatalf("got %v, want ErrFormat saying to run again", err)
 	}
 }

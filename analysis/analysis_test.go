@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"context"
+	"lidscope/regimes"
 	"math"
 	"os"
 	"path/filepath"
@@ -84,13 +85,13 @@ func TestSplitRunsMergeToTheSingleRun(t *testing.T) {
 	if acc.Cells.Steps != w.Cells.Steps || len(acc.Series) != len(w.Series) {
 		t.Fatalf("steps %d vs %d", acc.Cells.Steps, w.Cells.Steps)
 	}
-	for i := range w.Cells.Valid {
-		if acc.Cells.Valid[i] != w.Cells.Valid[i] || acc.Cells.Tracks[i] != w.Cells.Tracks[i] {
-			t.Fatalf("cell %d: counts or crossing track differ: %+v vs %+v", i, acc.Cells.Tracks[i], w.Cells.Tracks[i])
+	for i := range w.NCells() {
+		if acc.ValidSteps(i) != w.ValidSteps(i) || acc.Track(i) != w.Track(i) {
+			t.Fatalf("cell %d: counts or crossing track differ: %+v vs %+v", i, acc.Track(i), w.Track(i))
 		}
-		for q := range w.Cells.Values {
-			for r := 0; r < 3; r++ {
-				x, y := acc.Cells.Values[q][r][i], w.Cells.Values[q][r][i]
+		for q := range w.L.Quantities {
+			for r := regimes.Regime(0); r < 3; r++ {
+				x, y := acc.Moments(q, r, i), w.Moments(q, r, i)
 				if x.N != y.N || !close(x.Mean, y.Mean) || !close(x.M2, y.M2) {
 					t.Fatalf("cell %d quantity %d regime %d: %+v vs %+v", i, q, r, x, y)
 				}

@@ -157,11 +157,10 @@ func demoChecks(rep Report, t *fixtures.Truth) []Check {
 	}
 	mean := func(name string, r regimes.Regime) float64 {
 		var sw, swx float64
-		vals := acc.Cells.Values[q[name]][r]
 		for i, w := range acc.L.BandWeight {
-			if w > 0 && vals[i].W > 0 {
-				sw += w * vals[i].W
-				swx += w * vals[i].W * vals[i].Mean
+			if m := acc.Moments(q[name], r, i); w > 0 && m.W > 0 {
+				sw += w * m.W
+				swx += w * m.W * m.Mean
 			}
 		}
 		return swx / sw

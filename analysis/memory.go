@@ -11,8 +11,8 @@ import (
 // MemoryEstimate is the memory a run of one dataset is expected to need,
 // from the sizes of its inputs (no data is read). The parts:
 //
-//   - state: the regime accumulator's per-cell statistics and the
-//     relationship analysis's per-cell bookkeeping, per grid cell, all cells;
+//   - state: the regime accumulator's per-column statistics, per analysed
+//     column (the ocean cells of the static mask);
 //   - buffers: the pipeline's step buffers and the read buffers;
 //   - per step: what the relationship analysis keeps of each time step (its
 //     only part that grows with the record);
@@ -27,7 +27,7 @@ import (
 type MemoryEstimate struct {
 	Dataset      string
 	Shape        pipeline.Shape
-	StatePerCell int64 // bytes per grid cell
+	StatePerCell int64 // bytes per analysed (ocean) column
 	State        int64
 	Buffers      int64
 	Relations    int64 // per-step and binned relationship state (0 when off)
@@ -65,7 +65,7 @@ func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) 
 		}
 		m.Relations = rb
 	}
-	m.State = m.StatePerCell * int64(sh.Cells)
+	m.State = m.StatePerCell * int64(sh.Columns)
 	// the run state holds the accumulator encoded (about its size, in a
 	// buffer that may have doubled) and the maps are float32 per
 	// quantity, regime and statistic
@@ -77,6 +77,6 @@ func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) 
 // String describes the estimate in one line.
 func (m MemoryEstimate) String() string {
 	mb := func(b int64) string { return fmt.Sprintf("%.0f MB", float64(b)/(1<<20)) }
-	return fmt.Sprintf("dataset %s: about %s peak for %d×%d cells and %d time steps (state %d B per cell = %s, step buffers %s, relationship analysis %s, end-of-run writing %s, netCDF and runtime %s)",
-		m.Dataset, mb(m.Total), m.Shape.NLat, m.Shape.NLon, m.Shape.Steps, m.StatePerCell, mb(m.State), mb(m.Buffers), mb(m.Relations), mb(m.EndOfRun), mb(m.Fixed))
+	return fmt.Sprintf("dataset %s: about %s peak for %d×%d cells and %d time steps (state %d B per analysed column × %d ocean columns = %s, step buffers %s, relationship analysis %s, end-of-run writing %s, netCDF and runtime %s)",
+		m.Dataset, mb(m.Total), m.Shape.NLat, m.Shape.NLon, m.Shape.Steps, m.StatePerCell, m.Shape.Columns, mb(m.State), mb(m.Buffers), mb(m.Relations), mb(m.EndOfRun), mb(m.Fixed))
 }

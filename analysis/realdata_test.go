@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"lidscope/regimes"
 	"math"
 	"os"
 	"os/exec"
@@ -211,13 +212,14 @@ output: {dir: "` + dir + `", plots: true}
 	theta := func(T, p float64) float64 { return T * math.Pow(c.P0/p, c.Rd/c.Cpd) }
 	qi := func(n string) int { return slices.Index(l.Quantities, n) }
 	checked := 0
-	for i := range rep.Result.Acc.Cells.Valid {
-		for rg := range 3 {
-			lts := rep.Result.Acc.Cells.Values[qi("lts")][rg][i]
+	acc := rep.Result.Acc
+	for i := range acc.NCells() {
+		for rg := regimes.Regime(0); rg < 3; rg++ {
+			lts := acc.Moments(qi("lts"), rg, i)
 			if lts.N == 0 {
 				continue
 			}
-			s, t7 := rep.Result.Acc.Cells.Values[qi("sst")][rg][i].Mean, rep.Result.Acc.Cells.Values[qi("t700")][rg][i].Mean
+			s, t7 := acc.Moments(qi("sst"), rg, i).Mean, acc.Moments(qi("t700"), rg, i).Mean
 			if want := theta(t7, 70000) - theta(s, conv.SurfacePressure); math.Abs(lts.Mean-want) > 2e-3 {
 				t.Fatalf("cell %d: LTS %.5f K, θ700 − θs %.5f K", i, lts.Mean, want)
 			}

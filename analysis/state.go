@@ -173,6 +173,9 @@ func readState(p string, withRel bool) (loadedState, error) {
 		return loadedState{}, damaged(p, fmt.Sprintf("its body has format %q", s.Format))
 	}
 	acc, err := accumulate.Decode(bytes.NewReader(s.Acc))
+	if errors.Is(err, accumulate.ErrFormat) {
+		return loadedState{}, fmt.Errorf("run state %s: %w", p, err)
+	}
 	if err != nil {
 		return loadedState{}, damaged(p, err.Error())
 	}

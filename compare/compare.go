@@ -365,11 +365,10 @@ func scalars(r Run) []Scalar {
 // bandMean is the band-area- and time-weighted regime mean of quantity k.
 func bandMean(a *accumulate.Acc, k int, r regimes.Regime) float64 {
 	var sw, swx float64
-	vals := a.Cells.Values[k][r]
 	for i, w := range a.L.BandWeight {
-		if w > 0 && vals[i].W > 0 {
-			sw += w * vals[i].W
-			swx += w * vals[i].W * vals[i].Mean
+		if m := a.Moments(k, r, i); w > 0 && m.W > 0 {
+			sw += w * m.W
+			swx += w * m.W * m.Mean
 		}
 	}
 	if sw == 0 {

@@ -51,7 +51,7 @@ type mapVar struct {
 func (c *checked) mapVars() []mapVar {
 	acc := c.acc
 	cells := &acc.Cells
-	n := len(cells.Valid)
+	n := acc.NCells()
 	yx := []string{cfwrite.DimTime, cfwrite.DimLat, cfwrite.DimLon}
 	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
 	steps := strconv.FormatFloat(c.meta.StepsPerYear, 'g', -1, 64)
@@ -60,10 +60,10 @@ func (c *checked) mapVars() []mapVar {
 
 	for _, r := range regimes.All {
 		d := make([]float64, n)
-		for i, v := range cells.Valid {
+		for i := range d {
 			d[i] = math.NaN()
-			if v > 0 {
-				d[i] = float64(cells.Count[r][i]) / float64(v)
+			if v := acc.ValidSteps(i); v > 0 {
+				d[i] = float64(acc.RegimeSteps(r, i)) / float64(v)
 			}
 		}
 		add(cfwrite.VarSpec{
@@ -82,8 +82,9 @@ func (c *checked) mapVars() []mapVar {
 		d := make([]float64, n)
 		for i := range d {
 			d[i] = math.NaN()
-			if cells.Valid[i] > 0 {
-				d[i] = cells.Tracks[i].MeanDwell(r)
+			if acc.ValidSteps(i) > 0 {
+				t := acc.Track(i)
+				d[i] = t.MeanDwell(r)
 			}
 		}
 		// One variable per regime: in months (UDUNITS-2: a twelfth of a
@@ -107,8 +108,8 @@ func (c *checked) mapVars() []mapVar {
 		}, d)
 	}
 	valid := make([]float64, n)
-	for i, v := range cells.Valid {
-		valid[i] = float64(v)
+	for i := range valid {
+		valid[i] = float64(acc.ValidSteps(i))
 	}
 	add(cfwrite.VarSpec{
 		Name: "valid_steps", Dims: yx, Type: cfwrite.Int32, Units: "1",
@@ -117,7 +118,8 @@ func (c *checked) mapVars() []mapVar {
 		Attributes:  map[string]any{vocab.TimeSteps: cells.Steps},
 	}, valid)
 	rm, rs := make([]float64, n), make([]float64, n)
-	for i, m := range cells.Rel {
+	for i := range rm {
+		m := acc.RelMoments(i)
 		rm[i], rs[i] = m.MeanOrNaN(), m.Std()
 	}
 	add(cfwrite.VarSpec{
@@ -136,7 +138,8 @@ func (c *checked) mapVars() []mapVar {
 		mean := make([]float64, len(regimes.All)*n)
 		cnt := make([]float64, len(regimes.All)*n)
 		for k, r := range regimes.All {
-			for i, m := range cells.Values[qi][r] {
+			for i := 0; i < n; i++ {
+				m := acc.Moments(qi, r, i)
 				mean[k*n+i] = m.MeanOrNaN()
 				cnt[k*n+i] = float64(m.N)
 			}

@@ -133,7 +133,7 @@ func check(acc *accumulate.Acc, m Meta) (*checked, error) {
 	if len(acc.Series) != acc.Cells.Steps {
 		return nil, invalid("the accumulator has %d series points but counted %d steps; call AddStep once per step", len(acc.Series), acc.Cells.Steps)
 	}
-	if len(acc.Cells.Valid) != n || len(acc.Cells.Tracks) != n || len(acc.Cells.Values) != len(l.Quantities) {
+	if m := acc.Index.Len(); len(acc.Cells.Valid) != m || len(acc.Cells.Tracks) != m || len(acc.Cells.Values) != len(l.Quantities) {
 		return nil, invalid("the accumulator's cell arrays do not match its %d×%d layout; build it with accumulate.New", l.NLat, l.NLon)
 	}
 	c := &checked{acc: acc, meta: m}

@@ -176,7 +176,8 @@ func TestMapsMatchAccumulator(t *testing.T) {
 		m, _ := readVar(t, nc, q+"_mean")
 		c, _ := readVar(t, nc, q+"_count")
 		for k, r := range regimes.All {
-			for i, mo := range acc.Cells.Values[qi][r] {
+			for i := range acc.NCells() {
+				mo := acc.Moments(qi, r, i)
 				if !near(fromFill(m[k*16+i]), mo.MeanOrNaN()) || c[k*16+i] != float64(mo.N) {
 					t.Errorf("%s[%s][%d] = %v (n %v), accumulator %v (n %d)", q, r, i, m[k*16+i], c[k*16+i], mo.MeanOrNaN(), mo.N)
 				}

@@ -3,6 +3,7 @@ package output
 import (
 	"math"
 
+	"lidscope/accumulate"
 	"lidscope/internal/jsonnum"
 	"lidscope/regimes"
 	"lidscope/stats"
@@ -113,11 +114,14 @@ func seriesStats(x []float64, units string) meanStd {
 // bandWeight[i] per step, so the mean is Σ_i Σ_t w_i x_it / Σ_i Σ_t w_i over
 // the steps in the regime with a value, the same weighting as the
 // per-step band means of series.nc.
-func bandRegimeMean(cells []stats.Moments, bandWeight []float64) stats.Moments {
+func bandRegimeMean(acc *accumulate.Acc, q int, r regimes.Regime) stats.Moments {
 	var out stats.Moments
-	for i, m := range cells {
-		w := bandWeight[i]
-		if w <= 0 || m.W == 0 {
+	for i, w := range acc.L.BandWeight {
+		if w <= 0 {
+			continue
+		}
+		m := acc.Moments(q, r, i)
+		if m.W == 0 {
 			continue
 		}
 		out.Merge(stats.Moments{N: m.N, W: m.W * w, Mean: m.Mean, M2: m.M2 * w})
@@ -184,7 +188,7 @@ func (c *checked) summary(notes []string) summary {
 	for qi, name := range acc.L.Quantities {
 		mr := map[string]meanStd{}
 		for _, r := range regimes.All {
-			mr[r.String()] = momentsOf(bandRegimeMean(acc.Cells.Values[qi][r], acc.L.BandWeight), c.qs[qi].Units)
+			mr[r.String()] = momentsOf(bandRegimeMean(acc, qi, r), c.qs[qi].Units)
 		}
 		s.RegimeMeans[name] = mr
 	}

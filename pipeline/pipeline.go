@@ -232,7 +232,7 @@ func Run(ctx context.Context, p Plan) (*Result, error) {
 	bandW := p.Regimes.Band.Weights(lb, area)
 
 	// sinks
-	out, err := newSinks(&p, in, area, bandW)
+	out, err := newSinks(&p, in, area, bandW, ocean)
 	if err != nil {
 		return nil, err
 	}

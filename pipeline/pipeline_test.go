@@ -138,7 +138,7 @@ func TestRunSyntheticTruth(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	got := acc.Cells.Values[3][regimes.Subsidence][idx(1, 0)].Mean
+	got := acc.Moments(3, regimes.Subsidence, idx(1, 0)).Mean
 	if math.Abs(got-col.EIS) > 1e-4 {
 		t.Errorf("EIS %v, kernel %v", got, col.EIS)
 	}
@@ -159,10 +159,10 @@ func TestRunDeterministicAcrossWorkers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for i := range a.Acc.Cells.Valid {
-		for q := range a.Acc.Cells.Values {
-			for r := 0; r < 3; r++ {
-				if a.Acc.Cells.Values[q][r][i] != b.Acc.Cells.Values[q][r][i] {
+	for i := range a.Acc.NCells() {
+		for q := range a.Acc.L.Quantities {
+			for r := regimes.Regime(0); r < 3; r++ {
+				if a.Acc.Moments(q, r, i) != b.Acc.Moments(q, r, i) {
 					t.Fatalf("cell %d differs between 1 and 7 workers", i)
 				}
 			}
@@ -244,9 +244,9 @@ func TestRunOptionalInputs(t *testing.T) {
 			}
 			for qi, q := range l.Quantities {
 				ri := slices.Index(ref.Acc.L.Quantities, q)
-				for r := 0; r < 3; r++ {
-					for i := range ref.Acc.Cells.Valid {
-						a, b := ref.Acc.Cells.Values[ri][r][i], res.Acc.Cells.Values[qi][r][i]
+				for r := regimes.Regime(0); r < 3; r++ {
+					for i := range ref.Acc.NCells() {
+						a, b := ref.Acc.Moments(ri, r, i), res.Acc.Moments(qi, r, i)
 						if a != b {
 							t.Fatalf("%s, regime %d, cell %d: %+v, full run %+v", q, r, i, b, a)
 						}

@@ -57,20 +57,21 @@ func TestRealSSTWithT700(t *testing.T) {
 	theta := func(T, p float64) float64 { return T * math.Pow(c.P0/p, kappa) }
 	qi := func(name string) int { return slices.Index(l.Quantities, name) }
 	checked := 0
-	for i := range res.Acc.Cells.Valid {
-		if res.Acc.Cells.Valid[i] == 0 {
+	acc := res.Acc
+	for i := range acc.NCells() {
+		if acc.ValidSteps(i) == 0 {
 			continue
 		}
-		for r := range 3 {
-			lts := res.Acc.Cells.Values[qi("lts")][r][i]
+		for r := regimes.Regime(0); r < 3; r++ {
+			lts := acc.Moments(qi("lts"), r, i)
 			if lts.N == 0 {
 				continue
 			}
-			s, t7 := res.Acc.Cells.Values[qi("sst")][r][i].Mean, res.Acc.Cells.Values[qi("t700")][r][i].Mean
+			s, t7 := acc.Moments(qi("sst"), r, i).Mean, acc.Moments(qi("t700"), r, i).Mean
 			if want := theta(t7, 70000) - theta(s, conv.SurfacePressure); math.Abs(lts.Mean-want) > 2e-3 {
 				t.Fatalf("cell %d: LTS %.5f K, θ700 − θs = %.5f K (T700 %.3f K, SST %.3f K)", i, lts.Mean, want, t7, s)
 			}
-			if e := res.Acc.Cells.Values[qi("eis")][r][i]; e.N != lts.N {
+			if e := acc.Moments(qi("eis"), r, i); e.N != lts.N {
 				t.Fatalf("cell %d: %d EIS values for %d LTS values", i, e.N, lts.N)
 			}
 			checked++

@@ -3,12 +3,10 @@ package pipeline
 import (
 	"fmt"
 	"strings"
-	"unsafe"
 
 	"lidscope/accumulate"
 	"lidscope/cf"
 	"lidscope/regimes"
-	"lidscope/stats"
 )
 
 // checkUsable applies the usability checks of `lidscope inspect`
@@ -90,9 +88,8 @@ func runBytes(all []*field, n int, nq int) int64 {
 		}
 		b += 2 * cells * 4 // step buffers
 	}
-	const nreg = 3
-	m := int64(unsafe.Sizeof(stats.Moments{}))
-	perCell := int64(4*4+1+1+4+8) + 4 + nreg*4 + m + int64(nq)*nreg*m + int64(unsafe.Sizeof(regimes.Track{}))
+	// every cell counted as an analysed column: the mask is not read yet
+	perCell := int64(4*4+1+1+4+8) + int64(accumulate.BytesPerColumn(nq))
 	return b + cells*perCell
 }
 
@@ -119,11 +116,10 @@ func checkRunBudget(p *Plan, all []*field, nlat, nlon, nq int) error {
 func checkOceanValues(p *Plan, acc *accumulate.Acc, bandW []float64, steps int, notes *[]string) error {
 	for q, name := range acc.L.Quantities {
 		var n int64
-		for r := range acc.Cells.Values[q] {
-			col := acc.Cells.Values[q][r]
+		for _, r := range regimes.All {
 			for i, w := range bandW {
-				if w > 0 && i < len(col) {
-					n += col[i].N
+				if w > 0 {
+					n += acc.Moments(q, r, i).N
 				}
 			}
 		}

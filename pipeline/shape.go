@@ -1,9 +1,7 @@
 package pipeline
 
 import (
-	"unsafe"
-
-	"lidscope/regimes"
+	"lidscope/accumulate"
 )
 
 // Shape is what the size of a run depends on, found by opening the inputs
@@ -11,9 +9,12 @@ import (
 type Shape struct {
 	NLat, NLon int
 	Cells      int // analysis grid cells
-	BandCells  int // cells with area inside the tropical band
-	Steps      int // time steps the run would take
-	Fields     int // fields read at every step
+	// Columns are the analysed columns, which keep per-column statistics:
+	// the ocean cells of the static mask.
+	Columns   int
+	BandCells int // cells with area inside the tropical band
+	Steps     int // time steps the run would take
+	Fields    int // fields read at every step
 	// NativeCells is the sum over those fields of their own grid's size
 	// (the read buffers before regridding).
 	NativeCells int
@@ -21,7 +22,8 @@ type Shape struct {
 }
 
 // ShapeOf opens the plan's inputs, as Run does before its first step,
-// and says how large the run is; it reads no data.
+// and says how large the run is; it reads no time step, only the static
+// ocean mask (a mask or fraction field) when the plan has one.
 func ShapeOf(p Plan) (Shape, error) {
 	in, err := openInputs(&p)
 	if err != nil {
@@ -30,6 +32,15 @@ func ShapeOf(p Plan) (Shape, error) {
 	defer in.close()
 	g := in.grid
 	s := Shape{NLat: g.NLat(), NLon: g.NLon(), Cells: g.Size(), Steps: len(in.steps), Fields: len(in.timed), Quantities: p.Quantities()}
+	ocean, err := staticOcean(in, &p)
+	if err != nil {
+		return Shape{}, err
+	}
+	for _, o := range ocean {
+		if o {
+			s.Columns++
+		}
+	}
 	lb := make([][2]float64, g.NLat())
 	copy(lb, g.LatBounds)
 	for _, w := range p.Regimes.Band.Weights(lb, g.CellAreas()) {
@@ -43,14 +54,14 @@ func ShapeOf(p Plan) (Shape, error) {
 	return s, nil
 }
 
-// StateBytesPerCell is the run's own per-cell memory: the regime
-// accumulator's statistics of nq quantities (package accumulate: valid and
-// regime counts, relative-SST moments, nq × 3 regimes of moments, the
-// crossing track) and the pipeline's step buffers for fields inputs
-// (three reader buffers, two sets of step outputs, masks and weights).
+// StateBytesPerCell is the run's own memory: acc per analysed column (an
+// ocean column of the static mask, package accumulate: valid and regime
+// counts, relative-SST sums, nq × 3 regimes of sums, the crossing track,
+// accumulate.BytesPerColumn) and buffers per grid cell, the pipeline's
+// step buffers for fields inputs (three reader buffers, two sets of step
+// outputs, masks, weights and the column index).
 func StateBytesPerCell(nq, fields int) (acc, buffers int) {
-	const moments = 32 // stats.Moments: N, W, Mean, M2
-	acc = 4 + 3*4 + moments + nq*3*moments + int(unsafe.Sizeof(regimes.Track{}))
-	buffers = nbufs*fields*4 + 2*(4+1+4+4+4) + 1 + 1 + 8 + 8 + 4
+	acc = accumulate.BytesPerColumn(nq)
+	buffers = nbufs*fields*4 + 2*(4+1+4+4+4) + 1 + 1 + 8 + 8 + 4 + 4
 	return acc, buffers
 }

@@ -40,6 +40,6 @@ func writeGridMemory(w io.Writer, gr pipeline.GridReport) {
 	n := int64(g.Size())
 	state := int64(acc) * n
 	total := int64(45<<20) + state + int64(buf)*n + 2*state + n*(5*3*8+12*4)
-	fmt.Fprintf(w, "memory: a run on %s (%d cells) keeps about %d B of state per cell (%.0f MB) and needs about %.0f MB at its peak; lidscope study check estimates it for a study\n",
+	fmt.Fprintf(w, "memory: a run on %s (%d cells) keeps about %d B of state per analysed (ocean) column (at most %.0f MB, if every cell were ocean) and needs at most about %.0f MB at its peak; lidscope study check estimates it for a study, with its ocean mask\n",
 		g, n, acc, float64(state)/(1<<20), float64(total)/(1<<20))
 }
