@@ -10,16 +10,19 @@ import (
 	"github.com/spf13/pflag"
 )
 
-// profileOptions are run's --cpuprofile FILE and --trace FILE: a CPU
-// profile (go tool pprof) and an execution trace (go tool trace) of the
-// whole command. bench/README.md shows how to read them.
+// profileOptions are run's --cpuprofile FILE, --memprofile FILE and
+// --trace FILE: a CPU profile and a memory profile (go tool pprof) and an
+// execution trace (go tool trace) of the whole command. bench/README.md
+// shows how to read them.
 type profileOptions struct {
 	CPU   string
+	Mem   string
 	Trace string
 }
 
 func (p *profileOptions) register(fs *pflag.FlagSet) {
 	fs.StringVar(&p.CPU, "cpuprofile", "", "write a CPU profile of the run to `FILE` (read it with go tool pprof)")
+	fs.StringVar(&p.Mem, "memprofile", "", "write a memory profile of the run to `FILE` at its end: every allocation (go tool pprof -sample_index=alloc_space)")
 	fs.StringVar(&p.Trace, "trace", "", "write an execution trace of the run to `FILE` (read it with go tool trace)")
 }
 
@@ -48,6 +51,23 @@ func (p profileOptions) start() (stop func() error, err error) {
 			pprof.StopCPUProfile()
 			if err := f.Close(); err != nil {
 				return fmt.Errorf("--cpuprofile %s: %w", p.CPU, err)
+			}
+			return nil
+		})
+	}
+	if p.Mem != "" {
+		f, err := os.Create(p.Mem)
+		if err != nil {
+			stop()
+			return nil, fmt.Errorf("--memprofile: %w", err)
+		}
+		closers = append(closers, func() error {
+			err := pprof.Lookup("allocs").WriteTo(f, 0)
+			if cerr := f.Close(); err == nil {
+				err = cerr
+			}
+			if err != nil {
+				return fmt.Errorf("--memprofile %s: %w", p.Mem, err)
 			}
 			return nil
 		})
