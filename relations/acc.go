@@ -172,7 +172,7 @@ type Acc struct {
 	binned []binStat
 	// one step's sums of binned, jointM and omegaM (AddStep)
 	stepBinned, stepJoint, stepOmega stepMoments
-	outCnt []int64 // [(d*ns+s)*nreg+g)*np+p] samples outside the bins
+	outCnt                           []int64 // [(d*ns+s)*nreg+g)*np+p] samples outside the bins
 
 	jointOn                bool
 	jRel, jEIS             int // predictor indices
