@@ -27,7 +27,7 @@ func box4(s, n, w, e float64) *jBox {
 	return &jBox{num{Value: s, Units: "degrees_north"}, num{Value: n, Units: "degrees_north"}, num{Value: w, Units: "degrees_east"}, num{Value: e, Units: "degrees_east"}}
 }
 
-// jsonDoc builds relationships.json.
+// jsonDoc builds relationships.json, one section at a time.
 func jsonDoc(r *Results, meta Meta) map[string]any {
 	doc := map[string]any{
 		"format":                         "lidscope-relationships",
@@ -46,6 +46,27 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		"regime_index":                   regimeOrder(),
 		"notes":                          append([]string{}, r.Notes...),
 	}
+	jsonAxes(doc, r)
+	for _, s := range []struct {
+		key   string
+		build func(*Results) any
+	}{
+		{"binned", jsonBinned},
+		{"joint_composites", jsonJoint},
+		{"regressions", jsonRegressions},
+		{"partial_regressions", jsonPartials},
+		{"flips", jsonFlips},
+		{"threshold", jsonThreshold},
+		{"omega_regimes", jsonOmega},
+	} {
+		doc[s.key] = s.build(r)
+	}
+	return doc
+}
+
+// jsonAxes adds the domains, seasons, predictors (with their bin edges)
+// and responses.
+func jsonAxes(doc map[string]any, r *Results) {
 	var doms []map[string]any
 	for _, d := range r.Domains {
 		m := map[string]any{"name": d.Name, "band": d.Band}
@@ -68,7 +89,10 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		resp = append(resp, map[string]any{"name": v.Name, "units": v.Units})
 	}
 	doc["responses"] = resp
+}
 
+// jsonBinned is the binned relationships section.
+func jsonBinned(r *Results) any {
 	binned := []map[string]any{}
 	for _, b := range r.Binned {
 		var bins []map[string]any
@@ -80,8 +104,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		binned = append(binned, map[string]any{"relationships_mode": r.Mode.String(), "domain": b.Domain, "season": b.Season, "regime": b.Regime.String(),
 			"predictor": b.Predictor, "response": b.Response, "out_of_range": jsonnum.Count(b.OutOfRange), "response_lag1_autocorrelation": num{Value: b.R1, Units: "1"}, "bins": bins})
 	}
-	doc["binned"] = binned
+	return binned
+}
 
+// jsonJoint is the joint composites section.
+func jsonJoint(r *Results) any {
 	joint := []map[string]any{}
 	for _, j := range r.Joint {
 		mean := make([]num, len(j.Mean))
@@ -94,8 +121,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 			"rel_sst_edges": j.RelEdges, "eis_edges": j.EISEdge, "layout": "[rel_sst bin][eis bin], row-major",
 			"mean": mean, "frequency": freq, "count": count})
 	}
-	doc["joint_composites"] = joint
+	return joint
+}
 
+// jsonRegressions is the simple regressions section.
+func jsonRegressions(r *Results) any {
 	regs := []map[string]any{}
 	for _, g := range r.Regressions {
 		m := map[string]any{"relationships_mode": r.Mode.String(), "domain": g.Domain, "season": g.Season, "regime": g.Regime.String(),
@@ -112,8 +142,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		}
 		regs = append(regs, m)
 	}
-	doc["regressions"] = regs
+	return regs
+}
 
+// jsonPartials is the partial regressions section.
+func jsonPartials(r *Results) any {
 	parts := []map[string]any{}
 	for _, p := range r.Partials {
 		var coefs []map[string]any
@@ -130,8 +163,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 			"intercept": num{Value: p.Intercept, Units: p.Units}, "r2": num{Value: p.R2, Units: "1"}, "n_eff": num{Value: p.NEff, Units: "1"}, "residual_lag1_autocorrelation": num{Value: p.R1Resid, Units: "1"},
 			"independent_areas": num{Value: p.IndependentAreas, Units: "1"}, "note": p.Note})
 	}
-	doc["partial_regressions"] = parts
+	return parts
+}
 
+// jsonFlips is the perturbation flips section.
+func jsonFlips(r *Results) any {
 	flips := []map[string]any{}
 	for _, pf := range r.Flips {
 		var rows []map[string]any
@@ -149,26 +185,11 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 			"definition": "relative SST inside the patch becomes SST* + ΔT(1 - f), outside SST* - ΔT f, ΔT the SST perturbation and f the patch's share of the band ocean area at each step (patch_area_fraction); fractions of ocean area x time (inside: cell area; outside: band area)",
 			"rows":       rows})
 	}
-	doc["flips"] = flips
+	return flips
+}
 
-	if t := r.Threshold; t != nil {
-		var years []map[string]any
-		for _, y := range t.Years {
-			years = append(years, map[string]any{"year": y.Year, "time_steps": jsonnum.Count(y.Steps), "count": jsonnum.Count(y.N), "relative": num{Value: y.Rel, Units: "K"},
-				"absolute": num{Value: y.Abs, Units: "K"}, "tropical_mean_sst": num{Value: y.TropicalMean, Units: "K"}, "logistic_slope": num{Value: y.LogisticSlope, Units: "K-1"}, "note": y.Note})
-		}
-		doc["threshold"] = map[string]any{"indicator": t.Indicator, "condition": t.Condition,
-			"indicator_threshold": num{Value: t.IndicatorThreshold, Units: t.IndicatorUnits}, "count": jsonnum.Count(t.N), "area": num{Value: t.Area, Units: "m2"}, "out_of_range": jsonnum.Count(t.OutOfRange),
-			"method":   "logistic regression of the indicator on relative SST over band ocean cell-steps (binned, IRLS, area weights); threshold where p = 0.5; absolute = relative + the record's tropical-mean SST",
-			"logistic": map[string]num{"intercept": {Value: t.B0, Units: "1"}, "slope": {Value: t.B1, Units: "K-1"}},
-			"relative": num{Value: t.Rel, Units: "K"}, "relative_ci": ji(t.RelCI, "K"),
-			"absolute": num{Value: t.Abs, Units: "K"}, "absolute_ci": ji(t.AbsCI, "K"),
-			"tropical_mean_sst": num{Value: t.TropicalMean, Units: "K"}, "bootstrap_replicates": jsonnum.Count(t.Replicates), "bootstrap_failed": jsonnum.Count(t.Failed),
-			"years": years, "tracking_slope": num{Value: t.Tracking, Units: "1"}, "tracking_ci": ji(t.TrackingCI, "1"), "note": t.Note}
-	} else {
-		doc["threshold"] = nil
-	}
-
+// jsonOmega is the omega500 regimes section.
+func jsonOmega(r *Results) any {
 	omega := []map[string]any{}
 	for _, o := range r.Omega {
 		var bins []map[string]any
@@ -185,6 +206,25 @@ func jsonDoc(r *Results, meta Meta) map[string]any {
 		omega = append(omega, map[string]any{"domain": o.Domain, "season": o.Season, "out_of_range": jsonnum.Count(o.OutOfRange),
 			"values": "actual values (composites), in both modes", "bins": bins})
 	}
-	doc["omega_regimes"] = omega
-	return doc
+	return omega
+}
+
+// jsonThreshold is the threshold section (null without a threshold).
+func jsonThreshold(r *Results) any {
+	if t := r.Threshold; t != nil {
+		var years []map[string]any
+		for _, y := range t.Years {
+			years = append(years, map[string]any{"year": y.Year, "time_steps": jsonnum.Count(y.Steps), "count": jsonnum.Count(y.N), "relative": num{Value: y.Rel, Units: "K"},
+				"absolute": num{Value: y.Abs, Units: "K"}, "tropical_mean_sst": num{Value: y.TropicalMean, Units: "K"}, "logistic_slope": num{Value: y.LogisticSlope, Units: "K-1"}, "note": y.Note})
+		}
+		return map[string]any{"indicator": t.Indicator, "condition": t.Condition,
+			"indicator_threshold": num{Value: t.IndicatorThreshold, Units: t.IndicatorUnits}, "count": jsonnum.Count(t.N), "area": num{Value: t.Area, Units: "m2"}, "out_of_range": jsonnum.Count(t.OutOfRange),
+			"method":   "logistic regression of the indicator on relative SST over band ocean cell-steps (binned, IRLS, area weights); threshold where p = 0.5; absolute = relative + the record's tropical-mean SST",
+			"logistic": map[string]num{"intercept": {Value: t.B0, Units: "1"}, "slope": {Value: t.B1, Units: "K-1"}},
+			"relative": num{Value: t.Rel, Units: "K"}, "relative_ci": ji(t.RelCI, "K"),
+			"absolute": num{Value: t.Abs, Units: "K"}, "absolute_ci": ji(t.AbsCI, "K"),
+			"tropical_mean_sst": num{Value: t.TropicalMean, Units: "K"}, "bootstrap_replicates": jsonnum.Count(t.Replicates), "bootstrap_failed": jsonnum.Count(t.Failed),
+			"years": years, "tracking_slope": num{Value: t.Tracking, Units: "1"}, "tracking_ci": ji(t.TrackingCI, "1"), "note": t.Note}
+	}
+	return nil
 }

@@ -220,15 +220,77 @@ func writeNC(path string, r *Results, meta Meta) error {
 		return err
 	}
 	defer w.Abort()
+	nw := newNCWriter(w, r)
+	for _, step := range []func() error{nw.axes, nw.binned, nw.joint, nw.omega, nw.write} {
+		if err := step(); err != nil {
+			return err
+		}
+	}
+	return w.Close()
+}
+
+// ncWriter writes relationships.nc in steps: the axes, then the
+// variables of the binned relationships, the joint composites and the
+// omega composites (declared first, written at the end, as NetCDF-4
+// wants).
+type ncWriter struct {
+	w          *cfwrite.Writer
+	r          *Results
+	dIdx, sIdx map[string]int // domain and season name → index
+	nd, ns, ng int            // numbers of domains, seasons, regimes
+	todo       []pendingVar
+}
+
+// pendingVar is a declared variable and the values it gets.
+type pendingVar struct {
+	v    *cfwrite.Var
+	data []float64
+}
+
+func newNCWriter(w *cfwrite.Writer, r *Results) *ncWriter {
+	nw := &ncWriter{w: w, r: r, dIdx: map[string]int{}, sIdx: map[string]int{},
+		nd: len(r.Domains), ns: len(r.Seasons), ng: len(regimes.All)}
+	for k, d := range r.Domains {
+		nw.dIdx[d.Name] = k
+	}
+	for k, s := range r.Seasons {
+		nw.sIdx[s] = k
+	}
+	return nw
+}
+
+// add declares a variable (with the relationships mode attribute) whose
+// values are written by write.
+func (nw *ncWriter) add(s cfwrite.VarSpec, data []float64) error {
+	if s.Attributes == nil {
+		s.Attributes = map[string]any{}
+	}
+	s.Attributes[vocab.RelationshipsMode] = nw.r.Mode.String()
+	v, err := nw.w.AddVar(s)
+	if err != nil {
+		return err
+	}
+	nw.todo = append(nw.todo, pendingVar{v, data})
+	return nil
+}
+
+// write writes the values of every declared variable.
+func (nw *ncWriter) write() error {
+	for _, p := range nw.todo {
+		if err := p.v.Write(p.data); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// axes declares the domain, season and regime categories, a bin axis per
+// predictor and the omega500 bins.
+func (nw *ncWriter) axes() error {
+	w, r := nw.w, nw.r
 	dn := make([]string, len(r.Domains))
-	dIdx := map[string]int{}
 	for k, d := range r.Domains {
 		dn[k] = d.Name
-		dIdx[d.Name] = k
-	}
-	sIdx := map[string]int{}
-	for k, s := range r.Seasons {
-		sIdx[s] = k
 	}
 	if err := w.AddCategories(cfwrite.Categories{Name: dimDomain, LongName: "domain over which cell-steps are pooled (tropical band or named region)", Meanings: dn}); err != nil {
 		return err
@@ -243,9 +305,7 @@ func writeNC(path string, r *Results, meta Meta) error {
 	if err := w.AddCategories(cfwrite.Categories{Name: dimRegime, LongName: "SST regime (relative sea surface temperature above or below the threshold)", Meanings: rm}); err != nil {
 		return err
 	}
-	pIdx := map[string]int{}
-	for k, p := range r.Predictors {
-		pIdx[p.Name] = k
+	for _, p := range r.Predictors {
 		c, b, err := cfwrite.BinsFromEdges(p.Edges)
 		if err != nil {
 			return err
@@ -266,28 +326,14 @@ func writeNC(path string, r *Results, meta Meta) error {
 			return err
 		}
 	}
-	modeAttr := map[string]any{vocab.RelationshipsMode: r.Mode.String()}
-	type pending struct {
-		v    *cfwrite.Var
-		data []float64
-	}
-	var todo []pending
-	add := func(s cfwrite.VarSpec, data []float64) error {
-		if s.Attributes == nil {
-			s.Attributes = map[string]any{}
-		}
-		for k, v := range modeAttr {
-			s.Attributes[k] = v
-		}
-		v, err := w.AddVar(s)
-		if err != nil {
-			return err
-		}
-		todo = append(todo, pending{v, data})
-		return nil
-	}
-	nd, ns, ng := len(r.Domains), len(r.Seasons), len(regimes.All)
-	// Binned relationships.
+	return nil
+}
+
+// binned declares the binned relationships: for each predictor and
+// response, the mean, standard deviation, standard error, effective sample
+// size, count and area of each (domain, season, regime, bin).
+func (nw *ncWriter) binned() error {
+	r, nd, ns, ng := nw.r, nw.nd, nw.ns, nw.ng
 	for _, p := range r.Predictors {
 		nb := len(p.Edges) - 1
 		for _, resp := range r.Responses {
@@ -298,7 +344,7 @@ func writeNC(path string, r *Results, meta Meta) error {
 				if bt.Predictor != p.Name || bt.Response != resp.Name {
 					continue
 				}
-				base := ((dIdx[bt.Domain]*ns+sIdx[bt.Season])*ng + regimeIndex(bt.Regime)) * nb
+				base := ((nw.dIdx[bt.Domain]*ns+nw.sIdx[bt.Season])*ng + regimeIndex(bt.Regime)) * nb
 				for b, st := range bt.Bins {
 					mean[base+b], std[base+b], se[base+b], neff[base+b] = st.Mean, st.Std, st.StdErr, st.NEff
 					area[base+b], cnt[base+b] = st.Area, float64(st.N)
@@ -320,92 +366,102 @@ func writeNC(path string, r *Results, meta Meta) error {
 				{"_" + vocab.Count, vocab.UnitOne, "number of cell-steps of " + what, cnt, cfwrite.Int32},
 				{"_area", vocab.UnitSquareMetre, "area times time steps of " + what, area, cfwrite.Float64},
 			} {
-				if err := add(cfwrite.VarSpec{Name: stem + v.suffix, Dims: dims, Type: v.typ, Units: v.units, LongName: v.long,
+				if err := nw.add(cfwrite.VarSpec{Name: stem + v.suffix, Dims: dims, Type: v.typ, Units: v.units, LongName: v.long,
 					Attributes: map[string]any{"comment": cm}}, v.data); err != nil {
 					return err
 				}
 			}
 		}
 	}
-	// Joint composites.
-	if len(r.Joint) > 0 {
-		j0 := r.Joint[0]
-		nr, ne := len(j0.RelEdges)-1, len(j0.EISEdge)-1
-		size := nd * ns * nr * ne
-		dims := []string{dimDomain, dimSeason, RelSST + "_bin", "eis_bin"}
-		freq, cnt := nanSlice(size), make([]float64, size)
-		means := map[string][]float64{}
-		for _, j := range r.Joint {
-			base := (dIdx[j.Domain]*ns + sIdx[j.Season]) * nr * ne
-			if means[j.Response] == nil {
-				means[j.Response] = nanSlice(size)
-			}
-			copy(means[j.Response][base:], j.Mean)
-			copy(freq[base:], j.Frequency)
-			for k, c := range j.Count {
-				cnt[base+k] = float64(c)
-			}
+	return nil
+}
+
+// joint declares the joint composites in bins of relative SST and EIS:
+// frequency, count and the mean of each response.
+func (nw *ncWriter) joint() error {
+	r, ns := nw.r, nw.ns
+	if len(r.Joint) == 0 {
+		return nil
+	}
+	j0 := r.Joint[0]
+	nr, ne := len(j0.RelEdges)-1, len(j0.EISEdge)-1
+	size := nw.nd * ns * nr * ne
+	dims := []string{dimDomain, dimSeason, RelSST + "_bin", "eis_bin"}
+	freq, cnt := nanSlice(size), make([]float64, size)
+	means := map[string][]float64{}
+	for _, j := range r.Joint {
+		base := (nw.dIdx[j.Domain]*ns + nw.sIdx[j.Season]) * nr * ne
+		if means[j.Response] == nil {
+			means[j.Response] = nanSlice(size)
 		}
-		if err := add(cfwrite.VarSpec{Name: "rel_sst_eis_frequency", Dims: dims, Units: "1",
-			LongName: "frequency of occurrence (share of area x time) in joint bins of relative SST and EIS"}, freq); err != nil {
-			return err
-		}
-		if err := add(cfwrite.VarSpec{Name: "rel_sst_eis_count", Dims: dims, Type: cfwrite.Int32, Units: "1",
-			LongName: "number of cell-steps in joint bins of relative SST and EIS"}, cnt); err != nil {
-			return err
-		}
-		for _, resp := range r.Responses {
-			if err := add(cfwrite.VarSpec{Name: resp.Name + "_vs_rel_sst_eis_mean", Dims: dims, Units: resp.Units,
-				LongName: "mean of " + resp.Name + " in joint bins of relative SST and EIS (area-weighted)"}, means[resp.Name]); err != nil {
-				return err
-			}
+		copy(means[j.Response][base:], j.Mean)
+		copy(freq[base:], j.Frequency)
+		for k, c := range j.Count {
+			cnt[base+k] = float64(c)
 		}
 	}
-	// Omega composites.
-	if len(r.Omega) > 0 {
-		no := len(r.Omega[0].Bins)
-		size := nd * ns * no
-		dims := []string{dimDomain, dimSeason, dimOmega}
-		freq, pdf, cnt := nanSlice(size), nanSlice(size), make([]float64, size)
-		means, stds := map[string][]float64{}, map[string][]float64{}
-		for _, o := range r.Omega {
-			base := (dIdx[o.Domain]*ns + sIdx[o.Season]) * no
-			for b, ob := range o.Bins {
-				freq[base+b], pdf[base+b], cnt[base+b] = ob.Frequency, ob.PDF, float64(ob.N)
-			}
-			for _, or := range o.Responses {
-				if means[or.Response] == nil {
-					means[or.Response], stds[or.Response] = nanSlice(size), nanSlice(size)
-				}
-				copy(means[or.Response][base:], or.Mean)
-				copy(stds[or.Response][base:], or.Std)
-			}
-		}
-		oc := map[string]any{"comment": "omega500 regimes after Bony et al. 2004 (Clim. Dyn. 22, 71-86): composites of the actual values (not anomalies) in 10 hPa/day bins"}
-		if err := add(cfwrite.VarSpec{Name: "omega_frequency", Dims: dims, Units: "1", LongName: "share of area x time of valid omega500 samples in the bin", Attributes: oc}, freq); err != nil {
-			return err
-		}
-		if err := add(cfwrite.VarSpec{Name: "omega_pdf", Dims: dims, Units: "d hPa-1", LongName: "probability density of omega500", Attributes: map[string]any{"comment": oc["comment"]}}, pdf); err != nil {
-			return err
-		}
-		if err := add(cfwrite.VarSpec{Name: "omega_count", Dims: dims, Type: cfwrite.Int32, Units: "1", LongName: "number of cell-steps in the omega500 bin"}, cnt); err != nil {
-			return err
-		}
-		for _, resp := range r.Responses {
-			if err := add(cfwrite.VarSpec{Name: resp.Name + "_vs_omega_mean", Dims: dims, Units: resp.Units, LongName: "mean of " + resp.Name + " in omega500 bins (area-weighted)", Attributes: map[string]any{"comment": oc["comment"]}}, means[resp.Name]); err != nil {
-				return err
-			}
-			if err := add(cfwrite.VarSpec{Name: resp.Name + "_vs_omega_std", Dims: dims, Units: resp.Units, LongName: "standard deviation of " + resp.Name + " in omega500 bins", Attributes: map[string]any{"comment": oc["comment"]}}, stds[resp.Name]); err != nil {
-				return err
-			}
-		}
+	if err := nw.add(cfwrite.VarSpec{Name: "rel_sst_eis_frequency", Dims: dims, Units: "1",
+		LongName: "frequency of occurrence (share of area x time) in joint bins of relative SST and EIS"}, freq); err != nil {
+		return err
 	}
-	for _, p := range todo {
-		if err := p.v.Write(p.data); err != nil {
+	if err := nw.add(cfwrite.VarSpec{Name: "rel_sst_eis_count", Dims: dims, Type: cfwrite.Int32, Units: "1",
+		LongName: "number of cell-steps in joint bins of relative SST and EIS"}, cnt); err != nil {
+		return err
+	}
+	for _, resp := range r.Responses {
+		if err := nw.add(cfwrite.VarSpec{Name: resp.Name + "_vs_rel_sst_eis_mean", Dims: dims, Units: resp.Units,
+			LongName: "mean of " + resp.Name + " in joint bins of relative SST and EIS (area-weighted)"}, means[resp.Name]); err != nil {
 			return err
 		}
 	}
-	return w.Close()
+	return nil
+}
+
+// omega declares the omega500 composites: frequency, density, count and
+// the mean and standard deviation of each response per omega500 bin.
+func (nw *ncWriter) omega() error {
+	r, ns := nw.r, nw.ns
+	if len(r.Omega) == 0 {
+		return nil
+	}
+	no := len(r.Omega[0].Bins)
+	size := nw.nd * ns * no
+	dims := []string{dimDomain, dimSeason, dimOmega}
+	freq, pdf, cnt := nanSlice(size), nanSlice(size), make([]float64, size)
+	means, stds := map[string][]float64{}, map[string][]float64{}
+	for _, o := range r.Omega {
+		base := (nw.dIdx[o.Domain]*ns + nw.sIdx[o.Season]) * no
+		for b, ob := range o.Bins {
+			freq[base+b], pdf[base+b], cnt[base+b] = ob.Frequency, ob.PDF, float64(ob.N)
+		}
+		for _, or := range o.Responses {
+			if means[or.Response] == nil {
+				means[or.Response], stds[or.Response] = nanSlice(size), nanSlice(size)
+			}
+			copy(means[or.Response][base:], or.Mean)
+			copy(stds[or.Response][base:], or.Std)
+		}
+	}
+	const comment = "omega500 regimes after Bony et al. 2004 (Clim. Dyn. 22, 71-86): composites of the actual values (not anomalies) in 10 hPa/day bins"
+	oc := func() map[string]any { return map[string]any{"comment": comment} }
+	if err := nw.add(cfwrite.VarSpec{Name: "omega_frequency", Dims: dims, Units: "1", LongName: "share of area x time of valid omega500 samples in the bin", Attributes: oc()}, freq); err != nil {
+		return err
+	}
+	if err := nw.add(cfwrite.VarSpec{Name: "omega_pdf", Dims: dims, Units: "d hPa-1", LongName: "probability density of omega500", Attributes: oc()}, pdf); err != nil {
+		return err
+	}
+	if err := nw.add(cfwrite.VarSpec{Name: "omega_count", Dims: dims, Type: cfwrite.Int32, Units: "1", LongName: "number of cell-steps in the omega500 bin"}, cnt); err != nil {
+		return err
+	}
+	for _, resp := range r.Responses {
+		if err := nw.add(cfwrite.VarSpec{Name: resp.Name + "_vs_omega_mean", Dims: dims, Units: resp.Units, LongName: "mean of " + resp.Name + " in omega500 bins (area-weighted)", Attributes: oc()}, means[resp.Name]); err != nil {
+			return err
+		}
+		if err := nw.add(cfwrite.VarSpec{Name: resp.Name + "_vs_omega_std", Dims: dims, Units: resp.Units, LongName: "standard deviation of " + resp.Name + " in omega500 bins", Attributes: oc()}, stds[resp.Name]); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 func predictorLongName(p string, m Mode) string {

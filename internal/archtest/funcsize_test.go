@@ -48,8 +48,6 @@ var exceptions = map[string]string{
 	"relations.Acc.addFlips":    "not split yet",
 	"relations.Config.Validate": "not split yet",
 	"relations.build":           "not split yet",
-	"relations.jsonDoc":         "not split yet",
-	"relations.writeNC":         "not split yet",
 }
 
 // funcStat is one function's size.
