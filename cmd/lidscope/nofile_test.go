@@ -13,9 +13,9 @@ import (
 	"lidscope/internal/testutil"
 )
 
-// TestRunManyFilesLowFileLimit: a record of 120 monthly files per role
-// (ten years of sst, air_temperature and low_cloud, split by month with
-// cdo splityearmon) runs with an open-file limit of 64 (ulimit -n 64), set
+// TestRunManyFilesLowFileLimit: a record of 48 monthly files per role
+// (four years of sst, air_temperature and low_cloud, split by month with
+// cdo splityearmon; 144 files, more than twice the limit) runs with an open-file limit of 64 (ulimit -n 64), set
 // with setrlimit in a child process: lidscope opens the files of a record
 // as it reads them, a bounded number at once. Before, each role's record
 // held every one of its files open from the start.
@@ -27,16 +27,17 @@ func TestRunManyFilesLowFileLimit(t *testing.T) {
 		}
 		out := filepath.Join(t.TempDir(), "results")
 		code, stdout, stderr := badRun(t, "--quiet", "--no-plots", "--out", out, study)
-		if code != 0 || !strings.Contains(stdout, "120 time steps") {
+		if code != 0 || !strings.Contains(stdout, "48 time steps") {
 			t.Fatalf("exit status %d\nstdout:\n%s\nstderr:\n%s", code, stdout, stderr)
 		}
 		return
 	}
+	t.Parallel() // here, not in the child, which sets environment variables
 	cdo := testutil.Tool(t, "cdo")
 	o := badOptions()
 	o.Resolution = 4
-	o.Years = 10
-	o.YearsPerFile = 10
+	o.Years = 4 // 48 monthly files per role, 144 in all, over the limit of 64
+	o.YearsPerFile = 4
 	d := filepath.Join(t.TempDir(), "world")
 	if _, err := fixtures.Generate(d, o); err != nil {
 		t.Fatal(err)
@@ -50,7 +51,7 @@ func TestRunManyFilesLowFileLimit(t *testing.T) {
 		if err := os.Remove(f); err != nil {
 			t.Fatal(err)
 		}
-		badFiles(t, d, sub, 120)
+		badFiles(t, d, sub, 48)
 	}
 	study := badStudy(t, d, nil)
 	cmd := exec.Command(os.Args[0], "-test.run=^TestRunManyFilesLowFileLimit$", "-test.count=1", "-test.v")
