@@ -1,7 +1,6 @@
-package analysis_test
+package analysis
 
 import (
-	"context"
 	"encoding/csv"
 	"encoding/json"
 	"os"
@@ -12,7 +11,6 @@ import (
 	"strings"
 	"testing"
 
-	"lidscope/analysis"
 	"lidscope/netcdf"
 	"lidscope/vocab"
 )
@@ -27,15 +25,13 @@ func TestEveryOutputNameIsInTheTable(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs the demo")
 	}
-	dir := t.TempDir()
-	rep, err := analysis.Demo(context.Background(), dir, analysis.DemoOptions{Options: analysis.Options{NoPlots: true}})
-	if err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
+	// The demo of the small world, shared with the truth tests: the same
+	// study, so the same outputs and names as the default demo.
+	dir, _ := sharedDemo(t)
 	// The user's own names (regions, patches, seasons, domains, datasets)
 	// may appear inside names; they come from the demo study.
 	extra := userNames(t, filepath.Join(dir, "results"))
-	_ = rep
 	bad := map[string][]string{} // name -> where
 	note := func(name, where string) {
 		if err := vocab.Check(name, extra...); err != nil {
@@ -43,7 +39,7 @@ func TestEveryOutputNameIsInTheTable(t *testing.T) {
 		}
 	}
 	var files []string
-	err = filepath.Walk(dir, func(p string, fi os.FileInfo, err error) error {
+	err := filepath.Walk(dir, func(p string, fi os.FileInfo, err error) error {
 		if err != nil {
 			return err
 		}

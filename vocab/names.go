@@ -198,7 +198,7 @@ var plain = strings.Fields(`
 	before after change given on vs c
 	grid ocean mask rule tropical detrended all
 	flips flip perturbation crossing metrics conventions absent
-	committed id manifest
+	committed id manifest extras
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
 	`)
 
