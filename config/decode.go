@@ -407,6 +407,9 @@ func (d *decoder) analysis(m map[string]any, r *Study) {
 	for _, b := range d.boxes(m, "analysis", "regions", "region") {
 		a.Regions = append(a.Regions, Region(b))
 	}
+	if _, ok := present(m, "domain"); ok {
+		a.Domain = d.domain(sub(m, "domain"))
+	}
 
 	g := sub(m, "grid")
 	a.Grid.Target = d.str(g, "analysis.grid", "target", "")
@@ -452,6 +455,29 @@ func (d *decoder) analysis(m map[string]any, r *Study) {
 }
 
 // namedBox is a decoded region or patch.
+// domain decodes analysis.domain: south and north (defaults −90, 90) and,
+// for a box, both west and east (neither: every longitude).
+func (d *decoder) domain(m map[string]any) *Region {
+	const p = "analysis.domain"
+	s, _ := d.num(m, p, "south", -90)
+	n, _ := d.num(m, p, "north", 90)
+	w, wSet := d.num(m, p, "west", -180)
+	e, eSet := d.num(m, p, "east", 180)
+	switch {
+	case s < -90 || s > 90 || n < -90 || n > 90:
+		d.fail(p, "south %v° and north %v° must be latitudes (−90…90)", s, n)
+	case s >= n:
+		d.fail(p, "south (%v°) must be less than north (%v°)", s, n)
+	case wSet != eSet:
+		d.fail(p, "give both west and east for a box, or neither for every longitude")
+	case w < -180 || w > 360 || e < -180 || e > 360:
+		d.fail(p, "west %v° and east %v° must be longitudes in −180…360", w, e)
+	case wSet && w == e:
+		d.fail(p, "west and east are both %v°: a domain needs a width (west > east crosses the 0°/180° meridian; leave both out for every longitude)", w)
+	}
+	return &Region{Name: "domain", South: s, North: n, West: w, East: e}
+}
+
 type namedBox struct {
 	Name                     string
 	South, North, West, East float64

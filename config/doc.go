@@ -212,6 +212,13 @@
 //     Longitudes in either convention (−180…180 or 0…360); west > east
 //     (after putting both in 0…360) crosses the 0° or 180° meridian. See
 //     [Region.Contains].
+//   - domain: {south, north} (a latitude band) or {south, north, west,
+//     east} (a box, longitudes as for regions), degrees; default: the
+//     whole grid. Per-column statistics (maps.nc, per-column summaries)
+//     are kept only for ocean columns inside it, so a run on a fine grid
+//     needs memory only for the columns it analyses; the tropical mean,
+//     the band series, regions and relationships do not depend on it.
+//     south defaults to −90, north to 90; west and east come together.
 //   - grid: the analysis grid when inputs come on different grids. target
 //     is "" (default: every input must share one grid), a role (that
 //     role's grid; every dataset must have that input), or a regular global

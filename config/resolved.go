@@ -89,6 +89,11 @@ func (r *Study) Resolved() string {
 		an["rule"], an["percentile"] = string(a.Rule), a.Percentile
 		delete(an, "threshold")
 	}
+	if dm := a.Domain; dm != nil {
+		// only when set, so that the resolved text (and hash) of a study
+		// without a domain is what it was
+		out["analysis"].(object)["domain"] = object{"south": dm.South, "north": dm.North, "west": dm.West, "east": dm.East}
+	}
 	var b strings.Builder
 	enc := json.NewEncoder(&b)
 	enc.SetEscapeHTML(false)

@@ -128,6 +128,7 @@ var schema = table(map[string]*key{
 	"datasets": {kind: kNames, elem: datasetKeys, what: "dataset"},
 	"analysis": table(map[string]*key{
 		"band":       table(map[string]*key{"south": number, "north": number}),
+		"domain":     table(map[string]*key{"south": number, "north": number, "west": number, "east": number}),
 		"threshold":  number,
 		"transition": number,
 		"rule":       str,

@@ -329,6 +329,11 @@ type Analysis struct {
 	CloudChoice string
 	// Regions are named longitude–latitude boxes for regional results.
 	Regions []Region
+	// Domain, when not nil, is the analysis domain (analysis.domain): a
+	// latitude band or a box outside which no per-column statistics are
+	// kept (maps are empty there). Nil: the whole grid. The tropical mean,
+	// the band series, regions and relationships do not depend on it.
+	Domain *Region
 	// Grid is the analysis grid when inputs come on different grids.
 	Grid Grid
 }

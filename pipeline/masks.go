@@ -38,6 +38,21 @@ func staticOcean(in *inputs, p *Plan) ([]bool, error) {
 	return ocean, nil
 }
 
+// analysedColumns are the grid cells that keep per-column statistics: the
+// cells of the static ocean mask (no other cell is ever in a regime) whose
+// centres lie inside the plan's analysis domain, in grid order.
+func analysedColumns(p *Plan, in *inputs, ocean []bool) []int32 {
+	g := in.grid
+	nlon := g.NLon()
+	cols := []int32{}
+	for i, o := range ocean {
+		if o && (p.Domain == nil || p.Domain.Contains(g.Lat[i/nlon], g.Lon[i%nlon])) {
+			cols = append(cols, int32(i))
+		}
+	}
+	return cols
+}
+
 // stepOcean marks the columns that are ocean at this step: ocean in the
 // static mask, SST present, and sea ice (when given) at most maxIce.
 func stepOcean(dst, ocean []bool, sst, seaIce []float32, maxIce float64) {

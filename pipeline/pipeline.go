@@ -87,7 +87,10 @@ type Plan struct {
 	// Regimes is the regime definition (band, rule, δ/h or percentile).
 	Regimes regimes.Definition
 	Regions []accumulate.Region
-	Grid    GridPlan
+	// Domain, when not nil, is the analysis domain: per-column statistics
+	// are kept only for the ocean columns whose centres lie inside it.
+	Domain *accumulate.Region
+	Grid   GridPlan
 	// Select keeps a time step (nil keeps all).
 	Select func(year, month int) bool
 	// Piece, unless whole, keeps only that contiguous piece of the

@@ -261,3 +261,64 @@ func TestRunOptionalInputs(t *testing.T) {
 		})
 	}
 }
+
+// TestRunDomainKeepsOnlyItsColumns: with an analysis domain (a box
+// 100°W…10°E, 0…20°N), the columns inside have the statistics
+// of the run without one, the others none; the band series and regions
+// do not change, and ShapeOf counts the analysed columns.
+func TestRunDomainKeepsOnlyItsColumns(t *testing.T) {
+	p := testPlan(t)
+	full, err := Run(context.Background(), p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.Domain = &accumulate.Region{Name: "domain", South: 0, North: 20, West: -100, East: 10}
+	dom, err := Run(context.Background(), p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// grid: lat −15, −5, 5, 15; lon −180, −90, 0, 90 (from 0, 90, 180, 270)
+	l := full.Acc.L
+	inside := func(i int) bool {
+		lat, lon := l.Lat[i/l.NLon], l.Lon[i%l.NLon]
+		return lat > 0 && (lon == 0 || lon == -90)
+	}
+	kept := 0
+	for i := range full.Acc.NCells() {
+		for q := range full.Acc.L.Quantities {
+			for _, r := range regimes.All {
+				a, b := dom.Acc.Moments(q, r, i), full.Acc.Moments(q, r, i)
+				if inside(i) && a != b {
+					t.Fatalf("cell %d (inside) quantity %d regime %v: %+v, without a domain %+v", i, q, r, a, b)
+				}
+				if !inside(i) && a.N != 0 {
+					t.Fatalf("cell %d is outside the domain but has %d values", i, a.N)
+				}
+			}
+		}
+		if inside(i) {
+			kept++
+			if dom.Acc.ValidSteps(i) != full.Acc.ValidSteps(i) || dom.Acc.ValidSteps(i) == 0 {
+				t.Fatalf("cell %d: %d valid steps, without a domain %d", i, dom.Acc.ValidSteps(i), full.Acc.ValidSteps(i))
+			}
+		}
+	}
+	if kept != 4 || dom.Acc.Index.Len() != 4 {
+		t.Errorf("%d columns inside, %d kept; want 4", kept, dom.Acc.Index.Len())
+	}
+	for k := range full.Acc.Series {
+		if full.Acc.Series[k].TropMean != dom.Acc.Series[k].TropMean || full.Acc.Series[k].AreaFraction != dom.Acc.Series[k].AreaFraction {
+			t.Fatalf("series step %d depends on the domain", k)
+		}
+	}
+	if full.Acc.Regions[0].Values[0][regimes.Convective] != dom.Acc.Regions[0].Values[0][regimes.Convective] {
+		t.Error("the region statistics depend on the domain")
+	}
+	sh, err := ShapeOf(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sh.Columns != 4 || sh.Cells != 16 {
+		t.Errorf("shape: %d columns of %d cells, want 4 of 16", sh.Columns, sh.Cells)
+	}
+}

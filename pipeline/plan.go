@@ -99,6 +99,9 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 	for _, rg := range r.Analysis.Regions {
 		p.Regions = append(p.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
 	}
+	if dm := r.Analysis.Domain; dm != nil {
+		p.Domain = &accumulate.Region{Name: dm.Name, South: dm.South, North: dm.North, West: dm.West, East: dm.East}
+	}
 	g := r.Analysis.Grid
 	p.Grid = GridPlan{Target: g.Target, MinCoverage: g.MinCoverage, MaskThreshold: g.MaskThreshold, Methods: map[cf.Role]regrid.Method{}}
 	for _, role := range cf.Roles() {

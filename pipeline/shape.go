@@ -10,7 +10,7 @@ type Shape struct {
 	NLat, NLon int
 	Cells      int // analysis grid cells
 	// Columns are the analysed columns, which keep per-column statistics:
-	// the ocean cells of the static mask.
+	// the ocean cells of the static mask inside the analysis domain.
 	Columns   int
 	BandCells int // cells with area inside the tropical band
 	Steps     int // time steps the run would take
@@ -36,11 +36,7 @@ func ShapeOf(p Plan) (Shape, error) {
 	if err != nil {
 		return Shape{}, err
 	}
-	for _, o := range ocean {
-		if o {
-			s.Columns++
-		}
-	}
+	s.Columns = len(analysedColumns(&p, in, ocean))
 	lb := make([][2]float64, g.NLat())
 	copy(lb, g.LatBounds)
 	for _, w := range p.Regimes.Band.Weights(lb, g.CellAreas()) {

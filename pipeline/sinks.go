@@ -19,17 +19,11 @@ type sinkSet struct {
 
 // newSinks builds the run's accumulator on the analysis grid and the plan's
 // sinks, the ones made from the layout (Plan.NewSinks) last. Per-column
-// statistics are kept for the cells of the static ocean mask only (no
-// other cell is ever in a regime).
+// statistics are kept for the analysed columns only (analysedColumns).
 func newSinks(p *Plan, in *inputs, area, bandW []float64, ocean []bool) (*sinkSet, error) {
 	g := in.grid
 	names, cloud := quantities(p, in)
-	cols := []int32{}
-	for i, o := range ocean {
-		if o {
-			cols = append(cols, int32(i))
-		}
-	}
+	cols := analysedColumns(p, in, ocean)
 	acc, err := accumulate.New(accumulate.Layout{NLat: g.NLat(), NLon: g.NLon(), Lat: g.Lat, Lon: g.Lon,
 		Area: area, BandWeight: bandW, Quantities: names, Cloud: cloud, Regions: p.Regions, Columns: cols})
 	if err != nil {
