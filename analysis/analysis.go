@@ -238,6 +238,7 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	// changed meanwhile.
 	watch := watchInputs(datasetPaths(d))
 	plan.BeforeRead = watch.hash
+	defer watch.close()
 	relCfg := r.RelationsFor(d)
 	// The relationship analysis relates cloud to EIS, LTS and relative
 	// SST: it needs both optional inputs.
@@ -278,7 +279,7 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	for _, n := range res.Notes {
 		log.Info("note", "dataset", d.Name, "text", n)
 	}
-	meta, err := metaFor(r, d, res, opt, start)
+	meta, err := metaFor(r, d, res, opt, start, watch)
 	if err != nil {
 		return nil, err
 	}
@@ -397,7 +398,7 @@ func estimateOutputs(p pipeline.Plan) int64 {
 // timeUnits is the time axis of the series outputs.
 const timeUnits = "days since 1850-01-01 00:00:00"
 
-func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Options, start time.Time) (output.Meta, error) {
+func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Options, start time.Time, watch *inputWatch) (output.Meta, error) {
 	m := output.Meta{
 		Dataset:            d.Name,
 		Title:              fmt.Sprintf("lidscope regime diagnostics: %s", d.Name),
@@ -450,7 +451,7 @@ func metaFor(r *config.Study, d *config.Dataset, res *pipeline.Result, opt Optio
 	if len(m.TimeBounds) != len(m.TimeValues) {
 		m.TimeBounds = nil
 	}
-	inputs, err := describeInputs(res.Paths)
+	inputs, err := describeInputs(res.Paths, watch)
 	if err != nil {
 		return m, err
 	}
@@ -476,7 +477,10 @@ func stepBounds(d calendar.Date, s cf.Step) (calendar.Date, calendar.Date, bool)
 	return d, d, false
 }
 
-func describeInputs(paths map[cf.Role][]string) ([]output.InputFile, error) {
+// describeInputs gives the size, modification time and SHA-256 of every
+// input now; the checksums computed during the run (watch, nil for none)
+// are used where they hold (see inputWatch).
+func describeInputs(paths map[cf.Role][]string, watch *inputWatch) ([]output.InputFile, error) {
 	var roles []string
 	for r := range paths {
 		roles = append(roles, string(r))
@@ -489,9 +493,11 @@ func describeInputs(paths map[cf.Role][]string) ([]output.InputFile, error) {
 			if err != nil {
 				return nil, err
 			}
-			sum, err := fileSHA256(p)
-			if err != nil {
-				return nil, err
+			sum, ok := watch.sum(p)
+			if !ok {
+				if sum, err = fileSHA256(p); err != nil {
+					return nil, err
+				}
 			}
 			out = append(out, output.InputFile{Role: r, Path: p, Size: fi.Size(), ModTime: fi.ModTime(), SHA256: sum})
 		}

@@ -16,8 +16,9 @@ import (
 
 // TestInputChangedWhileRead: an SST file changed while the run reads the
 // record (by its size, its modification time, or only its bytes with size
-// and time put back) fails the run naming the file, and nothing is
-// written. Before, the run finished and its provenance recorded the
+// and time put back, which moves its ctime; or replaced by a copy with
+// the same size and times, a new inode) fails the run naming the file,
+// and nothing is written. Before, the run finished and its provenance recorded the
 // checksum of the file as it was after the run.
 func TestInputChangedWhileRead(t *testing.T) {
 	cases := []struct {
@@ -55,6 +56,29 @@ func TestInputChangedWhileRead(t *testing.T) {
 				return
 			}
 			if err := os.Chtimes(p, fi.ModTime(), fi.ModTime()); err != nil {
+				t.Error(err)
+			}
+		}},
+		{"replaced by an identical copy", "it was replaced by another file", func(t *testing.T, p string) {
+			fi, err := os.Stat(p)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			b, err := os.ReadFile(p)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			tmp := p + ".new"
+			if err := os.WriteFile(tmp, b, 0o644); err != nil {
+				t.Error(err)
+				return
+			}
+			if err := os.Chtimes(tmp, fi.ModTime(), fi.ModTime()); err != nil {
+				t.Error(err)
+			}
+			if err := os.Rename(tmp, p); err != nil {
 				t.Error(err)
 			}
 		}},
@@ -103,9 +127,13 @@ func TestInputChangedWhileRead(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		w := watchInputs(datasetPaths(&r.Datasets[0]))
-		if err := w.hash(datasetPaths(&r.Datasets[0])); err != nil {
-			t.Fatal(err)
+		before := map[string]string{}
+		for _, ps := range datasetPaths(&r.Datasets[0]) {
+			for _, p := range ps {
+				if before[p], err = fileSHA256(p); err != nil {
+					t.Fatal(err)
+				}
+			}
 		}
 		reps, err := Run(context.Background(), r, nil, Options{OutDir: filepath.Join(t.TempDir(), "out"), NoPlots: true})
 		if err != nil {
@@ -115,8 +143,8 @@ func TestInputChangedWhileRead(t *testing.T) {
 			t.Fatal("no inputs in the provenance")
 		}
 		for _, in := range reps[0].Meta.Inputs {
-			if b, ok := w.before[in.Path]; !ok || b.sum != in.SHA256 || len(in.SHA256) != 64 {
-				t.Errorf("%s: provenance SHA-256 %q, before the run %q", in.Path, in.SHA256, b.sum)
+			if b, ok := before[in.Path]; !ok || b != in.SHA256 || len(in.SHA256) != 64 {
+				t.Errorf("%s: provenance SHA-256 %q, before the run %q", in.Path, in.SHA256, b)
 			}
 		}
 	})
