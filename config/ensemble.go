@@ -2,10 +2,14 @@ package config
 
 import (
 	"fmt"
+	"os"
+	"path/filepath"
 	"regexp"
 	"sort"
 	"strconv"
 	"strings"
+
+	"lidscope/cf"
 )
 
 // The ensemble block names many candidate datasets at once:
@@ -22,8 +26,20 @@ import (
 //	    beta-m2:
 //	      variables: {sst: ts}
 //
+// or, one dataset per folder:
+//
+//	ensemble:
+//	  names: "{model}-{member}"
+//	  folders: "runs/{model}/{member}"
+//	  dataset:
+//	    files: {sst: "{folder}/sst_*.nc"}
+//
 // Every combination of the lists under over gives one dataset, named by
-// names with each {placeholder} replaced; the dataset table is copied for
+// names with each {placeholder} replaced. With folders, every existing
+// folder matching its pattern (relative to the study's folder; each
+// {placeholder} stands for one folder name, as * does, and may be filled
+// by over first) gives one dataset, the placeholders taking the matched
+// folder names and {folder} the matched folder itself; the dataset table is copied for
 // it with the same replacement in every string. each holds per-dataset
 // overrides, keyed by expanded name, laid over the copy key by key. The
 // expanded datasets join those under datasets; a name given twice is a
@@ -31,29 +47,51 @@ import (
 // block it came from.
 
 // ensembleKeys are the keys of the ensemble block.
-var ensembleKeys = []string{"names", "over", "dataset", "each"}
+var ensembleKeys = []string{"names", "over", "folders", "dataset", "each"}
+
+// folderKey is the placeholder of the matched folder (ensemble.folders).
+const folderKey = "folder"
+
+// EnsembleMember is one dataset an ensemble block named: its name, the
+// folder it was matched from (ensemble.folders; "" for over alone, as
+// the study wrote it, relative to the study's folder when it was) and
+// the placeholder values that made it.
+type EnsembleMember struct {
+	Name   string
+	Folder string
+	Values map[string]string
+}
 
 var placeholderRE = regexp.MustCompile(`\{([^{}]*)\}`)
 
 // expandEnsemble replaces tree["ensemble"] by the datasets it names,
-// added to tree["datasets"], and indexes their lines in w.
-func expandEnsemble(tree map[string]any, w *where) []Problem {
+// added to tree["datasets"], and indexes their lines in w; dir is the
+// study's folder (for ensemble.folders). It returns the members in name
+// order.
+func expandEnsemble(tree map[string]any, w *where, dir string) ([]Problem, []EnsembleMember) {
 	raw, present := tree["ensemble"]
 	if !present {
-		return nil
+		return nil, nil
 	}
 	delete(tree, "ensemble")
 	if raw == nil {
-		return nil
+		return nil, nil
 	}
-	var probs []Problem
+	probs, members := expandEnsembleBlock(tree, raw, w, dir)
+	if len(probs) > 0 {
+		return probs, nil
+	}
+	return nil, members
+}
+
+func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (probs []Problem, members []EnsembleMember) {
 	fail := func(path, format string, a ...any) {
 		probs = append(probs, w.problem(path, fmt.Sprintf(format, a...)))
 	}
 	m, ok := raw.(map[string]any)
 	if !ok {
-		fail("ensemble", "must be a table with names, over and dataset, not %s", describe(raw))
-		return probs
+		fail("ensemble", "must be a table with names, over (or folders) and dataset, not %s", describe(raw))
+		return probs, nil
 	}
 	for _, k := range sortedKeys(m) {
 		if !contains(ensembleKeys, k) {
@@ -63,12 +101,17 @@ func expandEnsemble(tree map[string]any, w *where) []Problem {
 	names, ok := m["names"].(string)
 	if !ok || strings.TrimSpace(names) == "" {
 		fail("ensemble.names", "give the name of each dataset as a template with placeholders, e.g. names: \"{model}-{member}\"")
-		return probs
+		return probs, nil
+	}
+	folders, hasFolders := m["folders"].(string)
+	if f, present := m["folders"]; present && (!hasFolders || strings.TrimSpace(folders) == "") {
+		fail("ensemble.folders", "must be a folder pattern with placeholders, e.g. folders: \"runs/{model}/{member}\", not %s", describe(f))
+		return probs, nil
 	}
 	overRaw, ok := m["over"].(map[string]any)
-	if !ok || len(overRaw) == 0 {
-		fail("ensemble.over", "give each placeholder's values as a list, e.g. over: {model: [alpha, beta], member: [m1, m2]}")
-		return probs
+	if _, present := m["over"]; !hasFolders && (!ok || len(overRaw) == 0) || hasFolders && present && !ok {
+		fail("ensemble.over", "give each placeholder's values as a list, e.g. over: {model: [alpha, beta], member: [m1, m2]}, or the folders of the datasets, e.g. folders: \"runs/{model}/{member}\"")
+		return probs, nil
 	}
 	keys := sortedKeys(overRaw)
 	over := map[string][]string{}
@@ -93,35 +136,70 @@ func expandEnsemble(tree map[string]any, w *where) []Problem {
 			over[k] = append(over[k], s)
 		}
 	}
+	// the placeholders: those of over, then those folders adds
+	all := append([]string{}, keys...)
+	var globbed []string
+	if hasFolders {
+		for _, sm := range placeholderRE.FindAllStringSubmatch(folders, -1) {
+			if sm[1] == folderKey {
+				fail("ensemble.folders", "{%s} is the matched folder itself; name the folder levels otherwise, e.g. {model}", folderKey)
+				return probs, nil
+			}
+			if !contains(all, sm[1]) {
+				all = append(all, sm[1])
+				globbed = append(globbed, sm[1])
+			}
+		}
+		if len(globbed) == 0 {
+			fail("ensemble.folders", "%q has no {placeholder} of its own: give one per folder level that differs between the datasets, e.g. \"runs/{model}\"", folders)
+			return probs, nil
+		}
+	}
+	where := "ensemble.over"
+	if hasFolders {
+		where = "ensemble.over or ensemble.folders"
+	}
 	tmpl, ok := m["dataset"].(map[string]any)
 	if !ok {
-		fail("ensemble.dataset", "give the dataset table every expanded dataset is made from (files, variables, ...), with placeholders such as {%s}", keys[0])
-		return probs
+		fail("ensemble.dataset", "give the dataset table every expanded dataset is made from (files, variables, ...), with placeholders such as {%s}", all[0])
+		return probs, nil
 	}
-	// Every placeholder must be one of over; names must use all of them,
-	// or two combinations would get the same name.
+	// Every placeholder must be one of over (or folders); names must use
+	// all of them, or two combinations would get the same name.
 	check := func(path, s string) {
 		for _, sm := range placeholderRE.FindAllStringSubmatch(s, -1) {
-			if _, ok := overRaw[sm[1]]; !ok {
-				fail(path, "placeholder {%s} is not one of ensemble.over (%s); %s", sm[1], strings.Join(keys, ", "), suggest(sm[1], keys))
+			if hasFolders && sm[1] == folderKey && path != "ensemble.names" {
+				continue
+			}
+			if !contains(all, sm[1]) {
+				fail(path, "placeholder {%s} is not one of %s (%s); %s", sm[1], where, strings.Join(all, ", "), suggest(sm[1], all))
 			}
 		}
 	}
 	check("ensemble.names", names)
-	for _, k := range keys {
+	for _, k := range all {
 		if !strings.Contains(names, "{"+k+"}") {
 			fail("ensemble.names", "%q does not use {%s}, so datasets that differ only in %s would share a name; put {%s} in it", names, k, k, k)
 		}
 	}
 	walkStrings(tmpl, "ensemble.dataset", check)
 	if len(probs) > 0 || len(over) != len(keys) {
-		return probs
+		return probs, nil
+	}
+	combos := combinations(keys, over)
+	var from []string // the matched folder of each combination (folders)
+	if hasFolders {
+		var ps []Problem
+		combos, from, ps = matchFolders(dir, folders, combos, w)
+		if len(ps) > 0 {
+			return append(probs, ps...), nil
+		}
 	}
 
 	sets, _ := tree["datasets"].(map[string]any)
 	if sets == nil {
 		if _, isList := tree["datasets"].([]any); isList {
-			return probs // checkKeys explains the table form
+			return probs, nil // checkKeys explains the table form
 		}
 		sets = map[string]any{}
 		tree["datasets"] = sets
@@ -130,15 +208,27 @@ func expandEnsemble(tree map[string]any, w *where) []Problem {
 	if e, present := m["each"]; present && e != nil && each == nil {
 		fail("ensemble.each", "must be a table keyed by expanded dataset name, not %s", describe(e))
 	}
-	made := map[string]bool{}
+	made := map[string]string{} // name → the folder (or values) that made it
 	var order []string
-	for _, vals := range combinations(keys, over) {
+	for i, vals := range combos {
 		name := fill(names, vals)
-		if made[name] {
-			continue // cannot happen: names uses every placeholder
+		what := describeValues(keys, vals)
+		if from != nil {
+			what = "folder " + from[i]
+			vals = withFolder(vals, from[i])
 		}
-		made[name] = true
+		if first, dup := made[name]; dup {
+			// names uses every placeholder, but values can run together
+			// ("a"+"bc" and "ab"+"c")
+			fail("ensemble.names", "%s and %s both give the dataset name %q; separate the placeholders in names (e.g. with -)", first, what, name)
+			continue
+		}
+		made[name] = what
 		order = append(order, name)
+		members = append(members, EnsembleMember{Name: name, Values: vals})
+		if from != nil {
+			members[len(members)-1].Folder = from[i]
+		}
 		if _, clash := sets[name]; clash {
 			fail(join("datasets", name), "dataset %q is also named by the ensemble (ensemble.names %q); rename one, or give its changes under ensemble.each.%s", name, names, name)
 			continue
@@ -155,11 +245,126 @@ func expandEnsemble(tree map[string]any, w *where) []Problem {
 		w.lines.copyPrefix("ensemble.dataset", join("datasets", name))
 	}
 	for _, n := range sortedKeys(each) {
-		if !made[n] {
+		if _, ok := made[n]; !ok {
 			fail(join("ensemble.each", n), "%q is not one of the ensemble's datasets; %s", n, suggest(n, order))
 		}
 	}
-	return probs
+	sort.Slice(members, func(i, j int) bool { return members[i].Name < members[j].Name })
+	return probs, members
+}
+
+func describeValues(keys []string, vals map[string]string) string {
+	var parts []string
+	for _, k := range keys {
+		parts = append(parts, k+"="+vals[k])
+	}
+	return strings.Join(parts, ", ")
+}
+
+func withFolder(vals map[string]string, folder string) map[string]string {
+	out := make(map[string]string, len(vals)+1)
+	for k, v := range vals {
+		out[k] = v
+	}
+	out[folderKey] = folder
+	return out
+}
+
+// matchFolders expands ensemble.folders: for each combination of the
+// values of over, the pattern with them filled in, whose remaining
+// {placeholders} each match one folder name (as * does), is matched
+// against the folders under dir (a relative pattern is relative to the
+// study's folder). It returns one combination per matched folder, with the
+// matched names added, and the folders as the pattern spells them (with
+// dir's part left off a relative pattern), in the order of the
+// combinations and of the matched paths. A pattern matching no folder at
+// all is a problem at ensemble.folders.
+func matchFolders(dir, pattern string, combos []map[string]string, w *where) ([]map[string]string, []string, []Problem) {
+	var out []map[string]string
+	var from []string
+	var probs []Problem
+	for _, c := range combos {
+		pat := filepath.ToSlash(filepath.Clean(fill(pattern, c)))
+		// a regular expression capturing each placeholder, the rest of the
+		// pattern as glob syntax (* and ? within one folder name)
+		var re strings.Builder
+		re.WriteString("^")
+		var order []string
+		rest := pat
+		for rest != "" {
+			loc := placeholderRE.FindStringSubmatchIndex(rest)
+			lit := rest
+			if loc != nil {
+				lit = rest[:loc[0]]
+			}
+			for _, r := range lit {
+				switch r {
+				case '*':
+					re.WriteString("[^/]*")
+				case '?':
+					re.WriteString("[^/]")
+				default:
+					re.WriteString(regexp.QuoteMeta(string(r)))
+				}
+			}
+			if loc == nil {
+				break
+			}
+			re.WriteString("([^/]+)")
+			order = append(order, rest[loc[2]:loc[3]])
+			rest = rest[loc[1]:]
+		}
+		re.WriteString("$")
+		rx, err := regexp.Compile(re.String())
+		glob := placeholderRE.ReplaceAllString(pat, "*")
+		full := filepath.FromSlash(glob)
+		if !filepath.IsAbs(full) {
+			full = filepath.Join(dir, full)
+		}
+		var matches []string
+		if err == nil {
+			matches, err = filepath.Glob(full)
+		}
+		if err != nil {
+			probs = append(probs, w.problem("ensemble.folders", fmt.Sprintf("%q is not a valid folder pattern (%v)", pattern, err)))
+			return nil, nil, probs
+		}
+		for _, mt := range matches {
+			if st, err := os.Stat(mt); err != nil || !st.IsDir() {
+				continue
+			}
+			rel := mt
+			if !filepath.IsAbs(filepath.FromSlash(pat)) {
+				if r, err := filepath.Rel(dir, mt); err == nil {
+					rel = r
+				}
+			}
+			rel = filepath.ToSlash(rel)
+			sm := rx.FindStringSubmatch(rel)
+			if sm == nil {
+				continue
+			}
+			vals := make(map[string]string, len(c)+len(order))
+			for k, v := range c {
+				vals[k] = v
+			}
+			ok := true
+			for i, k := range order {
+				if v, seen := vals[k]; seen && v != sm[i+1] {
+					ok = false // a placeholder used twice, matched differently
+				}
+				vals[k] = sm[i+1]
+			}
+			if ok {
+				out = append(out, vals)
+				from = append(from, rel)
+			}
+		}
+	}
+	if len(out) == 0 {
+		probs = append(probs, w.problem("ensemble.folders", fmt.Sprintf("%q matches no folder (looked in %s; each {placeholder} stands for one folder name): check the pattern, or give the values under over", pattern, cf.QuotePath(dir))))
+	}
+	return out, from, probs
 }
 
 // combinations lists every assignment of values to keys, the last key

@@ -101,7 +101,8 @@ func load(path, dir, format string, src []byte, opt LoadOptions) (r *Study, err 
 	}
 	r = &Study{Path: path, Dir: dir, Format: format, Source: string(src), shown: map[string]string{}}
 	w := &where{file: path, lines: indexLines(format, src), origins: map[string]string{}}
-	ensProbs := expandEnsemble(tree, w)
+	ensProbs, members := expandEnsemble(tree, w, dir)
+	r.Ensemble = members
 	applied, probs := applyOverrides(tree, opt, path, w.origins)
 	probs = append(ensProbs, probs...)
 	for _, o := range applied {

@@ -30,6 +30,10 @@ type Study struct {
 	Source string
 	// Datasets are the datasets of the study, in file order (at least one).
 	Datasets []Dataset
+	// Ensemble lists the datasets the study's ensemble block named, in
+	// name order, with the folder each was matched from (none without
+	// one).
+	Ensemble []EnsembleMember
 	// Analysis holds the regime and grid settings shared by all datasets.
 	Analysis Analysis
 	// Output says where results go.

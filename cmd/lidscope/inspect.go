@@ -4,11 +4,13 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"path/filepath"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"lidscope/cf"
+	"lidscope/config"
 	"lidscope/pipeline"
 )
 
@@ -25,18 +27,26 @@ type inspectOptions struct {
 func newInspectCmd(e *env) *cobra.Command {
 	var o inspectOptions
 	cmd := &cobra.Command{
-		Use:   "inspect FILE...",
+		Use:   "inspect (FILE... | STUDY)",
 		Short: "report what lidscope recognises in NetCDF files, and every problem",
 		Long: `Reports, for each NetCDF file, which variables lidscope recognises for which role,
 how they will be decoded (units conversion, packing, fill values, grid, levels, time),
 and every problem found; with several files, whether their grids match. Exits with
-status 1 when a file cannot be used.`,
+status 1 when a file cannot be used.
+
+Given a study (.yaml, .yml, .toml or .json), lists its datasets as run would take them,
+an ensemble block expanded (each dataset with the folder or values it came from), and
+under each dataset the files of each role, each marked usable or with its problems.`,
 		Example: `  lidscope inspect obs/sst/*.nc obs/air_temperature/*.nc obs/low_cloud/*.nc obs/land_area_fraction.nc
-  lidscope inspect obs/sst/*.nc --json`,
+  lidscope inspect obs/sst/*.nc --json
+  lidscope inspect obs/study.yaml`,
 		Args:              minArgs(1, "give at least one file"),
 		ValidArgsFunction: fileArgs(netcdfExts...),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Files = args
+			if len(args) == 1 && isStudyFile(args[0]) {
+				return runInspectStudy(o, e.stdout)
+			}
 			return runInspect(o, e.stdout)
 		},
 	}
@@ -133,4 +143,101 @@ func writeReport(w io.Writer, r *cf.FileReport) {
 	for _, p := range r.Problems {
 		fmt.Fprintf(w, "  PROBLEM: %s\n", p)
 	}
+}
+
+// isStudyFile reports whether path names a study (by its extension).
+func isStudyFile(path string) bool {
+	switch strings.ToLower(filepath.Ext(path)) {
+	case ".yaml", ".yml", ".toml", ".json":
+		return true
+	}
+	return false
+}
+
+// inspectDataset is one dataset of `inspect STUDY`.
+type inspectDataset struct {
+	Name string `json:"name"`
+	// Folder and Values say where an ensemble's dataset came from.
+	Folder string                      `json:"folder,omitempty"`
+	Values map[string]string           `json:"values,omitempty"`
+	Files  map[string][]*cf.FileReport `json:"files"`
+}
+
+// runInspectStudy lists the study's datasets (the ensemble expanded) and
+// checks every file of each; exit status 1 when one cannot be used.
+func runInspectStudy(o inspectOptions, w io.Writer) error {
+	r, err := config.Load(o.Files[0], config.LoadOptions{})
+	if err != nil {
+		return err
+	}
+	member := map[string]config.EnsembleMember{}
+	for _, m := range r.Ensemble {
+		member[m.Name] = m
+	}
+	ok := true
+	seen := map[string]*cf.FileReport{}
+	var sets []inspectDataset
+	for _, d := range r.Datasets {
+		ds := inspectDataset{Name: d.Name, Files: map[string][]*cf.FileReport{}}
+		if m, in := member[d.Name]; in {
+			ds.Folder, ds.Values = m.Folder, m.Values
+		}
+		for _, role := range d.Roles() {
+			for _, p := range d.Inputs[role] {
+				rep, done := seen[p]
+				if !done {
+					rep = cf.InspectWith(p, cf.InspectOptions{MemoryBudget: int64(o.MemoryBudget)})
+					seen[p] = rep
+				}
+				ok = ok && rep.Usable
+				ds.Files[string(role)] = append(ds.Files[string(role)], rep)
+			}
+		}
+		sets = append(sets, ds)
+	}
+	if o.JSON {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(struct {
+			Study    string           `json:"study"`
+			Datasets []inspectDataset `json:"datasets"`
+		}{r.Path, sets}); err != nil {
+			return err
+		}
+	} else {
+		fmt.Fprintf(w, "study %s: %d dataset(s)\n", cf.QuotePath(r.Path), len(r.Datasets))
+		writeEnsemble(w, r, "")
+		for i, ds := range sets {
+			from := ""
+			if ds.Folder != "" {
+				from = " (ensemble, folder " + ds.Folder + ")"
+			} else if ds.Values != nil {
+				from = " (ensemble)"
+			}
+			fmt.Fprintf(w, "\ndataset %s%s\n", ds.Name, from)
+			for _, role := range r.Datasets[i].Roles() {
+				reps := ds.Files[string(role)]
+				fmt.Fprintf(w, "  %s: %d file(s)\n", role, len(reps))
+				for _, rep := range reps {
+					status := "usable"
+					if !rep.Usable {
+						status = "NOT USABLE"
+					}
+					fmt.Fprintf(w, "    %s  [%s]\n", cf.QuotePath(rep.Path), status)
+					for _, p := range rep.Problems {
+						fmt.Fprintf(w, "      PROBLEM: %s\n", p)
+					}
+					for _, f := range rep.Fields {
+						for _, p := range f.Problems {
+							fmt.Fprintf(w, "      PROBLEM (%s): %s\n", f.Var, p)
+						}
+					}
+				}
+			}
+		}
+	}
+	if !ok {
+		return errFailed
+	}
+	return nil
 }

@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"sort"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -170,7 +171,44 @@ func runStudyCheck(o studyCheckOptions, w io.Writer) error {
 		fmt.Fprintf(w, "# %s = %s (%s)\n", ov.Key, ov.Value, ov.Origin)
 	}
 	fmt.Fprintf(w, "# sha256 %s\n", r.Hash())
+	writeEnsemble(w, r, "# ")
 	writeMemoryEstimates(w, r)
 	_, err = io.WriteString(w, r.Resolved())
 	return err
+}
+
+// writeEnsemble lists the datasets of the study's ensemble block, one a
+// line after prefix: the name and the folder it was matched from
+// (ensemble.folders) or the values that made it (ensemble.over).
+func writeEnsemble(w io.Writer, r *config.Study, prefix string) {
+	if len(r.Ensemble) == 0 {
+		return
+	}
+	wd := 0
+	for _, m := range r.Ensemble {
+		wd = max(wd, len(m.Name))
+	}
+	fmt.Fprintf(w, "%sensemble: %d datasets\n", prefix, len(r.Ensemble))
+	for _, m := range r.Ensemble {
+		from := m.Folder
+		if from != "" {
+			from = "folder " + from
+		} else {
+			var kv []string
+			for _, k := range sortedValueKeys(m.Values) {
+				kv = append(kv, k+"="+m.Values[k])
+			}
+			from = strings.Join(kv, ", ")
+		}
+		fmt.Fprintf(w, "%s  %-*s  %s\n", prefix, wd, m.Name, from)
+	}
+}
+
+func sortedValueKeys(m map[string]string) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
 }
