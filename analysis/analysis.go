@@ -158,7 +158,11 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 		return Report{}, err
 	}
 	if !opt.Piece.Whole() && !opt.Force {
-		if meta, ok := donePiece(out, r, plan, opt.Piece); ok {
+		base := ""
+		if opt.Climatology != nil {
+			base = opt.Climatology.Fingerprint()
+		}
+		if meta, ok := donePiece(out, r, plan, opt.Piece, base); ok {
 			return Report{Dataset: d.Name, OutDir: out, Meta: meta,
 				Skipped: fmt.Sprintf("piece %s of dataset %s is already complete in %s (same study and unchanged inputs); skipped", opt.Piece, d.Name, out)}, nil
 		}
@@ -290,6 +294,9 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 	meta.Absent = plan.Lacks()
 	if !opt.Piece.Whole() {
 		meta.Piece = opt.Piece.String()
+		if opt.Climatology != nil && rel != nil {
+			meta.AnomalyBase = opt.Climatology.Fingerprint()
+		}
 	}
 	meta.Batch = opt.Batch
 	var relRes *relations.Results

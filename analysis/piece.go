@@ -15,15 +15,18 @@ import (
 // hash) with unchanged inputs: every file the earlier run read data from,
 // and every file the study listed for the dataset then, has the size and
 // modification time it had then, and the study lists the same files now
-// (a file added to or removed from a record moves the pieces' steps).
-// Anything unreadable or different means "not done".
-func donePiece(out string, r *config.Study, plan pipeline.Plan, p pipeline.Piece) (output.Meta, bool) {
+// (a file added to or removed from a record moves the pieces' steps); in
+// anomaly mode its anomalies were taken against the climatology whose
+// fingerprint is base (Options.Climatology; "" when none is given, and
+// then the earlier piece had none given either). Anything unreadable or different means
+// "not done".
+func donePiece(out string, r *config.Study, plan pipeline.Plan, p pipeline.Piece, base string) (output.Meta, bool) {
 	s, err := loadState(out, false)
 	if err != nil {
 		return output.Meta{}, false
 	}
 	m := s.meta
-	if m.Piece != p.String() || m.StudyHash != r.Hash() || m.Dataset != plan.Dataset || len(m.Listed) == 0 {
+	if m.Piece != p.String() || m.StudyHash != r.Hash() || m.Dataset != plan.Dataset || len(m.Listed) == 0 || m.AnomalyBase != base {
 		return m, false
 	}
 	unchanged := func(f output.InputFile) bool {

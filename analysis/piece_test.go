@@ -122,7 +122,7 @@ func TestPieceAlreadyDoneIsSkipped(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m, ok := donePiece(out, r2, mustPlan(t, r2), opt.Piece); ok {
+	if m, ok := donePiece(out, r2, mustPlan(t, r2), opt.Piece, ""); ok {
 		t.Errorf("a piece of another study counts as done: %+v", m.StudyHash)
 	}
 	// Another piece into the folder is not skipped (refused: results there).
@@ -209,6 +209,26 @@ func TestAnomalyPiecesMergeByTwoStages(t *testing.T) {
 			for _, x := range d {
 				t.Errorf("anomaly pieces by two stages differ from the single run: %s", x)
 			}
+			// A stage-2 piece already done is skipped against the same
+			// climatology only: against another one (piece 1's own), or
+			// none, its anomalies would differ.
+			own, err := ReadClimatology(clims[0])
+			if err != nil {
+				t.Fatal(err)
+			}
+			p1 := pipeline.Piece{K: 1, N: n}
+			for _, c := range []struct {
+				what string
+				base string
+				done bool
+			}{{"the same climatology", clim.Fingerprint(), true}, {"piece 1's own climatology", own.Fingerprint(), false}, {"no climatology given", "", false}} {
+				if _, ok := donePiece(dirs[0], r, mustPlan(t, r), p1, c.base); ok != c.done {
+					t.Errorf("piece 1 done against %s: %v, want %v", c.what, ok, c.done)
+				}
+			}
+			if again, err := Run(context.Background(), r, nil, Options{OutDir: dirs[0], NoPlots: true, Piece: p1, Climatology: clim}); err != nil || again[0].Skipped == "" {
+				t.Errorf("piece 1 again against the same climatology: %v, not skipped", err)
+			}
 		})
 	}
 }
@@ -270,13 +290,13 @@ func TestPieceReadsOnlyItsFiles(t *testing.T) {
 	if err := os.WriteFile(extra, b, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); ok {
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece, ""); ok {
 		t.Error("a file added to the record went unseen by the skip")
 	}
 	if err := os.Remove(extra); err != nil {
 		t.Fatal(err)
 	}
-	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); !ok {
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece, ""); !ok {
 		t.Fatal("control: with the file removed again the piece is not done")
 	}
 	// the other year's SST file touched: redone
@@ -284,7 +304,7 @@ func TestPieceReadsOnlyItsFiles(t *testing.T) {
 	if err := os.Chtimes(sst[1], later, later); err != nil {
 		t.Fatal(err)
 	}
-	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece); ok {
+	if _, ok := donePiece(out, load(), mustPlan(t, r), opt.Piece, ""); ok {
 		t.Error("a change to a file outside the piece went unseen by the skip")
 	}
 	// a file outside the piece changed while the piece runs: its time

@@ -67,8 +67,8 @@ var placeholderRE = regexp.MustCompile(`\{([^{}]*)\}`)
 // expandEnsemble replaces tree["ensemble"] by the datasets it names,
 // added to tree["datasets"], and indexes their lines in w; dir is the
 // study's folder (for ensemble.folders). It returns the members in name
-// order.
-func expandEnsemble(tree map[string]any, w *where, dir string) ([]Problem, []EnsembleMember) {
+// order (none when there are problems).
+func expandEnsemble(tree map[string]any, w *where, dir string) (probs []Problem, members []EnsembleMember) {
 	raw, present := tree["ensemble"]
 	if !present {
 		return nil, nil
@@ -77,14 +77,6 @@ func expandEnsemble(tree map[string]any, w *where, dir string) ([]Problem, []Ens
 	if raw == nil {
 		return nil, nil
 	}
-	probs, members := expandEnsembleBlock(tree, raw, w, dir)
-	if len(probs) > 0 {
-		return probs, nil
-	}
-	return nil, members
-}
-
-func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (probs []Problem, members []EnsembleMember) {
 	fail := func(path, format string, a ...any) {
 		probs = append(probs, w.problem(path, fmt.Sprintf(format, a...)))
 	}
@@ -113,6 +105,38 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 		fail("ensemble.over", "give each placeholder's values as a list, e.g. over: {model: [alpha, beta], member: [m1, m2]}, or the folders of the datasets, e.g. folders: \"runs/{model}/{member}\"")
 		return probs, nil
 	}
+	keys, over := readOver(overRaw, fail)
+	all, ok := ensemblePlaceholders(keys, folders, hasFolders, fail)
+	if !ok {
+		return probs, nil
+	}
+	tmpl, ok := m["dataset"].(map[string]any)
+	if !ok {
+		fail("ensemble.dataset", "give the dataset table every expanded dataset is made from (files, variables, ...), with placeholders such as {%s}", all[0])
+		return probs, nil
+	}
+	checkPlaceholders(names, tmpl, all, hasFolders, fail)
+	if len(probs) > 0 || len(over) != len(keys) {
+		return probs, nil
+	}
+	combos := combinations(keys, over)
+	var from []string // the matched folder of each combination (folders)
+	if hasFolders {
+		var ps []Problem
+		combos, from, ps = matchFolders(dir, folders, combos, w)
+		if len(ps) > 0 {
+			return append(probs, ps...), nil
+		}
+	}
+	members = addMembers(tree, m, names, keys, tmpl, combos, from, w, fail)
+	if len(probs) > 0 {
+		return probs, nil
+	}
+	return nil, members
+}
+
+// readOver reads ensemble.over: each placeholder's list of values.
+func readOver(overRaw map[string]any, fail func(path, format string, a ...any)) ([]string, map[string][]string) {
 	keys := sortedKeys(overRaw)
 	over := map[string][]string{}
 	for _, k := range keys {
@@ -136,36 +160,42 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 			over[k] = append(over[k], s)
 		}
 	}
-	// the placeholders: those of over, then those folders adds
+	return keys, over
+}
+
+// ensemblePlaceholders lists the placeholders: those of over, then those
+// ensemble.folders adds (it must add one; {folder} is reserved).
+func ensemblePlaceholders(keys []string, folders string, hasFolders bool, fail func(path, format string, a ...any)) ([]string, bool) {
 	all := append([]string{}, keys...)
-	var globbed []string
-	if hasFolders {
-		for _, sm := range placeholderRE.FindAllStringSubmatch(folders, -1) {
-			if sm[1] == folderKey {
-				fail("ensemble.folders", "{%s} is the matched folder itself; name the folder levels otherwise, e.g. {model}", folderKey)
-				return probs, nil
-			}
-			if !contains(all, sm[1]) {
-				all = append(all, sm[1])
-				globbed = append(globbed, sm[1])
-			}
+	if !hasFolders {
+		return all, true
+	}
+	own := 0
+	for _, sm := range placeholderRE.FindAllStringSubmatch(folders, -1) {
+		if sm[1] == folderKey {
+			fail("ensemble.folders", "{%s} is the matched folder itself; name the folder levels otherwise, e.g. {model}", folderKey)
+			return nil, false
 		}
-		if len(globbed) == 0 {
-			fail("ensemble.folders", "%q has no {placeholder} of its own: give one per folder level that differs between the datasets, e.g. \"runs/{model}\"", folders)
-			return probs, nil
+		if !contains(all, sm[1]) {
+			all = append(all, sm[1])
+			own++
 		}
 	}
+	if own == 0 {
+		fail("ensemble.folders", "%q has no {placeholder} of its own: give one per folder level that differs between the datasets, e.g. \"runs/{model}\"", folders)
+		return nil, false
+	}
+	return all, true
+}
+
+// checkPlaceholders: every placeholder of names and of the template must
+// be one of all ({folder} too in the template, with folders); names must
+// use all of them, or two combinations would get the same name.
+func checkPlaceholders(names string, tmpl map[string]any, all []string, hasFolders bool, fail func(path, format string, a ...any)) {
 	where := "ensemble.over"
 	if hasFolders {
 		where = "ensemble.over or ensemble.folders"
 	}
-	tmpl, ok := m["dataset"].(map[string]any)
-	if !ok {
-		fail("ensemble.dataset", "give the dataset table every expanded dataset is made from (files, variables, ...), with placeholders such as {%s}", all[0])
-		return probs, nil
-	}
-	// Every placeholder must be one of over (or folders); names must use
-	// all of them, or two combinations would get the same name.
 	check := func(path, s string) {
 		for _, sm := range placeholderRE.FindAllStringSubmatch(s, -1) {
 			if hasFolders && sm[1] == folderKey && path != "ensemble.names" {
@@ -183,23 +213,16 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 		}
 	}
 	walkStrings(tmpl, "ensemble.dataset", check)
-	if len(probs) > 0 || len(over) != len(keys) {
-		return probs, nil
-	}
-	combos := combinations(keys, over)
-	var from []string // the matched folder of each combination (folders)
-	if hasFolders {
-		var ps []Problem
-		combos, from, ps = matchFolders(dir, folders, combos, w)
-		if len(ps) > 0 {
-			return append(probs, ps...), nil
-		}
-	}
+}
 
+// addMembers adds a dataset per combination (with from, the folder each
+// was matched from) to tree["datasets"], ensemble.each laid over it, and
+// returns the members in name order.
+func addMembers(tree, m map[string]any, names string, keys []string, tmpl map[string]any, combos []map[string]string, from []string, w *where, fail func(path, format string, a ...any)) []EnsembleMember {
 	sets, _ := tree["datasets"].(map[string]any)
 	if sets == nil {
 		if _, isList := tree["datasets"].([]any); isList {
-			return probs, nil // checkKeys explains the table form
+			return nil // checkKeys explains the table form
 		}
 		sets = map[string]any{}
 		tree["datasets"] = sets
@@ -210,6 +233,7 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 	}
 	made := map[string]string{} // name → the folder (or values) that made it
 	var order []string
+	var members []EnsembleMember
 	for i, vals := range combos {
 		name := fill(names, vals)
 		what := describeValues(keys, vals)
@@ -225,10 +249,11 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 		}
 		made[name] = what
 		order = append(order, name)
-		members = append(members, EnsembleMember{Name: name, Values: vals})
+		mb := EnsembleMember{Name: name, Values: vals}
 		if from != nil {
-			members[len(members)-1].Folder = from[i]
+			mb.Folder = from[i]
 		}
+		members = append(members, mb)
 		if _, clash := sets[name]; clash {
 			fail(join("datasets", name), "dataset %q is also named by the ensemble (ensemble.names %q); rename one, or give its changes under ensemble.each.%s", name, names, name)
 			continue
@@ -250,7 +275,7 @@ func expandEnsembleBlock(tree map[string]any, raw any, w *where, dir string) (pr
 		}
 	}
 	sort.Slice(members, func(i, j int) bool { return members[i].Name < members[j].Name })
-	return probs, members
+	return members
 }
 
 func describeValues(keys []string, vals map[string]string) string {

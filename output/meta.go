@@ -61,6 +61,11 @@ type Meta struct {
 	// Piece is "K/N" for a run over the K-th of N pieces of the record
 	// ("" for a whole record or a merge).
 	Piece string
+	// AnomalyBase is the fingerprint (relations.Climatology.Fingerprint)
+	// of the climatology a piece in anomaly mode took its anomalies
+	// against ("" otherwise): a piece already done is skipped only when
+	// it was made against the same climatology.
+	AnomalyBase string
 	// Batch describes the batch job that ran it (e.g. "slurm job 123,
 	// array task 4"), one line each; empty outside a batch scheduler.
 	Batch []string

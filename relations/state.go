@@ -129,6 +129,11 @@ func (c *Climatology) identity() climIdentity {
 	return climIdentity{SHA256: hex.EncodeToString(h.Sum(nil)), Steps: c.steps, First: c.first, Last: c.last}
 }
 
+// Fingerprint is the SHA-256 (hex) of the climatology's complete
+// sufficient statistics: two climatologies with the same fingerprint give
+// the same anomalies.
+func (c *Climatology) Fingerprint() string { return c.identity().SHA256 }
+
 // climIdentity returns the identity of the accumulator's climatology (nil
 // in climatological mode).
 func (a *Acc) climIdentity() *climIdentity {

@@ -19,6 +19,10 @@ type mergeOptions struct {
 	Out       string
 	Force     bool
 	AllowGaps bool // merge pieces that leave gaps in the record
+	// ClimatologyInto, when set, merges the climatologies of stage 1 of
+	// anomaly mode (run --climatology-out files, in time order) into this
+	// file instead of run folders (used by lidscope submit).
+	ClimatologyInto string
 }
 
 func newMergeCmd(e *env) *cobra.Command {
@@ -36,6 +40,9 @@ written into the folder --out.`,
 		ValidArgsFunction: dirArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Runs = args
+			if o.ClimatologyInto != "" {
+				return runMergeClimatologies(o, e.stdout)
+			}
 			if o.Out == "" {
 				return usageErr("give the folder for the merged results with --out DIR")
 			}
@@ -47,7 +54,22 @@ written into the folder --out.`,
 	addOutDir(cmd.Flags(), &o.Out, "", "folder for the merged results (required)")
 	addForce(cmd.Flags(), &o.Force, "replace existing results in --out")
 	cmd.Flags().BoolVar(&o.AllowGaps, "allow-gaps", false, "merge pieces that leave gaps in the record (e.g. a missing year); the gaps are recorded in the provenance")
+	cmd.Flags().StringVar(&o.ClimatologyInto, "climatologies-into", "", "anomaly mode in pieces: merge the climatology FILEs given (run --climatology-out, in time order) into this file (used by submit)")
+	_ = cmd.Flags().MarkHidden("climatologies-into")
 	return cmd
+}
+
+// runMergeClimatologies merges stage-1 climatologies into one file.
+func runMergeClimatologies(o mergeOptions, stdout io.Writer) error {
+	c, err := analysis.MergeClimatologies(o.Runs)
+	if err != nil {
+		return err
+	}
+	if err := analysis.WriteClimatology(o.ClimatologyInto, c); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "merged %d climatologies (%d time steps) into %s\n", len(o.Runs), c.Steps(), o.ClimatologyInto)
+	return nil
 }
 
 func runMerge(ctx context.Context, o mergeOptions, stdout io.Writer) error {

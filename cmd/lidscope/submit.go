@@ -158,8 +158,9 @@ func runSubmit(ctx context.Context, o submitOptions, stdout io.Writer) error {
 				return fmt.Errorf("dataset %s: %w", d.Name, err)
 			}
 			why := onePieceReason(r, d, plan, rec, o.Pieces)
-			if why == "" && analysis.NoRelations(plan) == "" && r.RelationsFor(d).Mode == relations.Anomaly {
-				why = "relationships.mode: anomaly takes its anomalies against the climatology of the whole record, which the job array does not build yet (run --jobs on one node does)"
+			if why == "" && !r.RelationsOff && analysis.NoRelations(plan) == "" && r.RelationsFor(d).Mode == relations.Anomaly {
+				// two stages: the climatology of the whole record first
+				s.Anomaly = append(s.Anomaly, d.Name)
 			}
 			if why != "" {
 				return fmt.Errorf("dataset %s: cannot be split into pieces: %s; submit it with --pieces 1", d.Name, why)
@@ -229,7 +230,14 @@ func runSubmit(ctx context.Context, o submitOptions, stdout io.Writer) error {
 		fmt.Fprintf(stdout, "  %s\n", c)
 	}
 	if !o.DryRun {
-		fmt.Fprintf(stdout, "submitted: array %s", rec.Jobs["pieces"])
+		fmt.Fprint(stdout, "submitted:")
+		if id := rec.Jobs["climatology"]; id != "" {
+			fmt.Fprintf(stdout, " climatology array %s (stage 1 of anomaly mode),", id)
+			for _, d := range s.Anomaly {
+				fmt.Fprintf(stdout, " its merge for %s %s,", d, rec.Jobs["merge-climatology-"+d])
+			}
+		}
+		fmt.Fprintf(stdout, " array %s", rec.Jobs["pieces"])
 		for _, d := range s.Datasets {
 			if id := rec.Jobs["merge-"+d]; id != "" {
 				fmt.Fprintf(stdout, ", merge %s %s", d, id)

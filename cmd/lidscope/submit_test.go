@@ -178,8 +178,34 @@ func TestSubmitOnLocalCluster(t *testing.T) {
 	}
 	study := twoWorlds(t, dir)
 	out := filepath.Join(dir, "cluster")
+	rec := submitAndCheck(t, dir, study, out, setFlags{})
+	if _, err := os.Stat(filepath.Join(out, "comparison")); err != nil {
+		t.Errorf("no comparison: %v", err)
+	}
+	// The tasks recorded their Slurm job in the provenance.
+	if b, err := os.ReadFile(filepath.Join(out, rec.Datasets[0], "provenance.json")); err != nil || !strings.Contains(string(b), "slurm job") {
+		t.Errorf("the merged provenance does not name the Slurm jobs (%v)", err)
+	}
+	t.Logf("climatological: %d jobs and checks took %v", len(rec.Spec(out).Tasks()), time.Since(start).Round(time.Second))
+	// Anomaly mode: the climatology array, its merges, then the pieces
+	// against them.
+	mid := time.Now()
+	arec := submitAndCheck(t, dir, study, filepath.Join(dir, "cluster-anomaly"), setFlags{"relationships.mode": "anomaly"})
+	if len(arec.Anomaly) != 2 || arec.Jobs["climatology"] == "" {
+		t.Errorf("the anomaly submission has no climatology stage: %+v", arec)
+	}
+	t.Logf("anomaly mode: %d + %d jobs and checks took %v", len(arec.Spec(out).ClimatologyTasks()), len(arec.Spec(out).Tasks()), time.Since(mid).Round(time.Second))
+	t.Logf("cluster start, both submissions and checks took %v", time.Since(start).Round(time.Second))
+}
+
+// submitAndCheck submits study (2 datasets × 4 pieces) into out on the
+// running cluster, waits until squeue shows none of its jobs, checks that
+// --status calls everything complete and that each merged run equals a
+// single-process run of its dataset, file by file.
+func submitAndCheck(t *testing.T, dir, study, out string, set setFlags) *slurm.Record {
+	t.Helper()
 	var stdout bytes.Buffer
-	if err := runSubmit(context.Background(), submitOptions{Study: study, Out: out, Pieces: 4, CPUsPerTask: 1, Time: "0:05:00", Set: setFlags{}}, &stdout); err != nil {
+	if err := runSubmit(context.Background(), submitOptions{Study: study, Out: out, Pieces: 4, CPUsPerTask: 1, Time: "0:05:00", Set: set}, &stdout); err != nil {
 		t.Fatal(err)
 	}
 	t.Logf("%s", stdout.String())
@@ -222,11 +248,10 @@ func TestSubmitOnLocalCluster(t *testing.T) {
 		}
 		t.Fatalf("status after the jobs ended:\n%s", s)
 	}
-	// Each merged run against a single-process run of the same dataset.
 	for _, d := range rec.Datasets {
-		single := filepath.Join(dir, "single-"+d)
+		single := filepath.Join(dir, "single-"+filepath.Base(out)+"-"+d)
 		var so, se bytes.Buffer
-		if err := runRun(context.Background(), runOptions{Study: study, Datasets: []string{d}, Out: single, NoPlots: true, Jobs: 1, Set: setFlags{}, Log: logOptions{Format: "text"}}, &so, &se); err != nil {
+		if err := runRun(context.Background(), runOptions{Study: study, Datasets: []string{d}, Out: single, NoPlots: true, Jobs: 1, Set: set, Log: logOptions{Format: "text"}}, &so, &se); err != nil {
 			t.Fatal(err)
 		}
 		diffs, err := runcmp.Folders(single, filepath.Join(out, d), runcmp.Options{Tol: 1e-6, IgnoreKeys: jobsKeys})
@@ -234,16 +259,117 @@ func TestSubmitOnLocalCluster(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, x := range diffs {
-			t.Errorf("dataset %s: the merged pieces differ from one run: %s", d, x)
+			t.Errorf("%s, dataset %s: the merged pieces differ from one run: %s", filepath.Base(out), d, x)
 		}
 	}
-	if _, err := os.Stat(filepath.Join(out, "comparison")); err != nil {
-		t.Errorf("no comparison: %v", err)
+	return rec
+}
+
+// Anomaly mode in two stages: --dry-run writes a climatology array, a
+// climatology merge per dataset after it, the pieces' array after both
+// merges (each piece against its dataset's merged climatology), the run
+// merges and the compare, every job after what it needs (afterok). The
+// scripts then run here as Slurm would run them, in that order, task by
+// task (bash, SLURM_ARRAY_TASK_ID): the merged runs equal single-process
+// anomaly runs file by file, and --status reports both stages complete.
+func TestSubmitAnomalyTwoStages(t *testing.T) {
+	dir := t.TempDir()
+	study := twoWorlds(t, dir)
+	out := filepath.Join(dir, "cluster")
+	set := setFlags{"relationships.mode": "anomaly"}
+	var stdout bytes.Buffer
+	if err := runSubmit(context.Background(), submitOptions{Study: study, Out: out, Pieces: 2, DryRun: true, Set: set}, &stdout); err != nil {
+		t.Fatal(err)
 	}
-	// The tasks recorded their Slurm job in the provenance.
-	if b, err := os.ReadFile(filepath.Join(out, rec.Datasets[0], "provenance.json")); err != nil || !strings.Contains(string(b), "slurm job") {
-		t.Errorf("the merged provenance does not name the Slurm jobs (%v)", err)
+	rec, err := slurm.ReadRecord(out)
+	if err != nil {
+		t.Fatal(err)
 	}
-	t.Logf("cluster start, submission, %d jobs and checks took %v", len(rec.Spec(out).Tasks()), time.Since(start).Round(time.Second))
-	_ = fmt.Sprint
+	// the dependency graph, from the sbatch lines in submission order
+	line := regexp.MustCompile(`^(\w+)_job=\$\(sbatch --parsable (?:--dependency=afterok:(\S+) )?(\S+)\)$`)
+	after := map[string]string{}
+	defined := map[string]bool{}
+	var order []string
+	for _, l := range rec.Sbatch {
+		m := line.FindStringSubmatch(l)
+		if m == nil {
+			t.Fatalf("sbatch line %q", l)
+		}
+		var deps []string
+		for _, d := range strings.Split(m[2], ":") {
+			if d == "" {
+				continue
+			}
+			v := strings.TrimSuffix(strings.TrimPrefix(d, "$"), "_job")
+			if !defined[v] {
+				t.Errorf("%s waits for %s, submitted later", m[1], v)
+			}
+			deps = append(deps, v)
+		}
+		defined[m[1]] = true
+		order = append(order, m[1])
+		after[m[1]] = strings.Join(deps, " ")
+	}
+	want := map[string]string{
+		"climatology":                      "",
+		"merge_climatology_synthetic_demo": "climatology", "merge_climatology_synthetic_model": "climatology",
+		"pieces":               "merge_climatology_synthetic_demo merge_climatology_synthetic_model",
+		"merge_synthetic_demo": "pieces", "merge_synthetic_model": "pieces",
+		"compare": "merge_synthetic_demo merge_synthetic_model",
+	}
+	if len(after) != len(want) {
+		t.Errorf("jobs %v, want %d", order, len(want))
+	}
+	for j, d := range want {
+		if got, ok := after[j]; !ok || got != d {
+			t.Errorf("job %s waits for %q, want %q", j, got, d)
+		}
+	}
+	scripts := map[string]string{}
+	for _, p := range rec.Scripts {
+		scripts[strings.ReplaceAll(strings.TrimSuffix(filepath.Base(p), ".sh"), "-", "_")] = p
+		if b, err := exec.Command("bash", "-n", p).CombinedOutput(); err != nil {
+			t.Errorf("bash -n %s: %v\n%s", p, err, b)
+		}
+	}
+	// Run the graph here, in submission order, as Slurm would.
+	tasks := map[string]int{"climatology": 4, "pieces": 4}
+	for _, j := range order {
+		n, array := tasks[j]
+		if !array {
+			n = 1
+		}
+		for i := 0; i < n; i++ {
+			c := exec.Command("bash", scripts[j])
+			c.Env = append(os.Environ(), fmt.Sprintf("SLURM_ARRAY_TASK_ID=%d", i))
+			if b, err := c.CombinedOutput(); err != nil {
+				t.Fatalf("%s task %d: %v\n%s", j, i, err, b)
+			}
+		}
+	}
+	stdout.Reset()
+	if err := runSubmit(context.Background(), submitOptions{Status: out}, &stdout); err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []string{"anomaly mode in two stages for synthetic-demo, synthetic-model",
+		"dataset synthetic-model, stage 1 (climatology): complete 1 (task 2), 2 (task 3); merged climatology: complete",
+		"dataset synthetic-model, stage 2 (anomalies): complete 1 (task 2), 2 (task 3); merged run: complete", "comparison: complete"} {
+		if !strings.Contains(stdout.String(), w) {
+			t.Errorf("status lacks %q:\n%s", w, stdout.String())
+		}
+	}
+	for _, d := range rec.Datasets {
+		single := filepath.Join(dir, "single-"+d)
+		var so, se bytes.Buffer
+		if err := runRun(context.Background(), runOptions{Study: study, Datasets: []string{d}, Out: single, NoPlots: true, Jobs: 1, Set: set, Log: logOptions{Format: "text"}}, &so, &se); err != nil {
+			t.Fatal(err)
+		}
+		diffs, err := runcmp.Folders(single, filepath.Join(out, d), runcmp.Options{Tol: 1e-6, IgnoreKeys: jobsKeys})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, x := range diffs {
+			t.Errorf("dataset %s: the two-stage pieces differ from one anomaly run: %s", d, x)
+		}
+	}
 }

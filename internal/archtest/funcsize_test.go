@@ -42,7 +42,6 @@ var exceptions = map[string]string{
 	"config.checkDepth":         "not split yet",
 	"config.decoder.dataset":    "not split yet",
 	"config.decoder.timeSel":    "not split yet",
-	"config.expandEnsemble":     "not split yet",
 	"fixtures.generator.step":   "not split yet",
 	"pipeline.openInputs":       "not split yet",
 	"relations.Acc.addFlips":    "not split yet",

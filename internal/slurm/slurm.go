@@ -3,14 +3,22 @@
 // piece) running `lidscope run --piece K/N`, a merge job per dataset that
 // waits for the array (--dependency=afterok) and joins the pieces with
 // `lidscope merge`, and, for a study with a reference and candidates, a
-// compare job after the merges. It calls sbatch and squeue; it has no
-// scheduler or daemon of its own. Status reads a submission folder back.
+// compare job after the merges. A dataset in anomaly mode split into
+// pieces goes through two stages: a first job array builds each piece's
+// climatology (run --climatology-out), a merge job per dataset joins them
+// into the climatology of the whole record (merge --climatologies-into),
+// and the pieces' array (stage 2) waits for those merges and takes its
+// anomalies against it (run --climatology). It calls sbatch and squeue;
+// it has no scheduler or daemon of its own. Status reads a submission
+// folder back.
 //
 // A submission folder holds:
 //
 //	slurm/           the scripts and submission.json (job ids, commands)
 //	logs/            every task's standard output and error
 //	pieces/D/piece-K the run folder of piece K of dataset D
+//	pieces/D/climatology-K.gob, pieces/D/climatology.gob
+//	                 anomaly mode: piece K's climatology, the merged one
 //	D/               the merged run of dataset D
 //	comparison/      the comparison, when there is one
 package slurm
@@ -49,6 +57,10 @@ type Spec struct {
 	// compare job; the study has fewer than two datasets).
 	Reference string
 	Pieces    int
+	// Anomaly lists the datasets (of Datasets) whose relationships are in
+	// anomaly mode: with more than one piece they go through the two
+	// stages (see the package documentation).
+	Anomaly []string
 	// sbatch options, passed through under sbatch's own names ("" or 0:
 	// the cluster's default).
 	Partition, Time, Mem, Account string
@@ -81,6 +93,15 @@ func (s Spec) Check() error {
 			return fmt.Errorf("dataset %q: the name is one of the folders of a submission (%s, %s, %s, %s); rename the dataset", d, ScriptDir, LogDir, PieceDir, CompareDir)
 		}
 	}
+	for _, a := range s.Anomaly {
+		found := false
+		for _, d := range s.Datasets {
+			found = found || a == d
+		}
+		if !found {
+			return fmt.Errorf("anomaly-mode dataset %q is not one of the submission's datasets", a)
+		}
+	}
 	n := len(s.Datasets) * s.Pieces
 	for _, i := range s.Only {
 		if i < 0 || i >= n {
@@ -106,6 +127,45 @@ func (s Spec) Tasks() []Task {
 		}
 	}
 	return out
+}
+
+// TwoStages reports whether the submission has the climatology stage
+// (datasets in anomaly mode, split into pieces).
+func (s Spec) TwoStages() bool { return s.Pieces > 1 && len(s.Anomaly) > 0 }
+
+// ClimatologyTasks lists the tasks of the climatology array: index =
+// (the dataset's place in Anomaly) × Pieces + piece − 1.
+func (s Spec) ClimatologyTasks() []Task {
+	if !s.TwoStages() {
+		return nil
+	}
+	var out []Task
+	for i, d := range s.Anomaly {
+		for k := 1; k <= s.Pieces; k++ {
+			out = append(out, Task{Index: i*s.Pieces + k - 1, Dataset: d, Piece: k})
+		}
+	}
+	return out
+}
+
+// ClimatologyPath is the climatology of piece k of dataset d (stage 1).
+func (s Spec) ClimatologyPath(d string, k int) string {
+	return filepath.Join(s.Out, PieceDir, d, "climatology-"+strconv.Itoa(k)+".gob")
+}
+
+// MergedClimatologyPath is the climatology of dataset d's whole record,
+// which its stage-2 pieces take their anomalies against.
+func (s Spec) MergedClimatologyPath(d string) string {
+	return filepath.Join(s.Out, PieceDir, d, "climatology.gob")
+}
+
+func (s Spec) anomaly(d string) bool {
+	for _, a := range s.Anomaly {
+		if a == d {
+			return true
+		}
+	}
+	return false
 }
 
 // PiecePath is the run folder of piece k of dataset d (with one piece,
@@ -192,17 +252,60 @@ func (s Spec) Scripts() []Script {
 	for _, d := range s.Datasets {
 		ds = append(ds, q(d))
 	}
+	var scripts []Script
+	var climMerges []string
+	if s.TwoStages() {
+		// Stage 1: each piece's climatology, then the whole record's.
+		var as []string
+		for _, d := range s.Anomaly {
+			as = append(as, q(d))
+		}
+		var b strings.Builder
+		b.WriteString(s.header("climatology", "climatology-%A_%a", fmt.Sprintf("0-%d", len(s.Anomaly)*s.Pieces-1)))
+		fmt.Fprintf(&b, "datasets=(%s)\npieces=%d\n", strings.Join(as, " "), s.Pieces)
+		b.WriteString("i=$SLURM_ARRAY_TASK_ID\nd=${datasets[$(( i / pieces ))]}\nk=$(( i % pieces + 1 ))\n")
+		fmt.Fprintf(&b, "mkdir -p %s/\"$d\"\n", q(filepath.Join(s.Out, PieceDir)))
+		fmt.Fprintf(&b, "exec %s run %s --dataset \"$d\" --piece \"$k/$pieces\" --climatology-out %s/\"$d\"/climatology-\"$k\".gob --jobs 1 --quiet%s\n",
+			q(s.Program), q(s.Study), q(filepath.Join(s.Out, PieceDir)), s.sets())
+		scripts = append(scripts, Script{Name: "climatology", Path: filepath.Join(dir, "climatology.sh"), Text: b.String()})
+		for _, d := range s.Anomaly {
+			name := "merge-climatology-" + d
+			var m strings.Builder
+			m.WriteString(s.header(name, name+"-%j", ""))
+			fmt.Fprintf(&m, "exec %s merge --climatologies-into %s", q(s.Program), q(s.MergedClimatologyPath(d)))
+			for k := 1; k <= s.Pieces; k++ {
+				m.WriteString(" " + q(s.ClimatologyPath(d, k)))
+			}
+			m.WriteString("\n")
+			scripts = append(scripts, Script{Name: name, Path: filepath.Join(dir, name+".sh"), Text: m.String(), After: []string{"climatology"}})
+			climMerges = append(climMerges, name)
+		}
+	}
 	var b strings.Builder
 	b.WriteString(s.header("pieces", "pieces-%A_%a", s.Array()))
 	fmt.Fprintf(&b, "datasets=(%s)\npieces=%d\n", strings.Join(ds, " "), s.Pieces)
 	b.WriteString("i=$SLURM_ARRAY_TASK_ID\nd=${datasets[$(( i / pieces ))]}\nk=$(( i % pieces + 1 ))\n")
+	clim := ""
+	if s.TwoStages() {
+		// stage 2: the anomaly datasets' pieces against the merged climatology
+		var cs []string
+		for _, d := range s.Datasets {
+			c := "''"
+			if s.anomaly(d) {
+				c = q(s.MergedClimatologyPath(d))
+			}
+			cs = append(cs, c)
+		}
+		fmt.Fprintf(&b, "climatologies=(%s)\nc=${climatologies[$(( i / pieces ))]}\n", strings.Join(cs, " "))
+		clim = " ${c:+--climatology \"$c\"}"
+	}
 	if s.Pieces == 1 {
 		fmt.Fprintf(&b, "exec %s run %s --dataset \"$d\" --out %s/\"$d\" --jobs 1 --no-plots --quiet%s\n", q(s.Program), q(s.Study), q(s.Out), s.sets())
 	} else {
-		fmt.Fprintf(&b, "exec %s run %s --dataset \"$d\" --piece \"$k/$pieces\" --out %s/\"$d\"/piece-\"$k\" --jobs 1 --no-plots --quiet%s\n",
-			q(s.Program), q(s.Study), q(filepath.Join(s.Out, PieceDir)), s.sets())
+		fmt.Fprintf(&b, "exec %s run %s --dataset \"$d\" --piece \"$k/$pieces\"%s --out %s/\"$d\"/piece-\"$k\" --jobs 1 --no-plots --quiet%s\n",
+			q(s.Program), q(s.Study), clim, q(filepath.Join(s.Out, PieceDir)), s.sets())
 	}
-	scripts := []Script{{Name: "pieces", Path: filepath.Join(dir, "pieces.sh"), Text: b.String()}}
+	scripts = append(scripts, Script{Name: "pieces", Path: filepath.Join(dir, "pieces.sh"), Text: b.String(), After: climMerges})
 	var merges []string
 	if s.Pieces > 1 {
 		for _, d := range s.Datasets {
@@ -243,6 +346,7 @@ type Record struct {
 	Datasets  []string          `json:"datasets"`
 	Reference string            `json:"reference,omitempty"`
 	Pieces    int               `json:"pieces"`
+	Anomaly   []string          `json:"anomaly_datasets,omitempty"`
 	Command   []string          `json:"command"`
 	Scripts   []string          `json:"scripts"`
 	Sbatch    []string          `json:"sbatch_commands"`
@@ -272,7 +376,7 @@ func Submit(s Spec, sbatch Sbatch, dryRun bool) (*Record, error) {
 			return nil, err
 		}
 	}
-	rec := &Record{Format: Format, Study: s.Study, Program: s.Program, Datasets: s.Datasets, Reference: s.Reference, Pieces: s.Pieces,
+	rec := &Record{Format: Format, Study: s.Study, Program: s.Program, Datasets: s.Datasets, Reference: s.Reference, Pieces: s.Pieces, Anomaly: s.Anomaly,
 		Command: s.Command, Jobs: map[string]string{}, Only: s.Only, DryRun: dryRun, Submitted: time.Now().UTC().Format(time.RFC3339)}
 	if old, err := ReadRecord(s.Out); err == nil {
 		earlier := old.Earlier
@@ -361,5 +465,5 @@ func ReadRecord(out string) (*Record, error) {
 
 // Spec rebuilds the spec of a record (for paths and task numbering).
 func (r *Record) Spec(out string) Spec {
-	return Spec{Program: r.Program, Study: r.Study, Out: out, Datasets: r.Datasets, Reference: r.Reference, Pieces: r.Pieces, Command: r.Command}
+	return Spec{Program: r.Program, Study: r.Study, Out: out, Datasets: r.Datasets, Reference: r.Reference, Pieces: r.Pieces, Anomaly: r.Anomaly, Command: r.Command}
 }
