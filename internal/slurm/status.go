@@ -29,16 +29,16 @@ type PieceStatus struct {
 
 // Report is the state of a submission folder.
 type Report struct {
-	Record   *Record
-	Pieces   []PieceStatus
+	Record *Record
+	Pieces []PieceStatus
 	// Climatology and MergedClimatology are stage 1 of anomaly mode (see
 	// Spec.TwoStages): each piece's climatology, and each dataset's
 	// merged one; empty without that stage.
 	Climatology       []PieceStatus
 	MergedClimatology map[string]State
 	Merged            map[string]State // dataset → its merged run
-	Compare  State            // "" when the submission has no comparison
-	Resubmit []string         // the command that resubmits what is not complete ("" when all is)
+	Compare           State            // "" when the submission has no comparison
+	Resubmit          []string         // the command that resubmits what is not complete ("" when all is)
 }
 
 // Checks tell Status what is complete: Committed(dir, piece) reports
