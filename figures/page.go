@@ -56,6 +56,9 @@ type fig struct {
 	pdf    bool
 	// dataArea is the last map's data area on the page, for the tests.
 	dataArea vg.Rectangle
+	// panels are the data areas of the panels drawPanelTitles titled,
+	// for the tests.
+	panels []vg.Rectangle
 }
 
 // rasterDPI is the resolution of heat-map images.

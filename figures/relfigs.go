@@ -318,11 +318,11 @@ func (f *fig) relationPage(pred string) (*page, error) {
 	span := math.Max(yhi-ylo, 1e-9)
 	ylo, yhi = ylo-0.3*span, yhi+0.25*span
 	var plots []*plot.Plot
+	var titles []string
 	for k, b := range bs {
 		p := f.newPlot()
 		p.Add(lightGrid())
-		p.Title.Text = f.t(upperFirst(b.Regime.String()) + " regime")
-		setTitleStyle(p, f.bold(sizeLabel))
+		titles = append(titles, upperFirst(b.Regime.String())+" regime")
 		p.X.Label.Text = f.t(fmt.Sprintf("%s (%s)", predictorLabel(pred), pu))
 		if k == 0 {
 			p.Y.Label.Text = f.t(fmt.Sprintf("%s (%s)", responseLabel(resp), ru))
@@ -388,11 +388,15 @@ func (f *fig) relationPage(pred string) (*page, error) {
 	pg.body = func(c draw.Canvas) {
 		pc := c
 		pc.Min.Y = c.Max.Y - panelH
+		pc.Max.Y -= f.panelTitleHeight()
 		tiles := draw.Tiles{Rows: 1, Cols: len(plots), PadX: 0.15 * vg.Inch}
 		cs := plot.Align([][]*plot.Plot{plots}, tiles, pc)
+		var data []vg.Rectangle
 		for i, p := range plots {
 			p.Draw(cs[0][i])
+			data = append(data, p.DataCanvas(cs[0][i]).Rectangle)
 		}
+		f.drawPanelTitles(c, titles, data)
 		key.draw(c, c.Min.X, pc.Min.Y-6)
 	}
 	return pg, nil

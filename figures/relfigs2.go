@@ -159,10 +159,10 @@ func (f *fig) jointPage() (*page, error) {
 		{freq, 100, f.scale("frequency", 0, fhi), "Share of samples (% per bin)", "Frequency of occurrence"},
 	}
 	var plots []*plot.Plot
+	var titles []string
 	for _, pn := range panels {
 		p := f.newPlot()
-		p.Title.Text = f.t(pn.title)
-		setTitleStyle(p, f.bold(sizeLabel))
+		titles = append(titles, pn.title)
 		p.X.Min, p.X.Max = j.RelEdges[0], j.RelEdges[nx]
 		p.Y.Min, p.Y.Max = j.EISEdge[0], j.EISEdge[ny]
 		p.X.Padding, p.Y.Padding = 0, 0
@@ -192,12 +192,14 @@ func (f *fig) jointPage() (*page, error) {
 	pg := &page{header: head, footer: f.footer(bw), bodyH: panelH + 6 + key.height()}
 	pg.body = func(c draw.Canvas) {
 		half := (c.Max.X - c.Min.X) / 2
+		var data []vg.Rectangle
 		for i, p := range plots {
 			pc := c
 			pc.Min = vg.Point{X: c.Min.X + vg.Length(i)*half, Y: c.Max.Y - panelH}
-			pc.Max = vg.Point{X: c.Min.X + vg.Length(i)*half + half - 0.75*vg.Inch, Y: c.Max.Y}
+			pc.Max = vg.Point{X: c.Min.X + vg.Length(i)*half + half - 0.75*vg.Inch, Y: c.Max.Y - f.panelTitleHeight()}
 			p.Draw(pc)
 			dc := p.DataCanvas(pc)
+			data = append(data, dc.Rectangle)
 			frame(c, dc.Rectangle)
 			bar := vg.Rectangle{Min: vg.Point{X: dc.Max.X + 8, Y: dc.Min.Y}, Max: vg.Point{X: dc.Max.X + 8 + 0.12*vg.Inch, Y: dc.Max.Y}}
 			f.colourBarV(c, bar, panels[i].sc, panels[i].label)
@@ -205,6 +207,7 @@ func (f *fig) jointPage() (*page, error) {
 				f.dataArea = dc.Rectangle
 			}
 		}
+		f.drawPanelTitles(c, titles, data)
 		key.draw(c, c.Min.X, c.Max.Y-panelH-6)
 	}
 	return pg, nil
@@ -237,11 +240,9 @@ func (f *fig) flipsPage() (*page, error) {
 		p.Add(lightGrid())
 		p.X.Label.Text = f.t("SST perturbation ΔT (K)")
 		p.Add(vline{0, refStyle})
-		setTitleStyle(p, f.bold(sizeLabel))
 	}
-	flipped.Title.Text = f.t("Patch area × time changing regime")
+	titles := []string{"Patch area × time changing regime", "Change of convective area fraction"}
 	flipped.Y.Label.Text = f.t("Flipped (% of patch ocean area × time)")
-	change.Title.Text = f.t("Change of convective area fraction")
 	change.Y.Label.Text = f.t("Change (percentage points)")
 	change.Add(hline{0, draw.LineStyle{Color: color.Gray{0x50}, Width: 0.5}})
 	flipped.Y.Min = 0
@@ -268,7 +269,8 @@ func (f *fig) flipsPage() (*page, error) {
 		sort.Slice(fl, func(a, b int) bool { return fl[a].X < fl[b].X })
 		sort.Slice(in, func(a, b int) bool { return in[a].X < in[b].X })
 		sort.Slice(out, func(a, b int) bool { return out[a].X < out[b].X })
-		name := fmt.Sprintf("patch %s (f = %.1f %%)", pf.Patch.Name, 100*pf.FMean)
+		patch := patchLabel(pf.Patch.Name)
+		name := fmt.Sprintf("%s (f = %.1f %%)", patch, 100*pf.FMean)
 		add := func(p *plot.Plot, leg *plot.Legend, pts plotter.XYs, dash []vg.Length, legend string) error {
 			l, s, err := plotter.NewLinePoints(pts)
 			if err != nil {
@@ -285,10 +287,10 @@ func (f *fig) flipsPage() (*page, error) {
 		if err := add(flipped, &legs[0], fl, nil, name); err != nil {
 			return nil, err
 		}
-		if err := add(change, &legs[1], in, nil, "inside patch "+pf.Patch.Name); err != nil {
+		if err := add(change, &legs[1], in, nil, "inside "+patch); err != nil {
 			return nil, err
 		}
-		if err := add(change, &legs[1], out, []vg.Length{4, 2}, "outside patch "+pf.Patch.Name+", in the band"); err != nil {
+		if err := add(change, &legs[1], out, []vg.Length{4, 2}, "outside "+patch+", in the band"); err != nil {
 			return nil, err
 		}
 	}
@@ -302,15 +304,19 @@ func (f *fig) flipsPage() (*page, error) {
 	pg.body = func(c draw.Canvas) {
 		pc := c
 		pc.Min.Y = c.Max.Y - panelH
+		pc.Max.Y -= f.panelTitleHeight()
 		cs := plot.Align([][]*plot.Plot{{flipped, change}}, draw.Tiles{Rows: 1, Cols: 2, PadX: 0.3 * vg.Inch}, pc)
+		var data []vg.Rectangle
 		for i, p := range []*plot.Plot{flipped, change} {
 			p.Draw(cs[0][i])
 			dc := p.DataCanvas(cs[0][i])
+			data = append(data, dc.Rectangle)
 			lc := c
 			lc.Min = vg.Point{X: dc.Min.X, Y: pc.Min.Y - legH}
 			lc.Max = vg.Point{X: dc.Max.X, Y: pc.Min.Y - 2}
 			legs[i].Draw(lc)
 		}
+		f.drawPanelTitles(c, titles, data)
 		key.draw(c, c.Min.X, pc.Min.Y-legH-6)
 	}
 	return pg, nil
