@@ -167,7 +167,8 @@ func comparisonJobs(res *compare.Result, only []string) ([]compJob, error) {
 		for _, m := range compareMaps {
 			m := m
 			hr := *head
-			hr.Dataset = fmt.Sprintf("%s (candidate) vs %s (reference)", c.Name, res.Reference.Name)
+			// one wording with the sensitivity page (comparisonSubject)
+			hr.Dataset = fmt.Sprintf("%s (reference) vs %s (candidate)", res.Reference.Name, c.Name)
 			jobs = append(jobs, compJob{figure{name: "compare_" + m.variable + "_" + safeName(c.Name),
 				build: func(f *fig) (*page, error) { return f.comparisonMapPage(m.variable, m.spec, ref, cand) }}, &hr, load})
 		}
@@ -484,7 +485,7 @@ func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
 	}
 	p.Legend.Add(f.t("reference 95 % interval"), bandThumb{})
 	bw := bodyWidth()
-	head := f.header("Cloud sensitivities of the reference and the candidates, with 95 % intervals", bw)
+	head := f.headerOf("Cloud sensitivities of the reference and the candidates, with 95 % intervals", comparisonSubject(res), bw)
 	const h = 3.6 * vg.Inch
 	pg := &page{header: head, footer: f.footer(bw), bodyH: h}
 	pg.body = func(c draw.Canvas) {
@@ -495,6 +496,31 @@ func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
 	}
 	return pg, nil
 }
+
+// comparisonSubject names the runs of a comparison for a subtitle: the
+// reference and every candidate ("obs (reference) vs model-a and model-b
+// (candidates)"); past maxNamedCandidates it gives their number and the
+// first and last names.
+func comparisonSubject(res *compare.Result) string {
+	var names []string
+	for _, c := range res.Candidates {
+		names = append(names, c.Name)
+	}
+	ref := res.Reference.Name + " (reference)"
+	switch n := len(names); {
+	case n == 0:
+		return ref
+	case n == 1:
+		return ref + " vs " + names[0] + " (candidate)"
+	case n <= maxNamedCandidates:
+		return ref + " vs " + strings.Join(names[:n-1], ", ") + " and " + names[n-1] + " (candidates)"
+	default:
+		return fmt.Sprintf("%s vs %d candidates (%s, %s, … %s)", ref, n, names[0], names[1], names[n-1])
+	}
+}
+
+// maxNamedCandidates is the most candidates a subtitle names one by one.
+const maxNamedCandidates = 6
 
 func cloudResponseOf(res *compare.Result) string {
 	if len(res.ReferenceEstimates) > 0 {

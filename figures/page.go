@@ -176,8 +176,13 @@ func (b textBlock) draw(c draw.Canvas, x, y vg.Length) {
 // header is a figure's title block: what is shown, then the dataset and
 // period, then the regime definition.
 func (f *fig) header(what string, width vg.Length) []textBlock {
+	return f.headerOf(what, f.run.Dataset, width)
+}
+
+// headerOf is header with the subtitle naming ds (a dataset, or the runs
+// a comparison sets side by side) instead of the run's dataset.
+func (f *fig) headerOf(what, ds string, width vg.Length) []textBlock {
 	r := f.run
-	ds := r.Dataset
 	if ds == "" {
 		ds = "unnamed dataset"
 	}

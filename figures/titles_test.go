@@ -5,6 +5,9 @@ import (
 	"strings"
 	"testing"
 
+	"lidscope/compare"
+	"lidscope/relations"
+
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/recorder"
@@ -114,6 +117,42 @@ func TestPatchLabel(t *testing.T) {
 	} {
 		if got := patchLabel(c.in); got != c.want {
 			t.Errorf("patchLabel(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+}
+
+// The comparison's sensitivity page names the reference and every
+// candidate in its subtitle (it named only the reference).
+func TestSensitivitySubtitleNamesCandidates(t *testing.T) {
+	run, err := Load(fixture(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	est := func(v float64) compare.Estimate {
+		return compare.Estimate{Name: "low_cloud_on_eis", Kind: "slope", Units: "K-1", Ref: 0.05, Cand: v,
+			RefCI: relations.Interval{Lo: 0.04, Hi: 0.06}, CandCI: relations.Interval{Lo: v - 0.01, Hi: v + 0.01}}
+	}
+	res := &compare.Result{Reference: compare.Run{Name: "obs-a"}, ReferenceEstimates: []compare.Estimate{est(0.05)}}
+	for _, c := range []struct {
+		names []string
+		want  string
+	}{
+		{[]string{"model-x"}, "obs-a (reference) vs model-x (candidate)"},
+		{[]string{"model-x", "model-y"}, "obs-a (reference) vs model-x and model-y (candidates)"},
+		{[]string{"m1", "m2", "m3", "m4", "m5", "m6", "m7", "m8"}, "obs-a (reference) vs 8 candidates (m1, m2, … m8)"},
+	} {
+		res.Candidates = nil
+		for _, n := range c.names {
+			res.Candidates = append(res.Candidates, compare.Candidate{Name: n, Estimates: []compare.Estimate{est(0.03)}})
+		}
+		fg := &fig{run: run, name: "compare_sensitivities", format: "png", dpi: 72}
+		pg, err := fg.sensitivityPage(res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sub := strings.Join(pg.header[1].lines, " ")
+		if !strings.HasPrefix(sub, c.want+" · ") {
+			t.Errorf("subtitle %q, want it to start with %q", sub, c.want)
 		}
 	}
 }
