@@ -2,15 +2,21 @@ package analysis
 
 import (
 	"context"
+	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
+	"os"
 	"path/filepath"
+	"strings"
 
 	"lidscope/compare"
 	"lidscope/config"
 	"lidscope/fixtures"
 	"lidscope/regimes"
+	"lidscope/runfolder"
 	"lidscope/vocab"
 )
 
@@ -85,13 +91,12 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 	}
 	dr := &DemoReport{}
 	for k, sc := range []fixtures.Options{so, mo} {
-		sc.Overwrite = opt.Force
 		sc.Command = opt.Command
 		data := filepath.Join(dir, "data")
 		if k == 1 {
 			data = filepath.Join(dir, "data-model")
 		}
-		truth, err := fixtures.Generate(data, sc)
+		truth, err := generateWorld(ctx, data, sc, opt)
 		if err != nil {
 			return nil, fmt.Errorf("generating the synthetic world %s: %w", sc.Name, err)
 		}
@@ -127,6 +132,69 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 	}
 	dr.Comparison = cr
 	return dr, nil
+}
+
+// generateWorld writes a synthetic world into the folder data as one unit
+// (package runfolder): generated into a staging folder beside it and moved
+// into place whole, so that --force over an earlier world of another size
+// or period leaves none of its files (they would join the new record:
+// "files of one record must share a grid"). Without Force an earlier
+// world is refused; a folder holding files that are not a demo world's is
+// refused even with Force.
+func generateWorld(ctx context.Context, data string, sc fixtures.Options, opt DemoOptions) (*fixtures.Truth, error) {
+	st, err := runfolder.Create(data, runfolder.Options{Replace: opt.Force, Known: worldNames(data), Version: opt.Version})
+	if errors.Is(err, fs.ErrExist) {
+		return nil, worldExistsError(data)
+	}
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	truth, err := fixtures.Generate(st.Dir(), sc)
+	if err != nil {
+		return nil, err
+	}
+	if _, err := st.Commit(ctx); err != nil {
+		return nil, err
+	}
+	return truth, nil
+}
+
+// worldExistsError refuses to replace an earlier demo world without
+// Force (errors.Is fs.ErrExist).
+type worldExistsError string
+
+func (e worldExistsError) Error() string {
+	return string(e) + " holds an earlier demo world; use --force to replace it whole (it stays untouched until the new one is complete) or choose another --out"
+}
+
+func (worldExistsError) Unwrap() error { return fs.ErrExist }
+
+// worldNames are the names an earlier demo world in data may hold: its
+// study and truth files and the top-level names of the files its
+// truth.json lists (read loosely, so that a world of an older format is
+// recognised too).
+func worldNames(data string) []string {
+	names := []string{fixtures.StudyFile, fixtures.TruthFile}
+	b, err := os.ReadFile(filepath.Join(data, fixtures.TruthFile))
+	if err != nil {
+		return names
+	}
+	var t struct {
+		Files map[string][]string `json:"files"`
+	}
+	if json.Unmarshal(b, &t) != nil {
+		return names
+	}
+	for _, fs := range t.Files {
+		for _, f := range fs {
+			first, _, _ := strings.Cut(filepath.ToSlash(filepath.Clean(f)), "/")
+			if first != "" && first != "." && first != ".." {
+				names = append(names, first)
+			}
+		}
+	}
+	return names
 }
 
 func demoChecks(rep Report, t *fixtures.Truth) []Check {
