@@ -14,8 +14,10 @@ import (
 	"lidscope/vocab"
 )
 
-// jsonFormat tags comparison.json; Read refuses other tags.
-const jsonFormat = "lidscope-comparison/3"
+// jsonFormat tags comparison.json; Read refuses other tags. Version 4
+// names the reference's metrics conventions "conventions" (version 3:
+// metrics_conventions), as the study and every run output do.
+const jsonFormat = "lidscope-comparison/4"
 
 // ErrNotComparison is wrapped by Read's error for a folder that holds no
 // comparison.json.
@@ -49,7 +51,7 @@ func Read(dir string) (*Result, error) {
 			Dir       string `json:"dir"`
 			Period    string `json:"period"`
 			Regimes   string `json:"regime_definition"`
-			Metrics   string `json:"metrics_conventions"`
+			Metrics   string `json:"conventions"`
 			StudyHash string `json:"study_hash"`
 		} `json:"reference"`
 		Candidates []struct {

@@ -308,7 +308,7 @@ func jsonBytes(res *Result, opt WriteOptions) ([]byte, error) {
 	}
 	m := res.Reference.Meta
 	doc.Reference = map[string]any{"name": res.Reference.Name, "dir": res.Reference.Dir, "period": m.Period,
-		"regime_definition": m.Regimes.String(), "metrics_conventions": m.MetricsConventions, "study_hash": m.StudyHash}
+		"regime_definition": m.Regimes.String(), vocab.Conventions: m.MetricsConventions, vocab.StudyHash: m.StudyHash}
 	for _, s := range res.ReferenceScalars {
 		doc.Scalars[s.Name] = jv(s.Cand, s.Units)
 	}
@@ -357,10 +357,10 @@ func writeMaps(path string, res *Result, opt WriteOptions) error {
 		Command:   opt.Command,
 		Overwrite: opt.Force,
 		Attributes: map[string]any{
-			"reference":           res.Reference.Name,
-			"regime_definition":   res.Reference.Meta.Regimes.String(),
-			"metrics_conventions": res.Reference.Meta.MetricsConventions,
-			"period":              res.Reference.Meta.Period,
+			"reference":         res.Reference.Name,
+			"regime_definition": res.Reference.Meta.Regimes.String(),
+			vocab.Conventions:   res.Reference.Meta.MetricsConventions,
+			"period":            res.Reference.Meta.Period,
 		},
 	})
 	if err != nil {

@@ -15,6 +15,7 @@ import (
 	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/relations"
+	"lidscope/vocab"
 )
 
 // Run is what the figures read from a run directory written by package
@@ -357,7 +358,7 @@ func (r *Run) Series() (*Series, error) {
 		return nil, fmt.Errorf("figures: %s: time (units %q, calendar %q): %w", p, units, cal, err)
 	}
 	s := &Series{Calendar: cal}
-	if a, err := f.Attr("time_axis"); err == nil {
+	if a, err := f.Attr(vocab.TimeAxisNote); err == nil {
 		txt, _ := a.Text()
 		s.Climatology = txt == output.TimeAxisClimatology
 	}

@@ -72,11 +72,14 @@
 //
 // Global attributes (both NetCDF files) besides those cfwrite writes
 // (Conventions, title, source, history from Meta.Command and Meta.End):
-// dataset, lidscope_version, study_hash, metrics_conventions, regime_definition,
+// dataset, lidscope_version, study_hash, conventions (the metrics
+// conventions text: the study's conventions section resolved; not CF's
+// Conventions), regime_definition,
 // the regime definition's attributes (regimes.Definition.Attributes:
 // regime_rule, delta or percentile, half_width, band [south, north], each
 // number typed with its units in NAME_units), period, time_steps (int),
-// sampling_frequency (yr-1), regime_index, input_files, processing_notes,
+// sampling_frequency (yr-1), regime_index, files (the input files: role,
+// path, size, SHA-256), processing_notes,
 // quantities (the per-column quantities the run has, space-separated) and
 // absent_quantities (what it lacks for want of an optional input: without
 // air_temperature there is no t700, lts, eis; without low_cloud or cloud no
@@ -111,7 +114,7 @@
 //
 // # summary.json
 //
-// An object with "format": "lidscope-summary" and "format_version": 3.
+// An object with "format": "lidscope-summary" and "format_version": 4.
 // Every number is written as {"value": x, "units": "K"} ("value": null for
 // no data; counts have units "1"). A statistic over a sample is
 // {"mean": N, "std": N, "count": N} with those numbers; std is the population
@@ -139,12 +142,14 @@
 //
 // # provenance.json
 //
-// "format": "lidscope-provenance", "format_version": 2; lidscope_version,
-// command, dataset, title, study {text, hash}, metrics_conventions,
-// regime_definition, inputs [{role, path, size, modified, sha256}], run
-// {start, end (RFC 3339, UTC), duration}, host {os, arch, go_version,
-// cpus, netcdf_c_library}, time_axis {units, calendar, steps, bounds},
-// outputs [{name, size, sha256}] for the five other files, and notes.
+// "format": "lidscope-provenance", "format_version": 4; lidscope_version,
+// command, dataset, title, study (the resolved study text), study_hash,
+// conventions, regime_definition, files [{role, path, size, modified,
+// sha256}], run {start, end (RFC 3339, UTC), duration}, host {os, arch,
+// go_version, cpus, netcdf_c_library}, time {units, calendar, time_steps,
+// bounds} (the time coordinate), outputs [{name, size, sha256}] for the
+// five other files, and notes. Each name is the one the study and the
+// NetCDF files use for the same thing (package vocab).
 //
 // # Atomicity and overwriting
 //

@@ -198,8 +198,8 @@ func (c *checked) globalAttrs(notes []string) map[string]any {
 	a := map[string]any{
 		"dataset":                          m.Dataset,
 		"lidscope_version":                 m.Version,
-		"study_hash":                       m.StudyHash,
-		"metrics_conventions":              m.MetricsConventions,
+		vocab.StudyHash:                    m.StudyHash,
+		vocab.Conventions:                  m.MetricsConventions,
 		"period":                           c.period(),
 		vocab.TimeSteps:                    len(c.acc.Series),
 		vocab.SamplingFrequency:            m.StepsPerYear,
@@ -217,14 +217,14 @@ func (c *checked) globalAttrs(notes []string) map[string]any {
 			}
 			fmt.Fprintf(&b, "%s: %s (%d bytes, sha256 %s)", f.Role, f.Path, f.Size, f.SHA256)
 		}
-		a["input_files"] = b.String()
+		a[vocab.Files] = b.String()
 	}
 	if len(notes) > 0 {
 		a["processing_notes"] = strings.Join(notes, "\n")
 	}
 	a["quantities"] = strings.Join(c.acc.L.Quantities, " ")
 	if m.Climatology {
-		a["time_axis"] = TimeAxisClimatology
+		a[vocab.TimeAxisNote] = TimeAxisClimatology
 	}
 	if len(m.Absent) > 0 {
 		a["absent_quantities"] = strings.Join(m.Absent, "\n")

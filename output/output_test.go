@@ -17,6 +17,7 @@ import (
 
 	"lidscope/netcdf"
 	"lidscope/regimes"
+	"lidscope/vocab"
 )
 
 // ncFile opens a written file with the project's netCDF-C binding.
@@ -255,7 +256,7 @@ func TestMapsMetadata(t *testing.T) {
 	g := func(name string) string { return textAttr(t, nc.Attr, name) }
 	for name, want := range map[string]string{
 		"Conventions": "CF-1.10", "dataset": "synthetic test record", "lidscope_version": "0.0.0-test",
-		"study_hash": "sha256:0123abcd", "metrics_conventions": f.meta.MetricsConventions,
+		"study_hash": "sha256:0123abcd", "conventions": f.meta.MetricsConventions,
 		"regime_definition": f.meta.Regimes.String(), "regime_rule": "relative_sst", "delta_units": "K", "half_width_units": "K",
 		"band_units": "degrees_north", "period": "2001-01 … 2001-06", "sampling_frequency_units": "yr-1",
 	} {
@@ -663,16 +664,13 @@ func TestProvenanceJSON(t *testing.T) {
 	walkNumbers(t, "provenance", p)
 	for k, want := range map[string]string{
 		"format": ProvenanceFormat, "lidscope_version": "0.0.0-test", "command": f.meta.Command,
-		"metrics_conventions": f.meta.MetricsConventions,
+		"conventions": f.meta.MetricsConventions, "study": f.meta.Study, "study_hash": f.meta.StudyHash,
 	} {
 		if got := get(t, p, k); got != want {
 			t.Errorf("%s = %v, want %q", k, got, want)
 		}
 	}
-	if get(t, p, "study", "text") != f.meta.Study || get(t, p, "study", "hash") != f.meta.StudyHash {
-		t.Errorf("study %v", get(t, p, "study"))
-	}
-	in := get(t, p, "inputs").([]any)[0]
+	in := get(t, p, "files").([]any)[0]
 	if get(t, in, "sha256") != "ab12" || value(t, in, "size") != 1234 || get(t, in, "modified") != "2024-03-01T11:00:00Z" {
 		t.Errorf("input %v", in)
 	}
@@ -761,5 +759,54 @@ func TestQuantityUnits(t *testing.T) {
 	}
 	if _, ok := QuantityUnits("albedo"); ok {
 		t.Error("unknown quantity accepted")
+	}
+}
+
+// One name per thing: what a run was made from has the names the study
+// uses for it (its conventions and files sections) and the same name in
+// provenance.json, summary.json and the NetCDF global attributes; the
+// names of format 3 (metrics_conventions, inputs, input_files, study
+// {text, hash}, the time_axis object) are gone, and the provenance's time
+// object is named after the time coordinate it describes.
+func TestProvenanceNamesAreTheStudys(t *testing.T) {
+	f := newFixture(t)
+	dir, _ := f.write(t)
+	p := readJSON(t, filepath.Join(dir, ProvenanceJSON))
+	s := readJSON(t, filepath.Join(dir, SummaryJSON))
+	nc, err := netcdf.Open(filepath.Join(dir, MapsNC))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer nc.Close()
+	for _, name := range []string{vocab.Conventions, vocab.Files, vocab.StudyHash} {
+		if _, ok := p[name]; !ok {
+			t.Errorf("provenance.json has no %q", name)
+		}
+		if _, err := nc.Attr(name); err != nil {
+			t.Errorf("maps.nc has no global attribute %q: %v", name, err)
+		}
+	}
+	if get(t, s, vocab.StudyHash) != get(t, p, vocab.StudyHash) {
+		t.Errorf("summary.json and provenance.json disagree on %s", vocab.StudyHash)
+	}
+	if textAttr(t, nc.Attr, vocab.Conventions) != get(t, p, vocab.Conventions) {
+		t.Errorf("maps.nc and provenance.json disagree on %s", vocab.Conventions)
+	}
+	for _, old := range []string{"metrics_conventions", "inputs", "input_files", "time_axis"} {
+		if _, ok := p[old]; ok {
+			t.Errorf("provenance.json still has %q", old)
+		}
+		if _, err := nc.Attr(old); err == nil {
+			t.Errorf("maps.nc still has the global attribute %q", old)
+		}
+	}
+	if _, ok := get(t, p, vocab.Study).(string); !ok {
+		t.Errorf("provenance.json study is %T, want the study text", get(t, p, vocab.Study))
+	}
+	if get(t, p, "time", "units") != f.meta.TimeUnits || get(t, p, "time", "calendar") != f.meta.Calendar {
+		t.Errorf("provenance time %v, want the time coordinate's units %q and calendar %q", get(t, p, "time"), f.meta.TimeUnits, f.meta.Calendar)
+	}
+	if get(t, p, "format_version").(float64) != FormatVersion || FormatVersion < 4 {
+		t.Errorf("provenance format_version %v: the renames need version 4", get(t, p, "format_version"))
 	}
 }

@@ -10,26 +10,25 @@ import (
 )
 
 type provenance struct {
-	Format             string       `json:"format"`
-	FormatVersion      int          `json:"format_version"`
-	LidscopeVersion    string       `json:"lidscope_version"`
-	Command            string       `json:"command"`
-	Dataset            string       `json:"dataset"`
-	Title              string       `json:"title"`
-	Study              provStudy    `json:"study"`
-	MetricsConventions string       `json:"metrics_conventions"`
-	Regime             sumRegime    `json:"regime_definition"`
-	Inputs             []provInput  `json:"inputs"`
-	Run                provRun      `json:"run"`
-	Host               provHost     `json:"host"`
-	Time               provTime     `json:"time_axis"`
-	Outputs            []provOutput `json:"outputs"`
-	Notes              []string     `json:"notes"`
-}
-
-type provStudy struct {
-	Text   string `json:"text"`
-	SHA256 string `json:"hash"`
+	Format          string `json:"format"`
+	FormatVersion   int    `json:"format_version"`
+	LidscopeVersion string `json:"lidscope_version"`
+	Command         string `json:"command"`
+	Dataset         string `json:"dataset"`
+	Title           string `json:"title"`
+	// Study, StudyHash, Conventions and Files carry the names the study
+	// and the NetCDF files use for the same things (vocab).
+	Study       string      `json:"study"`
+	StudyHash   string      `json:"study_hash"`
+	Conventions string      `json:"conventions"`
+	Regime      sumRegime   `json:"regime_definition"`
+	Files       []provInput `json:"files"`
+	Run         provRun     `json:"run"`
+	Host        provHost    `json:"host"`
+	// Time describes the time coordinate (as the NetCDF variable time).
+	Time    provTime     `json:"time"`
+	Outputs []provOutput `json:"outputs"`
+	Notes   []string     `json:"notes"`
 }
 
 type provInput struct {
@@ -85,10 +84,10 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 	p := provenance{
 		Format: ProvenanceFormat, FormatVersion: FormatVersion,
 		LidscopeVersion: m.Version, Command: m.Command, Dataset: m.Dataset, Title: m.Title,
-		Study:              provStudy{Text: m.Study, SHA256: m.StudyHash},
-		MetricsConventions: m.MetricsConventions,
-		Inputs:             []provInput{},
-		Run:                provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}, Piece: m.Piece, Batch: m.Batch},
+		Study: m.Study, StudyHash: m.StudyHash,
+		Conventions: m.MetricsConventions,
+		Files:       []provInput{},
+		Run:         provRun{Start: rfc3339(m.Start), End: rfc3339(m.End), Duration: num{Value: math.NaN(), Units: "s"}, Piece: m.Piece, Batch: m.Batch},
 		Host: provHost{OS: runtime.GOOS, Arch: runtime.GOARCH, GoVersion: runtime.Version(),
 			CPUs: jsonnum.Count(runtime.NumCPU()), NetCDF: netcdf.LibVersion()},
 		Time:    provTime{Units: m.TimeUnits, Calendar: m.Calendar, Steps: jsonnum.Count(len(c.acc.Series)), Bounds: "none"},
@@ -103,7 +102,7 @@ func (c *checked) provenance(notes []string, outs []provOutput) provenance {
 		p.Time.Bounds = "given by the run"
 	}
 	for _, f := range m.Inputs {
-		p.Inputs = append(p.Inputs, provInput{Role: f.Role, Path: f.Path, Size: num{Value: float64(f.Size), Units: "byte"}, Modified: rfc3339(f.ModTime), SHA256: f.SHA256})
+		p.Files = append(p.Files, provInput{Role: f.Role, Path: f.Path, Size: num{Value: float64(f.Size), Units: "byte"}, Modified: rfc3339(f.ModTime), SHA256: f.SHA256})
 	}
 	return p
 }

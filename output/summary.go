@@ -12,11 +12,16 @@ import (
 // Format names and versions of the JSON files, so that readers can check
 // what they parse. Version 2 names the configuration a study (study_hash,
 // study, metrics_conventions), where version 1 used an earlier word;
-// version 3 uses the one table of names (package vocab).
+// version 3 uses the one table of names (package vocab); version 4 names
+// what a run was made from as the study does and in one way in every file
+// (provenance.json: conventions, files, study and study_hash, time for the
+// time coordinate; the NetCDF files: conventions and files), where version
+// 3 had metrics_conventions, inputs (input_files), study {text, hash} and
+// time_axis.
 const (
 	SummaryFormat    = "lidscope-summary"
 	ProvenanceFormat = "lidscope-provenance"
-	FormatVersion    = 3
+	FormatVersion    = 4
 )
 
 type summary struct {

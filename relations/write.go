@@ -187,7 +187,7 @@ func globalAttrs(r *Results, meta Meta) map[string]any {
 		vocab.TimeSteps:                          r.Steps,
 		vocab.RegimeIndex:                        regimeOrder(),
 	}
-	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, "study_hash": meta.StudyHash} {
+	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, vocab.StudyHash: meta.StudyHash} {
 		if v != "" {
 			m[k] = v
 		}

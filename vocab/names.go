@@ -58,6 +58,26 @@ const (
 	RelationshipsMode = "relationships_mode"
 )
 
+// Provenance names: what a run was made from, in every output (NetCDF
+// global attributes, JSON keys) under the names the study itself uses for
+// them (its conventions and files sections).
+const (
+	// Conventions: the metrics conventions text (metrics.Conventions.Text),
+	// the study's conventions section resolved. In NetCDF it sits beside
+	// CF's own Conventions attribute ("CF-1.10"), which it is not.
+	Conventions = "conventions"
+	// Files: the input files read, each with its role, path, size and
+	// SHA-256 (the study's files section).
+	Files = "files"
+	// Study is the resolved study text; StudyHash its SHA-256.
+	Study     = "study"
+	StudyHash = "study_hash"
+	// TimeAxisNote is the NetCDF global attribute that says the time
+	// axis is a 12-month climatology; provenance.json describes the time
+	// coordinate itself under "time" (units, calendar, time_steps, bounds).
+	TimeAxisNote = "time_axis"
+)
+
 // Verdict words: one spelling in console output, CSV and JSON.
 const (
 	// Within: the candidate's estimate lies within the combined interval
