@@ -22,12 +22,14 @@ import (
 	"lidscope/calendar"
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/factors"
 	"lidscope/figures"
 	"lidscope/netcdf"
 	"lidscope/output"
 	"lidscope/pipeline"
 	"lidscope/relations"
 	"lidscope/runfolder"
+	"lidscope/vocab"
 )
 
 // Options control a run.
@@ -143,6 +145,10 @@ type Outcome struct {
 	// NoRel says why the run has no relationship analysis ("" when it has
 	// one; Relations and RelAcc are then nil).
 	NoRel string
+	// Factors are the factor regressions of FacAcc (nil without a
+	// factors section).
+	Factors *factors.Results
+	FacAcc  *factors.Acc
 	// Plots says whether the study asks for figures.
 	Plots bool
 }
@@ -189,7 +195,7 @@ func RunDataset(ctx context.Context, r *config.Study, d *config.Dataset, out str
 // KnownNames are the names a run folder holds: the result files, the run
 // state and the figures folder.
 func KnownNames() []string {
-	return append(append(append(output.OutputNames(), relations.OutputNames()...), StateFile), figures.DefaultDirName)
+	return append(append(append(append(output.OutputNames(), relations.OutputNames()...), factors.OutputNames()...), StateFile), figures.DefaultDirName)
 }
 
 // CreateFolder prepares writing a run folder (runfolder.Create): the
@@ -266,6 +272,7 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		}
 	}
 	var rel *relations.Acc
+	var fac *factors.Acc
 	if noRel == "" {
 		plan.NewSinks = func(l accumulate.Layout) ([]pipeline.StepSink, error) {
 			a, err := relations.New(relCfg, l, clim)
@@ -273,8 +280,17 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 				return nil, fmt.Errorf("relationship analysis: %w", err)
 			}
 			rel = a
-			return []pipeline.StepSink{a}, nil
+			sinks := []pipeline.StepSink{a}
+			if r.Factors.On {
+				if fac, err = factors.New(FactorsConfig(r, d), l, clim); err != nil {
+					return nil, fmt.Errorf("factor regressions: %w", err)
+				}
+				sinks = append(sinks, fac)
+			}
+			return sinks, nil
 		}
+	} else if r.Factors.On {
+		return nil, fmt.Errorf("dataset %s: the factors section needs the relationship analysis for its anomalies, and the run has none: %s", d.Name, noRel)
 	}
 	res, err := pipeline.Run(ctx, plan)
 	if err != nil {
@@ -308,7 +324,31 @@ func compute(ctx context.Context, r *config.Study, d *config.Dataset, plan pipel
 		meta.Absent = append(meta.Absent, noRel)
 		log.Info("note", "dataset", d.Name, "text", noRel)
 	}
-	return &Outcome{Dataset: d.Name, Result: res, Meta: meta, Acc: res.Acc, Relations: relRes, RelAcc: rel, NoRel: noRel, Plots: r.Output.Plots}, nil
+	o := &Outcome{Dataset: d.Name, Result: res, Meta: meta, Acc: res.Acc, Relations: relRes, RelAcc: rel, NoRel: noRel, Plots: r.Output.Plots, FacAcc: fac}
+	if fac != nil {
+		o.Factors = fac.Results(quantityUnits)
+	}
+	return o, nil
+}
+
+// quantityUnits are the units of a quantity of the table of names.
+func quantityUnits(q string) string {
+	if row, ok := vocab.Lookup(q); ok {
+		return row.Units
+	}
+	return ""
+}
+
+// FactorsConfig is the factor regressions' configuration of dataset d.
+func FactorsConfig(r *config.Study, d *config.Dataset) factors.Config {
+	f := r.FactorsFor(d)
+	c := factors.Config{Factors: f.Use, Response: f.Response, Method: f.Method, Penalties: f.Penalties, Level: f.Level,
+		CellFoldYears: f.CellFoldYears, Maps: f.Maps, Detrend: r.Relations.Detrend,
+		Bootstrap: factors.Bootstrap{Replicates: f.Bootstrap.Replicates, BlockYears: f.Bootstrap.BlockYears, Seed: f.Bootstrap.Seed}}
+	for _, rg := range r.Analysis.Regions {
+		c.Regions = append(c.Regions, accumulate.Region{Name: rg.Name, South: rg.South, North: rg.North, West: rg.West, East: rg.East})
+	}
+	return c
 }
 
 // NoRelations says why a run of plan has no relationship analysis ("" when
@@ -348,7 +388,19 @@ func WriteRun(ctx context.Context, st *runfolder.Stage, o *Outcome, opt Options)
 		}
 		names = append(names, relations.OutputNames()...)
 	}
-	if err := stageState(st, o.Meta, o.Acc, o.RelAcc, o.NoRel); err != nil {
+	if o.Factors != nil {
+		meta := o.Meta
+		err := factors.Stage(st, out, o.Factors, factors.Meta{Dataset: meta.Dataset, Title: "lidscope cloud-controlling factors: " + meta.Dataset, Version: meta.Version,
+			Command: opt.Command, StudyHash: meta.StudyHash, Period: meta.Period, Source: "lidscope " + meta.Version, MetricsConventions: meta.MetricsConventions})
+		if err != nil {
+			return nil, fmt.Errorf("writing the factor results: %w", err)
+		}
+		names = append(names, factors.JSONFile, factors.CSVFile)
+		if o.Factors.Maps != nil {
+			names = append(names, factors.MapsFile)
+		}
+	}
+	if err := stageState(st, o.Meta, o.Acc, o.RelAcc, o.NoRel, o.FacAcc); err != nil {
 		return nil, fmt.Errorf("writing the run state: %w", err)
 	}
 	names = append(names, StateFile)

@@ -18,6 +18,7 @@ import (
 	"time"
 
 	"lidscope/accumulate"
+	"lidscope/factors"
 	"lidscope/output"
 	"lidscope/pipeline"
 	"lidscope/relations"
@@ -66,12 +67,15 @@ type runState struct {
 	// NoRelations, when set, says why the run has no relationship
 	// analysis (an optional input absent); Rel is then empty.
 	NoRelations string
+	// Factors is the factor accumulator (factors.Acc.Encode); empty
+	// without a factors section.
+	Factors []byte
 }
 
 // encodeState is the whole run state file.
 // rel is nil exactly when the run has no relationship analysis, and noRel
 // then says why.
-func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) ([]byte, error) {
+func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string, fac *factors.Acc) ([]byte, error) {
 	if rel == nil && noRel == "" {
 		return nil, fmt.Errorf("no relationship accumulator to save")
 	}
@@ -84,8 +88,15 @@ func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRe
 			return nil, err
 		}
 	}
+	var fb []byte
+	if fac != nil {
+		var err error
+		if fb, err = fac.EncodeBytes(); err != nil {
+			return nil, err
+		}
+	}
 	var body bytes.Buffer
-	if err := gob.NewEncoder(&body).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel}); err != nil {
+	if err := gob.NewEncoder(&body).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel, Factors: fb}); err != nil {
 		return nil, fmt.Errorf("encoding the run state: %w", err)
 	}
 	sum := sha256.Sum256(body.Bytes())
@@ -96,8 +107,8 @@ func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRe
 }
 
 // stageState writes the run state into the run's staging folder.
-func stageState(st *runfolder.Stage, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string) error {
-	b, err := encodeState(meta, acc, rel, noRel)
+func stageState(st *runfolder.Stage, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string, fac *factors.Acc) error {
+	b, err := encodeState(meta, acc, rel, noRel, fac)
 	if err != nil {
 		return fmt.Errorf("writing the run state in %s: %w", st.Target(), err)
 	}
@@ -152,6 +163,7 @@ type loadedState struct {
 	acc   *accumulate.Acc
 	rel   *relations.Acc
 	noRel string
+	fac   *factors.Acc
 }
 
 // readState reads the run state at path, with the relationship
@@ -186,6 +198,11 @@ func readState(p string, withRel bool) (loadedState, error) {
 		}
 		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(s.Rel)); err != nil {
 			return loadedState{}, damaged(p, err.Error())
+		}
+		if len(s.Factors) > 0 {
+			if ls.fac, err = factors.DecodeAcc(bytes.NewReader(s.Factors)); err != nil {
+				return loadedState{}, damaged(p, err.Error())
+			}
 		}
 	}
 	return ls, nil
@@ -264,6 +281,7 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 		rel  *relations.Acc
 		// noRel: the run has no relationship analysis, and why
 		noRel string
+		fac   *factors.Acc
 	}
 	var runs []run
 	var problems []string
@@ -286,7 +304,7 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			problems = append(problems, fmt.Sprintf("%s: the run has no time steps", d))
 			continue
 		}
-		runs = append(runs, run{d, s.meta, s.acc, s.rel, s.noRel})
+		runs = append(runs, run{d, s.meta, s.acc, s.rel, s.noRel, s.fac})
 	}
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
@@ -307,6 +325,9 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 		check("calendar", a.Calendar, b.Calendar)
 		check("time units", a.TimeUnits, b.TimeUnits)
 		check("quantities", a.Absent, b.Absent)
+		if (first.fac == nil) != (r.fac == nil) {
+			problems = append(problems, fmt.Sprintf("factor regressions: only one of %s and %s has them (a factors section in its study)", first.dir, r.dir))
+		}
 		if (first.rel == nil) != (r.rel == nil) {
 			problems = append(problems, fmt.Sprintf("relationship analysis: %s has %s, %s has %s", first.dir, relWord(first.noRel), r.dir, relWord(r.noRel)))
 		}
@@ -335,7 +356,7 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 	if len(problems) > 0 {
 		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
-	acc, rel := first.acc, first.rel
+	acc, rel, fac := first.acc, first.rel, first.fac
 	meta := first.meta
 	hashes := []string{}
 	studies := []string{}
@@ -358,6 +379,11 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 					"run the whole record in one run, run it with --jobs (which builds one climatology of the whole record for every piece), or use relationships.mode: %s for runs meant to be merged (%v)", relations.Anomaly, r.dir, relations.Climatological, err)
 			}
 			return Report{}, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
+		}
+		if fac != nil {
+			if err := fac.Merge(r.fac); err != nil {
+				return Report{}, fmt.Errorf("merging the factor regressions of %s: %w", r.dir, err)
+			}
 		}
 		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)
 		if meta.TimeBounds != nil && r.meta.TimeBounds != nil {
@@ -414,7 +440,10 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
 		}
 	}
-	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel, Plots: as != nil && as.Plots}
+	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel, Plots: as != nil && as.Plots, FacAcc: fac}
+	if fac != nil {
+		o.Factors = fac.Results(quantityUnits)
+	}
 	files, err := WriteRun(ctx, st, o, opt)
 	if err != nil {
 		return Report{}, err

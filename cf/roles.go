@@ -32,6 +32,8 @@ const (
 	RoleLandFraction Role = vocab.RoleLandFraction
 	RoleSeaIce       Role = vocab.RoleSeaIce
 	RolePrecip       Role = vocab.RolePrecipitation
+	RoleEastWind     Role = vocab.RoleEastwardWind  // near-surface eastward wind
+	RoleNorthWind    Role = vocab.RoleNorthwardWind // near-surface northward wind
 )
 
 // roleSpec says how a role is recognised and in which units it is read.
@@ -63,6 +65,8 @@ var roleSpecs = []roleSpec{
 	{RoleLandFraction, units.Fraction, []string{"land_area_fraction", "land_binary_mask"}, []string{"sftlf", "lsm", "lsmask", "landsea", "land_sea_mask", "lsm_frac"}, -1},
 	{RoleSeaIce, units.Fraction, []string{"sea_ice_area_fraction"}, []string{"siconc", "sic", "ci", "seaice", "ice_fraction"}, -1},
 	{RolePrecip, units.Precipitation, []string{"precipitation_flux", "lwe_precipitation_rate"}, []string{"pr", "precip", "prate", "tp"}, -1},
+	{RoleEastWind, units.Speed, []string{"eastward_wind"}, []string{"uas", "u10", "10u"}, -1},
+	{RoleNorthWind, units.Speed, []string{"northward_wind"}, []string{"vas", "v10", "10v"}, -1},
 }
 
 // Roles lists every role lidscope knows, in a stable order.

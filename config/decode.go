@@ -347,6 +347,7 @@ func (d *decoder) decode(tree map[string]any, r *Study) {
 	}
 	d.checkGridTarget(r)
 	d.relationships(sub(tree, "relationships"), r)
+	d.factors(sub(tree, "factors"), sub(tree, "relationships"), r)
 }
 
 // fileOrder returns the keys of table m (at path) in the order the study

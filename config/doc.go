@@ -315,6 +315,29 @@
 //   - partial: the two predictors of the two-predictor regression
 //     (default [eis, sst]); different, among the predictors above.
 //
+// The factors section (off without it) fits the cloud-controlling factor
+// regressions of package factors on deseasonalised monthly anomalies, so
+// it needs the relationship analysis on and in anomaly mode (an unset
+// relationships.mode becomes anomaly; an explicit climatological one is
+// an error):
+//   - use: the factors, in output order: sst, eis, lts, rh700 (input
+//     relative_humidity at 700 hPa, or specific_humidity and
+//     air_temperature), omega700 (input omega at 700 hPa), t_adv and
+//     wind_speed (inputs eastward_wind and northward_wind). A factor whose
+//     inputs a dataset lacks is an error at its line.
+//   - response: analysis_cloud (default: each dataset's cloud), low_cloud,
+//     cloud or toa_sw_up.
+//   - method: ridge (default; penalty by cross-validation over years,
+//     Ceppi & Nowack 2021) or ols; penalties: the ridge grid
+//     (correlation-matrix scale, default 0 and 10^-4…10^2).
+//   - level: the interval level (default 0.95).
+//   - cell_fold_years: the per-cell cross-validation blocks, years
+//     (default 8: five blocks for a 40-year record).
+//   - maps: per-cell maps of the band's ocean cells (default true).
+//   - bootstrap: replicates (default 0), block_years (default 1) and seed
+//     (default 1, recorded) of the block bootstrap over whole years of the
+//     regional fits.
+//
 // Everything is checked here with its line; relations.Config.Validate of
 // every dataset's configuration is then asked too, and anything it still
 // finds is reported against the relationships key. Region and patch names

@@ -212,6 +212,7 @@ func (ds *Dataset) needed(r *Study) []cf.Role {
 	if r.Relations.OmegaBins {
 		out = append(out, cf.RoleOmega)
 	}
+	out = append(out, ds.factorInputs(r)...)
 	return out
 }
 

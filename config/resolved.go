@@ -84,6 +84,9 @@ func (r *Study) Resolved() string {
 		"output":        object{"dir": r.rel(r.Output.Dir), "plots": r.Output.Plots},
 		"relationships": resolvedRelations(r.Relations),
 	}
+	if r.Factors.On {
+		out["factors"] = resolvedFactors(r.Factors)
+	}
 	if a.Rule == regimes.RuleSSTPercentile {
 		an := out["analysis"].(object)
 		an["rule"], an["percentile"] = string(a.Rule), a.Percentile

@@ -169,6 +169,11 @@ var schema = table(map[string]*key{
 		"decorrelation_length": scalar,
 		"partial":              strs,
 	}),
+	"factors": table(map[string]*key{
+		"use": strs, "response": str, "method": str, "penalties": numbers, "level": number,
+		"cell_fold_years": number, "maps": boolean,
+		"bootstrap": table(map[string]*key{"replicates": number, "block_years": number, "seed": number}),
+	}),
 })
 
 // predictorNames are the predictors the relationship analysis bins and

@@ -52,6 +52,8 @@ type Study struct {
 	// off (relationships.enabled: false): runs then give the regime
 	// statistics only, and skip the relationship pass.
 	RelationsOff bool
+	// Factors is the factors section (Factors.On false without one).
+	Factors Factors
 	// Overrides lists the values set by flags and environment variables,
 	// in the order applied (environment first, then flags).
 	Overrides []Override

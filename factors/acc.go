@@ -107,7 +107,7 @@ type StepMeans struct {
 	Year, Month int
 	W           []float64 // [d*nslot+g] Σ area of the complete cells
 	Anom        []float64 // [(d*nslot+g)*K + k] mean anomaly
-	Raw         []float64 // [(d*nslot+g)*p + k] mean raw factor value
+	Raw         []float64 // [(d*nslot+g)*K + k] mean raw factor (and response) value
 }
 
 // lagStat is the mergeable part of a lag-1 autocorrelation of one cell's
@@ -345,7 +345,7 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 	}
 	nd := len(a.doms)
 	p := len(a.fq)
-	sm := StepMeans{Year: s.Year, Month: s.Month, W: make([]float64, nd*nslot), Anom: make([]float64, nd*nslot*a.K), Raw: make([]float64, nd*nslot*p)}
+	sm := StepMeans{Year: s.Year, Month: s.Month, W: make([]float64, nd*nslot), Anom: make([]float64, nd*nslot*a.K), Raw: make([]float64, nd*nslot*a.K)}
 	t := monthIndex(s.Year, s.Month)
 	block := int32(math.Floor(float64(s.Year) / float64(a.cfg.CellFoldYears)))
 	vec, raw := a.vec, a.raw
@@ -398,7 +398,7 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 				for k := range an {
 					an[k] += (vec[k] - an[k]) * f
 				}
-				rw := sm.Raw[j*p : (j+1)*p]
+				rw := sm.Raw[j*a.K : (j+1)*a.K]
 				for k := range rw {
 					rw[k] += (raw[k] - rw[k]) * f
 				}

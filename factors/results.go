@@ -48,7 +48,10 @@ type RegionFit struct {
 	R1Resid float64 // lag-1 autocorrelation of the residual series
 	Sens    []Sensitivity
 	Cov     []float64 // p×p coefficient covariance, physical units
-	Note    string
+	// RespMean and RespMeanSE: time mean of the raw domain-mean response
+	// and its standard error (as Sensitivity.Mean, MeanSE).
+	RespMean, RespMeanSE float64
+	Note                 string
 }
 
 // Maps are the per-cell fits ([factor][cell] and [cell], row-major
@@ -133,7 +136,7 @@ func (a *Acc) series(j int, t0 int64, T, p int) (z [][]float64, raw [][]float64,
 	for k := range z {
 		z[k] = make([]float64, T)
 	}
-	raw = make([][]float64, p)
+	raw = make([][]float64, a.K)
 	for k := range raw {
 		raw[k] = make([]float64, T)
 	}
@@ -147,8 +150,8 @@ func (a *Acc) series(j int, t0 int64, T, p int) (z [][]float64, raw [][]float64,
 			for k := 0; k < a.K; k++ {
 				z[k][t] = s.Anom[j*a.K+k]
 			}
-			for k := 0; k < p; k++ {
-				raw[k][t] = s.Raw[j*p+k]
+			for k := 0; k < a.K; k++ {
+				raw[k][t] = s.Raw[j*a.K+k]
 			}
 		}
 	}
@@ -199,29 +202,9 @@ func (a *Acc) regionFit(res *Results, j int, t0 int64, T, p int) RegionFit {
 		fit.Sens[k] = Sensitivity{Factor: f.Name, Units: f.Units, CoefUnits: slopeUnits(res.ResponseUnits, f.Units),
 			Coef: math.NaN(), CoefSD: math.NaN(), SE: math.NaN(), Lo: math.NaN(), Hi: math.NaN(), VIF: math.NaN(), SD: math.NaN(),
 			Mean: math.NaN(), MeanSE: math.NaN(), BootLo: math.NaN(), BootHi: math.NaN()}
-		// raw means and their standard errors
-		var s, n float64
-		for t := 0; t < T; t++ {
-			if present[t] {
-				s += raw[k][t]
-				n++
-			}
-		}
-		if n > 0 {
-			m := s / n
-			var ss float64
-			for t := 0; t < T; t++ {
-				if present[t] {
-					ss += (raw[k][t] - m) * (raw[k][t] - m)
-				}
-			}
-			fit.Sens[k].Mean = m
-			if r1 := relations.Lag1(raw[k], present); r1 == r1 && n > 1 {
-				ne := relations.EffectiveSizeMean(n, r1)
-				fit.Sens[k].MeanSE = math.Sqrt(ss / (n - 1) / ne)
-			}
-		}
+		fit.Sens[k].Mean, fit.Sens[k].MeanSE = meanSE(raw[k], present)
 	}
+	fit.RespMean, fit.RespMeanSE = meanSE(raw[p], present)
 	fit.Cov = make([]float64, p*p)
 	for i := range fit.Cov {
 		fit.Cov[i] = math.NaN()
@@ -436,4 +419,32 @@ func (a *Acc) maps(res *Results) *Maps {
 		res.Notes = append(res.Notes, "some cells had samples but no fit (a factor without spread, or too few samples)")
 	}
 	return m
+}
+
+// meanSE is the mean of the present values of z and its standard error
+// s/√N_eff with N_eff = n(1 − r₁)/(1 + r₁) (Bretherton et al. 1999, eq.
+// 30); NaN where it cannot be estimated.
+func meanSE(z []float64, present []bool) (float64, float64) {
+	var s, n float64
+	for t, v := range z {
+		if present[t] {
+			s += v
+			n++
+		}
+	}
+	if n == 0 {
+		return math.NaN(), math.NaN()
+	}
+	m := s / n
+	var ss float64
+	for t, v := range z {
+		if present[t] {
+			ss += (v - m) * (v - m)
+		}
+	}
+	r1 := relations.Lag1(z, present)
+	if r1 != r1 || n < 2 {
+		return m, math.NaN()
+	}
+	return m, math.Sqrt(ss / (n - 1) / relations.EffectiveSizeMean(n, r1))
 }

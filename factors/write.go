@@ -97,6 +97,8 @@ type jsonFit struct {
 	R1Resid jsonnum.Num  `json:"residual_lag1_autocorrelation"`
 	Sens    []jsonSens   `json:"sensitivities"`
 	Cov     [][]*float64 `json:"covariance"`
+	RMean   jsonnum.Num  `json:"response_mean"`
+	RMeanSE jsonnum.Num  `json:"response_mean_stderr"`
 	Note    string       `json:"note"`
 }
 
@@ -131,7 +133,16 @@ type jsonDoc struct {
 	Notes         []string     `json:"notes"`
 }
 
-func num(x float64, u string) jsonnum.Num { return jsonnum.Num{Value: x, Units: u} }
+// num is a JSON number; ±Inf (a singular fit's VIF, say) is written as
+// null like NaN.
+func num(x float64, u string) jsonnum.Num { return jsonnum.Num{Value: finite(x), Units: u} }
+
+func finite(x float64) float64 {
+	if math.IsInf(x, 0) {
+		return math.NaN()
+	}
+	return x
+}
 
 func toJSON(r *Results, meta Meta) jsonDoc {
 	d := jsonDoc{Format: "lidscope-factors", FormatVersion: FormatVersion, Dataset: meta.Dataset, StudyHash: meta.StudyHash, Period: meta.Period,
@@ -146,7 +157,8 @@ func toJSON(r *Results, meta Meta) jsonDoc {
 	ru := r.ResponseUnits
 	for _, f := range r.Fits {
 		jf := jsonFit{Domain: f.Domain, Regime: f.Regime, N: jsonnum.Count(f.N), NEff: num(f.NEff, vocab.UnitOne), Penalty: num(f.Penalty, vocab.UnitOne),
-			R2: num(f.R2, vocab.UnitOne), CVR2: num(f.CVR2, vocab.UnitOne), R1Resid: num(f.R1Resid, vocab.UnitOne), Note: f.Note}
+			R2: num(f.R2, vocab.UnitOne), CVR2: num(f.CVR2, vocab.UnitOne), R1Resid: num(f.R1Resid, vocab.UnitOne), Note: f.Note,
+			RMean: num(f.RespMean, ru), RMeanSE: num(f.RespMeanSE, ru)}
 		for _, s := range f.Sens {
 			jf.Sens = append(jf.Sens, jsonSens{Factor: s.Factor, Coef: num(s.Coef, s.CoefUnits), CoefSD: num(s.CoefSD, ru), SE: num(s.SE, s.CoefUnits),
 				Lo: num(s.Lo, s.CoefUnits), Hi: num(s.Hi, s.CoefUnits), VIF: num(s.VIF, vocab.UnitOne), SD: num(s.SD, s.Units),
@@ -229,6 +241,11 @@ func writeNC(path string, r *Results, meta Meta) error {
 	}
 	var vs []out
 	add := func(name, units, long string, data []float64) {
+		fin := make([]float64, len(data))
+		for i, x := range data {
+			fin[i] = finite(x)
+		}
+		data = fin
 		vs = append(vs, out{cfwrite.VarSpec{Name: name, Dims: dims, Units: units, LongName: long, Type: cfwrite.Float64}, data})
 	}
 	resp, ru := r.Response, r.ResponseUnits
@@ -371,7 +388,8 @@ func ReadRun(dir string) (*Results, error) {
 	p := len(r.Factors)
 	for _, jf := range d.Fits {
 		f := RegionFit{Domain: jf.Domain, Regime: jf.Regime, N: int64(jf.N.Value), NEff: jf.NEff.Value, Penalty: jf.Penalty.Value,
-			R2: jf.R2.Value, CVR2: jf.CVR2.Value, R1Resid: jf.R1Resid.Value, Note: jf.Note}
+			R2: jf.R2.Value, CVR2: jf.CVR2.Value, R1Resid: jf.R1Resid.Value, Note: jf.Note,
+			RespMean: jf.RMean.Value, RespMeanSE: jf.RMeanSE.Value}
 		if len(jf.Sens) != p || len(jf.Cov) != p {
 			return nil, fmt.Errorf("factors: %s: the fit of %s %s has %d sensitivities and a %d-row covariance for %d factors", filepath.Join(dir, JSONFile), f.Domain, f.Regime, len(jf.Sens), len(jf.Cov), p)
 		}

@@ -162,3 +162,12 @@ func (f SVPFormula) DewPoint(T, rh float64) float64 {
 	}
 	return td
 }
+
+// RelativeHumidityQ returns the relative humidity over liquid water, as a
+// fraction, of air with specific humidity q, kg/kg, at temperature T, K,
+// and pressure p, Pa: e/es(T), with e = q p/(ε + (1 − ε) q) ([VapourPressure])
+// and es the formula's saturation vapour pressure (WMO definition of
+// relative humidity as a ratio of vapour pressures; common practice).
+func (f SVPFormula) RelativeHumidityQ(q, T, p float64, c Constants) float64 {
+	return VapourPressure(q, p, c) / f.Pressure(T)
+}

@@ -6,6 +6,7 @@ import (
 	"sync"
 
 	"lidscope/accumulate"
+	"lidscope/factors"
 	"lidscope/metrics"
 	"lidscope/regimes"
 	"lidscope/vocab"
@@ -40,6 +41,8 @@ type stepper struct {
 	workers int
 
 	kq       []vocab.Quantity // the kernel quantities (vocab.Computed)
+	fq       []string         // the factor quantities the run adds
+	f64      [3][]float64     // scratch: SST, u, v of the advection
 	outs     [2]stepOut
 	oceanNow []bool
 }
@@ -52,14 +55,25 @@ type stepOut struct {
 	// (vocab.Computed of the conventions, in table order: lts, eis and
 	// ectei when on); nil without T700.
 	kernel [][]float32
+	// factor are the slabs of the factor quantities the run computes
+	// (Plan.factorQuantities order; nil for those read as they are).
+	factor [][]float32
 }
 
 func newStepper(p *Plan, in *inputs, kern *metrics.Kernel, ocean []bool, bandW []float64) *stepper {
 	n := in.grid.Size()
 	s := &stepper{p: p, in: in, kern: kern, ocean: ocean, bandW: bandW, workers: p.Workers, oceanNow: make([]bool, n)}
 	s.kq = s.computed()
+	s.fq = p.factorQuantities(nil)
 	for o := range s.outs {
 		out := &s.outs[o]
+		for _, f := range s.fq {
+			var x []float32
+			if f == vocab.TAdv || f == vocab.WindSpeed || (f == vocab.RH700 && in.fRH == nil) {
+				x = make([]float32, n)
+			}
+			out.factor = append(out.factor, x)
+		}
 		out.rel, out.reg = make([]float32, n), make([]regimes.Regime, n)
 		if in.t700 != nil {
 			for range s.computed() {
@@ -231,6 +245,7 @@ func (s *stepper) prepare(st stepRef, v [][]float32, o int) (*accumulate.Step, m
 	for _, e := range in.extras {
 		values = append(values, v[e.slot])
 	}
+	values = append(values, s.factorValues(v, sstV, out)...)
 	step := &accumulate.Step{Label: st.label, Year: st.year, Month: st.month, TropMean: mean, Rel: out.rel, Regime: out.reg, Values: values, Classifier: stepCls}
 	return step, mi, nil
 }
@@ -289,4 +304,67 @@ func (s *stepper) runBlocks(step *accumulate.Step, mi metrics.SlabInput, o int, 
 		return rejected, fmt.Errorf("time step %s: %w", step.Label, firstErr)
 	}
 	return rejected, nil
+}
+
+// factorValues returns the slabs of the factor quantities (Plan.Factors):
+// rh700 as read, or from specific humidity and T700 at 700 hPa
+// (metrics.SVPFormula.RelativeHumidityQ with the conventions' formula);
+// omega700 as read; t_adv by factors.Advection of the SST of the ocean
+// columns (NaN elsewhere, so coasts take one-sided differences) by the
+// near-surface winds, periodic across the dateline on a global grid;
+// wind_speed √(u² + v²).
+func (s *stepper) factorValues(v [][]float32, sstV []float32, out *stepOut) [][]float32 {
+	if len(s.fq) == 0 {
+		return nil
+	}
+	in := s.in
+	nan := float32(math.NaN())
+	var vals [][]float32
+	for k, f := range s.fq {
+		dst := out.factor[k]
+		switch f {
+		case vocab.RH700:
+			if in.fRH != nil {
+				dst = v[in.fRH.slot]
+				break
+			}
+			q, t := v[in.fQ.slot], v[in.t700.slot]
+			c := s.p.Metrics
+			for i := range dst {
+				dst[i] = float32(c.SVP.RelativeHumidityQ(float64(q[i]), float64(t[i]), metrics.P700, c.Constants))
+			}
+		case vocab.Omega700:
+			dst = v[in.fOmega.slot]
+		case vocab.WindSpeed:
+			u, w := v[in.fU.slot], v[in.fV.slot]
+			for i := range dst {
+				dst[i] = float32(math.Hypot(float64(u[i]), float64(w[i])))
+			}
+		case vocab.TAdv:
+			n := len(sstV)
+			for j := range s.f64 {
+				if len(s.f64[j]) != n {
+					s.f64[j] = make([]float64, n)
+				}
+			}
+			u, w := v[in.fU.slot], v[in.fV.slot]
+			for i := 0; i < n; i++ {
+				x := math.NaN()
+				if s.oceanNow[i] {
+					x = float64(sstV[i])
+				}
+				s.f64[0][i], s.f64[1][i], s.f64[2][i] = x, float64(u[i]), float64(w[i])
+			}
+			g := in.grid
+			adv, err := factors.Advection(s.f64[0], s.f64[1], s.f64[2], g.Lat, g.Lon, factors.PeriodicLongitudes(g.Lon))
+			for i := range dst {
+				dst[i] = nan
+				if err == nil {
+					dst[i] = float32(adv[i])
+				}
+			}
+		}
+		vals = append(vals, dst)
+	}
+	return vals
 }

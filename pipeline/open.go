@@ -37,7 +37,9 @@ type inputs struct {
 	// Optional fields (nil when the plan has none).
 	surfaceAir, surfacePressure, humidity, t850, q700, seaIce *field
 	extras                                                    []*field
-	mask                                                      *field // the static ocean mask (fraction or categorical)
+	// factor inputs (nil when not used)
+	fRH, fQ, fOmega, fU, fV *field
+	mask                    *field // the static ocean mask (fraction or categorical)
 
 	// all is every field in a fixed order: sst, t700, cloud, the extras,
 	// the optional fields, the mask. The grid check, the regridding notes
@@ -147,6 +149,21 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		}
 		in.extras = append(in.extras, fd)
 	}
+	var factorFields []*field
+	if fi := p.Factors; fi != nil {
+		for _, x := range []struct {
+			in  *Input
+			dst **field
+		}{{fi.RH, &in.fRH}, {fi.Q, &in.fQ}, {fi.Omega, &in.fOmega}, {fi.U, &in.fU}, {fi.V, &in.fV}} {
+			if x.in == nil {
+				continue
+			}
+			if *x.dst, err = open(*x.in); err != nil {
+				return nil, err
+			}
+			factorFields = append(factorFields, *x.dst)
+		}
+	}
 	switch p.Ocean.Kind {
 	case OceanFraction, OceanCategorical:
 		if p.Ocean.Input == nil {
@@ -167,6 +184,7 @@ func openInputs(p *Plan) (in *inputs, err error) {
 		}
 	}
 	in.all = append(in.all, in.extras...)
+	in.all = append(in.all, factorFields...)
 	for _, o := range optional {
 		if *o.dst != nil {
 			in.all = append(in.all, *o.dst)

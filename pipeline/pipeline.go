@@ -81,6 +81,9 @@ type Plan struct {
 	SeaIce          *Input
 	MaxSeaIce       float64 // columns with more sea ice are excluded
 	Extras          []Input // further fields composited by regime (e.g. toa_sw_up)
+	// Factors are the inputs of the cloud-controlling factors (nil
+	// without a factors section); their quantities follow the extras.
+	Factors *FactorInputs
 
 	Ocean   Ocean
 	Metrics metrics.Conventions
@@ -164,7 +167,35 @@ func (p *Plan) Quantities() []string {
 	for _, e := range p.Extras {
 		q = append(q, string(e.Spec.Role))
 	}
-	return q
+	return append(q, p.factorQuantities(q)...)
+}
+
+// FactorInputs are the inputs of the cloud-controlling factors.
+type FactorInputs struct {
+	// Use are the factors of the study (sst, eis and lts are quantities
+	// of the run already; rh700, omega700, t_adv and wind_speed are added).
+	Use []string
+	// RH is relative humidity read at 700 hPa; Q specific humidity at
+	// 700 hPa (rh700 from it and T700) when RH is nil.
+	RH, Q *Input
+	Omega *Input // omega read at 700 hPa
+	U, V  *Input // near-surface wind components
+}
+
+// factorQuantities are the factor quantities the run adds to have (those
+// of Use not in have), in the order of Use.
+func (p *Plan) factorQuantities(have []string) []string {
+	if p.Factors == nil {
+		return nil
+	}
+	var out []string
+	for _, f := range p.Factors.Use {
+		switch f {
+		case vocab.RH700, vocab.Omega700, vocab.TAdv, vocab.WindSpeed:
+			out = append(out, f)
+		}
+	}
+	return out
 }
 
 // cloudQuantity is the analysis cloud's quantity name ("" without one).

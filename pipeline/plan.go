@@ -6,7 +6,9 @@ import (
 	"lidscope/accumulate"
 	"lidscope/cf"
 	"lidscope/config"
+	"lidscope/metrics"
 	"lidscope/regrid"
+	"lidscope/vocab"
 )
 
 // extraRoles are composited by regime when a dataset gives them.
@@ -87,6 +89,44 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		if role != d.Cloud && len(d.Inputs[role]) > 0 {
 			p.Extras = append(p.Extras, in(role))
 		}
+	}
+	if r.Factors.On {
+		fi := &FactorInputs{Use: append([]string(nil), r.Factors.Use...)}
+		at := func(role cf.Role, pa float64) *Input {
+			if len(d.Inputs[role]) == 0 {
+				return nil
+			}
+			return &Input{Paths: d.Inputs[role], Spec: d.SpecAt(role, pa)}
+		}
+		for _, f := range fi.Use {
+			var miss string
+			switch f {
+			case vocab.EIS, vocab.LTS:
+				if p.T700 == nil {
+					miss = "air_temperature"
+				}
+			case vocab.RH700:
+				if fi.RH = at(cf.RoleRH, metrics.P700); fi.RH == nil && p.T700 != nil {
+					fi.Q = at(cf.RoleSpecHum, metrics.P700)
+				}
+				if fi.RH == nil && fi.Q == nil {
+					miss = "relative_humidity (or specific_humidity and air_temperature)"
+				}
+			case vocab.Omega700:
+				if fi.Omega = at(cf.RoleOmega, metrics.P700); fi.Omega == nil {
+					miss = "omega"
+				}
+			case vocab.TAdv, vocab.WindSpeed:
+				fi.U, fi.V = at(cf.RoleEastWind, 0), at(cf.RoleNorthWind, 0)
+				if fi.U == nil || fi.V == nil {
+					miss = "eastward_wind and northward_wind"
+				}
+			}
+			if miss != "" {
+				return p, fmt.Errorf("dataset %s: factor %s (factors.use) needs the %s input, which the dataset's files do not give; add it to datasets.%s.files or remove %s from factors.use", d.Name, f, miss, d.Name, f)
+			}
+		}
+		p.Factors = fi
 	}
 	switch d.Ocean.Method {
 	case config.OceanWhereSST:

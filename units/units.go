@@ -33,6 +33,7 @@ const (
 	Length                        // m
 	MixingRatio                   // specific humidity or mixing ratio, kg/kg
 	Precipitation                 // precipitation rate, kg m-2 s-1 (= mm s-1 of water)
+	Speed                         // wind speed or velocity component, m s-1
 )
 
 // String names the kind.
@@ -54,6 +55,8 @@ func (k Kind) String() string {
 		return "humidity mixing ratio"
 	case Precipitation:
 		return "precipitation rate"
+	case Speed:
+		return "speed"
 	}
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
@@ -77,6 +80,8 @@ func (k Kind) SI() string {
 		return "kg kg-1"
 	case Precipitation:
 		return "kg m-2 s-1"
+	case Speed:
+		return "m s-1"
 	}
 	return ""
 }
@@ -205,6 +210,11 @@ var tables = map[Kind]map[string]entry{
 		"kg m-2 s-1": {1, 0}, "mm s-1": {1, 0}, "mm day-1": {1.0 / 86400, 0}, "mm d-1": {1.0 / 86400, 0},
 		"mm/day": {1.0 / 86400, 0}, "m s-1": {1000, 0}, "mm h-1": {1.0 / 3600, 0}, "mm hr-1": {1.0 / 3600, 0},
 	},
+	Speed: {
+		"m s-1": {1, 0}, "m/s": {1, 0}, "m s**-1": {1, 0}, "meter second-1": {1, 0}, "metre second-1": {1, 0},
+		"km h-1": {1000.0 / 3600, 0}, "km/h": {1000.0 / 3600, 0},
+		"knot": {1852.0 / 3600, 0}, "knots": {1852.0 / 3600, 0}, "kt": {1852.0 / 3600, 0}, // 1 knot = 1852 m h-1 (international nautical mile; common practice)
+	},
 }
 
 // Parse returns the conversion of unit string u, for quantity kind, to SI.
@@ -245,6 +255,8 @@ func examples(k Kind) string {
 		return `"kg kg-1", "g kg-1"`
 	case Precipitation:
 		return `"kg m-2 s-1", "mm day-1"`
+	case Speed:
+		return `"m s-1", "knots"`
 	}
 	return k.SI()
 }

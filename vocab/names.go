@@ -220,6 +220,8 @@ var plain = strings.Fields(`
 	flips flip perturbation crossing metrics conventions absent
 	committed id manifest extras
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
+	factor factors standardised vif covariance cv penalty level excludes zero use
+	cell_fold_years block_years fold without fit
 	`)
 
 // syntheticWords are the parameters and records of the synthetic demo
@@ -267,7 +269,7 @@ var statistics = []string{Mean, Std, StdErr, Count, NEff, CI, CILower, CIUpper, 
 
 var roles = []string{RoleSST, RoleAirTemperature, RoleSurfaceAirTemperature, RoleLowCloud, RoleCloud, RoleTOASWUp,
 	RoleOLR, RoleOmega, RoleSurfacePressure, RoleSeaLevelPressure, RoleRelativeHumidity, RoleDewPointTemperature,
-	RoleSpecificHumidity, RoleSeaFraction, RoleLandFraction, RoleSeaIce, RolePrecipitation}
+	RoleSpecificHumidity, RoleSeaFraction, RoleLandFraction, RoleSeaIce, RolePrecipitation, RoleEastwardWind, RoleNorthwardWind}
 
 var termSet = func() map[string]bool {
 	m := map[string]bool{}

@@ -70,6 +70,11 @@ const (
 	Precipitation   = "precipitation"
 	RelSST          = "rel_sst"
 	TropicalMeanSST = "tropical_mean_sst"
+	// Cloud-controlling factors (package factors).
+	RH700     = "rh700"
+	Omega700  = "omega700"
+	TAdv      = "t_adv"
+	WindSpeed = "wind_speed"
 )
 
 // quantities is the table. Units are those the accumulators hold (SI).
@@ -106,6 +111,16 @@ var quantities = []Quantity{
 		Roles: []string{RoleOmega}, Source: FromInput, Response: true},
 	{Name: Precipitation, Units: "kg m-2 s-1", LongName: "precipitation flux", StandardName: "precipitation_flux",
 		Roles: []string{RolePrecipitation}, Source: FromInput, Response: true},
+	{Name: RH700, Units: "1", LongName: "relative humidity at 700 hPa", StandardName: "relative_humidity", PressurePa: 70000,
+		Roles: []string{RoleRelativeHumidity}, Source: FromInput,
+		Reference: "read on levels, or from specific humidity and air temperature at 700 hPa (saturation vapour pressure of Bolton 1980, Mon. Wea. Rev. 108, eq. 10)"},
+	{Name: Omega700, Units: "Pa s-1", LongName: "vertical pressure velocity (omega) at 700 hPa", StandardName: "lagrangian_tendency_of_air_pressure", PressurePa: 70000,
+		Roles: []string{RoleOmega}, Source: FromInput},
+	{Name: TAdv, Units: "K s-1", LongName: "near-surface horizontal advection of SST, -(u dSST/dx + v dSST/dy)",
+		Roles: []string{RoleSST, RoleEastwardWind, RoleNorthwardWind}, Source: Derived,
+		Reference: "Qu et al. 2015, Clim. Dyn. 45, 375–396; Myers & Norris 2016, GRL 43, 2144–2148"},
+	{Name: WindSpeed, Units: "m s-1", LongName: "near-surface wind speed", StandardName: "wind_speed",
+		Roles: []string{RoleEastwardWind, RoleNorthwardWind}, Source: Derived},
 	{Name: RelSST, Units: "K", LongName: "relative SST (SST minus tropical-mean SST)",
 		TemperatureDifference: true, Roles: []string{RoleSST}, Source: Derived, Predictor: true},
 	{Name: TropicalMeanSST, Units: "K", LongName: "tropical-mean sea surface temperature", StandardName: "sea_surface_temperature",

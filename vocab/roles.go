@@ -21,4 +21,9 @@ const (
 	RoleLandFraction          = "land_fraction"
 	RoleSeaIce                = "sea_ice"
 	RolePrecipitation         = "precipitation"
+	// RoleEastwardWind and RoleNorthwardWind are the near-surface (e.g.
+	// 10 m) wind components, CF standard names eastward_wind and
+	// northward_wind: the factors t_adv and wind_speed.
+	RoleEastwardWind  = "eastward_wind"
+	RoleNorthwardWind = "northward_wind"
 )
