@@ -220,7 +220,7 @@ var plain = strings.Fields(`
 	flips flip perturbation crossing metrics conventions absent
 	committed id manifest extras
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
-	factor factors standardised vif covariance cv penalty level excludes zero use
+	standardised vif covariance cv penalty level excludes zero use
 	cell_fold_years block_years fold without fit
 	`)
 
@@ -232,8 +232,7 @@ var syntheticWords = strings.Fields(`
 	oscillation gain polar drop true sample noise land other months
 	autocorrelated at
 	factor factors names warming global planted sensitivity per advection missing
-	weather shared variance fraction base trade meridional wind eastward_wind northward_wind
-	rh700 omega700 t_adv
+	weather shared variance fraction base trade meridional wind
 	`)
 
 // Terms returns the whole table of terms: quantities, statistics,

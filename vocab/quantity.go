@@ -112,8 +112,7 @@ var quantities = []Quantity{
 	{Name: Precipitation, Units: "kg m-2 s-1", LongName: "precipitation flux", StandardName: "precipitation_flux",
 		Roles: []string{RolePrecipitation}, Source: FromInput, Response: true},
 	{Name: RH700, Units: "1", LongName: "relative humidity at 700 hPa", StandardName: "relative_humidity", PressurePa: 70000,
-		Roles: []string{RoleRelativeHumidity}, Source: FromInput,
-		Reference: "read on levels, or from specific humidity and air temperature at 700 hPa (saturation vapour pressure of Bolton 1980, Mon. Wea. Rev. 108, eq. 10)"},
+		Roles: []string{RoleRelativeHumidity}, Source: FromInput}, // or from specific humidity and T700 (metrics.SVPFormula.RelativeHumidityQ)
 	{Name: Omega700, Units: "Pa s-1", LongName: "vertical pressure velocity (omega) at 700 hPa", StandardName: "lagrangian_tendency_of_air_pressure", PressurePa: 70000,
 		Roles: []string{RoleOmega}, Source: FromInput},
 	{Name: TAdv, Units: "K s-1", LongName: "near-surface horizontal advection of SST, -(u dSST/dx + v dSST/dy)",
