@@ -338,6 +338,7 @@ func TestUDUNITS(t *testing.T) {
 		"degrees_north": {"degrees_north", 1}, "degrees_east": {"degrees_east", 1},
 		"days since 1970-01-01": {"days since 1970-01-01", 1},
 		"W m-2":                 {"kg s-3", 1}, "Pa s-1": {"kg m-1 s-3", 1}, "kg m-2 s-1": {"kg m-2 s-1", 1}, "%": {"1", 0.01},
+		"m s-1": {"m s-1", 1}, "K s-1": {"K s-1", 1},
 	}
 	var pairs [][2]string
 	for u := range found {

@@ -748,7 +748,9 @@ func TestQuantityUnits(t *testing.T) {
 	// The units table of the task: K for temperatures and stabilities,
 	// 1 for cloud fractions, W m-2 for TOA fluxes, Pa s-1 for omega.
 	want := map[string]string{"sst": "K", "t700": "K", "lts": "K", "eis": "K", "ectei": "K",
-		"cloud": "1", "low_cloud": "1", "toa_sw_up": "W m-2", "olr": "W m-2", "omega": "Pa s-1", "precipitation": "kg m-2 s-1"}
+		"cloud": "1", "low_cloud": "1", "toa_sw_up": "W m-2", "olr": "W m-2", "omega": "Pa s-1", "precipitation": "kg m-2 s-1",
+		// the cloud-controlling factors (package factors)
+		"rh700": "1", "omega700": "Pa s-1", "t_adv": "K s-1", "wind_speed": "m s-1"}
 	for q, u := range want {
 		if got, ok := QuantityUnits(q); !ok || got != u {
 			t.Errorf("QuantityUnits(%q) = %q, %v; want %q", q, got, ok, u)

@@ -91,42 +91,9 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		}
 	}
 	if r.Factors.On {
-		fi := &FactorInputs{Use: append([]string(nil), r.Factors.Use...)}
-		at := func(role cf.Role, pa float64) *Input {
-			if len(d.Inputs[role]) == 0 {
-				return nil
-			}
-			return &Input{Paths: d.Inputs[role], Spec: d.SpecAt(role, pa)}
+		if p.Factors, err = factorInputs(d, r.Factors.Use, p.T700 != nil); err != nil {
+			return p, err
 		}
-		for _, f := range fi.Use {
-			var miss string
-			switch f {
-			case vocab.EIS, vocab.LTS:
-				if p.T700 == nil {
-					miss = "air_temperature"
-				}
-			case vocab.RH700:
-				if fi.RH = at(cf.RoleRH, metrics.P700); fi.RH == nil && p.T700 != nil {
-					fi.Q = at(cf.RoleSpecHum, metrics.P700)
-				}
-				if fi.RH == nil && fi.Q == nil {
-					miss = "relative_humidity (or specific_humidity and air_temperature)"
-				}
-			case vocab.Omega700:
-				if fi.Omega = at(cf.RoleOmega, metrics.P700); fi.Omega == nil {
-					miss = "omega"
-				}
-			case vocab.TAdv, vocab.WindSpeed:
-				fi.U, fi.V = at(cf.RoleEastWind, 0), at(cf.RoleNorthWind, 0)
-				if fi.U == nil || fi.V == nil {
-					miss = "eastward_wind and northward_wind"
-				}
-			}
-			if miss != "" {
-				return p, fmt.Errorf("dataset %s: factor %s (factors.use) needs the %s input, which the dataset's files do not give; add it to datasets.%s.files or remove %s from factors.use", d.Name, f, miss, d.Name, f)
-			}
-		}
-		p.Factors = fi
 	}
 	switch d.Ocean.Method {
 	case config.OceanWhereSST:
@@ -148,4 +115,45 @@ func PlanFor(r *config.Study, d *config.Dataset) (Plan, error) {
 		p.Grid.Methods[role] = g.MethodFor(role)
 	}
 	return p, nil
+}
+
+// factorInputs are the inputs of the factors use of dataset d (hasT700:
+// the plan has the 700 hPa temperature).
+func factorInputs(d *config.Dataset, use []string, hasT700 bool) (*FactorInputs, error) {
+	fi := &FactorInputs{Use: append([]string(nil), use...)}
+	at := func(role cf.Role, pa float64) *Input {
+		if len(d.Inputs[role]) == 0 {
+			return nil
+		}
+		return &Input{Paths: d.Inputs[role], Spec: d.SpecAt(role, pa)}
+	}
+	for _, f := range fi.Use {
+		var miss string
+		switch f {
+		case vocab.EIS, vocab.LTS:
+			if !hasT700 {
+				miss = "air_temperature"
+			}
+		case vocab.RH700:
+			if fi.RH = at(cf.RoleRH, metrics.P700); fi.RH == nil && hasT700 {
+				fi.Q = at(cf.RoleSpecHum, metrics.P700)
+			}
+			if fi.RH == nil && fi.Q == nil {
+				miss = "relative_humidity (or specific_humidity and air_temperature)"
+			}
+		case vocab.Omega700:
+			if fi.Omega = at(cf.RoleOmega, metrics.P700); fi.Omega == nil {
+				miss = "omega"
+			}
+		case vocab.TAdv, vocab.WindSpeed:
+			fi.U, fi.V = at(cf.RoleEastWind, 0), at(cf.RoleNorthWind, 0)
+			if fi.U == nil || fi.V == nil {
+				miss = "eastward_wind and northward_wind"
+			}
+		}
+		if miss != "" {
+			return nil, fmt.Errorf("dataset %s: factor %s (factors.use) needs the %s input, which the dataset's files do not give; add it to datasets.%s.files or remove %s from factors.use", d.Name, f, miss, d.Name, f)
+		}
+	}
+	return fi, nil
 }

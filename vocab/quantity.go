@@ -21,6 +21,10 @@ const (
 	// Derived: computed by lidscope from other quantities (relative SST,
 	// the tropical mean); not accumulated as a column quantity.
 	Derived
+	// FromStep: computed per time step by the pipeline from several
+	// input fields (t_adv needs SST's neighbours, wind_speed both wind
+	// components), then accumulated as a column quantity.
+	FromStep
 )
 
 // Quantity is one row of the table of quantities: everything the outputs,
@@ -116,10 +120,10 @@ var quantities = []Quantity{
 	{Name: Omega700, Units: "Pa s-1", LongName: "vertical pressure velocity (omega) at 700 hPa", StandardName: "lagrangian_tendency_of_air_pressure", PressurePa: 70000,
 		Roles: []string{RoleOmega}, Source: FromInput},
 	{Name: TAdv, Units: "K s-1", LongName: "near-surface horizontal advection of SST, -(u dSST/dx + v dSST/dy)",
-		Roles: []string{RoleSST, RoleEastwardWind, RoleNorthwardWind}, Source: Derived,
+		Roles: []string{RoleSST, RoleEastwardWind, RoleNorthwardWind}, Source: FromStep,
 		Reference: "Qu et al. 2015, Clim. Dyn. 45, 375–396; Myers & Norris 2016, GRL 43, 2144–2148"},
 	{Name: WindSpeed, Units: "m s-1", LongName: "near-surface wind speed", StandardName: "wind_speed",
-		Roles: []string{RoleEastwardWind, RoleNorthwardWind}, Source: Derived},
+		Roles: []string{RoleEastwardWind, RoleNorthwardWind}, Source: FromStep},
 	{Name: RelSST, Units: "K", LongName: "relative SST (SST minus tropical-mean SST)",
 		TemperatureDifference: true, Roles: []string{RoleSST}, Source: Derived, Predictor: true},
 	{Name: TropicalMeanSST, Units: "K", LongName: "tropical-mean sea surface temperature", StandardName: "sea_surface_temperature",
