@@ -354,6 +354,9 @@ var runColours = []color.Color{lineBlack, lineOrange, lineBlue, lineGreen, lineP
 type ciPoints struct {
 	res  *compare.Result
 	spec []compare.Estimate
+	// factor turns the estimates' units into the display units
+	// (sensitivityUnits: a fraction per kelvin in per cent per kelvin)
+	factor float64
 }
 
 func (cp ciPoints) runs() int { return 1 + len(cp.res.Candidates) }
@@ -361,12 +364,13 @@ func (cp ciPoints) runs() int { return 1 + len(cp.res.Candidates) }
 // at returns run k's value and interval of estimate i (k 0: the reference).
 func (cp ciPoints) at(i, k int) (v, lo, hi float64, ok bool) {
 	e := cp.spec[i]
+	f := cp.factor
 	if k == 0 {
-		return e.Ref, e.RefCI.Lo, e.RefCI.Hi, true
+		return e.Ref * f, e.RefCI.Lo * f, e.RefCI.Hi * f, true
 	}
 	for _, x := range cp.res.Candidates[k-1].Estimates {
 		if x.Name == e.Name {
-			return x.Cand, x.CandCI.Lo, x.CandCI.Hi, true
+			return x.Cand * f, x.CandCI.Lo * f, x.CandCI.Hi * f, true
 		}
 	}
 	return 0, 0, 0, false
@@ -380,7 +384,7 @@ func (cp ciPoints) x(i, k int) float64 {
 func (cp ciPoints) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
 	for i, e := range cp.spec {
-		if lo, hi := e.RefCI.Lo, e.RefCI.Hi; !math.IsNaN(lo) && !math.IsNaN(hi) {
+		if lo, hi := e.RefCI.Lo*cp.factor, e.RefCI.Hi*cp.factor; !math.IsNaN(lo) && !math.IsNaN(hi) {
 			r := vg.Rectangle{Min: vg.Point{X: trX(float64(i) - 0.45), Y: trY(lo)}, Max: vg.Point{X: trX(float64(i) + 0.45), Y: trY(hi)}}
 			c.SetColor(color.Gray{0xdc})
 			c.Fill(r.Path())
@@ -421,8 +425,10 @@ func (cp ciPoints) DataRange() (xmin, xmax, ymin, ymax float64) {
 	if ymin > ymax {
 		ymin, ymax = -1, 1
 	}
-	// Room above the data for the legend.
-	ymax += 0.3 * (ymax - ymin)
+	// A margin below the data, and room above it for the legend.
+	span := ymax - ymin
+	ymin -= 0.05 * span
+	ymax += 0.3 * span
 	return -0.5, float64(len(cp.spec)) - 0.5, ymin, ymax
 }
 
@@ -453,30 +459,17 @@ func (f *fig) sensitivityPage(res *compare.Result) (*page, error) {
 	if len(spec) == 0 {
 		return nil, errors.New("the reference has no sensitivities")
 	}
-	cp := ciPoints{res: res, spec: spec}
+	u, factor := sensitivityUnits(spec[0].Units)
+	cp := ciPoints{res: res, spec: spec, factor: factor}
 	p := f.newPlot()
 	p.Add(lightGrid(), cp)
 	p.Add(hline{0, draw.LineStyle{Color: color.Gray{0x50}, Width: 0.5}})
 	var ticks []plot.Tick
 	for i, e := range spec {
-		lbl := e.Name
-		if i := strings.Index(e.Name, "_on_"); i >= 0 && e.Kind == "slope" {
-			lbl = "slope on " + lowerFirst(predictorLabel(e.Name[i+4:]))
-		} else if i := strings.Index(e.Name, "_partial_"); i >= 0 {
-			// low_cloud_partial_eis_given_sst: the partial slope on EIS
-			// with SST held fixed.
-			on, given, ok := strings.Cut(e.Name[i+9:], "_given_")
-			if ok {
-				lbl = "partial on " + lowerFirst(predictorLabel(on)) + ", " + lowerFirst(predictorLabel(given)) + " fixed"
-			} else {
-				lbl = "partial on " + lowerFirst(predictorLabel(on))
-			}
-		}
-		ticks = append(ticks, plot.Tick{Value: float64(i), Label: lbl})
+		ticks = append(ticks, plot.Tick{Value: float64(i), Label: estimateLabel(e)})
 	}
 	p.X.Tick.Marker = plot.ConstantTicks(ticks)
 	p.X.Label.Text = f.t("Sensitivity of the " + lowerFirst(responseLabel(cloudResponseOf(res))) + " (subsidence regime, tropical band, whole record)")
-	u, _ := displayUnits(spec[0].Units)
 	p.Y.Label.Text = f.t("Sensitivity (" + u + "), 95 % interval")
 	p.Legend.Top, p.Legend.Left = true, false
 	p.Legend.Add(f.t(res.Reference.Name+" (reference)"), glyphThumb{runColours[0]})
