@@ -222,6 +222,8 @@ var plain = strings.Fields(`
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
 	standardised vif covariance cv penalty level excludes zero use
 	cell_fold_years block_years fold without fit
+	constraint constrained predicted actual contribution observed observations model control warm
+	created
 	`)
 
 // syntheticWords are the parameters and records of the synthetic demo
