@@ -57,7 +57,7 @@ provenance.json and figures.`,
 	fs := cmd.Flags()
 	addOutDir(fs, &o.Out, "", "run folder for the constraint (required)")
 	textVar(fs, &o.Warming, "warming", "", "K|QUANTITY", "global-mean surface warming of the warm run over the control run, with units (4.1K), or a temperature quantity of the runs to compute it from (sst) (required)")
-	fs.Float64Var(&o.Level, "level", 0, "interval level, e.g. 0.9 (default: the observations' factor level)")
+	fs.Float64Var(&o.Level, "level", 0, "interval `LEVEL`, e.g. 0.9 (default: the level of the observations' factor analysis)")
 	addForce(fs, &o.Force, "replace an existing constraint folder")
 	addNoPlots(fs, &o.NoPlots, "do not draw the constraint figures")
 	o.Log.register(fs)
