@@ -60,6 +60,10 @@ type Layout struct {
 	// the whole grid: the band series, regions and relationship statistics
 	// do not depend on Columns.
 	Columns []int32
+	// NoTransition says the regime rule has no transition band (h = 0):
+	// no column is ever in the transition regime, so no per-column sums
+	// are kept for it (its moments are empty).
+	NoTransition bool
 }
 
 // Step is one time step's input to Add. All slices have NLat*NLon cells.
@@ -144,6 +148,9 @@ func New(l Layout) (*Acc, error) {
 	c.Values = make([][nreg][]Sum, len(l.Quantities))
 	for q := range c.Values {
 		for r := 0; r < nreg; r++ {
+			if l.NoTransition && regimes.Regime(r) == regimes.Transition {
+				continue
+			}
 			v := make([]Sum, m)
 			for k := range v {
 				v[k] = emptySum()
@@ -188,6 +195,9 @@ func (a *Acc) AddCells(s *Step, lo, hi int) {
 		c.Tracks[k].Add(r)
 		if r == regimes.Missing {
 			continue
+		}
+		if r == regimes.Transition && a.L.NoTransition {
+			panic("accumulate: a transition-regime step for a layout without a transition band (Layout.NoTransition)")
 		}
 		c.Valid[k]++
 		c.Count[r][k]++
@@ -304,6 +314,9 @@ func sameLayout(a, b Layout) error {
 	if fmt.Sprint(a.Regions) != fmt.Sprint(b.Regions) {
 		return fmt.Errorf("accumulate: cannot merge runs with different regions")
 	}
+	if a.NoTransition != b.NoTransition {
+		return fmt.Errorf("accumulate: cannot merge a run with a transition band and one without")
+	}
 	if len(a.Columns) != len(b.Columns) || (a.Columns == nil) != (b.Columns == nil) {
 		return fmt.Errorf("accumulate: cannot merge runs that keep different columns (%d vs %d; a different ocean mask or analysis domain)", len(a.Columns), len(b.Columns))
 	}
@@ -369,7 +382,7 @@ func (a *Acc) RegimeSteps(r regimes.Regime, i int) int32 {
 // Layout.Quantities) at grid cell i in the steps it was in regime r
 // (unit weights; empty where never).
 func (a *Acc) Moments(q int, r regimes.Regime, i int) stats.Moments {
-	if k := a.Index.Slot(i); k >= 0 {
+	if k := a.Index.Slot(i); k >= 0 && a.Cells.Values[q][r] != nil {
 		return a.Cells.Values[q][r][k].Moments()
 	}
 	return stats.Moments{}

@@ -146,7 +146,13 @@ func TestEncodeDecodeRoundTrip(t *testing.T) {
 	if err := a.Encode(&buf); err != nil {
 		t.Fatal(err)
 	}
-	b, err := Decode(&buf)
+	enc := buf.Bytes()
+	for _, bad := range [][]byte{enc[:len(enc)-5], append(append([]byte{}, enc...), 0)} {
+		if _, err := Decode(bytes.NewReader(bad)); err == nil || !strings.Contains(err.Error(), "damaged") {
+			t.Errorf("a state of %d bytes (%d written) decoded: %v", len(bad), len(enc), err)
+		}
+	}
+	b, err := Decode(bytes.NewReader(enc))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -173,12 +179,22 @@ func TestEncodeDecodeRoundTrip(t *testing.T) {
 // TestDecodeRefusesAnEarlierFormat: a state of the earlier per-grid-cell
 // format is refused with ErrFormat and a message to run again.
 func TestDecodeRefusesAnEarlierFormat(t *testing.T) {
-	var buf bytes.Buffer
-	if err := gob.NewEncoder(&buf).Encode(state{Format: "lidscope-accumulator/1", L: layout()}); err != nil {
-		t.Fatal(err)
+	type earlier struct { // the gob of lidscope-accumulator/1 and /2
+		Format string
+		L      Layout
 	}
-	_, err := Decode(&buf)
-	if !errors.Is(err, ErrFormat) || !strings.Contains(err.Error(), "run the analysis again") {
-		t.Fatalf("got %v, want ErrFormat saying to run again", err)
+	for _, f := range []string{"lidscope-accumulator/1", "lidscope-accumulator/2"} {
+		var buf bytes.Buffer
+		if err := gob.NewEncoder(&buf).Encode(earlier{Format: f, L: layout()}); err != nil {
+			t.Fatal(err)
+		}
+		_, err := Decode(&buf)
+		if !errors.Is(err, ErrFormat) || !strings.Contains(err.Error(), "run the analysis again") {
+			t.Fatalf("%s: got %v, want ErrFormat saying to run again", f, err)
+		}
+	}
+	// every field of a crossing track is in its record
+	if n := reflect.TypeFor[regimes.Track]().NumField(); n != 13 {
+		t.Errorf("regimes.Track has %d fields; the state's track record has 13: add the new ones to Encode and Decode", n)
 	}
 }

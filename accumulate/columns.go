@@ -129,12 +129,13 @@ func (s *Sum) merge(b Sum) {
 }
 
 // BytesPerColumn is the memory of the per-column statistics of one kept
-// column with nq quantities: valid and regime counts, the relative-SST
-// sums, nq × 3 regimes × (shift, count, S1, S2), the crossing track and
-// the column's slot in the index.
-func BytesPerColumn(nq int) int {
+// column with nq quantities in nr regimes (3, or 2 without a transition
+// band, Layout.NoTransition): valid and regime counts, the relative-SST
+// sums, nq × nr × (shift, count, S1, S2), the crossing track and the
+// column's slot in the index.
+func BytesPerColumn(nq, nr int) int {
 	const sum = int(unsafe.Sizeof(Sum{}))
-	return 4 + nreg*4 + sum + nq*nreg*sum + trackBytes + 4
+	return 4 + nreg*4 + sum + nq*nr*sum + trackBytes + 4
 }
 
 // trackBytes is the size of a crossing track.

@@ -1,6 +1,7 @@
 package accumulate
 
 import (
+	"bytes"
 	"math"
 	"math/big"
 	"math/rand/v2"
@@ -188,4 +189,63 @@ func TestColumnsKeepOnlyTheirCells(t *testing.T) {
 	if _, err := New(l); err == nil {
 		t.Error("columns out of order accepted")
 	}
+}
+
+// TestNoTransitionKeepsTwoRegimes: without a transition band no sums are
+// kept for the transition regime; the other regimes' statistics, the
+// encoding round trip and merging are as with all three, and a transition
+// step is refused.
+func TestNoTransitionKeepsTwoRegimes(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	l := layout()
+	l.NoTransition = true
+	two, err := New(l)
+	if err != nil {
+		t.Fatal(err)
+	}
+	three, _ := New(layout())
+	for i := 0; i < 25; i++ {
+		s := randomStep(rng, i) // δ = 0.5 K, h = 0: no transition steps
+		for _, a := range []*Acc{two, three} {
+			a.AddCells(s, 0, 12)
+			a.AddStep(s)
+		}
+	}
+	if two.Cells.Values[0][regimes.Transition] != nil {
+		t.Error("transition sums kept without a transition band")
+	}
+	for i := range two.NCells() {
+		for q := range l.Quantities {
+			for r := regimes.Regime(0); r < nreg; r++ {
+				if two.Moments(q, r, i) != three.Moments(q, r, i) {
+					t.Fatalf("cell %d quantity %d regime %v differs", i, q, r)
+				}
+			}
+		}
+	}
+	var buf bytes.Buffer
+	if err := two.Encode(&buf); err != nil {
+		t.Fatal(err)
+	}
+	back, err := Decode(&buf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := back.Merge(two); err != nil {
+		t.Fatal(err)
+	}
+	if m := back.Moments(1, regimes.Subsidence, 4); m.N != 2*two.Moments(1, regimes.Subsidence, 4).N {
+		t.Errorf("merged %d values, want twice %d", m.N, two.Moments(1, regimes.Subsidence, 4).N)
+	}
+	if err := three.Merge(two); err == nil {
+		t.Error("merged a run without a transition band into one with")
+	}
+	defer func() {
+		if recover() == nil {
+			t.Error("a transition step was accepted without a transition band")
+		}
+	}()
+	s := randomStep(rng, 30)
+	s.Regime[4] = regimes.Transition
+	two.AddCells(s, 0, 12)
 }

@@ -50,7 +50,7 @@ func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) 
 		return MemoryEstimate{}, err
 	}
 	nq := len(sh.Quantities)
-	acc, buf := pipeline.StateBytesPerCell(nq, sh.Fields)
+	acc, buf := pipeline.StateBytesPerCell(nq, sh.Regimes, sh.Fields)
 	m := MemoryEstimate{Dataset: d.Name, Shape: sh, Fixed: fixedBytes}
 	m.StatePerCell = int64(acc)
 	m.Buffers = int64(buf)*int64(sh.Cells) + 4*int64(sh.NativeCells)

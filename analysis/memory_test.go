@@ -36,7 +36,7 @@ func TestEstimateMemory(t *testing.T) {
 	if s := m.Shape; s.NLat != 45 || s.NLon != 90 || s.Cells != 45*90 || s.Steps != 12 || s.Fields != 3 {
 		t.Errorf("shape %+v, want 45×90 cells, 12 steps, 3 fields", s)
 	}
-	acc, _ := pipeline.StateBytesPerCell(len(m.Shape.Quantities), m.Shape.Fields)
+	acc, _ := pipeline.StateBytesPerCell(len(m.Shape.Quantities), m.Shape.Regimes, m.Shape.Fields)
 	// the world's land fraction makes about a third of the cells land
 	if c := m.Shape.Columns; c <= 45*90/2 || c >= 45*90 {
 		t.Errorf("%d analysed (ocean) columns of %d cells", c, 45*90)

@@ -8,6 +8,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -38,22 +39,33 @@ const StateFile = "run-state.gob"
 // (output.Meta.Study, StudyHash, MetricsConventions), which a version-2
 // state holds under earlier names that gob would silently drop; version 4
 // marks run folders written with the one table of names (package vocab),
-// whose files use the new names (see the README's changes).
-const stateFormat = "lidscope-run-state/4"
+// whose files use the new names (see the README's changes); version 5
+// keeps the accumulators in frames of their own after the gob of the rest
+// (so that writing the state needs no copies of them) and the regime
+// accumulator's per-column statistics for the analysed columns only.
+const stateFormat = "lidscope-run-state/5"
+
+// compactFormat is the header of the run states written before the
+// per-column statistics were kept for the analysed columns only.
+const compactFormat = "lidscope-run-state/4"
 
 // renamedFormat is the header of the run states whose folders use names
 // since renamed.
 const renamedFormat = "lidscope-run-state/3"
 
-// The run state file is a header of three fixed-width lines and the body
-// (the gob of runState):
+// The run state file is a header of three fixed-width lines and the body:
 //
-//	lidscope-run-state/4
+//	lidscope-run-state/5
 //	length 00000000000000123456      (bytes of the body, 20 digits)
 //	sha256 <64 hex digits>           (SHA-256 of the body)
 //
 // followed by an empty line. A file whose header, length or checksum does
-// not match is refused as damaged, never merged.
+// not match is refused as damaged, never merged. The body is four frames,
+// each its length (20 digits) and a newline, then its bytes: the gob of
+// runState, the regime accumulator (accumulate.Acc.Encode), the
+// relationship accumulator (relations.Acc.Encode; empty without one) and
+// the factor accumulator (factors.Acc.Encode; empty without a factors
+// section). A further accumulator gets a frame of its own.
 const (
 	stateLengthDigits = 20
 	stateHeaderLen    = len(stateFormat) + 1 + len("length ") + stateLengthDigits + 1 + len("sha256 ") + 64 + 1 + 1
@@ -62,57 +74,148 @@ const (
 type runState struct {
 	Format string
 	Meta   output.Meta
-	Acc    []byte // accumulate.Acc.Encode
-	Rel    []byte // relations.Acc.Encode
 	// NoRelations, when set, says why the run has no relationship
-	// analysis (an optional input absent); Rel is then empty.
+	// analysis (an optional input absent); its frame is then empty.
 	NoRelations string
-	// Factors is the factor accumulator (factors.Acc.Encode); empty
-	// without a factors section.
-	Factors []byte
+}
+
+// frameDigits is the width of a frame's length.
+const frameDigits = 20
+
+// frames splits a body into its frames.
+func frames(body []byte) ([][]byte, error) {
+	var out [][]byte
+	for len(body) > 0 {
+		if len(body) < frameDigits+1 || body[frameDigits] != '\n' {
+			return nil, fmt.Errorf("frame %d has no length line", len(out))
+		}
+		ln := string(body[:frameDigits])
+		n, err := strconv.ParseUint(ln, 10, 63)
+		body = body[frameDigits+1:]
+		if err != nil || n > uint64(len(body)) {
+			return nil, fmt.Errorf("frame %d: length %q for %d bytes left", len(out), ln, len(body))
+		}
+		out = append(out, body[:n])
+		body = body[n:]
+	}
+	return out, nil
 }
 
 // encodeState is the whole run state file.
 // rel is nil exactly when the run has no relationship analysis, and noRel
 // then says why.
 func encodeState(meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string, fac *factors.Acc) ([]byte, error) {
-	if rel == nil && noRel == "" {
-		return nil, fmt.Errorf("no relationship accumulator to save")
-	}
-	var ab, rb bytes.Buffer
-	if err := acc.Encode(&ab); err != nil {
+	var b bytes.Buffer
+	if err := writeState(&b, meta, acc, rel, noRel, fac); err != nil {
 		return nil, err
+	}
+	return b.Bytes(), nil
+}
+
+// writeState writes the run state file to w as it is encoded: every
+// frame's length is known beforehand (the regime accumulator says its
+// size, accumulate.Acc.Encoder; the other frames are small), so the
+// header, which holds the body's length and SHA-256, is written last,
+// over the room kept for it (w must then be an io.WriterAt, as a file is;
+// a bytes.Buffer gets it in place). The accumulators are never copied:
+// at a fine grid they are most of the run's memory.
+func writeState(w io.Writer, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string, fac *factors.Acc) error {
+	if rel == nil && noRel == "" {
+		return fmt.Errorf("no relationship accumulator to save")
+	}
+	var head, rb bytes.Buffer
+	if err := gob.NewEncoder(&head).Encode(runState{Format: stateFormat, Meta: meta, NoRelations: noRel}); err != nil {
+		return fmt.Errorf("encoding the run state: %w", err)
 	}
 	if rel != nil {
 		if err := rel.Encode(&rb); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	var fb []byte
 	if fac != nil {
 		var err error
 		if fb, err = fac.EncodeBytes(); err != nil {
-			return nil, err
+			return err
 		}
 	}
-	var body bytes.Buffer
-	if err := gob.NewEncoder(&body).Encode(runState{Format: stateFormat, Meta: meta, Acc: ab.Bytes(), Rel: rb.Bytes(), NoRelations: noRel, Factors: fb}); err != nil {
-		return nil, fmt.Errorf("encoding the run state: %w", err)
+	accSize, writeAcc, err := acc.Encoder()
+	if err != nil {
+		return err
 	}
-	sum := sha256.Sum256(body.Bytes())
-	var out bytes.Buffer
-	fmt.Fprintf(&out, "%s\nlength %0*d\nsha256 %s\n\n", stateFormat, stateLengthDigits, body.Len(), hex.EncodeToString(sum[:]))
-	out.Write(body.Bytes())
-	return out.Bytes(), nil
+	h := sha256.New()
+	cw := &countWriter{w: io.MultiWriter(w, h)}
+	if _, err := w.Write(make([]byte, stateHeaderLen)); err != nil {
+		return err
+	}
+	frame := func(n int64, write func(io.Writer) error) error {
+		if _, err := fmt.Fprintf(cw, "%0*d\n", frameDigits, n); err != nil {
+			return err
+		}
+		start := cw.n
+		if err := write(cw); err != nil {
+			return err
+		}
+		if cw.n-start != n {
+			return fmt.Errorf("encoding the run state: a frame of %d bytes said %d", cw.n-start, n)
+		}
+		return nil
+	}
+	bytesOf := func(b []byte) func(io.Writer) error {
+		return func(w io.Writer) error { _, err := w.Write(b); return err }
+	}
+	if err := frame(int64(head.Len()), bytesOf(head.Bytes())); err != nil {
+		return err
+	}
+	if err := frame(accSize, writeAcc); err != nil {
+		return err
+	}
+	if err := frame(int64(rb.Len()), bytesOf(rb.Bytes())); err != nil {
+		return err
+	}
+	if err := frame(int64(len(fb)), bytesOf(fb)); err != nil {
+		return err
+	}
+	header := fmt.Sprintf("%s\nlength %0*d\nsha256 %s\n\n", stateFormat, stateLengthDigits, cw.n, hex.EncodeToString(h.Sum(nil)))
+	switch o := w.(type) {
+	case *bytes.Buffer:
+		copy(o.Bytes(), header)
+	case io.WriterAt:
+		if _, err := o.WriteAt([]byte(header), 0); err != nil {
+			return err
+		}
+	default:
+		return fmt.Errorf("writing the run state: %T cannot take its header", w)
+	}
+	return nil
+}
+
+// countWriter counts what goes through it.
+type countWriter struct {
+	w io.Writer
+	n int64
+}
+
+func (c *countWriter) Write(b []byte) (int, error) {
+	n, err := c.w.Write(b)
+	c.n += int64(n)
+	return n, err
 }
 
 // stageState writes the run state into the run's staging folder.
 func stageState(st *runfolder.Stage, meta output.Meta, acc *accumulate.Acc, rel *relations.Acc, noRel string, fac *factors.Acc) error {
-	b, err := encodeState(meta, acc, rel, noRel, fac)
+	p := st.Path(StateFile)
+	f, err := os.OpenFile(p, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
+	if err == nil {
+		err = writeState(f, meta, acc, rel, noRel, fac)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}
 	if err != nil {
 		return fmt.Errorf("writing the run state in %s: %w", st.Target(), err)
 	}
-	return st.WriteFile(StateFile, b)
+	return nil
 }
 
 // ErrDamagedState marks a run state whose header, length or checksum does
@@ -130,6 +233,9 @@ func decodeStateFile(path string, b []byte) ([]byte, error) {
 	}
 	h := string(b[:stateHeaderLen])
 	lines := strings.Split(h, "\n")
+	if len(lines) > 0 && lines[0] == compactFormat {
+		return nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope, which kept the per-column statistics for every grid cell in another encoding; re-run the analysis of that folder with this version", path, compactFormat, stateFormat)
+	}
 	if len(lines) > 0 && lines[0] == renamedFormat {
 		return nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope whose files use names since renamed (e.g. delta_K, crossings_per_year, n_eff_corr; see the README's changes); re-run the analysis of that folder with this version", path, renamedFormat, stateFormat)
 	}
@@ -177,14 +283,21 @@ func readState(p string, withRel bool) (loadedState, error) {
 	if err != nil {
 		return loadedState{}, err
 	}
+	fr, err := frames(body)
+	if err == nil && len(fr) != 4 {
+		err = fmt.Errorf("%d frames, not 4", len(fr))
+	}
+	if err != nil {
+		return loadedState{}, damaged(p, err.Error())
+	}
 	var s runState
-	if err := gob.NewDecoder(bytes.NewReader(body)).Decode(&s); err != nil {
+	if err := gob.NewDecoder(bytes.NewReader(fr[0])).Decode(&s); err != nil {
 		return loadedState{}, damaged(p, err.Error())
 	}
 	if s.Format != stateFormat {
 		return loadedState{}, damaged(p, fmt.Sprintf("its body has format %q", s.Format))
 	}
-	acc, err := accumulate.Decode(bytes.NewReader(s.Acc))
+	acc, err := accumulate.Decode(bytes.NewReader(fr[1]))
 	if errors.Is(err, accumulate.ErrFormat) {
 		return loadedState{}, fmt.Errorf("run state %s: %w", p, err)
 	}
@@ -193,14 +306,14 @@ func readState(p string, withRel bool) (loadedState, error) {
 	}
 	ls := loadedState{meta: s.Meta, acc: acc, noRel: s.NoRelations}
 	if withRel && s.NoRelations == "" {
-		if len(s.Rel) == 0 {
+		if len(fr[2]) == 0 {
 			return loadedState{}, damaged(p, "it holds no relationship accumulator")
 		}
-		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(s.Rel)); err != nil {
+		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(fr[2])); err != nil {
 			return loadedState{}, damaged(p, err.Error())
 		}
-		if len(s.Factors) > 0 {
-			if ls.fac, err = factors.DecodeAcc(bytes.NewReader(s.Factors)); err != nil {
+		if len(fr[3]) > 0 {
+			if ls.fac, err = factors.DecodeAcc(bytes.NewReader(fr[3])); err != nil {
 				return loadedState{}, damaged(p, err.Error())
 			}
 		}

@@ -288,3 +288,39 @@ func TestRenamedRunStateRefused(t *testing.T) {
 		t.Fatalf("format 3 state: %v; want a refusal naming the renames and asking for a re-run", err)
 	}
 }
+
+// A run state of format 4 (per-column statistics for every grid cell, in
+// the earlier encoding) is refused with a message that asks for a re-run.
+func TestFormat4RunStateRefused(t *testing.T) {
+	p := filepath.Join(t.TempDir(), StateFile)
+	b := []byte(compactFormat + "\nlength " + strings.Repeat("0", stateLengthDigits) + "\nsha256 " + strings.Repeat("0", 64) + "\n\n")
+	_, err := decodeStateFile(p, b)
+	if err == nil || !strings.Contains(err.Error(), "re-run") || !strings.Contains(err.Error(), stateFormat) || !strings.Contains(err.Error(), p) {
+		t.Fatalf("format 4 state: %v; want a refusal naming the file and asking for a re-run", err)
+	}
+}
+
+// The body's frames: what frames splits is what encodeState framed, and a
+// damaged frame length is an error.
+func TestStateFrames(t *testing.T) {
+	for _, c := range []struct {
+		body string
+		want []string
+		ok   bool
+	}{
+		{"00000000000000000003\nabc00000000000000000000\n00000000000000000001\nz", []string{"abc", "", "z"}, true},
+		{"", nil, true},
+		{"00000000000000000009\nabc", nil, false},
+		{"0000000000000000000x\nabc", nil, false},
+		{"000000000000000000003abc", nil, false},
+	} {
+		got, err := frames([]byte(c.body))
+		if (err == nil) != c.ok {
+			t.Errorf("%q: error %v, want ok %v", c.body, err, c.ok)
+			continue
+		}
+		if c.ok && fmt.Sprintf("%q", got) != fmt.Sprintf("%q", c.want) && !(len(got) == 0 && len(c.want) == 0) {
+			t.Errorf("%q: frames %q, want %q", c.body, got, c.want)
+		}
+	}
+}

@@ -103,7 +103,7 @@ measure run10 "${lr[@]}" --out "$res/run10" "$w10/study.yaml"
 
 # metrics columns/s/core: CPU seconds in the metrics kernel from a profile,
 # columns = ocean columns (ever valid) × steps
-"${lr[@]}" --cpuprofile "$out/ratios-cpu.prof" --out "$res/run" "$w40/study.yaml" >/dev/null
+"${lr[@]}" --jobs 1 --cpuprofile "$out/ratios-cpu.prof" --out "$res/run" "$w40/study.yaml" >/dev/null # one process: the profile sees the kernel
 go tool pprof -top -nodecount=30 "$lid" "$out/ratios-cpu.prof" >"$out/ratios-profile.txt" 2>/dev/null
 kern=$(awk '$NF ~ /^lidscope\/metrics\.\(\*Kernel\)\.Slab$/ || $NF ~ /^lidscope\/metrics\.slab\[/ { v = $4; sub(/s$/, "", v); if (v ~ /ms$/) { sub(/ms$/, "", v); v /= 1000 }; print v; exit }' \
   <(go tool pprof -top -cum -nodecount=200 "$lid" "$out/ratios-cpu.prof" 2>/dev/null))

@@ -3,14 +3,15 @@
 # value? NetCDF files are compared as ncdump -p 9,17 text (every float32
 # and float64 printed with enough digits to be exact) without their history
 # attribute; CSV and JSON result files byte for byte; provenance.json (times,
-# command line) and run-state.gob (which embeds the provenance) are skipped.
+# command line), run-state.gob (which embeds the provenance) and
+# run-manifest.json (their sizes and checksums) are skipped.
 # Prints the files that differ; exit status 1 when any does.
 set -euo pipefail
 a=$1 b=$2
 status=0
 for f in $(cd "$a" && ls); do
   case $f in
-    provenance.json | run-state.gob | *.png | *.svg) continue ;;
+    provenance.json | run-manifest.json | run-state.gob | *.png | *.svg) continue ;;
     *.nc)
       if ! diff -q <(ncdump -p 9,17 "$a/$f" | grep -v ':history = ') <(ncdump -p 9,17 "$b/$f" | grep -v ':history = ') >/dev/null; then
         echo "differs: $f"

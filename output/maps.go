@@ -9,6 +9,7 @@ import (
 
 	"lidscope/internal/cfwrite"
 	"lidscope/regimes"
+	"lidscope/stats"
 	"lidscope/vocab"
 )
 
@@ -40,10 +41,21 @@ func (c *checked) timeComment(comment string) string {
 }
 
 // mapVar is one variable of maps.nc with its values for the single time
-// step (the whole record).
+// step (the whole record): data, or fill to make them when they are
+// written (the regime maps of every quantity would otherwise all be in
+// memory at once, most of a fine grid's end-of-run peak).
 type mapVar struct {
 	spec cfwrite.VarSpec
 	data []float64
+	fill func() []float64
+}
+
+// values returns the variable's values.
+func (v mapVar) values() []float64 {
+	if v.fill != nil {
+		return v.fill()
+	}
+	return v.data
 }
 
 // mapVars builds every variable of maps.nc. Regime variables are laid out
@@ -56,7 +68,7 @@ func (c *checked) mapVars() []mapVar {
 	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
 	steps := strconv.FormatFloat(c.meta.StepsPerYear, 'g', -1, 64)
 	var out []mapVar
-	add := func(s cfwrite.VarSpec, d []float64) { out = append(out, mapVar{s, d}) }
+	add := func(s cfwrite.VarSpec, d []float64) { out = append(out, mapVar{spec: s, data: d}) }
 
 	for _, r := range regimes.All {
 		d := make([]float64, n)
@@ -135,15 +147,19 @@ func (c *checked) mapVars() []mapVar {
 
 	for qi, name := range acc.L.Quantities {
 		q := c.qs[qi]
-		mean := make([]float64, len(regimes.All)*n)
-		cnt := make([]float64, len(regimes.All)*n)
-		for k, r := range regimes.All {
-			for i := 0; i < n; i++ {
-				m := acc.Moments(qi, r, i)
-				mean[k*n+i] = m.MeanOrNaN()
-				cnt[k*n+i] = float64(m.N)
+		regimeMaps := func(of func(m stats.Moments) float64) func() []float64 {
+			return func() []float64 {
+				d := make([]float64, len(regimes.All)*n)
+				for k, r := range regimes.All {
+					for i := 0; i < n; i++ {
+						d[k*n+i] = of(acc.Moments(qi, r, i))
+					}
+				}
+				return d
 			}
 		}
+		mean := regimeMaps(func(m stats.Moments) float64 { return m.MeanOrNaN() })
+		cnt := regimeMaps(func(m stats.Moments) float64 { return float64(m.N) })
 		coord := ""
 		if q.PressurePa > 0 {
 			coord = pressureCoordName(q.PressurePa)
@@ -153,12 +169,14 @@ func (c *checked) mapVars() []mapVar {
 			LongName: q.LongName, StandardName: q.StandardName,
 			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
 			Coordinates: coord,
-		}, mean)
+		}, nil)
+		out[len(out)-1].fill = mean
 		add(cfwrite.VarSpec{
 			Name: name + "_" + vocab.Count, Dims: ryx, Type: cfwrite.Int32, Units: vocab.UnitOne,
 			LongName:    "number of time steps averaged in " + name + "_mean",
 			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
-		}, cnt)
+		}, nil)
+		out[len(out)-1].fill = cnt
 	}
 	return out
 }
@@ -325,9 +343,10 @@ func (c *checked) writeMaps(path string, notes []string) error {
 		return err
 	}
 	for k, v := range vars {
-		if err := handles[k].WriteStep(step, v.data); err != nil {
+		if err := handles[k].WriteStep(step, v.values()); err != nil {
 			return err
 		}
+		vars[k].data = nil // written: garbage from here on
 	}
 	return w.Close()
 }

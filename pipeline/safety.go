@@ -89,7 +89,7 @@ func runBytes(all []*field, n int, nq int) int64 {
 		b += 2 * cells * 4 // step buffers
 	}
 	// every cell counted as an analysed column: the mask is not read yet
-	perCell := int64(4*4+1+1+4+8) + int64(accumulate.BytesPerColumn(nq))
+	perCell := int64(4*4+1+1+4+8) + int64(accumulate.BytesPerColumn(nq, 3))
 	return b + cells*perCell
 }
 

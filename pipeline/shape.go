@@ -11,7 +11,10 @@ type Shape struct {
 	Cells      int // analysis grid cells
 	// Columns are the analysed columns, which keep per-column statistics:
 	// the ocean cells of the static mask inside the analysis domain.
-	Columns   int
+	Columns int
+	// Regimes is the number of regimes whose per-column sums are kept: 2
+	// without a transition band, else 3.
+	Regimes   int
 	BandCells int // cells with area inside the tropical band
 	Steps     int // time steps the run would take
 	Fields    int // fields read at every step
@@ -37,6 +40,10 @@ func ShapeOf(p Plan) (Shape, error) {
 		return Shape{}, err
 	}
 	s.Columns = len(analysedColumns(&p, in, ocean))
+	s.Regimes = 3
+	if p.Regimes.HalfWidth == 0 {
+		s.Regimes = 2
+	}
 	lb := make([][2]float64, g.NLat())
 	copy(lb, g.LatBounds)
 	for _, w := range p.Regimes.Band.Weights(lb, g.CellAreas()) {
@@ -56,8 +63,11 @@ func ShapeOf(p Plan) (Shape, error) {
 // accumulate.BytesPerColumn) and buffers per grid cell, the pipeline's
 // step buffers for fields inputs (three reader buffers, two sets of step
 // outputs, masks, weights and the column index).
-func StateBytesPerCell(nq, fields int) (acc, buffers int) {
-	acc = accumulate.BytesPerColumn(nq)
+//
+// nr is the number of regimes whose sums are kept: 3, or 2 without a
+// transition band (Shape.Regimes).
+func StateBytesPerCell(nq, nr, fields int) (acc, buffers int) {
+	acc = accumulate.BytesPerColumn(nq, nr)
 	buffers = nbufs*fields*4 + 2*(4+1+4+4+4) + 1 + 1 + 8 + 8 + 4 + 4
 	return acc, buffers
 }

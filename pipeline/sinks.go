@@ -25,7 +25,8 @@ func newSinks(p *Plan, in *inputs, area, bandW []float64, ocean []bool) (*sinkSe
 	names, cloud := quantities(p, in)
 	cols := analysedColumns(p, in, ocean)
 	acc, err := accumulate.New(accumulate.Layout{NLat: g.NLat(), NLon: g.NLon(), Lat: g.Lat, Lon: g.Lon,
-		Area: area, BandWeight: bandW, Quantities: names, Cloud: cloud, Regions: p.Regions, Columns: cols})
+		Area: area, BandWeight: bandW, Quantities: names, Cloud: cloud, Regions: p.Regions, Columns: cols,
+		NoTransition: p.Regimes.HalfWidth == 0})
 	if err != nil {
 		return nil, err
 	}

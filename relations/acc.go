@@ -713,6 +713,16 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 				}
 			}
 		}
+		// A cell outside the patch whose relative SST is farther from the
+		// regime thresholds than twice the largest shift keeps its regime
+		// for every ΔT: its sums get, in the same order, exactly the
+		// additions the general loop below would make (area, convective
+		// before and after), so the results are the same bits.
+		maxShift := 0.0
+		for _, sh := range shiftOut {
+			maxShift = math.Max(maxShift, math.Abs(sh))
+		}
+		stableAbove, stableBelow := cl.Delta+cl.HalfWidth+2*maxShift, cl.Delta-cl.HalfWidth-2*maxShift
 		for _, i := range a.bandCells {
 			g := s.Regime[i]
 			if g == regimes.Missing || pa.inside[i] {
@@ -721,6 +731,17 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 			w := a.l.BandWeight[i]
 			x := float64(s.Rel[i])
 			c0 := g == regimes.Convective
+			if (c0 && x > stableAbove) || (g == regimes.Subsidence && x < stableBelow) {
+				for k := range nk {
+					fs := &pa.sums[k]
+					fs.outArea += w
+					if c0 {
+						fs.outConvBefore += w
+						fs.outConvAfter += w
+					}
+				}
+				continue
+			}
 			for k := range nk {
 				fs := &pa.sums[k]
 				fs.outArea += w

@@ -36,7 +36,7 @@ func writeGridMemory(w io.Writer, gr pipeline.GridReport) {
 	if gr.SuggestGrid != nil && !gr.Match() {
 		g = gr.SuggestGrid
 	}
-	acc, buf := pipeline.StateBytesPerCell(5, 4)
+	acc, buf := pipeline.StateBytesPerCell(5, 3, 4)
 	n := int64(g.Size())
 	state := int64(acc) * n
 	total := int64(45<<20) + state + int64(buf)*n + 2*state + n*(5*3*8+12*4)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"runtime"
 	"runtime/pprof"
 	"runtime/trace"
 
@@ -62,6 +63,7 @@ func (p profileOptions) start() (stop func() error, err error) {
 			return nil, fmt.Errorf("--memprofile: %w", err)
 		}
 		closers = append(closers, func() error {
+			runtime.GC() // the profile holds the allocations up to the last collection
 			err := pprof.Lookup("allocs").WriteTo(f, 0)
 			if cerr := f.Close(); err == nil {
 				err = cerr
