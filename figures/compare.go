@@ -300,7 +300,7 @@ func (f *fig) comparisonMapPage(variable, specName string, ref, cand *Run) (*pag
 	}{
 		{"Reference: " + ref.Dataset, rf, seq, m.factor, m.label, both},
 		{"Candidate: " + cand.Dataset, cf, seq, m.factor, m.label, both},
-		{"Difference, candidate − reference", &df, div, 1, "Difference: " + lowerFirst(m.label), diffs},
+		{"Difference, candidate − reference", &df, div, 1, differenceLabel(m.label), diffs},
 	}
 	bw := bodyWidth()
 	aspect := (w.north - w.south) / w.span
@@ -510,6 +510,16 @@ func comparisonSubject(res *compare.Result) string {
 	default:
 		return fmt.Sprintf("%s vs %d candidates (%s, %s, … %s)", ref, n, names[0], names[1], names[n-1])
 	}
+}
+
+// differenceLabel is the colour-bar label of a difference map: a
+// difference of percentages is in percentage points.
+func differenceLabel(label string) string {
+	l := "Difference: " + lowerFirst(label)
+	if strings.HasSuffix(l, " (%)") {
+		l = strings.TrimSuffix(l, " (%)") + " (percentage points)"
+	}
+	return l
 }
 
 // maxNamedCandidates is the most candidates a subtitle names one by one.

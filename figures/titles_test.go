@@ -156,3 +156,15 @@ func TestSensitivitySubtitleNamesCandidates(t *testing.T) {
 		}
 	}
 }
+
+// A difference of percentages is labelled in percentage points.
+func TestDifferenceLabel(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"Time in the convective regime (%)", "Difference: time in the convective regime (percentage points)"},
+		{"Regime crossings (number per year of record)", "Difference: regime crossings (number per year of record)"},
+	} {
+		if got := differenceLabel(c.in); got != c.want {
+			t.Errorf("differenceLabel(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+}
