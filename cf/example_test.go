@@ -132,7 +132,7 @@ func ExampleInspect() {
 	// usable: true format: NetCDF-4
 	// sst ← tos by standard_name sea_surface_temperature
 	//   units: "degC" → K: x +273.15
-	//   grid: 2×3 lat×lon, regular 20° × 120° longitude; lat -10…10, lon -120…120; bounds derived from midpoints
+	//   grid: 2×3 lat×lon, regular 20° latitude × 120° longitude; lat -10…10, lon -120…120; bounds derived from midpoints
 	//   decoding: packed: value = stored × 0.01 + 0; _FillValue -32767; valid (implied by the fill value) -32766…+Inf
 	//   sample: 293.15 … 300.25 K
 	//   note: latitude stored north to south: reordered south to north

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"lidscope/internal/jsonnum"
 	"lidscope/netcdf"
@@ -18,6 +19,9 @@ type FileReport struct {
 	Fields   []VarReport `json:"fields,omitempty"`
 	Other    []string    `json:"other_variables,omitempty"`
 	Problems []string    `json:"problems,omitempty"`
+	// SourceID is the file's source_id global attribute (CMIP and
+	// obs4MIPs name the model or data set with it), "" when absent.
+	SourceID string `json:"source_id,omitempty"`
 	// Usable is false when the file cannot be read, or no variable in it
 	// could be used for any role.
 	Usable bool `json:"usable"`
@@ -133,6 +137,11 @@ func InspectWith(path string, o InspectOptions) *FileReport {
 	defer nf.Close()
 	if fm, err := nf.Format(); err == nil {
 		rep.Format = fm.String()
+	}
+	if a, err := nf.Attr("source_id"); err == nil {
+		if t, ok := a.Text(); ok {
+			rep.SourceID = strings.TrimSpace(t)
+		}
 	}
 	dims, err := nf.Dims()
 	if err != nil {
@@ -276,7 +285,7 @@ func describeLayout(l *Layout) string {
 	if len(lat) == 1 {
 		kind = "a single latitude"
 	} else if regular(lat, 1e-4) {
-		kind = fmt.Sprintf("regular %g°", round6(math.Abs(lat[len(lat)-1]-lat[0])/float64(max(1, len(lat)-1))))
+		kind = fmt.Sprintf("regular %g° latitude", round6(math.Abs(lat[len(lat)-1]-lat[0])/float64(max(1, len(lat)-1))))
 	} else if len(lat) > 2 {
 		kind = "irregular (e.g. Gaussian) latitudes"
 	}

@@ -50,6 +50,10 @@ type starter struct {
 	unusable []string // files with no usable field, with the reason
 	ambig    []string
 	first    string
+	// used are the files that gave a field (as inspect opened them) and
+	// sourceIDs their source_id attributes, for the dataset name.
+	used      []string
+	sourceIDs []string
 }
 
 var (
@@ -69,6 +73,10 @@ func newStarter(reports []*cf.FileReport, paths []string) *starter {
 			p = paths[i]
 		}
 		steps := timeSteps(rep)
+		if len(rep.Fields) > 0 {
+			s.used = append(s.used, rep.Path)
+			s.sourceIDs = append(s.sourceIDs, rep.SourceID)
+		}
 		for _, vr := range rep.Fields {
 			f := starterField{file: p, vr: vr, steps: steps}
 			if prev := s.byRole[vr.Role]; len(prev) > 0 && (prev[0].vr.Var != vr.Var || gridKey(prev[0].vr.Grid) != gridKey(vr.Grid)) {
@@ -175,10 +183,88 @@ func literal(p string) string {
 	return b.String()
 }
 
-// name is the dataset name the starter proposes: the first file's stem in
-// the form of dataset names (lower case; other characters become -).
-func (s *starter) name() string {
+// StarterName is the dataset name Starter proposes for the files of
+// reports, and where it comes from (for the comment beside it and the
+// command's message).
+func StarterName(reports []*cf.FileReport) (name, from string) {
+	return newStarter(reports, nil).name()
+}
+
+// name is the dataset name the starter proposes, and where it comes from:
+// the source_id global attribute all the files share (CMIP, obs4MIPs);
+// else the folder that holds all the files, above folders named after a
+// role (obs for obs/sst/*.nc and obs/low_cloud/*.nc); else the first
+// file's stem. It has the form of dataset names (lower case; other
+// characters become -). A file name stands for one file of a record
+// (sst_200101-200512), never for the dataset.
+func (s *starter) name() (name, from string) {
+	if id := commonText(s.sourceIDs); id != "" {
+		if n := datasetName(id); n != "dataset" {
+			return n, "the files' source_id attribute"
+		}
+	}
+	if dir := commonFolder(s.used); dir != "" {
+		if n := datasetName(filepath.Base(dir)); n != "dataset" {
+			return n, "the files' folder " + filepath.Base(dir)
+		}
+	}
 	stem := strings.TrimSuffix(filepath.Base(s.first), filepath.Ext(s.first))
+	return datasetName(stem), "the first file's name"
+}
+
+// commonText is the one non-empty text all of xs have, else "".
+func commonText(xs []string) string {
+	if len(xs) == 0 || xs[0] == "" {
+		return ""
+	}
+	for _, x := range xs[1:] {
+		if x != xs[0] {
+			return ""
+		}
+	}
+	return xs[0]
+}
+
+// commonFolder is the deepest folder that holds every file of paths, above
+// any folder named after a role (sst/, low_cloud/, …); "" when there is
+// none but the root.
+func commonFolder(paths []string) string {
+	var common string
+	for i, p := range paths {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			return ""
+		}
+		d := filepath.Dir(a)
+		if i == 0 {
+			common = d
+			continue
+		}
+		for common != filepath.Dir(common) && !within(d, common) {
+			common = filepath.Dir(common)
+		}
+	}
+	roles := map[string]bool{}
+	for _, r := range cf.Roles() {
+		roles[string(r)] = true
+	}
+	for common != "" && common != filepath.Dir(common) && roles[strings.ToLower(filepath.Base(common))] {
+		common = filepath.Dir(common)
+	}
+	if common == "" || common == filepath.Dir(common) {
+		return ""
+	}
+	return common
+}
+
+// within reports whether folder d is dir or below it.
+func within(d, dir string) bool {
+	r, err := filepath.Rel(dir, d)
+	return err == nil && r != ".." && !strings.HasPrefix(r, ".."+string(filepath.Separator))
+}
+
+// datasetName puts a text in the form of dataset names.
+func datasetName(stem string) string {
 	var b strings.Builder
 	for _, r := range strings.ToLower(stem) {
 		if r < 128 && (r == '_' || r == '-' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z') {
@@ -221,8 +307,9 @@ func (s *starter) text() string {
 	if len(s.unusable)+len(s.ambig) > 0 {
 		w("")
 	}
+	name, from := s.name()
 	w("datasets:  # one entry per dataset, keyed by its name")
-	w("  %s:  # rename: lower-case letters, digits, _ and - (the folder of its results)", s.name())
+	w("  %s:  # named after %s; rename it as you like: lower-case letters, digits, _ and - (the folder of its results)", name, from)
 	w("    about: \"\"")
 	w("    files:")
 	roles := s.roles()

@@ -14,8 +14,8 @@ import (
 )
 
 const (
-	grid2 = "91×181 lat×lon, regular 2° × 2° longitude; lat -90…90, lon -180…180; bounds derived from midpoints"
-	grid1 = "180×360 lat×lon, regular 1° × 1° longitude; lat -89.5…89.5, lon -179.5…179.5; bounds derived from midpoints"
+	grid2 = "91×181 lat×lon, regular 2° latitude × 2° longitude; lat -90…90, lon -180…180; bounds derived from midpoints"
+	grid1 = "180×360 lat×lon, regular 1° latitude × 1° longitude; lat -89.5…89.5, lon -179.5…179.5; bounds derived from midpoints"
 	// the error cf gives for a time axis with bare "Month" units (see cf/time.go and calendar)
 	monthProblem = `role sst: x.nc: time coordinate time, attribute units = "Month": time units not in CF form: time units "Month" name a unit but no reference date (no "since <date>"); fix the attribute or declare the time axis in the study`
 )
@@ -237,7 +237,7 @@ func TestStarterPaths(t *testing.T) {
 	if txt := config.Starter(reps, []string{"../x/sst.nc"}); !strings.Contains(txt, `sst: "../x/sst.nc"`) {
 		t.Errorf("paths not used:\n%s", txt)
 	}
-	if txt := config.Starter(reps, nil); !strings.Contains(txt, `sst: "/data/x/sst.nc"`) || !strings.Contains(txt, "\n  sst:  # rename") {
+	if txt := config.Starter(reps, nil); !strings.Contains(txt, `sst: "/data/x/sst.nc"`) || !strings.Contains(txt, "\n  x:  # named after the files' folder x; rename it") {
 		t.Errorf("report path not used:\n%s", txt)
 	}
 }

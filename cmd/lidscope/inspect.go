@@ -128,7 +128,13 @@ func writeReport(w io.Writer, r *cf.FileReport) {
 		line("time", f.Time)
 		line("decoding", f.Decoding)
 		if f.Min != nil {
-			line("sample", fmt.Sprintf("%.5g … %.5g %s (after conversion)", *f.Min, *f.Max, f.SIUnits))
+			// a fraction's "1" is left out, as in the demo's console
+			// lines (the JSON keeps units "1")
+			u := " " + f.SIUnits
+			if f.SIUnits == "1" || f.SIUnits == "" {
+				u = ""
+			}
+			line("sample", fmt.Sprintf("%.5g … %.5g%s (after conversion)", *f.Min, *f.Max, u))
 		}
 		for _, n := range f.Notes {
 			line("note", n)

@@ -40,7 +40,7 @@ func TestInspectText(t *testing.T) {
 		"format: NetCDF-4; dimensions: time=1 (unlimited), lat=3, lon=4",
 		"sst ← variable sst (standard_name sea_surface_temperature)",
 		`units:    "K" is K: no conversion`,
-		"grid:     3×4 lat×lon, regular 10° × 90° longitude; lat -10…10, lon -180…90; bounds derived from midpoints",
+		"grid:     3×4 lat×lon, regular 10° latitude × 90° longitude; lat -10…10, lon -180…90; bounds derived from midpoints",
 		"time:     2000-01-15T12:00:00, 1 step (standard calendar)",
 		"sample:   281 … 292 K (after conversion)",
 		"note:     latitude stored north to south: reordered south to north",

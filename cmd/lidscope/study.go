@@ -117,6 +117,8 @@ func runStudyInit(o studyInitOptions, stdout, stderr io.Writer) error {
 		return fmt.Errorf("writing the study %s: %w", o.Out, err)
 	}
 	fmt.Fprintf(stdout, "wrote %s\n", o.Out)
+	name, from := config.StarterName(reports)
+	fmt.Fprintf(stdout, "dataset %s: named after %s; rename it under datasets: in %s as you like\n", name, from, o.Out)
 	if _, err := config.Load(o.Out, config.LoadOptions{LookupEnv: config.NoEnvironment}); err != nil {
 		fmt.Fprintf(stderr, "note: the starter does not load yet; edit it where marked MISSING or CHECK:\n%v\n", err)
 	} else {
