@@ -270,11 +270,22 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 			}
 			fmt.Fprintf(w, "    %-34s %10s  %10s\n", "", "reference", "model")
 			for _, s := range c.Scalars {
-				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%+.3g%s)\n", s.Name, s.Ref, s.Cand, s.Diff, spaceUnits(s.Units))
+				fmt.Fprintf(w, "    %-34s %10.4g  %10.4g  (%s%s)\n", s.Name, s.Ref, s.Cand, differenceText(s.Diff, s.Ref, s.Cand), spaceUnits(s.Units))
 			}
 		}
 		compare.WriteEstimates(w, d.Comparison, "    ")
 	}
+}
+
+// differenceText writes a candidate − reference difference with three
+// significant digits, and as "0" when it is rounding noise of the two
+// values (below 1e-9 of the larger: +3.61e-16 between two runs' 0.1 is
+// float arithmetic, not a difference).
+func differenceText(d, ref, cand float64) string {
+	if math.Abs(d) <= 1e-9*math.Max(math.Abs(ref), math.Abs(cand)) {
+		return "0"
+	}
+	return fmt.Sprintf("%+.3g", d)
 }
 
 // spaceUnits is the units text printed after a console number: " K" for

@@ -84,3 +84,22 @@ func TestDemoForceReplacesTheWorld(t *testing.T) {
 		t.Errorf("the user's file: %v", err)
 	}
 }
+
+// The demo's comparison table prints a difference that is rounding noise
+// of the two values as 0 (it printed +3.61e-16 between 0.1 and 0.1).
+func TestDifferenceText(t *testing.T) {
+	for _, c := range []struct {
+		d, ref, cand float64
+		want         string
+	}{
+		{3.61e-16, 0.1, 0.1, "0"},
+		{-5.69e-16, 0.1, 0.1, "0"},
+		{0.0798, 298.2, 298.3, "+0.0798"},
+		{-0.0118, 0.2764, 0.2645, "-0.0118"},
+		{1e-12, 0, 1e-12, "+1e-12"},
+	} {
+		if got := differenceText(c.d, c.ref, c.cand); got != c.want {
+			t.Errorf("differenceText(%g, %g, %g) = %q, want %q", c.d, c.ref, c.cand, got, c.want)
+		}
+	}
+}
