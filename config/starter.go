@@ -440,7 +440,7 @@ func (s *starter) relationshipsSection(w func(string, ...any)) {
 	if s.has(cf.RoleSWUp) {
 		resp = append(resp, string(cf.RoleSWUp))
 	}
-	w("#   responses: [%s]  # roles: low_cloud, cloud, toa_sw_up, olr, precipitation, omega", strings.Join(resp, ", "))
+	w("#   responses: [%s]  # analysis_cloud (the cloud of analysis.cloud) or roles: low_cloud, cloud, toa_sw_up, olr, precipitation, omega", strings.Join(resp, ", "))
 	w("#   seasons: false  # true: also DJF, MAM, JJA and SON")
 	w("#   # patches:  # boxes whose SST is perturbed by delta_t (none by default), e.g.")
 	w("#   #   - {name: east_pacific, south: -10, north: 10, west: -130, east: -80}")
