@@ -65,11 +65,20 @@ func classicHeader(r io.Reader) (need int64, ok, cut bool) {
 		}
 	}
 	h.attrs()
-	type vinfo struct {
-		size, begin int64 // bytes of one record (record vars) or of all data
-		record      bool
-	}
-	var vars []vinfo
+	vars := h.vars(dims)
+	return extentOf(vars, numrecs), true, false
+}
+
+// classicVar is where a variable's data lie in a classic file.
+type classicVar struct {
+	size, begin int64 // bytes of one record (record vars) or of all data
+	record      bool
+}
+
+// vars reads the variable list of a classic header (panicking on a
+// malformed one, as the other readers of hdr do).
+func (h *hdr) vars(dims []int64) []classicVar {
+	var vars []classicVar
 	n := h.list(0x0B)
 	for i := int64(0); i < n; i++ {
 		h.name()
@@ -102,8 +111,14 @@ func classicHeader(r io.Reader) (need int64, ok, cut bool) {
 		} else {
 			begin = int64(h.u32())
 		}
-		vars = append(vars, vinfo{mulCap(size, ts), begin, rec})
+		vars = append(vars, classicVar{mulCap(size, ts), begin, rec})
 	}
+	return vars
+}
+
+// extentOf is the file size the variables need: the end of the last
+// one's data, records included.
+func extentOf(vars []classicVar, numrecs int64) (need int64) {
 	// Records hold every record variable in turn, each padded to 4 bytes,
 	// except when there is only one record variable.
 	var recsize int64
@@ -133,7 +148,7 @@ func classicHeader(r io.Reader) (need int64, ok, cut bool) {
 			need = end
 		}
 	}
-	return need, true, false
+	return need
 }
 
 // checkClassicSize returns an error when path is a classic-format file

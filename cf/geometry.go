@@ -102,30 +102,55 @@ func readCoord(f *netcdf.File, cv *netcdf.Var) ([]float64, error) {
 // newLayout builds the canonical layout. latFirst says whether the stored
 // slab is [lat][lon] (else [lon][lat]).
 func newLayout(path string, latName, lonName string, lat, lon []float64, latB, lonB [][2]float64, latFirst bool) (*Layout, error) {
-	ny, nx := len(lat), len(lon)
-	if ny == 0 || nx == 0 {
-		return nil, fmt.Errorf("%s: the grid has %d latitudes (%s) and %d longitudes (%s); both must have at least one value", path, ny, latName, nx, lonName)
-	}
-	if latB != nil && len(latB) != ny || lonB != nil && len(lonB) != nx {
-		return nil, fmt.Errorf("%s: %d latitude and %d longitude bounds for a %d×%d grid (CF-1.10 §7.1); fix the bounds variables", path, len(latB), len(lonB), ny, nx)
+	if err := checkAxes(path, latName, lonName, lat, lon, latB, lonB); err != nil {
+		return nil, err
 	}
 	l := &Layout{storedLat: lat, storedLon: lon}
+	yi := l.latOrder(lat)
+	xi, err := l.lonOrder(path, lonName, lon)
+	if err != nil {
+		return nil, err
+	}
+	l.Lat = make([]float64, len(lat))
+	for k, i := range yi {
+		l.Lat[k] = lat[i]
+	}
+	l.setBounds(latName, lonName, lat, lon, latB, lonB, yi, xi)
+	l.setSource(yi, xi, len(lat), len(lon), latFirst)
+	return l, nil
+}
+
+// checkAxes checks the centres and the number of bounds of a grid.
+func checkAxes(path string, latName, lonName string, lat, lon []float64, latB, lonB [][2]float64) error {
+	ny, nx := len(lat), len(lon)
+	if ny == 0 || nx == 0 {
+		return fmt.Errorf("%s: the grid has %d latitudes (%s) and %d longitudes (%s); both must have at least one value", path, ny, latName, nx, lonName)
+	}
+	if latB != nil && len(latB) != ny || lonB != nil && len(lonB) != nx {
+		return fmt.Errorf("%s: %d latitude and %d longitude bounds for a %d×%d grid (CF-1.10 §7.1); fix the bounds variables", path, len(latB), len(lonB), ny, nx)
+	}
 	for i, x := range lon {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil, fmt.Errorf("%s: longitude %s[%d] = %g is not a finite number; fix the coordinate", path, lonName, i, x)
+			return fmt.Errorf("%s: longitude %s[%d] = %g is not a finite number; fix the coordinate", path, lonName, i, x)
 		}
 	}
 	for i, y := range lat {
 		if math.IsNaN(y) || y < -90.0001 || y > 90.0001 {
-			return nil, fmt.Errorf("%s: latitude %s[%d] = %g is outside −90…90; check the coordinate (is it in radians?)", path, latName, i, y)
+			return fmt.Errorf("%s: latitude %s[%d] = %g is outside −90…90; check the coordinate (is it in radians?)", path, latName, i, y)
 		}
 	}
 	if !strictlyMonotonic(lat) {
-		return nil, fmt.Errorf("%s: latitude %s is not strictly monotonic; lidscope needs a rectilinear grid", path, latName)
+		return fmt.Errorf("%s: latitude %s is not strictly monotonic; lidscope needs a rectilinear grid", path, latName)
 	}
 	if !strictlyMonotonic(lon) {
-		return nil, fmt.Errorf("%s: longitude %s is not strictly monotonic; lidscope needs a rectilinear grid", path, lonName)
+		return fmt.Errorf("%s: longitude %s is not strictly monotonic; lidscope needs a rectilinear grid", path, lonName)
 	}
+	return nil
+}
+
+// latOrder is the stored index of each latitude from south to north.
+func (l *Layout) latOrder(lat []float64) []int {
+	ny := len(lat)
 	yi := make([]int, ny)
 	for i := range yi {
 		yi[i] = i
@@ -136,7 +161,14 @@ func newLayout(path string, latName, lonName string, lat, lon []float64, latB, l
 		}
 		l.Notes = append(l.Notes, "latitude stored north to south: reordered south to north")
 	}
-	// Longitudes: normalise, drop a duplicated wrap-around column, sort.
+	return yi
+}
+
+// lonOrder normalises the longitudes to −180…180, drops a duplicated
+// wrap-around column and sorts them; it sets l.Lon and returns the stored
+// index of each.
+func (l *Layout) lonOrder(path, lonName string, lon []float64) ([]int, error) {
+	nx := len(lon)
 	type lc struct {
 		v float64
 		i int
@@ -175,13 +207,15 @@ func newLayout(path string, latName, lonName string, lat, lon []float64, latB, l
 		xi[k] = c.i
 		l.Lon[k] = c.v
 	}
-	l.Lat = make([]float64, ny)
-	for k, i := range yi {
-		l.Lat[k] = lat[i]
-	}
-	// Bounds: from the file when given (CF-1.10 §7.1), else derived from
-	// midpoints between stored centres (common practice), in stored order so
-	// that a grid crossing the date line keeps contiguous cells.
+	return xi, nil
+}
+
+// setBounds sets the cell bounds: from the file when given (CF-1.10 §7.1),
+// else derived from midpoints between stored centres (common practice), in
+// stored order so that a grid crossing the date line keeps contiguous
+// cells.
+func (l *Layout) setBounds(latName, lonName string, lat, lon []float64, latB, lonB [][2]float64, yi, xi []int) {
+	ny := len(lat)
 	if latB != nil {
 		l.LatFromFile = true
 		if bad := outsideBounds(lat, latB); bad >= 0 {
@@ -222,6 +256,10 @@ func newLayout(path string, latName, lonName string, lat, lon []float64, latB, l
 			l.LonBounds[k] = [2]float64{b[0] + shift, b[1] + shift}
 		}
 	}
+}
+
+// setSource maps each canonical [lat][lon] cell to its stored index.
+func (l *Layout) setSource(yi, xi []int, ny, nx int, latFirst bool) {
 	l.src = make([]int, ny*len(xi))
 	for k, i := range yi {
 		for m, j := range xi {
@@ -235,7 +273,6 @@ func newLayout(path string, latName, lonName string, lat, lon []float64, latB, l
 	if !latFirst {
 		l.Notes = append(l.Notes, "stored as [lon][lat]: transposed to [lat][lon]")
 	}
-	return l, nil
 }
 
 // deriveBounds returns cell bounds half-way between neighbouring centres,

@@ -127,51 +127,15 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 	l := attrList(as)
 	m := Mask{Fill: math.NaN(), ValidMin: math.Inf(-1), ValidMax: math.Inf(1), Scale: 1,
 		isFloatType: typ == netcdf.Float || typ == netcdf.Double}
-	scale, st, hasScale, err := l.floats(vname, "scale_factor")
+	unpackedType, err := m.readPacking(l, vname)
 	if err != nil {
 		return m, err
-	}
-	off, ot, hasOff, err := l.floats(vname, "add_offset")
-	if err != nil {
-		return m, err
-	}
-	if hasScale {
-		if len(scale) != 1 {
-			return m, fmt.Errorf("%s:scale_factor has %d values, it must have one (NUG Appendix A); fix the file", vname, len(scale))
-		}
-		m.Packed, m.Scale = true, scale[0]
-		if m.Scale == 0 || math.IsNaN(m.Scale) || math.IsInf(m.Scale, 0) {
-			return m, fmt.Errorf("%s:scale_factor is %g: values cannot be unpacked; fix the file", vname, m.Scale)
-		}
-	}
-	if hasOff {
-		if len(off) != 1 {
-			return m, fmt.Errorf("%s:add_offset has %d values, it must have one (NUG Appendix A); fix the file", vname, len(off))
-		}
-		m.Packed, m.Offset = true, off[0]
-		if math.IsNaN(m.Offset) || math.IsInf(m.Offset, 0) {
-			return m, fmt.Errorf("%s:add_offset is %g: values cannot be unpacked; fix the file", vname, m.Offset)
-		}
-	}
-	unpackedType := st
-	if !hasScale {
-		unpackedType = ot
 	}
 	inUnpacked := func(t netcdf.Type) bool {
 		return m.Packed && t != typ && t == unpackedType && (t == netcdf.Float || t == netcdf.Double)
 	}
-
-	fill, _, hasFill, err := l.floats(vname, "_FillValue")
-	if err != nil {
+	if err := m.readFill(l, vname, typ); err != nil {
 		return m, err
-	}
-	if hasFill {
-		if len(fill) != 1 {
-			return m, fmt.Errorf("%s:_FillValue has %d values, it must have one (NUG Appendix A); fix the file", vname, len(fill))
-		}
-		m.Fill, m.FillGiven = fill[0], true
-	} else if d, ok := defaultFill[typ]; ok {
-		m.Fill = d
 	}
 	miss, mt, hasMiss, err := l.floats(vname, "missing_value")
 	if err != nil {
@@ -181,17 +145,81 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 		m.Missing = miss
 		m.MissingUnpacked = inUnpacked(mt)
 	}
+	if err := m.readValidRange(l, vname, typ, inUnpacked); err != nil {
+		return m, err
+	}
+	m.noteUnpacked(vname)
+	return m, nil
+}
+
+// readPacking reads scale_factor and add_offset (NUG Appendix A) and
+// returns the type of the unpacked values (that of scale_factor, else of
+// add_offset).
+func (m *Mask) readPacking(l attrList, vname string) (netcdf.Type, error) {
+	scale, st, hasScale, err := l.floats(vname, "scale_factor")
+	if err != nil {
+		return 0, err
+	}
+	off, ot, hasOff, err := l.floats(vname, "add_offset")
+	if err != nil {
+		return 0, err
+	}
+	if hasScale {
+		if len(scale) != 1 {
+			return 0, fmt.Errorf("%s:scale_factor has %d values, it must have one (NUG Appendix A); fix the file", vname, len(scale))
+		}
+		m.Packed, m.Scale = true, scale[0]
+		if m.Scale == 0 || math.IsNaN(m.Scale) || math.IsInf(m.Scale, 0) {
+			return 0, fmt.Errorf("%s:scale_factor is %g: values cannot be unpacked; fix the file", vname, m.Scale)
+		}
+	}
+	if hasOff {
+		if len(off) != 1 {
+			return 0, fmt.Errorf("%s:add_offset has %d values, it must have one (NUG Appendix A); fix the file", vname, len(off))
+		}
+		m.Packed, m.Offset = true, off[0]
+		if math.IsNaN(m.Offset) || math.IsInf(m.Offset, 0) {
+			return 0, fmt.Errorf("%s:add_offset is %g: values cannot be unpacked; fix the file", vname, m.Offset)
+		}
+	}
+	if !hasScale {
+		return ot, nil
+	}
+	return st, nil
+}
+
+// readFill reads _FillValue, else the netCDF default fill of the type.
+func (m *Mask) readFill(l attrList, vname string, typ netcdf.Type) error {
+	fill, _, hasFill, err := l.floats(vname, "_FillValue")
+	if err != nil {
+		return err
+	}
+	if hasFill {
+		if len(fill) != 1 {
+			return fmt.Errorf("%s:_FillValue has %d values, it must have one (NUG Appendix A); fix the file", vname, len(fill))
+		}
+		m.Fill, m.FillGiven = fill[0], true
+	} else if d, ok := defaultFill[typ]; ok {
+		m.Fill = d
+	}
+	return nil
+}
+
+// readValidRange reads valid_range, else valid_min/valid_max, else the
+// range the fill value implies (NUG Appendix A); inUnpacked tells whether
+// an attribute of a type applies to unpacked values.
+func (m *Mask) readValidRange(l attrList, vname string, typ netcdf.Type, inUnpacked func(netcdf.Type) bool) error {
 	vr, vt, hasRange, err := l.floats(vname, "valid_range")
 	if err != nil {
-		return m, err
+		return err
 	}
 	vmin, mint, hasMin, err := l.floats(vname, "valid_min")
 	if err != nil {
-		return m, err
+		return err
 	}
 	vmax, maxt, hasMax, err := l.floats(vname, "valid_max")
 	if err != nil {
-		return m, err
+		return err
 	}
 	one := func(name string, x []float64) (float64, error) {
 		if len(x) != 1 || math.IsNaN(x[0]) {
@@ -202,7 +230,7 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 	switch {
 	case hasRange:
 		if len(vr) != 2 || !(vr[0] <= vr[1]) {
-			return m, fmt.Errorf("%s:valid_range = %v must be two increasing values (NUG Appendix A); fix the file", vname, vr)
+			return fmt.Errorf("%s:valid_range = %v must be two increasing values (NUG Appendix A); fix the file", vname, vr)
 		}
 		m.ValidMin, m.ValidMax = vr[0], vr[1]
 		m.RangeUnpacked = inUnpacked(vt)
@@ -212,20 +240,20 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 	case hasMin || hasMax:
 		if hasMin {
 			if m.ValidMin, err = one("valid_min", vmin); err != nil {
-				return m, err
+				return err
 			}
 		}
 		if hasMax {
 			if m.ValidMax, err = one("valid_max", vmax); err != nil {
-				return m, err
+				return err
 			}
 		}
 		if m.ValidMin > m.ValidMax {
-			return m, fmt.Errorf("%s: valid_min %g is above valid_max %g, so no value would be valid; fix the file", vname, m.ValidMin, m.ValidMax)
+			return fmt.Errorf("%s: valid_min %g is above valid_max %g, so no value would be valid; fix the file", vname, m.ValidMin, m.ValidMax)
 		}
 		m.RangeUnpacked = (hasMin && inUnpacked(mint)) || (hasMax && inUnpacked(maxt))
 		if hasMin && hasMax && inUnpacked(mint) != inUnpacked(maxt) {
-			return m, fmt.Errorf("%s: valid_min and valid_max have different types, one of the stored data and one of scale_factor, so it is unclear whether they apply before or after unpacking; fix the file", vname)
+			return fmt.Errorf("%s: valid_min and valid_max have different types, one of the stored data and one of scale_factor, so it is unclear whether they apply before or after unpacking; fix the file", vname)
 		}
 	case m.Fill != 0 && !math.IsNaN(m.Fill):
 		// NUG Appendix A: the fill value (explicit or default) implies a
@@ -245,6 +273,12 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 			}
 		}
 	}
+	return nil
+}
+
+// noteUnpacked sets Unpacked and says which attributes apply to unpacked
+// values.
+func (m *Mask) noteUnpacked(vname string) {
 	m.Unpacked = m.MissingUnpacked || m.RangeUnpacked
 	if m.Unpacked {
 		var which []string
@@ -256,7 +290,6 @@ func newMask(vname string, typ netcdf.Type, as []netcdf.Attr) (Mask, error) {
 		}
 		m.Notes = append(m.Notes, fmt.Sprintf("%s of %s %s the type of scale_factor, not of the stored data: applied to unpacked values", strings.Join(which, " and "), vname, map[bool]string{true: "have", false: "has"}[len(which) > 1]))
 	}
-	return m, nil
 }
 
 // nanDeclared reports whether the variable declares NaN as its _FillValue

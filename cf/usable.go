@@ -157,33 +157,9 @@ func ValueProblems(r Role, conv units.Conversion, lo, hi float64, valid, total i
 	rng := fmt.Sprintf("stored values %.4g…%.4g %q", rawLo, rawHi, conv.From)
 	switch conv.Kind {
 	case units.Temperature:
-		switch {
-		case conv.Offset != 0 && rawLo > 150 && rawHi < 350:
-			add(CheckLooksKelvin, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the study")
-		case conv.Offset == 0 && rawHi < 100 && rawLo > -100:
-			add(CheckLooksCelsius, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the study")
-		case lo < 150 || hi > 350:
-			add(CheckTemperatureRange, rng+": outside 150…350 K, impossible for "+string(r))
-		}
-		// (a tolerance: slabs are float32, so 0 °C comes back as 273.15f)
-		if r == RoleSST && math.Abs(rawLo) < 1e-3 && math.Abs(rawHi) < 1e-3 {
-			add(CheckSSTZero, rng+": SST is 0 everywhere in the sampled steps; suspicious (a land mask or fill?)")
-		}
+		temperatureProblems(add, r, conv, lo, hi, rawLo, rawHi, rng)
 	case units.Fraction:
-		switch {
-		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
-			add(CheckCategoricalMask, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the study which values are ocean")
-		case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
-			add(CheckWholeNumbers, rng+": small whole numbers, not a 0–1 fraction (oktas 0–8? tenths 0–10? category codes?); for cloud cover in oktas set units."+string(r)+": oktas (× 0.125), in tenths units."+string(r)+": tenths (× 0.1) in the study; otherwise convert them to a fraction first")
-		case conv.Scale == 0.125 && hi > 1.0001 && hi <= 1.126:
-			add(CheckOktaNine, rng+": okta 9 means sky obscured (WMO code table 2700, from memory), not a cover; declare it missing in the file (e.g. ncatted -a missing_value,VAR,o,f,9)")
-		case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
-			add(CheckLooksPercent, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the study")
-		case hi > 1.05 || lo < -0.05:
-			add(CheckFractionRange, rng+": a fraction must lie in 0…1")
-		case conv.Scale == 0.01 && rawHi <= 1.0 && rawHi > 0:
-			add(CheckPercentBelowOne, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the study")
-		}
+		fractionProblems(add, r, conv, lo, hi, rawHi, rng)
 	case units.Pressure:
 		if hi < 2000 && hi > 0 {
 			add(CheckPressureSmall, rng+": far too small for Pa; if these are hPa set units."+string(r)+": hPa in the study")
@@ -200,4 +176,41 @@ func ValueProblems(r Role, conv units.Conversion, lo, hi float64, valid, total i
 		}
 	}
 	return out
+}
+
+// temperatureProblems adds the problems of a temperature's sampled range:
+// kelvin labelled Celsius or the reverse, impossible values, an SST of 0.
+func temperatureProblems(add func(check, text string), r Role, conv units.Conversion, lo, hi, rawLo, rawHi float64, rng string) {
+	switch {
+	case conv.Offset != 0 && rawLo > 150 && rawHi < 350:
+		add(CheckLooksKelvin, rng+": these look like kelvin, not Celsius; if so set units."+string(r)+": K in the study")
+	case conv.Offset == 0 && rawHi < 100 && rawLo > -100:
+		add(CheckLooksCelsius, rng+": these look like degrees Celsius, not kelvin; if so set units."+string(r)+": degC in the study")
+	case lo < 150 || hi > 350:
+		add(CheckTemperatureRange, rng+": outside 150…350 K, impossible for "+string(r))
+	}
+	// (a tolerance: slabs are float32, so 0 °C comes back as 273.15f)
+	if r == RoleSST && math.Abs(rawLo) < 1e-3 && math.Abs(rawHi) < 1e-3 {
+		add(CheckSSTZero, rng+": SST is 0 everywhere in the sampled steps; suspicious (a land mask or fill?)")
+	}
+}
+
+// fractionProblems adds the problems of a fraction's sampled range:
+// categorical masks, oktas, tenths or percent not declared, okta 9, values
+// outside 0…1.
+func fractionProblems(add func(check, text string), r Role, conv units.Conversion, lo, hi, rawHi float64, rng string) {
+	switch {
+	case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo) && (r == RoleLandFraction || r == RoleSeaFraction):
+		add(CheckCategoricalMask, rng+": small whole numbers, not a 0–1 fraction: probably a categorical mask; declare in the study which values are ocean")
+	case conv.Scale == 1 && hi > 1.05 && hi <= 10 && hi == math.Trunc(hi) && lo == math.Trunc(lo):
+		add(CheckWholeNumbers, rng+": small whole numbers, not a 0–1 fraction (oktas 0–8? tenths 0–10? category codes?); for cloud cover in oktas set units."+string(r)+": oktas (× 0.125), in tenths units."+string(r)+": tenths (× 0.1) in the study; otherwise convert them to a fraction first")
+	case conv.Scale == 0.125 && hi > 1.0001 && hi <= 1.126:
+		add(CheckOktaNine, rng+": okta 9 means sky obscured (WMO code table 2700, from memory), not a cover; declare it missing in the file (e.g. ncatted -a missing_value,VAR,o,f,9)")
+	case conv.Scale == 1 && hi > 1.05 && hi <= 100.5:
+		add(CheckLooksPercent, rng+": values up to 100 look like percent; if so set units."+string(r)+": % in the study")
+	case hi > 1.05 || lo < -0.05:
+		add(CheckFractionRange, rng+": a fraction must lie in 0…1")
+	case conv.Scale == 0.01 && rawHi <= 1.0 && rawHi > 0:
+		add(CheckPercentBelowOne, rng+": labelled percent but no value exceeds 1; if these are 0–1 fractions set units."+string(r)+": 1 in the study")
+	}
 }
