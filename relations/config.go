@@ -218,12 +218,28 @@ var nameRE = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_.+@-]*$`)
 // Validate checks the configuration on its own (New also checks it
 // against the layout).
 func (c Config) Validate() error {
+	for _, check := range []func() error{c.validateMode, c.validateBins, c.validateResponses,
+		c.validateNames, c.validateSampling, c.validateIndicator, c.validateRegression} {
+		if err := check(); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// validateMode checks the mode and detrending.
+func (c Config) validateMode() error {
 	if c.Mode != Climatological && c.Mode != Anomaly {
 		return fmt.Errorf("relations: Config.Mode = %v: use Climatological or Anomaly", c.Mode)
 	}
 	if c.Detrend && c.Mode != Anomaly {
 		return fmt.Errorf("relations: Config.Detrend needs Mode = Anomaly (a trend is removed from the anomalies only)")
 	}
+	return nil
+}
+
+// validateBins checks the bin edges of each predictor.
+func (c Config) validateBins() error {
 	for _, p := range sortedKeys(c.Bins) {
 		e := c.Bins[p]
 		if !kelvinPredictors[p] {
@@ -241,6 +257,12 @@ func (c Config) Validate() error {
 			}
 		}
 	}
+	return nil
+}
+
+// validateResponses checks that the responses are distinct and not
+// predictors.
+func (c Config) validateResponses() error {
 	seen := map[string]bool{}
 	for _, r := range c.Responses {
 		if r == "" || seen[r] {
@@ -251,6 +273,11 @@ func (c Config) Validate() error {
 			return fmt.Errorf("relations: Config.Responses: %q is also a predictor", r)
 		}
 	}
+	return nil
+}
+
+// validateNames checks the names and boxes of the regions and patches.
+func (c Config) validateNames() error {
 	names := map[string]bool{BandDomain: true}
 	for _, r := range c.Regions {
 		if !nameRE.MatchString(r.Name) {
@@ -274,6 +301,11 @@ func (c Config) Validate() error {
 			return fmt.Errorf("relations: patch %q: %w", p.Name, err)
 		}
 	}
+	return nil
+}
+
+// validateSampling checks the SST perturbations and the bootstrap.
+func (c Config) validateSampling() error {
 	for k, d := range c.DeltaT {
 		if math.IsNaN(d) || math.IsInf(d, 0) || math.Abs(d) > 50 {
 			return fmt.Errorf("relations: Config.DeltaT[%d] = %v K must be finite and within ±50 K", k, d)
@@ -285,6 +317,12 @@ func (c Config) Validate() error {
 	if c.Bootstrap.BlockLength < 1 {
 		return fmt.Errorf("relations: Config.Bootstrap.BlockLength = %d time steps must be ≥ 1 (default 12)", c.Bootstrap.BlockLength)
 	}
+	return nil
+}
+
+// validateIndicator checks the convection indicator of the threshold and
+// its settings.
+func (c Config) validateIndicator() error {
 	switch c.Indicator {
 	case "":
 	case IndicatorOmega, IndicatorPrecip, IndicatorOLR:
@@ -310,6 +348,12 @@ func (c Config) Validate() error {
 	default:
 		return fmt.Errorf("relations: Config.Indicator = %q: use \"\" (none), %q, %q or %q", c.Indicator, IndicatorOmega, IndicatorPrecip, IndicatorOLR)
 	}
+	return nil
+}
+
+// validateRegression checks the partial regression's predictors, the
+// decorrelation length and the classifier.
+func (c Config) validateRegression() error {
 	if c.Partial[0] == "" || c.Partial[1] == "" || c.Partial[0] == c.Partial[1] || !kelvinPredictors[c.Partial[0]] || !kelvinPredictors[c.Partial[1]] {
 		return fmt.Errorf("relations: Config.Partial = %q: give two different predictors among %s", c.Partial, predictorList())
 	}
