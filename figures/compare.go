@@ -218,6 +218,14 @@ func onlyJobs(jobs []compJob, only []string) ([]compJob, error) {
 	return jobs, nil
 }
 
+// ComparisonFigures describes the figures of a comparison folder, by
+// name pattern, for lidscope plot --list.
+var ComparisonFigures = [][2]string{
+	{"compare_<map>_<candidate>", "reference, candidate and difference maps of the convective time fraction and the crossing rate (needs the compared runs' folders)"},
+	{"compare_sensitivities", "the subsidence cloud sensitivities of every run side by side with their 95 % intervals (up to four candidates)"},
+	{"compare_ensemble_<sensitivity>", "one sensitivity of every candidate, sorted, with its interval and verdict, the reference's band and the ensemble's spread (three or more candidates)"},
+}
+
 // comparisonRun is what the headers and footers of a comparison's figures
 // say: the reference's name, period and regime definition, the version
 // and study hash.

@@ -111,6 +111,12 @@ func listFigures(w io.Writer) error {
 			return err
 		}
 	}
+	fmt.Fprintln(w, "\nof a comparison folder (plot COMPARISON_DIR):")
+	for _, c := range figures.ComparisonFigures {
+		if _, err := fmt.Fprintf(w, "%-32s %s\n", c[0], c[1]); err != nil {
+			return err
+		}
+	}
 	return nil
 }
 

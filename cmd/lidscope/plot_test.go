@@ -84,7 +84,7 @@ func TestPlotUsage(t *testing.T) {
 		}
 	}
 	var out, errb bytes.Buffer
-	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_time_fraction") {
+	if code := run([]string{"plot", "--list"}, &out, &errb); code != 0 || !strings.Contains(out.String(), "map_convective_time_fraction") || !strings.Contains(out.String(), "compare_ensemble_<sensitivity>") {
 		t.Errorf("--list: exit %d, %q", code, out.String())
 	}
 }
