@@ -5,7 +5,9 @@
 #
 #   read      bench/readonly (every slab the run reads: the floor)
 #   run       lidscope run (relationship analysis on, default workers)
-#   run-w1    lidscope run --workers 1
+#   w1, w2    lidscope run --jobs 1 --workers 1, then --workers 2 (one
+#             process: with the default --jobs the CPUs go to processes,
+#             and --workers 1 changes nothing)
 #   regimes   lidscope run with relationships.enabled=false (the outputs of the yardstick)
 #   xarray    bench/yardstick.py (xarray + dask, same formulas, same regime outputs)
 #
@@ -75,14 +77,15 @@ median() { tr ' ' '\n' | sort -g | awk '{ v[NR] = $1 } END { if (NR % 2) print v
 
 res="$work/results"
 declare -A col
-pairs=(run/read:wall run/read:cpu run/xarray:wall run/xarray:cpu regimes/xarray:wall regimes/xarray:cpu run-w1/run:wall regimes/run:cpu)
+pairs=(run/read:wall run/read:cpu run/xarray:wall run/xarray:cpu regimes/xarray:wall regimes/xarray:cpu w1/w2:wall regimes/run:cpu)
 lr=("$lid" run --quiet --no-plots --force)
 for r in $(seq 1 "$rounds"); do
   echo "round $r of $rounds" >&2
   warm "$w40"
   measure read "$out/bin/readonly" "$w40"
   measure run "${lr[@]}" --out "$res/run" "$w40/study.yaml"
-  measure run_w1 "${lr[@]}" --workers 1 --out "$res/run-w1" "$w40/study.yaml"
+  measure w1 "${lr[@]}" --jobs 1 --workers 1 --out "$res/w1" "$w40/study.yaml"
+  measure w2 "${lr[@]}" --jobs 1 --workers 2 --out "$res/w2" "$w40/study.yaml"
   measure regimes "${lr[@]}" --set relationships.enabled=false --out "$res/regimes" "$w40/study.yaml"
   measure xarray "$py" bench/yardstick.py "$w40" "$res/xarray"
   for p in "${pairs[@]}"; do
@@ -90,7 +93,7 @@ for r in $(seq 1 "$rounds"); do
     va="${kind}_${a//-/_}" vb="${kind}_${b//-/_}"
     col[$p]="${col[$p]:-} $(ratio "${!va}" "${!vb}")"
   done
-  rows+=("round $r: read ${wall_read} s/${cpu_read} s CPU; run ${wall_run}/${cpu_run}; run-w1 ${wall_run_w1}/${cpu_run_w1}; regimes ${wall_regimes}/${cpu_regimes}; xarray ${wall_xarray}/${cpu_xarray} (wall s/CPU s)")
+  rows+=("round $r: read ${wall_read} s/${cpu_read} s CPU; run ${wall_run}/${cpu_run}; w1 ${wall_w1}/${cpu_w1}; w2 ${wall_w2}/${cpu_w2}; regimes ${wall_regimes}/${cpu_regimes}; xarray ${wall_xarray}/${cpu_xarray} (wall s/CPU s)")
   rss40=$rss_run rssx=$rss_xarray rssread=$rss_read
 done
 
