@@ -196,6 +196,7 @@ type Acc struct {
 	thrOut                 int64
 	steps                  []stepRec
 	scratchX, scratchRaw   []float64
+	scratchBin             []int // per predictor (AddStep)
 	scratchR, scratchRawR  []float64
 	scratchVec             []float64
 	scratchShiftIn         []float64 // per ΔT
@@ -414,6 +415,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.nthr = int(math.Round((cfg.ThresholdRange[1] - cfg.ThresholdRange[0]) / cfg.ThresholdBinWidth))
 	}
 	a.scratchX = make([]float64, len(a.xs))
+	a.scratchBin = make([]int, len(a.preds))
 	a.scratchRaw = make([]float64, len(a.xs))
 	a.scratchR = make([]float64, nr)
 	a.scratchRawR = make([]float64, nr)
@@ -542,6 +544,14 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 			rv[k] = x
 		}
 		copy(vec, xv)
+		// each predictor's bin, once for all domains and seasons
+		bins := a.scratchBin
+		for p := 0; p < np; p++ {
+			bins[p] = -2 // NaN
+			if x := xv[a.predX[p]]; x == x {
+				bins[p] = binOf(a.edges[p], x)
+			}
+		}
 		for _, dw := range a.cellDom[i] {
 			d, w := int(dw.d), dw.w
 			if complete {
@@ -555,11 +565,10 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 			for si := 0; si < nsl; si++ {
 				ds := d*a.ns + sl[si]
 				for p := 0; p < np; p++ {
-					x := xv[a.predX[p]]
-					if x != x {
+					b := bins[p]
+					if b == -2 {
 						continue
 					}
-					b := binOf(a.edges[p], x)
 					if b < 0 {
 						a.outCnt[(ds*nreg+int(g))*np+p]++
 						continue
@@ -576,7 +585,7 @@ func (a *Acc) AddStep(s *accumulate.Step) {
 					xr, xe := xv[a.predX[a.jRel]], xv[a.predX[a.jEIS]]
 					if xr == xr && xe == xe {
 						a.jointTotal[ds] += w
-						br, be := binOf(a.edges[a.jRel], xr), binOf(a.edges[a.jEIS], xe)
+						br, be := bins[a.jRel], bins[a.jEIS]
 						if br >= 0 && be >= 0 {
 							j := br*(len(a.edges[a.jEIS])-1) + be
 							a.jointArea[ds*a.nJ+j] += w
