@@ -387,20 +387,64 @@ type MergeAs struct {
 // run (MergeAs).
 func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Options, as *MergeAs) (Report, error) {
 	out := st.Target()
-	type run struct {
-		dir  string
-		meta output.Meta
-		acc  *accumulate.Acc
-		rel  *relations.Acc
-		// noRel: the run has no relationship analysis, and why
-		noRel string
-		fac   *factors.Acc
+	runs, err := readMergeRuns(dirs, out)
+	if err != nil {
+		return Report{}, err
 	}
-	var runs []run
+	gaps, err := checkMergeRuns(runs, opt)
+	if err != nil {
+		return Report{}, err
+	}
+	first := runs[0]
+	acc, rel, fac := first.acc, first.rel, first.fac
+	meta := first.meta
+	hashes, studies, err := mergeRunStates(runs, acc, rel, fac, &meta)
+	if err != nil {
+		return Report{}, err
+	}
+	mergedMeta(&meta, runs, dirs, gaps, hashes, studies, opt, as)
+	var relRes *relations.Results
+	if rel != nil {
+		if n, m := rel.Steps(), len(meta.TimeValues); n != m {
+			return Report{}, fmt.Errorf("the merged relationship analysis has %d time steps, the merged record %d: a run state is damaged; re-run the pieces", n, m)
+		}
+		if relRes, err = rel.Results(); err != nil {
+			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
+		}
+	}
+	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel, Plots: as != nil && as.Plots, FacAcc: fac}
+	if fac != nil {
+		o.Factors = fac.Results(quantityUnits)
+	}
+	files, err := WriteRun(ctx, st, o, opt)
+	if err != nil {
+		return Report{}, err
+	}
+	if _, err := st.Commit(ctx); err != nil {
+		return Report{}, err
+	}
+	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
+}
+
+// mergeRun is one run folder being merged: its run state.
+type mergeRun struct {
+	dir  string
+	meta output.Meta
+	acc  *accumulate.Acc
+	rel  *relations.Acc
+	// noRel: the run has no relationship analysis, and why
+	noRel string
+	fac   *factors.Acc
+}
+
+// readMergeRuns reads the run state of each folder in dirs (none of them
+// out), in time order.
+func readMergeRuns(dirs []string, out string) ([]mergeRun, error) {
+	var runs []mergeRun
 	var problems []string
 	for _, d := range dirs {
 		if sameFolder(d, out) {
-			return Report{}, fmt.Errorf("cannot merge into %s: it is one of the pieces; choose another --out", d)
+			return nil, fmt.Errorf("cannot merge into %s: it is one of the pieces; choose another --out", d)
 		}
 		f, err := runfolder.Open(d, StateFile)
 		if err != nil {
@@ -417,13 +461,22 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			problems = append(problems, fmt.Sprintf("%s: the run has no time steps", d))
 			continue
 		}
-		runs = append(runs, run{d, s.meta, s.acc, s.rel, s.noRel, s.fac})
+		runs = append(runs, mergeRun{d, s.meta, s.acc, s.rel, s.noRel, s.fac})
 	}
 	if len(problems) > 0 {
-		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
+		return nil, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
 	sort.SliceStable(runs, func(i, j int) bool { return runs[i].meta.TimeValues[0] < runs[j].meta.TimeValues[0] })
+	return runs, nil
+}
+
+// checkMergeRuns checks that the runs can be merged (the same dataset,
+// conventions, regime definition, calendar, quantities and analyses, and
+// periods that do not overlap) and returns the gaps between them, refused
+// unless opt.AllowGaps.
+func checkMergeRuns(runs []mergeRun, opt Options) ([]string, error) {
 	first := runs[0]
+	var problems []string
 	for _, r := range runs[1:] {
 		a, b := first.meta, r.meta
 		check := func(what string, x, y any) {
@@ -467,10 +520,15 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			strings.Join(gaps, "; ")))
 	}
 	if len(problems) > 0 {
-		return Report{}, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
+		return nil, fmt.Errorf("cannot merge these runs:\n  %s", strings.Join(problems, "\n  "))
 	}
-	acc, rel, fac := first.acc, first.rel, first.fac
-	meta := first.meta
+	return gaps, nil
+}
+
+// mergeRunStates merges the accumulators of runs[1:] into those of
+// runs[0] (acc, rel, fac) and their time axes, inputs and notes into
+// meta; it returns each run's study hash and study text.
+func mergeRunStates(runs []mergeRun, acc *accumulate.Acc, rel *relations.Acc, fac *factors.Acc, meta *output.Meta) ([]string, []string, error) {
 	hashes := []string{}
 	studies := []string{}
 	for i, r := range runs {
@@ -480,7 +538,7 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			continue
 		}
 		if err := acc.Merge(r.acc); err != nil {
-			return Report{}, fmt.Errorf("merging %s: %w", r.dir, err)
+			return nil, nil, fmt.Errorf("merging %s: %w", r.dir, err)
 		}
 		if rel == nil {
 			// no relationship analysis in any piece (checked above)
@@ -488,14 +546,14 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			if rel.Mode() == relations.Anomaly {
 				// The pieces took their anomalies against different
 				// climatologies; say what to do at the level of runs.
-				return Report{}, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and %s took its anomalies against the climatology of its own period, not the one the other pieces used, so no merge gives what one run over the whole record gives; "+
+				return nil, nil, fmt.Errorf("cannot merge these runs: their relationship analysis is in anomaly mode (relationships.mode: %s), and %s took its anomalies against the climatology of its own period, not the one the other pieces used, so no merge gives what one run over the whole record gives; "+
 					"run the whole record in one run, run it with --jobs (which builds one climatology of the whole record for every piece), or use relationships.mode: %s for runs meant to be merged (%v)", relations.Anomaly, r.dir, relations.Climatological, err)
 			}
-			return Report{}, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
+			return nil, nil, fmt.Errorf("merging the relationship analysis of %s: %w", r.dir, err)
 		}
 		if fac != nil {
 			if err := fac.Merge(r.fac); err != nil {
-				return Report{}, fmt.Errorf("merging the factor regressions of %s: %w", r.dir, err)
+				return nil, nil, fmt.Errorf("merging the factor regressions of %s: %w", r.dir, err)
 			}
 		}
 		meta.TimeValues = append(meta.TimeValues, r.meta.TimeValues...)
@@ -511,6 +569,13 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 			meta.Start = r.meta.Start
 		}
 	}
+	return hashes, studies, nil
+}
+
+// mergedMeta completes the merged run's metadata: inputs by role, notes,
+// period, study and its hash, batch jobs, version and command.
+func mergedMeta(meta *output.Meta, runs []mergeRun, dirs, gaps, hashes, studies []string, opt Options, as *MergeAs) {
+	first := runs[0]
 	// by role as one run lists them (describeInputs), each role's files in
 	// time order (the runs are)
 	byRole := func(a, b output.InputFile) int { return strings.Compare(a.Role, b.Role) }
@@ -530,7 +595,7 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 	meta.StudyHash = hex.EncodeToString(sum[:])
 	if as != nil {
 		meta.Study, meta.StudyHash = as.Study, as.StudyHash
-	} else if allPieces(metasOf(runs, func(r run) output.Meta { return r.meta })) {
+	} else if allPieces(metasOf(runs, func(r mergeRun) output.Meta { return r.meta })) {
 		// Every piece K/N of one study: the merge is that study's run
 		// over the whole record.
 		meta.Study, meta.StudyHash = first.meta.Study, first.meta.StudyHash
@@ -543,28 +608,6 @@ func MergeInto(ctx context.Context, st *runfolder.Stage, dirs []string, opt Opti
 	meta.Version = opt.Version
 	meta.Command = strings.Join(opt.Command, " ")
 	meta.End = time.Now()
-	var relRes *relations.Results
-	if rel != nil {
-		if n, m := rel.Steps(), len(meta.TimeValues); n != m {
-			return Report{}, fmt.Errorf("the merged relationship analysis has %d time steps, the merged record %d: a run state is damaged; re-run the pieces", n, m)
-		}
-		var err error
-		if relRes, err = rel.Results(); err != nil {
-			return Report{}, fmt.Errorf("merged relationship analysis: %w", err)
-		}
-	}
-	o := &Outcome{Dataset: meta.Dataset, Meta: meta, Acc: acc, Relations: relRes, RelAcc: rel, NoRel: first.noRel, Plots: as != nil && as.Plots, FacAcc: fac}
-	if fac != nil {
-		o.Factors = fac.Results(quantityUnits)
-	}
-	files, err := WriteRun(ctx, st, o, opt)
-	if err != nil {
-		return Report{}, err
-	}
-	if _, err := st.Commit(ctx); err != nil {
-		return Report{}, err
-	}
-	return Report{Dataset: meta.Dataset, OutDir: out, Files: files, Meta: meta, Relations: relRes}, nil
 }
 
 // allPieces reports whether runs (in time order) are the pieces 1/N … N/N
