@@ -14,6 +14,7 @@ import (
 
 	"lidscope/compare"
 	"lidscope/config"
+	"lidscope/constraint"
 	"lidscope/fixtures"
 	"lidscope/regimes"
 	"lidscope/runfolder"
@@ -33,6 +34,12 @@ type DemoReport struct {
 	ModelTruth   *fixtures.Truth
 	Comparison   *compare.Result
 	CompareDir   string
+	// The model's warm twin and the constraint of the model by the
+	// reference world (with Options.Factors, as the demo's default).
+	WarmDataDir   string
+	WarmTruth     *fixtures.Truth
+	Constraint    *constraint.Result
+	ConstraintDir string
 }
 
 // Check compares one recovered number with the construction's truth.
@@ -65,6 +72,7 @@ func ModelScenario(obs fixtures.Options) fixtures.Options {
 	m.Name = "synthetic-model"
 	m.Seed = obs.Seed + 1
 	m.Physics.CloudSlope = 0.03
+	m.Physics.SensRH700 = 0.1
 	m.Physics.WarmPool = obs.Physics.WarmPool + 0.5
 	m.Physics.Upwelling = obs.Physics.Upwelling - 1
 	return m
@@ -76,6 +84,7 @@ func ModelScenario(obs fixtures.Options) fixtures.Options {
 // model with the reference world into dir/results/comparison.
 func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error) {
 	so := fixtures.DefaultOptions()
+	so.Factors = true
 	if opt.Scenario != nil {
 		so = *opt.Scenario
 	}
@@ -90,17 +99,21 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 		return nil, fmt.Errorf("the demo folder %s: %w", dir, err)
 	}
 	dr := &DemoReport{}
-	for k, sc := range []fixtures.Options{so, mo} {
+	worlds := []fixtures.Options{so, mo}
+	if so.Factors && mo.Factors {
+		worlds = append(worlds, fixtures.WarmTwin(mo, DemoWarming))
+	}
+	for k, sc := range worlds {
 		sc.Command = opt.Command
-		data := filepath.Join(dir, "data")
-		if k == 1 {
-			data = filepath.Join(dir, "data-model")
-		}
+		data := filepath.Join(dir, []string{"data", "data-model", "data-model-warm"}[k])
 		truth, err := generateWorld(ctx, data, sc, opt)
 		if err != nil {
 			return nil, fmt.Errorf("generating the synthetic world %s: %w", sc.Name, err)
 		}
 		rp := filepath.Join(data, fixtures.StudyFile)
+		if sc.Factors {
+			rp = filepath.Join(data, fixtures.FactorStudyFile)
+		}
 		r, err := config.Load(rp, config.LoadOptions{LookupEnv: config.NoEnvironment, Flags: map[string]string{"output.dir": res}})
 		if err != nil {
 			return nil, err
@@ -117,10 +130,13 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 			c.What = sc.Name + ": " + c.What
 			dr.Checks = append(dr.Checks, c)
 		}
-		if k == 0 {
+		switch k {
+		case 0:
 			dr.DataDir, dr.StudyPath, dr.Truth = data, rp, truth
-		} else {
+		case 1:
 			dr.ModelDataDir, dr.ModelTruth = data, truth
+		default:
+			dr.WarmDataDir, dr.WarmTruth = data, truth
 		}
 	}
 	dr.CompareDir = filepath.Join(res, "comparison")
@@ -131,7 +147,60 @@ func Demo(ctx context.Context, dir string, opt DemoOptions) (*DemoReport, error)
 		return nil, fmt.Errorf("comparing the synthetic model with the reference: %w", err)
 	}
 	dr.Comparison = cr
+	if dr.WarmTruth != nil {
+		if err := demoConstraint(ctx, dr, res, opt); err != nil {
+			return nil, err
+		}
+	}
 	return dr, nil
+}
+
+// DemoWarming is the uniform SST warming of the demo model's warm twin, K.
+const DemoWarming = 4
+
+// demoConstraint constrains the demo model (its control and warm runs) by
+// the reference world and checks the result against the planted answer.
+func demoConstraint(ctx context.Context, dr *DemoReport, res string, opt DemoOptions) error {
+	dr.ConstraintDir = filepath.Join(res, "constraint")
+	co := ConstrainOptions{Options: opt.Options, Constraint: constraint.Options{WarmingFrom: "sst"}}
+	cres, _, err := Constrain(ctx, dr.Reports[0].OutDir, dr.Reports[1].OutDir, dr.Reports[2].OutDir, dr.ConstraintDir, co)
+	if err != nil {
+		return fmt.Errorf("constraining the synthetic model by the reference world: %w", err)
+	}
+	dr.Constraint = cres
+	// The planted answer: the reference world's planted sensitivities
+	// times the model's factor changes, over the band's subsidence regime
+	// (the last entry of PlantedChange), and the model's own change.
+	planted, err := fixtures.PlantedChange(dr.ModelTruth, dr.WarmTruth, dr.Truth.Factors.Planted)
+	if err != nil {
+		return err
+	}
+	own, err := fixtures.PlantedChange(dr.ModelTruth, dr.WarmTruth, nil)
+	if err != nil {
+		return err
+	}
+	// The planted model is linear only where the cloud stays in the
+	// subsidence regime: the four upwelling decks. (Over the band's
+	// subsidence regime, cells that cross into the convective regime,
+	// whose cloud is a constant, make the domain-mean response nonlinear
+	// in SST; see the README's cautions.)
+	name := "constraint of " + dr.ModelTruth.Options.Name + " by " + dr.Truth.Options.Name + ": "
+	dr.Checks = append(dr.Checks, Check{What: name + "global-mean SST warming from the runs' maps", Got: cres.Warming,
+		Want: planted[0].Warming, Tol: 1e-3, Units: "K"})
+	for i, p := range planted {
+		if !strings.HasPrefix(p.Name, "upwelling_") {
+			continue
+		}
+		d, ok := cres.Domain(p.Name, "all")
+		if !ok {
+			return fmt.Errorf("the demo constraint has no result for region %s", p.Name)
+		}
+		dr.Checks = append(dr.Checks,
+			Check{What: name + fmt.Sprintf("%s: constrained low-cloud change per K vs the planted answer (within its %g %% interval)", p.Name, 100*cres.Level),
+				Got: d.Constrained.Value, Want: p.Planted, Tol: d.Constrained.Hi - d.Constrained.Value, Units: "K-1"},
+			Check{What: name + p.Name + ": the model's actual low-cloud change per K", Got: d.Actual.Value, Want: own[i].Cloud, Tol: 1e-6, Units: "K-1"})
+	}
+	return nil
 }
 
 // generateWorld writes a synthetic world into the folder data as one unit
@@ -175,7 +244,7 @@ func (worldExistsError) Unwrap() error { return fs.ErrExist }
 // truth.json lists (read loosely, so that a world of an older format is
 // recognised too).
 func worldNames(data string) []string {
-	names := []string{fixtures.StudyFile, fixtures.TruthFile}
+	names := []string{fixtures.StudyFile, fixtures.FactorStudyFile, fixtures.TruthFile}
 	b, err := os.ReadFile(filepath.Join(data, fixtures.TruthFile))
 	if err != nil {
 		return names
@@ -274,6 +343,23 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 			}
 		}
 		compare.WriteEstimates(w, d.Comparison, "    ")
+	}
+	if c := d.Constraint; c != nil {
+		fmt.Fprintf(w, "  observational constraint of %s (control and a %g K warmer twin) by %s: %s\n", c.Control.Dataset, float64(DemoWarming), c.Observations.Dataset, d.ConstraintDir)
+		if i := Headline(c); i < len(c.Domains) {
+			dm := c.Domains[i]
+			pc := func(e constraint.Estimate) string {
+				return fmt.Sprintf("%+.3g %% per K [%+.3g, %+.3g]", 100*e.Value, 100*e.Lo, 100*e.Hi)
+			}
+			fmt.Fprintf(w, "    low-cloud change per K of warming, %s %s (warming %.4g K from SST):\n", dm.Domain, dm.Regime, c.Warming)
+			fmt.Fprintf(w, "      constrained (observed sensitivities x model's factor changes) %s\n", pc(dm.Constrained))
+			fmt.Fprintf(w, "      predicted (model's own sensitivities x its factor changes)   %s\n", pc(dm.Predicted))
+			fmt.Fprintf(w, "      the model's actual change                                  %s\n", pc(dm.Actual))
+			for _, f := range dm.Factors {
+				fmt.Fprintf(w, "      %-9s contribution %+.3g %% per K (observed sensitivity %.3g, model %.3g; model change %.3g %s per K)\n",
+					f.Factor, 100*f.Contribution, f.ObsCoef, f.ModelCoef, f.PerKelvin, f.Units)
+			}
+		}
 	}
 }
 

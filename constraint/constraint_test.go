@@ -246,3 +246,48 @@ func TestParseWarming(t *testing.T) {
 		}
 	}
 }
+
+// TestCompareModels: constraints by one set of observations are set side
+// by side; other observations or levels are refused.
+func TestCompareModels(t *testing.T) {
+	t.Parallel()
+	obs := coverageRun(t, 21, trueObsBeta, baseMean, false)
+	var results []*Result
+	for k, beta := range [][3]float64{trueModelBeta, {-0.02, 0.01, 0.1}} {
+		ctrl := coverageRun(t, uint64(22+2*k), beta, baseMean, false)
+		warm := coverageRun(t, uint64(23+2*k), beta, [3]float64{baseMean[0] + dMean[0], baseMean[1] + dMean[1], baseMean[2] + dMean[2]}, false)
+		ctrl.Dataset = []string{"model-a", "model-b"}[k]
+		r, err := Compute(obs, ctrl, warm, Options{Warming: covWarming})
+		if err != nil {
+			t.Fatal(err)
+		}
+		results = append(results, r)
+	}
+	c, err := CompareModels(results, []string{"a", "b"}, "", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.Models) != 2 || c.Models[1].Name != "model-b" || len(c.ObsCoef) != 3 {
+		t.Fatalf("comparison %+v", c)
+	}
+	if d := math.Abs(c.Models[1].ModelCoef[0] - (-0.02)); d > 5*c.Models[1].ModelCoefSE[0] {
+		t.Errorf("model-b's SST sensitivity %g ± %g, planted −0.02", c.Models[1].ModelCoef[0], c.Models[1].ModelCoefSE[0])
+	}
+	rows := ComparisonRows(c)
+	if want := 1 + 3 + 2*(3+3+1); len(rows) != want {
+		t.Errorf("%d rows, want %d", len(rows), want)
+	}
+	other := *results[1]
+	other.Level = 0.9
+	if _, err := CompareModels([]*Result{results[0], &other}, []string{"a", "b"}, "", ""); err == nil || !errors.Is(err, ErrMismatch) {
+		t.Errorf("levels 0.95 and 0.9 compared: %v", err)
+	}
+	other = *results[1]
+	other.Observations.Dataset = "other-obs"
+	if _, err := CompareModels([]*Result{results[0], &other}, []string{"a", "b"}, "", ""); err == nil || !strings.Contains(err.Error(), "same observations") {
+		t.Errorf("other observations compared: %v", err)
+	}
+	if _, err := CompareModels(results, []string{"a", "b"}, "nowhere", "all"); err == nil || !strings.Contains(err.Error(), "no constraint of nowhere/all") {
+		t.Errorf("missing domain: %v", err)
+	}
+}

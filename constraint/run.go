@@ -148,21 +148,37 @@ func (r *Run) readProvenance(path string) error {
 	if err != nil {
 		return fmt.Errorf("constraint: %w", err)
 	}
+	// The resolved study is a string (format 4) or {text, hash} (format
+	// 3); the conventions are "conventions" or "metrics_conventions".
 	var p struct {
-		Dataset string `json:"dataset"`
-		Study   struct {
-			Text string `json:"text"`
-			Hash string `json:"hash"`
-		} `json:"study"`
-		Conventions string          `json:"metrics_conventions"`
-		Regimes     json.RawMessage `json:"regime_definition"`
+		Dataset      string          `json:"dataset"`
+		Study        json.RawMessage `json:"study"`
+		StudyHash    string          `json:"study_hash"`
+		Conventions  json.RawMessage `json:"conventions"`
+		Conventions3 json.RawMessage `json:"metrics_conventions"`
+		Regimes      json.RawMessage `json:"regime_definition"`
 	}
 	if err := json.Unmarshal(b, &p); err != nil {
 		return fmt.Errorf("constraint: %s: %w", path, err)
 	}
-	r.Dataset, r.StudyHash, r.conventions, r.regimes = p.Dataset, p.Study.Hash, p.Conventions, string(p.Regimes)
+	var text string
+	if err := json.Unmarshal(p.Study, &text); err != nil {
+		var old struct {
+			Text string `json:"text"`
+			Hash string `json:"hash"`
+		}
+		if err := json.Unmarshal(p.Study, &old); err != nil {
+			return fmt.Errorf("constraint: %s: the resolved study: %w", path, err)
+		}
+		text, p.StudyHash = old.Text, old.Hash
+	}
+	conv := p.Conventions
+	if len(conv) == 0 {
+		conv = p.Conventions3
+	}
+	r.Dataset, r.StudyHash, r.conventions, r.regimes = p.Dataset, p.StudyHash, string(conv), string(p.Regimes)
 	var blocks map[string]json.RawMessage
-	if err := json.Unmarshal([]byte(p.Study.Text), &blocks); err != nil {
+	if err := json.Unmarshal([]byte(text), &blocks); err != nil {
 		return fmt.Errorf("constraint: %s: the resolved study: %w", path, err)
 	}
 	r.study = map[string]string{}

@@ -202,9 +202,9 @@ func (a *Acc) regionFit(res *Results, j int, t0 int64, T, p int) RegionFit {
 		fit.Sens[k] = Sensitivity{Factor: f.Name, Units: f.Units, CoefUnits: slopeUnits(res.ResponseUnits, f.Units),
 			Coef: math.NaN(), CoefSD: math.NaN(), SE: math.NaN(), Lo: math.NaN(), Hi: math.NaN(), VIF: math.NaN(), SD: math.NaN(),
 			Mean: math.NaN(), MeanSE: math.NaN(), BootLo: math.NaN(), BootHi: math.NaN()}
-		fit.Sens[k].Mean, fit.Sens[k].MeanSE = meanSE(raw[k], present)
+		fit.Sens[k].Mean, fit.Sens[k].MeanSE = meanSE(raw[k], z[k], present)
 	}
-	fit.RespMean, fit.RespMeanSE = meanSE(raw[p], present)
+	fit.RespMean, fit.RespMeanSE = meanSE(raw[p], z[p], present)
 	fit.Cov = make([]float64, p*p)
 	for i := range fit.Cov {
 		fit.Cov[i] = math.NaN()
@@ -421,12 +421,18 @@ func (a *Acc) maps(res *Results) *Maps {
 	return m
 }
 
-// meanSE is the mean of the present values of z and its standard error
-// s/√N_eff with N_eff = n(1 − r₁)/(1 + r₁) (Bretherton et al. 1999, eq.
-// 30); NaN where it cannot be estimated.
-func meanSE(z []float64, present []bool) (float64, float64) {
+// meanSE returns the time mean of the raw series and its standard error.
+// The error comes from the anomaly series anom (deseasonalised, against
+// the record's own monthly climatology): the seasonal cycle, sampled over
+// whole years, adds no sampling error to the record mean, but it would
+// inflate both the variance and the lag-1 autocorrelation of the raw
+// series. The variance divides by n − 12 (the 12 monthly means removed)
+// and the effective sample size is Bretherton et al. (1999) eq. 30 with
+// the anomalies' lag-1 autocorrelation. (Checked by the coverage study of
+// package constraint.)
+func meanSE(raw, anom []float64, present []bool) (float64, float64) {
 	var s, n float64
-	for t, v := range z {
+	for t, v := range raw {
 		if present[t] {
 			s += v
 			n++
@@ -436,15 +442,22 @@ func meanSE(z []float64, present []bool) (float64, float64) {
 		return math.NaN(), math.NaN()
 	}
 	m := s / n
-	var ss float64
-	for t, v := range z {
+	var sa float64
+	for t, v := range anom {
 		if present[t] {
-			ss += (v - m) * (v - m)
+			sa += v
 		}
 	}
-	r1 := relations.Lag1(z, present)
-	if r1 != r1 || n < 2 {
+	ma := sa / n
+	var ss float64
+	for t, v := range anom {
+		if present[t] {
+			ss += (v - ma) * (v - ma)
+		}
+	}
+	r1 := relations.Lag1(anom, present)
+	if r1 != r1 || n < 14 {
 		return m, math.NaN()
 	}
-	return m, math.Sqrt(ss / (n - 1) / relations.EffectiveSizeMean(n, r1))
+	return m, math.Sqrt(ss / (n - 12) / relations.EffectiveSizeMean(n, r1))
 }

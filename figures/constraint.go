@@ -49,8 +49,14 @@ type ConstraintFigures struct {
 	Headline int
 	// Models, when set, makes DrawConstraint draw the comparison figure of
 	// several models instead: Domains[i] is model Models[i]'s headline
-	// domain.
-	Models []string
+	// domain, ModelCoef[i] its sensitivities per factor, ObsCoef the
+	// observed ones (Observations names them) and FactorUnits the
+	// factors' units.
+	Models       []string
+	Observations string
+	ObsCoef      []Interval
+	ModelCoef    [][]Interval
+	FactorUnits  []string
 }
 
 // DrawConstraint draws the figures of a constraint into outDir:
@@ -364,7 +370,8 @@ func (vline0) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 }
 
-func (f *fig) changesRows(d ConstraintFigures, labels []string, series []string, val func(row, s int) (Interval, bool), title string) (*page, error) {
+// changesPlot is the rows-of-intervals plot of the changes and its height.
+func (f *fig) changesPlot(d ConstraintFigures, labels []string, series []string, val func(row, s int) (Interval, bool)) (*plot.Plot, vg.Length) {
 	u, _ := changeAxis(d.ResponseUnits)
 	colours := []color.Color{colourConstrained, colourModel, colourActual}
 	shapes := []draw.GlyphDrawer{draw.CircleGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}}
@@ -385,9 +392,13 @@ func (f *fig) changesRows(d ConstraintFigures, labels []string, series []string,
 	for i, s := range series {
 		pl.Legend.Add(f.t(s), glyphShapeThumb{colours[i], shapes[i]})
 	}
+	return pl, vg.Length(1.2+0.32*float64(len(labels))) * vg.Inch
+}
+
+func (f *fig) changesRows(d ConstraintFigures, labels []string, series []string, val func(row, s int) (Interval, bool), title string) (*page, error) {
+	pl, h := f.changesPlot(d, labels, series, val)
 	bw := bodyWidth()
 	head := f.header(title, bw)
-	h := vg.Length(1.2+0.32*float64(len(labels))) * vg.Inch
 	pg := &page{header: head, footer: f.footer(bw), bodyH: h}
 	pg.body = func(c draw.Canvas) {
 		pl.Draw(c)
@@ -412,23 +423,6 @@ func (f *fig) changesPage(d ConstraintFigures) (*page, error) {
 		fmt.Sprintf("Constrained, predicted and actual change of %s per K of global warming (ΔT = %.3g K)", lowerFirst(responseLabel(d.Response)), d.Warming))
 }
 
-func (f *fig) constraintModelsPage(d ConstraintFigures) (*page, error) {
-	_, k := changeAxis(d.ResponseUnits)
-	if len(d.Models) != len(d.Domains) {
-		return nil, fmt.Errorf("%d models and %d domains", len(d.Models), len(d.Domains))
-	}
-	labels := make([]string, len(d.Models))
-	for i, m := range d.Models {
-		labels[i] = m + " (" + d.Domains[i].Label + ")"
-	}
-	val := func(r, s int) (Interval, bool) {
-		dom := d.Domains[r]
-		return scaleIv([]Interval{dom.Constrained, dom.Actual}[s], k), true
-	}
-	return f.changesRows(d, labels, []string{"constrained by the observations", "model's actual change"}, val,
-		fmt.Sprintf("Constrained and actual change of %s per K of global warming, by model", lowerFirst(responseLabel(d.Response))))
-}
-
 // ConstraintLabel is the figures' label of a domain and regime.
 func ConstraintLabel(domain, regime string) string {
 	d := strings.ReplaceAll(domain, "_", " ")
@@ -436,4 +430,129 @@ func ConstraintLabel(domain, regime string) string {
 		d = "tropical band"
 	}
 	return d + ", " + regime
+}
+
+// coefPoints draws one factor's sensitivity of the observations and of
+// every model, each a point with its interval, one column per run.
+type coefPoints struct {
+	vals    []Interval
+	colours []color.Color
+}
+
+func (cp coefPoints) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	for i, v := range cp.vals {
+		if math.IsNaN(v.Value) {
+			continue
+		}
+		col := cp.colours[i%len(cp.colours)]
+		x := trX(float64(i))
+		ls := draw.LineStyle{Color: col, Width: 1}
+		if !math.IsNaN(v.Lo) && !math.IsNaN(v.Hi) && v.Hi > v.Lo {
+			c.StrokeLine2(ls, x, trY(v.Lo), x, trY(v.Hi))
+			c.StrokeLine2(ls, x-2, trY(v.Lo), x+2, trY(v.Lo))
+			c.StrokeLine2(ls, x-2, trY(v.Hi), x+2, trY(v.Hi))
+		}
+		c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: 2.2, Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: trY(v.Value)})
+	}
+}
+
+func (cp coefPoints) DataRange() (xmin, xmax, ymin, ymax float64) {
+	ymin, ymax = 0, 0
+	for _, v := range cp.vals {
+		for _, y := range []float64{v.Value, v.Lo, v.Hi} {
+			if !math.IsNaN(y) && !math.IsInf(y, 0) {
+				ymin, ymax = math.Min(ymin, y), math.Max(ymax, y)
+			}
+		}
+	}
+	if ymin == ymax {
+		ymin, ymax = -1, 1
+	}
+	pad := 0.08 * (ymax - ymin)
+	return -0.6, float64(len(cp.vals)) - 0.4, ymin - pad, ymax + pad
+}
+
+func (f *fig) constraintModelsPage(d ConstraintFigures) (*page, error) {
+	_, k := changeAxis(d.ResponseUnits)
+	if len(d.Models) != len(d.Domains) || len(d.ModelCoef) != len(d.Models) {
+		return nil, fmt.Errorf("%d models, %d domains and %d sets of sensitivities", len(d.Models), len(d.Domains), len(d.ModelCoef))
+	}
+	colours := append([]color.Color{lineBlack}, runColours[1:]...)
+	p := len(d.Factors)
+	var coefPlots []*plot.Plot
+	for j, fa := range d.Factors {
+		vals := []Interval{d.ObsCoef[j]}
+		for m := range d.Models {
+			vals = append(vals, d.ModelCoef[m][j])
+		}
+		ru, scale := displayUnits(d.ResponseUnits)
+		for i := range vals {
+			vals[i] = scaleIv(vals[i], scale)
+		}
+		pl := f.newPlot()
+		pl.Add(lightGrid(), hline{0, draw.LineStyle{Color: color.Gray{0x50}, Width: 0.5}}, coefPoints{vals, colours})
+		pl.X.Tick.Marker = plot.ConstantTicks(nil)
+		pl.X.Label.Text = f.t(factorLabel(fa))
+		fu := d.FactorUnits[j]
+		if fu == "1" || fu == "" {
+			fu = "unit"
+		}
+		pl.Y.Label.Text = f.t(ru + " per " + fu)
+		coefPlots = append(coefPlots, pl)
+	}
+	labels := make([]string, len(d.Models))
+	for i, m := range d.Models {
+		labels[i] = m
+	}
+	val := func(r, s int) (Interval, bool) {
+		dom := d.Domains[r]
+		return scaleIv([]Interval{dom.Constrained, dom.Actual}[s], k), true
+	}
+	chg, chgH := f.changesPlot(d, labels, []string{"constrained by the observed sensitivities", "model's actual change"}, val)
+	// One legend for the sensitivity panels, above them: a dot of each
+	// run's colour and its name, one line each.
+	type entry struct {
+		label string
+		col   color.Color
+	}
+	entries := []entry{{d.Observations + " (observations)", colours[0]}}
+	for i, m := range d.Models {
+		entries = append(entries, entry{m, colours[(i+1)%len(colours)]})
+	}
+	legStyle := style(sizeLegend, false)
+	lh := lineHeight(legStyle) * 1.25
+	bw := bodyWidth()
+	head := f.header(fmt.Sprintf("Observed and modelled sensitivities of %s (%s), and constrained vs actual change per K of global warming, %g %% intervals",
+		lowerFirst(responseLabel(d.Response)), d.Domains[0].Label, 100*d.Level), bw)
+	legH := vg.Length(len(entries))*lh + 4
+	const panelH = 1.9 * vg.Inch
+	pg := &page{header: head, footer: f.footer(bw), bodyH: legH + panelH + 0.15*vg.Inch + chgH}
+	pg.body = func(c draw.Canvas) {
+		top := c.Max.Y
+		for i, e := range entries {
+			y := top - (vg.Length(i)+0.5)*lh
+			c.DrawGlyph(draw.GlyphStyle{Color: e.col, Radius: 2.4, Shape: draw.CircleGlyph{}}, vg.Point{X: c.Min.X + 6, Y: y})
+			st := legStyle
+			st.YAlign = -0.5
+			c.FillText(st, vg.Point{X: c.Min.X + 14, Y: y}, f.t(e.label))
+		}
+		top -= legH
+		w := (c.Max.X - c.Min.X) / vg.Length(p)
+		for j, pl := range coefPlots {
+			sc := c
+			sc.Min.X, sc.Max.X = c.Min.X+vg.Length(j)*w, c.Min.X+vg.Length(j+1)*w-0.05*vg.Inch
+			sc.Min.Y, sc.Max.Y = top-panelH, top
+			pl.Draw(sc)
+			frame(sc, pl.DataCanvas(sc).Rectangle)
+		}
+		bc := c
+		bc.Max.Y = top - panelH - 0.15*vg.Inch
+		bc.Min.Y = bc.Max.Y - chgH
+		chg.Draw(bc)
+		dc := chg.DataCanvas(bc)
+		frame(bc, dc.Rectangle)
+		f.dataArea = dc.Rectangle
+	}
+	return pg, nil
 }

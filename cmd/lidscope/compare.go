@@ -41,7 +41,11 @@ partial sensitivities with 95 % intervals and whether each difference lies withi
 uncertainty; flip fractions and thresholds when both runs have them.
 
 Give finished run folders (the reference first), or one study: then every dataset is run
-first into DIR/NAME and the first dataset (or --reference NAME) is the reference.`,
+first into DIR/NAME and the first dataset (or --reference NAME) is the reference.
+
+Given constraint folders (lidscope constrain) of several models by the same observations, it
+sets them side by side instead: each factor's observed and modelled sensitivity and each
+model's constrained, predicted and actual change, in one table and one figure.`,
 		Example: `  lidscope compare demo-out/results/synthetic-demo demo-out/results/synthetic-model --out out/comparison --no-plots`,
 		Args:    minArgs(1, "give a study, or a reference run folder and at least one candidate run folder"),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -72,6 +76,17 @@ func runCompare(ctx context.Context, o compareOptions, stdout, stderr io.Writer)
 		return err
 	}
 	opt := analysis.CompareOptions{Options: analysis.Options{Version: version, Command: os.Args, Force: o.Force, Log: log, NoPlots: o.NoPlots, NoCoastlines: o.NoCoastlines}, AllowMismatch: o.AllowMismatch}
+	if allConstraints(o.Args) {
+		c, files, err := analysis.CompareConstraints(ctx, o.Args, o.Out, opt.Options)
+		if err != nil {
+			return err
+		}
+		writeConstraintComparison(stdout, c)
+		for _, f := range files {
+			fmt.Fprintf(stdout, "wrote %s\n", f)
+		}
+		return nil
+	}
 	var res *compare.Result
 	var files []string
 	if fi, err := os.Stat(o.Args[0]); err == nil && !fi.IsDir() && len(o.Args) == 1 {

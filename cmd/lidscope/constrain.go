@@ -43,6 +43,8 @@ The warming is a number with units (--warming 4.1K) or a temperature quantity of
 (--warming sst: the change of its cell-area-weighted global mean). The result is a run folder
 of its own: constraint.json, constraint.csv, constraint_changes.csv, constraint.nc,
 provenance.json and figures.`,
+		Example: `  lidscope constrain demo-out/results/synthetic-demo demo-out/results/synthetic-model demo-out/results/synthetic-model-warm --warming sst --out out/constraint --no-plots
+  lidscope constrain demo-out/results/synthetic-demo demo-out/results/synthetic-model demo-out/results/synthetic-model-warm --warming 4.0K --level 0.9 --out out/constraint-90`,
 		Args: exactArgs(3, "give the observational run folder, the model's control run folder and its warm run folder"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Observations, o.Control, o.Warm = args[0], args[1], args[2]
@@ -123,5 +125,41 @@ func writeConstraint(w io.Writer, res *constraint.Result) {
 	}
 	for _, n := range res.Notes {
 		fmt.Fprintf(w, "  note: %s\n", n)
+	}
+}
+
+// allConstraints reports whether every argument is a constraint folder.
+func allConstraints(args []string) bool {
+	for _, a := range args {
+		if !analysis.IsConstraintFolder(a) {
+			return false
+		}
+	}
+	return len(args) > 0
+}
+
+// writeConstraintComparison prints a comparison of constraints.
+func writeConstraintComparison(w io.Writer, c *constraint.Comparison) {
+	scale, su := 1.0, ""
+	if c.ResponseUnits == "1" || c.ResponseUnits == "" {
+		scale, su = 100, "% "
+	}
+	fmt.Fprintf(w, "models constrained by %s, %s %s (%g %% intervals)\n", c.Observations.Dataset, c.Domain, c.Regime, 100*c.Level)
+	fmt.Fprintf(w, "  %-24s", "sensitivity")
+	fmt.Fprintf(w, " %14s", c.Observations.Dataset)
+	for _, m := range c.Models {
+		fmt.Fprintf(w, " %14s", m.Name)
+	}
+	fmt.Fprintln(w)
+	for i, f := range c.Factors {
+		fmt.Fprintf(w, "  %-24s %14.4g", f.Name+" ["+c.ResponseUnits+" per "+f.Units+"]", c.ObsCoef[i])
+		for _, m := range c.Models {
+			fmt.Fprintf(w, " %14.4g", m.ModelCoef[i])
+		}
+		fmt.Fprintln(w)
+	}
+	for _, m := range c.Models {
+		fmt.Fprintf(w, "  %s: constrained %+.3g [%+.3g, %+.3g], actual %+.3g %sK-1 (ΔT %.3g K)\n", m.Name,
+			scale*m.Constrained.Value, scale*m.Constrained.Lo, scale*m.Constrained.Hi, scale*m.Actual.Value, su, m.Warming)
 	}
 }

@@ -207,7 +207,8 @@ func newDocCommand(t *testing.T, where, text string) docCommand {
 
 // docWorld writes the world the documentation's commands run in, into
 // dir: demo-out/ as `lidscope demo --out demo-out` writes it (data/,
-// data-model/ and results/ with both runs and their comparison), and obs/,
+// data-model/, data-model-warm/ and results/ with the three runs, their
+// comparison and the constraint), and obs/,
 // a copy of demo-out/data, the example data folder of the README's session
 // (the README says how to make it). The worlds are the demo's scenario on a
 // coarser grid and a shorter record (5°, four years from 2001 in files of
@@ -219,6 +220,7 @@ func docWorld(t *testing.T, dir string) {
 	sc.Resolution = 5
 	sc.Years = 4
 	sc.YearsPerFile = 2
+	sc.Factors = true // as the demo: factor analyses, the model's warm twin and its constraint
 	sc.Command = []string{"lidscope-test", "docs"}
 	demo := filepath.Join(dir, "demo-out")
 	_, err := analysis.Demo(context.Background(), demo, analysis.DemoOptions{
