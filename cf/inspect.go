@@ -9,6 +9,7 @@ import (
 
 	"lidscope/internal/jsonnum"
 	"lidscope/netcdf"
+	"lidscope/vocab"
 )
 
 // FileReport is what inspect found in one file.
@@ -95,15 +96,12 @@ func (v *VarReport) UnmarshalJSON(b []byte) error {
 	return nil
 }
 
-// levelFor is the pressure inspect uses for a role with a vertical axis.
+// levelFor is the pressure inspect uses for a role with a vertical axis:
+// the role's level of the one role table ([vocab.RoleVertical]; 700 hPa
+// for air temperature and the humidities, 500 hPa for omega).
 func levelFor(r Role) float64 {
-	switch r {
-	case RoleAirTemp, RoleSpecHum, RoleRH:
-		return 70000
-	case RoleOmega:
-		return 50000
-	}
-	return 0
+	_, pa := vocab.RoleVertical(string(r))
+	return pa
 }
 
 // Inspect reports on one file: which variables fill which roles, how they

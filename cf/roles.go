@@ -42,31 +42,30 @@ type roleSpec struct {
 	Kind          units.Kind
 	StandardNames []string
 	Names         []string // variable names that identify the role when no standard_name does
-	Levels        int      // +1: needs a pressure axis; -1: must not have one; 0: either
 }
 
 var roleSpecs = []roleSpec{
 	{RoleSST, units.Temperature, []string{"sea_surface_temperature", "sea_surface_skin_temperature",
-		"sea_surface_foundation_temperature", "sea_water_temperature"}, []string{"sst", "tos", "analysed_sst", "sea_surface_temperature"}, -1},
-	{RoleAirTemp, units.Temperature, []string{"air_temperature"}, []string{"ta", "t", "air", "temp", "temperature", "t700"}, +1},
-	{RoleSurfaceAir, units.Temperature, []string{"air_temperature"}, []string{"tas", "t2m", "2t", "t2"}, -1},
-	{RoleLowCloud, units.Fraction, []string{"low_type_cloud_area_fraction"}, []string{"cldlow", "lcc", "low_cloud", "cll", "cldlow_cal"}, -1},
-	{RoleCloud, units.Fraction, []string{"cloud_area_fraction"}, []string{"clt", "tcc", "cldtot", "total_cloud"}, -1},
-	{RoleSWUp, units.Flux, []string{"toa_outgoing_shortwave_flux"}, []string{"rsut", "toa_sw_all_mon", "fsut"}, -1},
-	{RoleOLR, units.Flux, []string{"toa_outgoing_longwave_flux"}, []string{"rlut", "olr", "toa_lw_all_mon", "flut"}, -1},
+		"sea_surface_foundation_temperature", "sea_water_temperature"}, []string{"sst", "tos", "analysed_sst", "sea_surface_temperature"}},
+	{RoleAirTemp, units.Temperature, []string{"air_temperature"}, []string{"ta", "t", "air", "temp", "temperature", "t700"}},
+	{RoleSurfaceAir, units.Temperature, []string{"air_temperature"}, []string{"tas", "t2m", "2t", "t2"}},
+	{RoleLowCloud, units.Fraction, []string{"low_type_cloud_area_fraction"}, []string{"cldlow", "lcc", "low_cloud", "cll", "cldlow_cal"}},
+	{RoleCloud, units.Fraction, []string{"cloud_area_fraction"}, []string{"clt", "tcc", "cldtot", "total_cloud"}},
+	{RoleSWUp, units.Flux, []string{"toa_outgoing_shortwave_flux"}, []string{"rsut", "toa_sw_all_mon", "fsut"}},
+	{RoleOLR, units.Flux, []string{"toa_outgoing_longwave_flux"}, []string{"rlut", "olr", "toa_lw_all_mon", "flut"}},
 	{RoleOmega, units.Omega, []string{"lagrangian_tendency_of_air_pressure",
-		"vertical_air_velocity_expressed_as_tendency_of_pressure"}, []string{"wap", "omega", "w500", "omega500"}, 0},
-	{RoleSurfacePres, units.Pressure, []string{"surface_air_pressure"}, []string{"ps", "sp", "pres_sfc"}, -1},
-	{RoleSeaLevelPres, units.Pressure, []string{"air_pressure_at_mean_sea_level", "air_pressure_at_sea_level"}, []string{"psl", "msl", "slp", "mslp"}, -1},
-	{RoleRH, units.Fraction, []string{"relative_humidity"}, []string{"hurs", "rh", "hur"}, 0},
-	{RoleDewPoint, units.Temperature, []string{"dew_point_temperature"}, []string{"d2m", "2d", "tdps", "dewpoint"}, -1},
-	{RoleSpecHum, units.MixingRatio, []string{"specific_humidity"}, []string{"hus", "huss", "q"}, 0},
-	{RoleSeaFraction, units.Fraction, []string{"sea_area_fraction", "sea_binary_mask"}, []string{"sftof", "sea_fraction"}, -1},
-	{RoleLandFraction, units.Fraction, []string{"land_area_fraction", "land_binary_mask"}, []string{"sftlf", "lsm", "lsmask", "landsea", "land_sea_mask", "lsm_frac"}, -1},
-	{RoleSeaIce, units.Fraction, []string{"sea_ice_area_fraction"}, []string{"siconc", "sic", "ci", "seaice", "ice_fraction"}, -1},
-	{RolePrecip, units.Precipitation, []string{"precipitation_flux", "lwe_precipitation_rate"}, []string{"pr", "precip", "prate", "tp"}, -1},
-	{RoleEastWind, units.Speed, []string{"eastward_wind"}, []string{"uas", "u10", "10u"}, -1},
-	{RoleNorthWind, units.Speed, []string{"northward_wind"}, []string{"vas", "v10", "10v"}, -1},
+		"vertical_air_velocity_expressed_as_tendency_of_pressure"}, []string{"wap", "omega", "w500", "omega500"}},
+	{RoleSurfacePres, units.Pressure, []string{"surface_air_pressure"}, []string{"ps", "sp", "pres_sfc"}},
+	{RoleSeaLevelPres, units.Pressure, []string{"air_pressure_at_mean_sea_level", "air_pressure_at_sea_level"}, []string{"psl", "msl", "slp", "mslp"}},
+	{RoleRH, units.Fraction, []string{"relative_humidity"}, []string{"hurs", "rh", "hur"}},
+	{RoleDewPoint, units.Temperature, []string{"dew_point_temperature"}, []string{"d2m", "2d", "tdps", "dewpoint"}},
+	{RoleSpecHum, units.MixingRatio, []string{"specific_humidity"}, []string{"hus", "huss", "q"}},
+	{RoleSeaFraction, units.Fraction, []string{"sea_area_fraction", "sea_binary_mask"}, []string{"sftof", "sea_fraction"}},
+	{RoleLandFraction, units.Fraction, []string{"land_area_fraction", "land_binary_mask"}, []string{"sftlf", "lsm", "lsmask", "landsea", "land_sea_mask", "lsm_frac"}},
+	{RoleSeaIce, units.Fraction, []string{"sea_ice_area_fraction"}, []string{"siconc", "sic", "ci", "seaice", "ice_fraction"}},
+	{RolePrecip, units.Precipitation, []string{"precipitation_flux", "lwe_precipitation_rate"}, []string{"pr", "precip", "prate", "tp"}},
+	{RoleEastWind, units.Speed, []string{"eastward_wind"}, []string{"uas", "u10", "10u"}},
+	{RoleNorthWind, units.Speed, []string{"northward_wind"}, []string{"vas", "v10", "10v"}},
 }
 
 // Roles lists every role lidscope knows, in a stable order.
@@ -112,7 +111,7 @@ func matchRoles(v *netcdf.Var, hasLevels bool) []RoleMatch {
 	name := strings.ToLower(v.Name)
 	var out []RoleMatch
 	levelOK := func(s roleSpec) bool {
-		return s.Levels == 0 || (s.Levels > 0) == hasLevels
+		return levelsOK(s.Role, hasLevels)
 	}
 	if sn != "" {
 		for _, s := range roleSpecs {
@@ -203,4 +202,18 @@ func assignRoles(matches []RoleMatch) (map[Role]RoleMatch, []string) {
 			" all qualify; name the one to use in the study (variables."+string(r)+": NAME)")
 	}
 	return out, amb
+}
+
+// levelsOK says whether a variable with (hasLevels) or without a pressure
+// axis may fill role r, by the one role table of package vocab
+// ([vocab.RoleVertical]): PressureLevels roles need the axis, SingleLevel
+// roles must not have it, AtLevel and SurfaceOrLevels roles take either.
+func levelsOK(r Role, hasLevels bool) bool {
+	switch v, _ := vocab.RoleVertical(string(r)); v {
+	case vocab.PressureLevels:
+		return hasLevels
+	case vocab.SingleLevel:
+		return !hasLevels
+	}
+	return true
 }

@@ -4,6 +4,7 @@ import (
 	"testing"
 
 	"lidscope/netcdf"
+	"lidscope/vocab"
 )
 
 // Roles are found by standard_name (CF Standard Name Table) first, then by
@@ -71,4 +72,30 @@ func TestRolesAndKinds(t *testing.T) {
 	errHas(t, err, `unknown role "nonsense"`)
 	_, err = Open(nil, Spec{Role: RoleSST})
 	errHas(t, err, "no input files")
+}
+
+// Inspect and reading use the one role table of vocab: inspect samples a
+// variable with a pressure axis at the level a run reads it (T700,
+// omega500) or a use asks for (rh700, q700), and the roles that need or
+// refuse an axis are those of the table (relative humidity, issue 12:
+// inspect read it at 700 hPa while the study read it as single level;
+// now both follow vocab.RoleVertical).
+func TestLevelsFromRoleTable(t *testing.T) {
+	for _, r := range Roles() {
+		v, pa := vocab.RoleVertical(string(r))
+		if got := levelFor(r); got != pa {
+			t.Errorf("levelFor(%s) = %g Pa, want the table's %g Pa", r, got, pa)
+		}
+		if d := vocab.DefaultLevel(string(r)); d != 0 && d != levelFor(r) {
+			t.Errorf("%s: read at %g Pa but inspected at %g Pa", r, d, levelFor(r))
+		}
+		with, without := levelsOK(r, true), levelsOK(r, false)
+		wantWith, wantWithout := v != vocab.SingleLevel, v != vocab.PressureLevels
+		if with != wantWith || without != wantWithout {
+			t.Errorf("%s (%d): levelsOK with axis %v, without %v; want %v, %v", r, v, with, without, wantWith, wantWithout)
+		}
+	}
+	if levelFor(RoleRH) != 70000 || !levelsOK(RoleRH, true) || !levelsOK(RoleRH, false) {
+		t.Errorf("relative_humidity: want 700 hPa on levels and either a pressure axis or none")
+	}
 }

@@ -5,6 +5,9 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"lidscope/cf"
+	"lidscope/vocab"
 )
 
 // TestDistance checks the edit distance on worked examples: kitten →
@@ -154,4 +157,27 @@ func TestEveryKeyDocumented(t *testing.T) {
 		}
 	}
 	walk(schema, "")
+}
+
+// The study reads each role at the level of the one role table of vocab
+// (vocab.DefaultLevel: T700, omega500; the humidities near-surface, as the
+// surface humidity of the LCL, Wood and Bretherton 2006), and specific
+// humidity at 700 hPa when ECTEI uses q700 (Kawai, Koshiro and Webb 2017).
+func TestLevelOfFromRoleTable(t *testing.T) {
+	for _, ectei := range []bool{false, true} {
+		d := &Dataset{}
+		d.Metrics.ECTEI = ectei
+		for _, r := range cf.Roles() {
+			want := vocab.DefaultLevel(string(r))
+			if r == cf.RoleSpecHum && ectei {
+				want = 70000
+			}
+			if got := d.Spec(r).Level; got != want {
+				t.Errorf("ECTEI %v: Spec(%s).Level = %g Pa, want %g Pa", ectei, r, got, want)
+			}
+		}
+		if got := d.Spec(cf.RoleRH).Level; got != 0 {
+			t.Errorf("relative_humidity read at %g Pa by default, want single level (near-surface)", got)
+		}
+	}
 }

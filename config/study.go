@@ -14,6 +14,7 @@ import (
 	"lidscope/regimes"
 	"lidscope/regrid"
 	"lidscope/relations"
+	"lidscope/vocab"
 )
 
 // Study is a loaded study: typed, validated, with every default applied
@@ -442,21 +443,18 @@ func (r *Study) Dataset(name string) (*Dataset, error) {
 	return nil, fmt.Errorf("study %s has no dataset %q%s; its datasets are: %s", r.Path, name, hint, strings.Join(names, ", "))
 }
 
-// levelOf is the pressure, Pa, at which a role is read by default: 700
-// hPa for air temperature (T700) and for specific humidity when ECTEI uses
-// q700, 500 hPa for omega (omega500), 0 (single level) otherwise.
+// levelOf is the pressure, Pa, at which a role is read by default: the
+// role's default level of the one role table ([vocab.DefaultLevel]: 700
+// hPa for air temperature, T700; 500 hPa for omega, omega500; single
+// level otherwise, relative and specific humidity being the near-surface
+// humidity), and 700 hPa ([vocab.RoleVertical]) for specific humidity
+// when ECTEI uses q700.
 func (d *Dataset) levelOf(r cf.Role) float64 {
-	switch r {
-	case cf.RoleAirTemp:
-		return metrics.P700
-	case cf.RoleOmega:
-		return 50000
-	case cf.RoleSpecHum:
-		if d.Metrics.ECTEI {
-			return metrics.P700
-		}
+	if r == cf.RoleSpecHum && d.Metrics.ECTEI {
+		_, pa := vocab.RoleVertical(string(r))
+		return pa
 	}
-	return 0
+	return vocab.DefaultLevel(string(r))
 }
 
 // Spec returns how cf should read role r: the variable (if named), the
