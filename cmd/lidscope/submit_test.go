@@ -217,7 +217,8 @@ func submitAndCheck(t *testing.T, dir, study, out string, set setFlags) *slurm.R
 	for _, id := range rec.Jobs {
 		ids = append(ids, id)
 	}
-	deadline := time.Now().Add(150 * time.Second)
+	// generous: a loaded machine runs the 11–21 jobs two at a time
+	deadline := time.Now().Add(300 * time.Second)
 	for {
 		b, err := exec.Command("squeue", "-h", "-j", strings.Join(ids, ","), "-o", "%i %T").Output()
 		if err == nil && strings.TrimSpace(string(b)) == "" {
@@ -230,7 +231,7 @@ func submitAndCheck(t *testing.T, dir, study, out string, set setFlags) *slurm.R
 				c, _ := os.ReadFile(l)
 				tail = append(tail, l+": "+string(c))
 			}
-			t.Fatalf("jobs still queued after 150 s: %s\n%s", b, strings.Join(tail, "\n"))
+			t.Fatalf("jobs still queued after 300 s: %s\n%s", b, strings.Join(tail, "\n"))
 		}
 		time.Sleep(time.Second)
 	}
