@@ -9,7 +9,9 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"lidscope/analysis"
 	"lidscope/compare"
+	"lidscope/constraint"
 	"lidscope/figures"
 	"lidscope/runfolder"
 )
@@ -58,11 +60,15 @@ lacks are skipped unless named with --only.
 Given a comparison folder (lidscope compare --out), draws the comparison's figures again from
 its comparison.json: the sensitivity and ensemble figures from the comparison alone, the map
 figures from the compared runs' folders (which must still be there; --only NAME,... draws
-only some).`,
+only some).
+
+Given a constraint folder (lidscope constrain --out), draws its two figures again from its
+constraint.json.`,
 		Example: `  lidscope plot --list
   lidscope plot demo-out/results/synthetic-demo --no-coastlines --out figures
   lidscope plot demo-out/results/synthetic-demo --no-coastlines --format svg --only map_eis,series --out figures-svg
-  lidscope plot demo-out/results/comparison --no-coastlines --out comparison-figures`,
+  lidscope plot demo-out/results/comparison --no-coastlines --out comparison-figures
+  lidscope plot demo-out/results/constraint --format svg --out constraint-figures`,
 		ValidArgsFunction: dirArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Only = only
@@ -78,6 +84,9 @@ only some).`,
 			}
 			if isComparison(o.RunDir) {
 				return runPlotComparison(o, e.stdout) // its own figure names
+			}
+			if analysis.IsConstraintFolder(o.RunDir) {
+				return runPlotConstraint(o, e.stdout)
 			}
 			for _, n := range o.Only {
 				if !plotContains(figures.Names(), n) {
@@ -179,4 +188,22 @@ func plotContains(list []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// runPlotConstraint draws a constraint's figures again from its
+// constraint.json.
+func runPlotConstraint(o plotOptions, w io.Writer) error {
+	res, err := constraint.Read(o.RunDir)
+	if err != nil {
+		return err
+	}
+	out := o.Out
+	if out == "" {
+		out = filepath.Join(o.RunDir, figures.DefaultDirName)
+	}
+	paths, err := figures.DrawConstraint(out, analysis.ConstraintFigures(res, version), figures.Options{Format: o.Format, DPI: o.DPI, Force: o.Force})
+	for _, p := range paths {
+		fmt.Fprintln(w, p)
+	}
+	return err
 }
