@@ -2,6 +2,8 @@ package analysis
 
 import (
 	"context"
+	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -13,6 +15,7 @@ import (
 	"lidscope/fixtures"
 	"lidscope/internal/runcmp"
 	"lidscope/pipeline"
+	"lidscope/vocab"
 )
 
 // factorsStudy loads the small world's study with a factors section
@@ -125,5 +128,63 @@ func TestFactorsNeedTheirInputs(t *testing.T) {
 		Flags: map[string]string{"factors.use": "sst", "relationships.mode": "climatological"}})
 	if err == nil || !strings.Contains(err.Error(), "anomaly") {
 		t.Errorf("factors with relationships.mode: climatological: %v, want an error asking for anomaly mode", err)
+	}
+}
+
+// TestFactorOutputsNamesAndFigures: a run with a factors section writes
+// the factor files with names made of the table's terms only (as
+// TestEveryOutputNameIsInTheTable checks the demo's), and draws the two
+// factor figures from them.
+func TestFactorOutputsNamesAndFigures(t *testing.T) {
+	t.Parallel()
+	data := smallData(t)
+	r := factorsStudy(t, data, map[string]string{"factors.bootstrap.replicates": "20"})
+	res := filepath.Join(t.TempDir(), "results")
+	rep, err := Run(context.Background(), r, nil, Options{OutDir: filepath.Join(res, "synthetic-demo"), NoCoastlines: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := rep[0].OutDir
+	extra := userNames(t, res)
+	check := func(name, where string) {
+		if err := vocab.Check(name, extra...); err != nil {
+			t.Errorf("%s (in %s): %v", name, where, err)
+		}
+	}
+	b, err := os.ReadFile(filepath.Join(out, factors.JSONFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var v any
+	if err := json.Unmarshal(b, &v); err != nil {
+		t.Fatal(err)
+	}
+	jsonKeys(v, func(k string) { check(k, factors.JSONFile) })
+	f, err := os.Open(filepath.Join(out, factors.CSVFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	head, err := csv.NewReader(f).Read()
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, h := range head {
+		name, _, _ := strings.Cut(h, " [")
+		check(name, factors.CSVFile+" header")
+	}
+	ncNames(t, filepath.Join(out, factors.MapsFile), factors.MapsFile, check)
+	for _, fig := range []string{"map_factor_sensitivities.png", "factor_sensitivities.png"} {
+		fi, err := os.Stat(filepath.Join(out, "figures", fig))
+		if err != nil || fi.Size() < 10000 {
+			t.Errorf("figure %s not drawn (%v)", fig, err)
+		}
+	}
+	fr, err := factors.ReadRun(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fit, _ := fr.Fit("tropical_band", "subsidence"); fit == nil || fit.Sens[0].BootLo != fit.Sens[0].BootLo {
+		t.Errorf("no bootstrap interval in the tropical-band subsidence fit: %+v", fit)
 	}
 }

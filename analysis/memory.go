@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"lidscope/config"
+	"lidscope/factors"
 	"lidscope/pipeline"
 	"lidscope/relations"
 )
@@ -16,6 +17,9 @@ import (
 //   - buffers: the pipeline's step buffers and the read buffers;
 //   - per step: what the relationship analysis keeps of each time step (its
 //     only part that grows with the record);
+//   - factors: with a factors section, the per-cell fold co-moments and
+//     lag sums of the mapped cells (factors.BytesPerCell, for the blocks
+//     of cell_fold_years the record spans) and the per-step domain means;
 //   - end of run: the transient copies made while writing (the run state
 //     is encoded in memory, about twice the accumulator, and the output
 //     maps);
@@ -31,9 +35,13 @@ type MemoryEstimate struct {
 	State        int64
 	Buffers      int64
 	Relations    int64 // per-step and binned relationship state (0 when off)
-	EndOfRun     int64
-	Fixed        int64
-	Total        int64
+	// FactorsPerCell is the factor state of one mapped cell (0 without a
+	// factors section or maps); Factors the whole factor state.
+	FactorsPerCell int64
+	Factors        int64
+	EndOfRun       int64
+	Fixed          int64
+	Total          int64
 }
 
 // fixedBytes is netCDF-C, HDF5 and the Go runtime (bench/readonly's peak RSS).
@@ -66,17 +74,43 @@ func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) 
 		m.Relations = rb
 	}
 	m.State = m.StatePerCell * int64(sh.Columns)
+	if r.Factors.On {
+		m.FactorsPerCell, m.Factors = factorsBytes(r, sh)
+	}
 	// the run state holds the accumulator encoded (about its size, in a
 	// buffer that may have doubled) and the maps are float32 per
 	// quantity, regime and statistic
 	m.EndOfRun = 2*m.State + int64(sh.Cells)*int64(nq*3*8+12*4)
-	m.Total = m.Fixed + m.State + m.Buffers + m.Relations + m.EndOfRun
+	m.Total = m.Fixed + m.State + m.Buffers + m.Relations + m.Factors + m.EndOfRun
 	return m, nil
+}
+
+// factorsBytes is the factor accumulator's size: per mapped cell (an ocean
+// column of the band) the co-moments of each block of cell_fold_years the
+// record touches (one more for a record not aligned on the blocks) and the
+// lag sums (factors.BytesPerCell), and per step and domain × regime slot
+// the weight and the means of the factors and the response (1 + 2K
+// numbers).
+func factorsBytes(r *config.Study, sh pipeline.Shape) (perCell, total int64) {
+	p := len(r.Factors.Use)
+	k := int64(p + 1)
+	years := (sh.Steps + 11) / 12
+	blocks := (years+r.Factors.CellFoldYears-1)/r.Factors.CellFoldYears + 1
+	if r.Factors.Maps {
+		perCell = int64(factors.BytesPerCell(p, blocks))
+	}
+	domains := int64(1 + len(r.Analysis.Regions))
+	perStep := domains * 3 * (1 + 2*k) * 8
+	return perCell, perCell*int64(min(sh.BandCells, sh.Columns)) + perStep*int64(sh.Steps)
 }
 
 // String describes the estimate in one line.
 func (m MemoryEstimate) String() string {
 	mb := func(b int64) string { return fmt.Sprintf("%.0f MB", float64(b)/(1<<20)) }
-	return fmt.Sprintf("dataset %s: about %s peak for %d×%d cells and %d time steps (state %d B per analysed column × %d ocean columns = %s, step buffers %s, relationship analysis %s, end-of-run writing %s, netCDF and runtime %s)",
-		m.Dataset, mb(m.Total), m.Shape.NLat, m.Shape.NLon, m.Shape.Steps, m.StatePerCell, m.Shape.Columns, mb(m.State), mb(m.Buffers), mb(m.Relations), mb(m.EndOfRun), mb(m.Fixed))
+	fac := ""
+	if m.Factors > 0 {
+		fac = fmt.Sprintf(", factor regressions %s (%d B per mapped cell)", mb(m.Factors), m.FactorsPerCell)
+	}
+	return fmt.Sprintf("dataset %s: about %s peak for %d×%d cells and %d time steps (state %d B per analysed column × %d ocean columns = %s, step buffers %s, relationship analysis %s%s, end-of-run writing %s, netCDF and runtime %s)",
+		m.Dataset, mb(m.Total), m.Shape.NLat, m.Shape.NLon, m.Shape.Steps, m.StatePerCell, m.Shape.Columns, mb(m.State), mb(m.Buffers), mb(m.Relations), fac, mb(m.EndOfRun), mb(m.Fixed))
 }

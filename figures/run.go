@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"lidscope/factors"
 	"math"
 	"os"
 	"path/filepath"
@@ -34,6 +35,7 @@ type Run struct {
 	Quantities, Absent []string
 
 	maps      *mapsFile
+	factors   *factors.Results // factors.json and factors.nc, read on first use
 	series    *seriesFile
 	relations *relations.Results
 }
@@ -190,6 +192,16 @@ func cellBounds(b []float64, n int, path string) (west, east []float64, err erro
 		return nil, nil, fmt.Errorf("figures: %s: longitude cells span %g° (more than 360°)", path, east[n-1]-west[0])
 	}
 	return west, east, nil
+}
+
+// openMapsGrid reads maps.nc's grid (r.maps) and closes the file.
+func (r *Run) openMapsGrid() (*mapsFile, error) {
+	f, err := r.openMaps()
+	if err != nil {
+		return nil, err
+	}
+	f.Close()
+	return r.maps, nil
 }
 
 func (r *Run) openMaps() (*netcdf.File, error) {

@@ -221,7 +221,7 @@ var plain = strings.Fields(`
 	committed id manifest extras
 	variable variables dimensions length unlimited usable problems recognised by conversion decoding fields
 	standardised vif covariance cv penalty level excludes zero use
-	cell_fold_years block_years fold without fit
+	cell_fold_years block_years fold without fit fits
 	constraint constrained predicted actual contribution observed observations model control warm
 	created
 	`)
