@@ -66,26 +66,7 @@ func methodLabel(m string) string {
 	return "ridge"
 }
 
-// factorLabel names a factor on a figure.
-func factorLabel(name string) string {
-	switch name {
-	case "sst":
-		return "SST"
-	case "eis":
-		return "EIS"
-	case "lts":
-		return "LTS"
-	case "rh700":
-		return "RH700"
-	case "omega700":
-		return "ω700"
-	case "t_adv":
-		return "T_adv"
-	case "wind_speed":
-		return "wind speed"
-	}
-	return name
-}
+// factorLabel (figures/constraint.go) names a factor on a figure.
 
 // stipple marks the cells whose interval excludes zero with a small dot
 // at the cell centre (every cell on coarse grids; on fine grids every
