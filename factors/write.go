@@ -214,8 +214,8 @@ func writeNC(path string, r *Results, meta Meta) error {
 		"response": r.Response, "method": r.Method, "level": r.Level, "factors": factorList(r),
 		vocab.RelationshipsMode: "anomaly", "detrended": r.Detrend, "cell_fold_years": r.CellFoldYears,
 		vocab.TimeSteps: r.Steps, "cells_without_fit": m.Failed,
-		"n_eff_method":     "per cell: n(1 − ρ)/(1 + ρ), ρ the largest product of a factor's and the response's lag-1 autocorrelations (Bretherton et al. 1999, J. Climate 12, eq. 31)",
-		"cv_method": fmt.Sprintf("leave one block of %d calendar years out (block ⌊year/%d⌋)", r.CellFoldYears, r.CellFoldYears),
+		"n_eff_method": "per cell: n(1 − ρ)/(1 + ρ), ρ the largest product of a factor's and the response's lag-1 autocorrelations (Bretherton et al. 1999, J. Climate 12, eq. 31)",
+		"cv_method":    fmt.Sprintf("leave one block of %d calendar years out (block ⌊year/%d⌋)", r.CellFoldYears, r.CellFoldYears),
 	}
 	for k, v := range map[string]string{"dataset": meta.Dataset, "lidscope_version": meta.Version, vocab.StudyHash: meta.StudyHash, "period": meta.Period, vocab.Conventions: meta.MetricsConventions} {
 		if v != "" {
