@@ -215,46 +215,82 @@ func New(cfg Config, l accumulate.Layout, clim *Climatology) (*Acc, error) {
 }
 
 // build is New; decoded (DecodeAcc) allows an anomaly-mode accumulator
-// without its climatology.
+// without its climatology. It runs in named steps: checkBuild (the
+// configuration, layout and climatology agree), setPredictors (bins and
+// regression predictors), setResponses, setDomains (band and regions per
+// cell), allocBinned (the binned, joint and omega composites), setPatches,
+// setIndicator, allocScratch.
 func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*Acc, error) {
-	if err := cfg.Validate(); err != nil {
+	if err := checkBuild(cfg, l, clim, decoded); err != nil {
 		return nil, err
+	}
+	a := &Acc{cfg: cfg, l: l, clim: clim, indQ: -1}
+	qi := quantityIndex{l: l, k: map[string]int{}}
+	for k, q := range l.Quantities {
+		qi.k[q] = k
+	}
+	for _, step := range []func(quantityIndex) error{a.setPredictors, a.setResponses, a.setDomains, a.allocBinned, a.setPatches, a.setIndicator} {
+		if err := step(qi); err != nil {
+			return nil, err
+		}
+	}
+	a.allocScratch()
+	return a, nil
+}
+
+// checkBuild checks that the configuration is valid, the layout's sizes
+// agree, and the climatology fits the mode and the layout.
+func checkBuild(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) error {
+	if err := cfg.Validate(); err != nil {
+		return err
 	}
 	n := l.NLat * l.NLon
 	if n == 0 || len(l.Lat) != l.NLat || len(l.Lon) != l.NLon || len(l.Area) != n || len(l.BandWeight) != n {
-		return nil, fmt.Errorf("relations: layout sizes disagree (%d×%d grid, %d lat, %d lon, %d areas, %d band weights); build it as for accumulate.New", l.NLat, l.NLon, len(l.Lat), len(l.Lon), len(l.Area), len(l.BandWeight))
+		return fmt.Errorf("relations: layout sizes disagree (%d×%d grid, %d lat, %d lon, %d areas, %d band weights); build it as for accumulate.New", l.NLat, l.NLon, len(l.Lat), len(l.Lon), len(l.Area), len(l.BandWeight))
 	}
 	switch {
 	case cfg.Mode == Anomaly && clim == nil && !decoded:
-		return nil, fmt.Errorf("relations: anomaly mode needs the climatology of a first pass (NewClimatology, AddStep over the record); got nil")
+		return fmt.Errorf("relations: anomaly mode needs the climatology of a first pass (NewClimatology, AddStep over the record); got nil")
 	case cfg.Mode == Climatological && clim != nil:
-		return nil, fmt.Errorf("relations: climatological mode takes no climatology (pass nil), or set Config.Mode = Anomaly")
+		return fmt.Errorf("relations: climatological mode takes no climatology (pass nil), or set Config.Mode = Anomaly")
 	}
 	if clim != nil && (len(clim.slot) != n || fmt.Sprint(clim.l.Quantities) != fmt.Sprint(l.Quantities)) {
-		return nil, fmt.Errorf("relations: the climatology was built for another layout (%d cells, quantities %v); build it with NewClimatology on this layout", len(clim.slot), clim.l.Quantities)
+		return fmt.Errorf("relations: the climatology was built for another layout (%d cells, quantities %v); build it with NewClimatology on this layout", len(clim.slot), clim.l.Quantities)
 	}
 	if clim != nil && clim.steps == 0 {
-		return nil, fmt.Errorf("relations: the climatology is empty; run its pass over the record (Climatology.AddStep) first")
+		return fmt.Errorf("relations: the climatology is empty; run its pass over the record (Climatology.AddStep) first")
 	}
-	a := &Acc{cfg: cfg, l: l, clim: clim, indQ: -1}
-	qi := map[string]int{}
-	for k, q := range l.Quantities {
-		qi[q] = k
+	return nil
+}
+
+// quantityIndex is the layout index of each quantity of the run.
+type quantityIndex struct {
+	l accumulate.Layout
+	k map[string]int
+}
+
+// lookup returns the layout index of quantity name (-1 for relative SST,
+// which the step carries apart); what ("predictor", "response") is for
+// the message.
+func (qi quantityIndex) lookup(name, what string) (int, error) {
+	if name == RelSST {
+		return -1, nil
 	}
-	lookup := func(name, what string) (int, error) {
-		if name == RelSST {
-			return -1, nil
-		}
-		k, ok := qi[name]
-		if !ok {
-			return 0, fmt.Errorf("relations: %s %q is not a quantity of the run (layout has %v); add it to the run's inputs or remove it from the relations study", what, name, l.Quantities)
-		}
-		return k, nil
+	k, ok := qi.k[name]
+	if !ok {
+		return 0, fmt.Errorf("relations: %s %q is not a quantity of the run (layout has %v); add it to the run's inputs or remove it from the relations study", what, name, qi.l.Quantities)
 	}
-	bins := cfg.bins()
+	return k, nil
+}
+
+// setPredictors sets the binned predictors (sorted) with their edges and
+// bin offsets, and the regression predictors: the binned ones, then the
+// partial-regression ones not among them.
+func (a *Acc) setPredictors(qi quantityIndex) error {
+	bins := a.cfg.bins()
 	a.preds = sortedKeys(bins)
 	if len(a.preds) == 0 {
-		return nil, fmt.Errorf("relations: Config.Bins names no predictor; give at least one (e.g. eis)")
+		return fmt.Errorf("relations: Config.Bins names no predictor; give at least one (e.g. eis)")
 	}
 	for _, p := range a.preds {
 		a.edges = append(a.edges, append([]float64(nil), bins[p]...))
@@ -262,7 +298,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.nbTot += len(bins[p]) - 1
 	}
 	a.xs = append([]string(nil), a.preds...)
-	for k, p := range cfg.Partial {
+	for k, p := range a.cfg.Partial {
 		idx := -1
 		for j, x := range a.xs {
 			if x == p {
@@ -276,9 +312,9 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.partial[k] = idx
 	}
 	for _, x := range a.xs {
-		k, err := lookup(x, "predictor")
+		k, err := qi.lookup(x, "predictor")
 		if err != nil {
-			return nil, err
+			return err
 		}
 		a.xq = append(a.xq, k)
 	}
@@ -286,43 +322,58 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 	for p := range a.preds {
 		a.predX[p] = p
 	}
-	a.resp = cfg.Responses
+	a.K = len(a.xs) + 1
+	return nil
+}
+
+// setResponses sets the responses: those of the configuration, else the
+// run's cloud quantities and toa_sw_up that the layout has.
+func (a *Acc) setResponses(qi quantityIndex) error {
+	a.resp = a.cfg.Responses
 	if a.resp == nil {
 		seen := map[string]bool{}
-		for _, q := range []string{l.Cloud, "cloud", "low_cloud", "toa_sw_up"} {
-			if _, ok := qi[q]; ok && !seen[q] {
+		for _, q := range []string{qi.l.Cloud, "cloud", "low_cloud", "toa_sw_up"} {
+			if _, ok := qi.k[q]; ok && !seen[q] {
 				a.resp = append(a.resp, q)
 				seen[q] = true
 			}
 		}
 		if len(a.resp) == 0 {
-			return nil, fmt.Errorf("relations: the run has no cloud quantity (layout %v); name the responses in Config.Responses", l.Quantities)
+			return fmt.Errorf("relations: the run has no cloud quantity (layout %v); name the responses in Config.Responses", qi.l.Quantities)
 		}
 	}
 	for _, r := range a.resp {
-		k, err := lookup(r, "response")
+		k, err := qi.lookup(r, "response")
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if k < 0 {
-			return nil, fmt.Errorf("relations: %s cannot be a response", RelSST)
+			return fmt.Errorf("relations: %s cannot be a response", RelSST)
 		}
 		for _, x := range a.xs {
 			if x == r {
-				return nil, fmt.Errorf("relations: %q is both a predictor and a response", r)
+				return fmt.Errorf("relations: %q is both a predictor and a response", r)
 			}
 		}
 		if _, ok := unitsOf(r); !ok {
-			return nil, fmt.Errorf("relations: response %q has no known units; known: %v", r, vocab.ColumnQuantities())
+			return fmt.Errorf("relations: response %q has no known units; known: %v", r, vocab.ColumnQuantities())
 		}
 		a.rq = append(a.rq, k)
 	}
-	a.K = len(a.xs) + 1
+	return nil
+}
+
+// setDomains sets the seasons and the domains (the band, then the
+// configured regions) with each cell's domains and weights: band weight
+// in the band, area in a region.
+func (a *Acc) setDomains(quantityIndex) error {
+	l, clim := a.l, a.clim
 	a.ns = 1
-	if cfg.Seasons {
+	if a.cfg.Seasons {
 		a.ns = len(seasonNames)
 	}
-	a.doms = append([]accumulate.Region{{Name: BandDomain}}, cfg.Regions...)
+	a.doms = append([]accumulate.Region{{Name: BandDomain}}, a.cfg.Regions...)
+	n := l.NLat * l.NLon
 	a.cellDom = make([][]domW, n)
 	for i := 0; i < n; i++ {
 		if w := l.BandWeight[i]; w > 0 {
@@ -338,13 +389,13 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 					a.cellDom[c] = append(a.cellDom[c], domW{int32(d), l.Area[c]})
 					found = true
 					if clim != nil && !clim.cover[c] {
-						return nil, fmt.Errorf("relations: region %q reaches cells outside the climatology (outside the band and the layout's regions); add it to the layout's Regions before building the climatology", r.Name)
+						return fmt.Errorf("relations: region %q reaches cells outside the climatology (outside the band and the layout's regions); add it to the layout's Regions before building the climatology", r.Name)
 					}
 				}
 			}
 		}
 		if !found {
-			return nil, fmt.Errorf("relations: region %q (%g…%g N, %g…%g E) contains no grid cell centre", r.Name, r.South, r.North, r.West, r.East)
+			return fmt.Errorf("relations: region %q (%g…%g N, %g…%g E) contains no grid cell centre", r.Name, r.South, r.North, r.West, r.East)
 		}
 	}
 	for i, dl := range a.cellDom {
@@ -352,8 +403,13 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 			a.cells = append(a.cells, i)
 		}
 	}
-	nd := len(a.doms)
-	nr := len(a.resp)
+	return nil
+}
+
+// allocBinned allocates the binned composites, and the joint (relative
+// SST × EIS) and omega500 composites when they are on.
+func (a *Acc) allocBinned(qi quantityIndex) error {
+	nd, nr := len(a.doms), len(a.resp)
 	a.binned = make([]binStat, nd*a.ns*nreg*nr*a.nbTot)
 	for i := range a.binned {
 		a.binned[i].last = -1
@@ -378,7 +434,7 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.jointTotal = make([]float64, nd*a.ns)
 		a.stepJoint = newStepMoments(len(a.jointM), func(i int) *stats.Moments { return &a.jointM[i] })
 	}
-	if k, ok := qi["omega"]; ok && cfg.OmegaBins {
+	if k, ok := qi.k["omega"]; ok && a.cfg.OmegaBins {
 		a.omegaOn, a.omegaQ = true, k
 		a.nO = int(math.Round((omegaHi - omegaLo) / omegaStep))
 		a.omegaM = make([]stats.Moments, nd*a.ns*nr*a.nO)
@@ -388,8 +444,15 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 		a.omegaOut = make([]int64, nd*a.ns)
 		a.stepOmega = newStepMoments(len(a.omegaM), func(i int) *stats.Moments { return &a.omegaM[i] })
 	}
-	for _, p := range cfg.Patches {
-		pa := patchAcc{p: p, inside: make([]bool, n), sums: make([]flipSums, len(cfg.DeltaT)), fMin: math.Inf(1), fMax: math.Inf(-1)}
+	return nil
+}
+
+// setPatches sets the warming patches: each patch's cells (by cell
+// centre) and its per-ΔT sums.
+func (a *Acc) setPatches(quantityIndex) error {
+	l := a.l
+	for _, p := range a.cfg.Patches {
+		pa := patchAcc{p: p, inside: make([]bool, l.NLat*l.NLon), sums: make([]flipSums, len(a.cfg.DeltaT)), fMin: math.Inf(1), fMax: math.Inf(-1)}
 		r := p.region()
 		for j := 0; j < l.NLat; j++ {
 			for i := 0; i < l.NLon; i++ {
@@ -401,34 +464,48 @@ func build(cfg Config, l accumulate.Layout, clim *Climatology, decoded bool) (*A
 			}
 		}
 		if len(pa.cells) == 0 {
-			return nil, fmt.Errorf("relations: patch %q (%g…%g N, %g…%g E) contains no grid cell centre", p.Name, p.South, p.North, p.West, p.East)
+			return fmt.Errorf("relations: patch %q (%g…%g N, %g…%g E) contains no grid cell centre", p.Name, p.South, p.North, p.West, p.East)
 		}
 		a.patches = append(a.patches, pa)
 	}
-	if cfg.Indicator != "" {
-		k, ok := qi[cfg.Indicator]
-		if !ok {
-			return nil, fmt.Errorf("relations: the convection indicator %q is not a quantity of the run (layout has %v); add it to the run's inputs or set Config.Indicator = \"\"", cfg.Indicator, l.Quantities)
-		}
-		a.indQ = k
-		a.indThr = cfg.indicatorThreshold()
-		a.nthr = int(math.Round((cfg.ThresholdRange[1] - cfg.ThresholdRange[0]) / cfg.ThresholdBinWidth))
+	return nil
+}
+
+// setIndicator sets the convection indicator of the threshold-crossing
+// frequencies, when configured.
+func (a *Acc) setIndicator(qi quantityIndex) error {
+	cfg := a.cfg
+	if cfg.Indicator == "" {
+		return nil
 	}
+	k, ok := qi.k[cfg.Indicator]
+	if !ok {
+		return fmt.Errorf("relations: the convection indicator %q is not a quantity of the run (layout has %v); add it to the run's inputs or set Config.Indicator = \"\"", cfg.Indicator, qi.l.Quantities)
+	}
+	a.indQ = k
+	a.indThr = cfg.indicatorThreshold()
+	a.nthr = int(math.Round((cfg.ThresholdRange[1] - cfg.ThresholdRange[0]) / cfg.ThresholdBinWidth))
+	return nil
+}
+
+// allocScratch allocates AddStep's per-step scratch and lists the band
+// cells.
+func (a *Acc) allocScratch() {
+	nr, nk := len(a.resp), len(a.cfg.DeltaT)
 	a.scratchX = make([]float64, len(a.xs))
 	a.scratchBin = make([]int, len(a.preds))
 	a.scratchRaw = make([]float64, len(a.xs))
 	a.scratchR = make([]float64, nr)
 	a.scratchRawR = make([]float64, nr)
 	a.scratchVec = make([]float64, a.K)
-	a.scratchShiftIn = make([]float64, len(cfg.DeltaT))
-	a.scratchShiftOut = make([]float64, len(cfg.DeltaT))
-	for i, w := range l.BandWeight {
+	a.scratchShiftIn = make([]float64, nk)
+	a.scratchShiftOut = make([]float64, nk)
+	for i, w := range a.l.BandWeight {
 		if w > 0 {
 			a.bandCells = append(a.bandCells, i)
 		}
 	}
-	a.layoutQuantitiesString = fmt.Sprint(l.Quantities)
-	return a, nil
+	a.layoutQuantitiesString = fmt.Sprint(a.l.Quantities)
 }
 
 // The bin-edge rule, for every binning of the package: a sample is binned
@@ -659,12 +736,7 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 	if len(a.patches) == 0 {
 		return
 	}
-	var band float64
-	for _, i := range a.bandCells {
-		if s.Regime[i] != regimes.Missing {
-			band += a.l.BandWeight[i]
-		}
-	}
+	band := a.bandArea(s)
 	if band == 0 {
 		return
 	}
@@ -678,106 +750,146 @@ func (a *Acc) addFlips(s *accumulate.Step) {
 	shiftIn, shiftOut := a.scratchShiftIn[:nk], a.scratchShiftOut[:nk]
 	for pi := range a.patches {
 		pa := &a.patches[pi]
-		var in float64
-		for _, i := range pa.cells {
-			if w := a.l.BandWeight[i]; w > 0 && s.Regime[i] != regimes.Missing {
-				in += w
-			}
-		}
-		f := in / band
-		pa.fSum += f
-		pa.fSteps++
-		pa.fMin = math.Min(pa.fMin, f)
-		pa.fMax = math.Max(pa.fMax, f)
+		f := a.patchFraction(pa, s, band)
 		for k, dt := range a.cfg.DeltaT {
 			shiftIn[k], shiftOut[k] = dt*(1-f), -dt*f
 		}
-		for _, i := range pa.cells {
-			g := s.Regime[i]
-			if g == regimes.Missing {
-				continue
+		a.flipsInside(pa, s, cl, shiftIn)
+		a.flipsOutside(pa, s, cl, shiftOut)
+	}
+}
+
+// bandArea is the band weight of the step's classified cells.
+func (a *Acc) bandArea(s *accumulate.Step) float64 {
+	var band float64
+	for _, i := range a.bandCells {
+		if s.Regime[i] != regimes.Missing {
+			band += a.l.BandWeight[i]
+		}
+	}
+	return band
+}
+
+// patchFraction returns f, the patch's share of the classified band
+// weight (band) at step s, and adds it to the patch's mean, min and max.
+func (a *Acc) patchFraction(pa *patchAcc, s *accumulate.Step, band float64) float64 {
+	var in float64
+	for _, i := range pa.cells {
+		if w := a.l.BandWeight[i]; w > 0 && s.Regime[i] != regimes.Missing {
+			in += w
+		}
+	}
+	f := in / band
+	pa.fSum += f
+	pa.fSteps++
+	pa.fMin = math.Min(pa.fMin, f)
+	pa.fMax = math.Max(pa.fMax, f)
+	return f
+}
+
+// flipsInside adds the patch's cells, relative SST shifted by shiftIn[k]
+// for each ΔT k, to the inside sums (area-weighted).
+func (a *Acc) flipsInside(pa *patchAcc, s *accumulate.Step, cl regimes.Classifier, shiftIn []float64) {
+	nk := len(shiftIn)
+	for _, i := range pa.cells {
+		g := s.Regime[i]
+		if g == regimes.Missing {
+			continue
+		}
+		w := a.l.Area[i]
+		x := float64(s.Rel[i])
+		c0 := g == regimes.Convective
+		for k := range nk {
+			fs := &pa.sums[k]
+			g2 := cl.Classify(x + shiftIn[k])
+			fs.inArea += w
+			c1 := g2 == regimes.Convective
+			if g2 != g {
+				fs.inChanged += w
 			}
-			w := a.l.Area[i]
-			x := float64(s.Rel[i])
-			c0 := g == regimes.Convective
-			for k := range nk {
-				fs := &pa.sums[k]
-				g2 := cl.Classify(x + shiftIn[k])
-				fs.inArea += w
-				c1 := g2 == regimes.Convective
-				if g2 != g {
-					fs.inChanged += w
-				}
-				if c0 {
-					fs.inConvBefore += w
-				}
-				if c1 {
-					fs.inConvAfter += w
-				}
-				if c1 && !c0 {
-					fs.inToConv += w
-				}
-				if c0 && !c1 {
-					fs.inFromConv += w
-				}
+			if c0 {
+				fs.inConvBefore += w
+			}
+			if c1 {
+				fs.inConvAfter += w
+			}
+			if c1 && !c0 {
+				fs.inToConv += w
+			}
+			if c0 && !c1 {
+				fs.inFromConv += w
 			}
 		}
-		// A cell outside the patch whose relative SST is farther from the
-		// regime thresholds than twice the largest shift keeps its regime
-		// for every ΔT: its sums get, in the same order, exactly the
-		// additions the general loop below would make (area, convective
-		// before and after), so the results are the same bits.
-		maxShift := 0.0
-		for _, sh := range shiftOut {
-			maxShift = math.Max(maxShift, math.Abs(sh))
+	}
+}
+
+// flipsOutside adds the band cells outside the patch, relative SST
+// shifted by shiftOut[k] for each ΔT k, to the outside sums (band
+// weight).
+func (a *Acc) flipsOutside(pa *patchAcc, s *accumulate.Step, cl regimes.Classifier, shiftOut []float64) {
+	nk := len(shiftOut)
+	// A cell outside the patch whose relative SST is farther from the
+	// regime thresholds than twice the largest shift keeps its regime
+	// for every ΔT: its sums get, in the same order, exactly the
+	// additions the general loop below would make (area, convective
+	// before and after), so the results are the same bits.
+	maxShift := 0.0
+	for _, sh := range shiftOut {
+		maxShift = math.Max(maxShift, math.Abs(sh))
+	}
+	stableAbove, stableBelow := cl.Delta+cl.HalfWidth+2*maxShift, cl.Delta-cl.HalfWidth-2*maxShift
+	for _, i := range a.bandCells {
+		g := s.Regime[i]
+		if g == regimes.Missing || pa.inside[i] {
+			continue
 		}
-		stableAbove, stableBelow := cl.Delta+cl.HalfWidth+2*maxShift, cl.Delta-cl.HalfWidth-2*maxShift
-		for _, i := range a.bandCells {
-			g := s.Regime[i]
-			if g == regimes.Missing || pa.inside[i] {
-				continue
-			}
-			w := a.l.BandWeight[i]
-			x := float64(s.Rel[i])
-			c0 := g == regimes.Convective
-			if (c0 && x > stableAbove) || (g == regimes.Subsidence && x < stableBelow) {
-				for k := range nk {
-					fs := &pa.sums[k]
-					fs.outArea += w
-					if c0 {
-						fs.outConvBefore += w
-						fs.outConvAfter += w
-					}
-				}
-				continue
-			}
+		w := a.l.BandWeight[i]
+		x := float64(s.Rel[i])
+		c0 := g == regimes.Convective
+		if (c0 && x > stableAbove) || (g == regimes.Subsidence && x < stableBelow) {
 			for k := range nk {
 				fs := &pa.sums[k]
 				fs.outArea += w
 				if c0 {
 					fs.outConvBefore += w
-				}
-				if shiftOut[k] == 0 {
-					if c0 {
-						fs.outConvAfter += w
-					}
-					continue
-				}
-				g2 := cl.Classify(x + shiftOut[k])
-				c1 := g2 == regimes.Convective
-				if g2 != g {
-					fs.outChanged += w
-				}
-				if c1 {
 					fs.outConvAfter += w
 				}
-				if c1 && !c0 {
-					fs.outToConv += w
-				}
-				if c0 && !c1 {
-					fs.outFromConv += w
-				}
 			}
+			continue
+		}
+		a.flipOutsideCell(pa, cl, shiftOut, g, x, w)
+	}
+}
+
+// flipOutsideCell adds one outside cell (regime g, relative SST x, band
+// weight w) that may change regime to the outside sums of every ΔT.
+func (a *Acc) flipOutsideCell(pa *patchAcc, cl regimes.Classifier, shiftOut []float64, g regimes.Regime, x, w float64) {
+	c0 := g == regimes.Convective
+	for k := range shiftOut {
+		fs := &pa.sums[k]
+		fs.outArea += w
+		if c0 {
+			fs.outConvBefore += w
+		}
+		if shiftOut[k] == 0 {
+			if c0 {
+				fs.outConvAfter += w
+			}
+			continue
+		}
+		g2 := cl.Classify(x + shiftOut[k])
+		c1 := g2 == regimes.Convective
+		if g2 != g {
+			fs.outChanged += w
+		}
+		if c1 {
+			fs.outConvAfter += w
+		}
+		if c1 && !c0 {
+			fs.outToConv += w
+		}
+		if c0 && !c1 {
+			fs.outFromConv += w
 		}
 	}
 }

@@ -36,8 +36,6 @@ var exceptions = map[string]string{
 	"cmd/lidscope.runSubmit":  "not split yet",
 	"fixtures.generator.step": "not split yet",
 	"pipeline.openInputs":     "not split yet",
-	"relations.Acc.addFlips":  "not split yet",
-	"relations.build":         "not split yet",
 }
 
 // funcStat is one function's size.
