@@ -84,8 +84,6 @@ type Var struct {
 	fill32  float32
 	steps   []bool // steps written (timed)
 	written bool   // written (untimed)
-	buf32   []float32
-	buf64   []float64
 }
 
 // Name returns the variable name.
@@ -164,6 +162,16 @@ func (w *Writer) addVar(s VarSpec) (*Var, error) {
 	if len(chunks) > 0 {
 		if err := nv.SetChunking(chunks); err != nil {
 			return nil, err
+		}
+		// Writes cover whole chunks unless a chunk holds several time
+		// steps (a series written step by step): for the others no chunk
+		// cache, so each chunk is compressed and written when it is put
+		// rather than held until Close (netCDF-C's default cache keeps a
+		// dirty chunk of up to 16 MiB per variable).
+		if !v.timed || chunks[0] == 1 {
+			if err := nv.SetChunkCache(0, 0, 0); err != nil {
+				return nil, err
+			}
 		}
 	}
 	if err := w.deflate(nv); err != nil {
@@ -499,10 +507,10 @@ func (v *Var) put(start, count []int, data []float64) error {
 	}
 	switch v.typ {
 	case Float32:
-		if cap(v.buf32) < len(data) {
-			v.buf32 = make([]float32, len(data))
+		if cap(w.buf32) < len(data) {
+			w.buf32 = make([]float32, len(data))
 		}
-		buf := v.buf32[:len(data)]
+		buf := w.buf32[:len(data)]
 		for i, x := range data {
 			switch {
 			case x != x: // NaN
@@ -521,10 +529,10 @@ func (v *Var) put(start, count []int, data []float64) error {
 			return fmt.Errorf("cfwrite: %s: variable %s: %w", w.path, v.name, err)
 		}
 	default:
-		if cap(v.buf64) < len(data) {
-			v.buf64 = make([]float64, len(data))
+		if cap(w.buf64) < len(data) {
+			w.buf64 = make([]float64, len(data))
 		}
-		buf := v.buf64[:len(data)]
+		buf := w.buf64[:len(data)]
 		for i, x := range data {
 			switch {
 			case x != x:

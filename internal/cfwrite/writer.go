@@ -92,6 +92,12 @@ type Writer struct {
 	time     *timeAxis
 	vars     []*Var
 	varNames map[string]*Var
+
+	// buf32 and buf64 hold the converted values of one put (under mu),
+	// shared by all variables: one buffer per variable kept a fine grid's
+	// every map twice over until Close (about 200 MB at 0.25°).
+	buf32 []float32
+	buf64 []float64
 }
 
 // dim is a dimension with the CF axis it stands for.
