@@ -527,6 +527,19 @@ func (v *Var) SetChunking(chunks []int) error {
 	return check(status, "nc_def_var_chunking", v.f.h.path, v.Name)
 }
 
+// SetChunkCache sets the size in bytes, the number of slots and the
+// preemption (0–1) of a NetCDF-4 variable's HDF5 chunk cache
+// (nc_set_var_chunk_cache). A cache smaller than a chunk is bypassed: each
+// write of a whole chunk goes straight to the file, compressed then,
+// instead of staying in memory until the file is closed.
+func (v *Var) SetChunkCache(size, slots int, preemption float64) error {
+	var status C.int
+	do(func() {
+		status = C.nc_set_var_chunk_cache(v.f.ncid(), v.id, C.size_t(size), C.size_t(slots), C.float(preemption))
+	})
+	return check(status, "nc_set_var_chunk_cache", v.f.h.path, v.Name)
+}
+
 // SetDeflate turns on zlib compression (level 1–9) and optionally the
 // shuffle filter for a NetCDF-4 variable (define mode).
 func (v *Var) SetDeflate(shuffle bool, level int) error {
