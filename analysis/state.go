@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"bufio"
 	"bytes"
 	"context"
 	"crypto/sha256"
@@ -228,38 +229,49 @@ func damaged(path, why string) error {
 
 // decodeStateFile checks the header of a run state file and returns its body.
 func decodeStateFile(path string, b []byte) ([]byte, error) {
-	if len(b) < stateHeaderLen {
-		return nil, damaged(path, fmt.Sprintf("%d bytes, shorter than its header", len(b)))
+	n, want, err := checkStateHeader(path, b, int64(len(b)))
+	if err != nil {
+		return nil, err
+	}
+	body := b[stateHeaderLen:]
+	if got := sha256.Sum256(body); !bytes.Equal(got[:], want) {
+		return nil, damaged(path, "its SHA-256 does not match its contents")
+	}
+	return body[:n], nil
+}
+
+// checkStateHeader checks the header of a run state file of size bytes
+// (b holds at least its first stateHeaderLen bytes, or the whole file when
+// shorter) and returns the body's length and SHA-256.
+func checkStateHeader(path string, b []byte, size int64) (int64, []byte, error) {
+	if size < int64(stateHeaderLen) || len(b) < stateHeaderLen {
+		return 0, nil, damaged(path, fmt.Sprintf("%d bytes, shorter than its header", size))
 	}
 	h := string(b[:stateHeaderLen])
 	lines := strings.Split(h, "\n")
 	if len(lines) > 0 && lines[0] == compactFormat {
-		return nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope, which kept the per-column statistics for every grid cell in another encoding; re-run the analysis of that folder with this version", path, compactFormat, stateFormat)
+		return 0, nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope, which kept the per-column statistics for every grid cell in another encoding; re-run the analysis of that folder with this version", path, compactFormat, stateFormat)
 	}
 	if len(lines) > 0 && lines[0] == renamedFormat {
-		return nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope whose files use names since renamed (e.g. delta_K, crossings_per_year, n_eff_corr; see the README's changes); re-run the analysis of that folder with this version", path, renamedFormat, stateFormat)
+		return 0, nil, fmt.Errorf("%s: run state format %q, this lidscope reads %q: the folder was written by an earlier lidscope whose files use names since renamed (e.g. delta_K, crossings_per_year, n_eff_corr; see the README's changes); re-run the analysis of that folder with this version", path, renamedFormat, stateFormat)
 	}
 	if len(lines) != 5 || lines[0] != stateFormat || lines[3] != "" || lines[4] != "" {
-		return nil, damaged(path, "its header is not "+stateFormat+": the file is damaged, or was written by another lidscope version")
+		return 0, nil, damaged(path, "its header is not "+stateFormat+": the file is damaged, or was written by another lidscope version")
 	}
 	ls, ok := strings.CutPrefix(lines[1], "length ")
 	n, err := strconv.ParseInt(ls, 10, 64)
 	if !ok || err != nil || len(ls) != stateLengthDigits {
-		return nil, damaged(path, "its length line is damaged")
+		return 0, nil, damaged(path, "its length line is damaged")
 	}
 	hs, ok := strings.CutPrefix(lines[2], "sha256 ")
 	want, err := hex.DecodeString(hs)
 	if !ok || err != nil || len(want) != sha256.Size {
-		return nil, damaged(path, "its checksum line is damaged")
+		return 0, nil, damaged(path, "its checksum line is damaged")
 	}
-	body := b[stateHeaderLen:]
-	if int64(len(body)) != n {
-		return nil, damaged(path, fmt.Sprintf("the header says %d bytes follow it, the file has %d: truncated or extended", n, len(body)))
+	if body := size - int64(stateHeaderLen); body != n {
+		return 0, nil, damaged(path, fmt.Sprintf("the header says %d bytes follow it, the file has %d: truncated or extended", n, body))
 	}
-	if got := sha256.Sum256(body); !bytes.Equal(got[:], want) {
-		return nil, damaged(path, "its SHA-256 does not match its contents")
-	}
-	return body, nil
+	return n, want, nil
 }
 
 // loadedState is a decoded run state; rel is nil unless asked for, or
@@ -273,50 +285,100 @@ type loadedState struct {
 }
 
 // readState reads the run state at path, with the relationship
-// accumulator when withRel is set.
+// accumulator when withRel is set. It decodes the frames as it reads the
+// file, hashing the body on the way, and returns nothing decoded unless
+// the SHA-256 matches at the end: holding the whole file (about the
+// accumulators' size) next to what is decoded from it was most of a
+// merge's peak memory.
 func readState(p string, withRel bool) (loadedState, error) {
-	b, err := os.ReadFile(p)
+	f, err := os.Open(p)
 	if err != nil {
 		return loadedState{}, err
 	}
-	body, err := decodeStateFile(p, b)
+	defer f.Close()
+	fi, err := f.Stat()
 	if err != nil {
 		return loadedState{}, err
 	}
-	fr, err := frames(body)
-	if err == nil && len(fr) != 4 {
-		err = fmt.Errorf("%d frames, not 4", len(fr))
+	hdr := make([]byte, stateHeaderLen)
+	k, err := io.ReadFull(f, hdr)
+	if err != nil && !errors.Is(err, io.ErrUnexpectedEOF) && !errors.Is(err, io.EOF) {
+		return loadedState{}, fmt.Errorf("reading %s: %w", p, err)
 	}
+	_, want, err := checkStateHeader(p, hdr[:k], fi.Size())
 	if err != nil {
-		return loadedState{}, damaged(p, err.Error())
+		return loadedState{}, err
 	}
-	var s runState
-	if err := gob.NewDecoder(bytes.NewReader(fr[0])).Decode(&s); err != nil {
-		return loadedState{}, damaged(p, err.Error())
+	h := sha256.New()
+	body := bufio.NewReaderSize(io.TeeReader(f, h), 1<<20)
+	ls, derr := decodeFrames(body, withRel)
+	// hash what is left, so a damaged file is named damaged by its
+	// checksum whatever the decoding made of it
+	if _, err := io.Copy(io.Discard, body); err != nil {
+		return loadedState{}, fmt.Errorf("reading %s: %w", p, err)
 	}
-	if s.Format != stateFormat {
-		return loadedState{}, damaged(p, fmt.Sprintf("its body has format %q", s.Format))
+	if !bytes.Equal(h.Sum(nil), want) {
+		return loadedState{}, damaged(p, "its SHA-256 does not match its contents")
 	}
-	acc, err := accumulate.Decode(bytes.NewReader(fr[1]))
-	if errors.Is(err, accumulate.ErrFormat) {
-		return loadedState{}, fmt.Errorf("run state %s: %w", p, err)
+	if errors.Is(derr, accumulate.ErrFormat) {
+		return loadedState{}, fmt.Errorf("run state %s: %w", p, derr)
 	}
-	if err != nil {
-		return loadedState{}, damaged(p, err.Error())
+	if derr != nil {
+		return loadedState{}, damaged(p, derr.Error())
 	}
-	ls := loadedState{meta: s.Meta, acc: acc, noRel: s.NoRelations}
-	if withRel && s.NoRelations == "" {
-		if len(fr[2]) == 0 {
-			return loadedState{}, damaged(p, "it holds no relationship accumulator")
+	return ls, nil
+}
+
+// decodeFrames decodes the four frames of a run state body (see frames)
+// from r, the relationship and factor frames only when withRel is set,
+// and checks that nothing follows them.
+func decodeFrames(r *bufio.Reader, withRel bool) (loadedState, error) {
+	var ls loadedState
+	for i := range 4 {
+		var ln [frameDigits + 1]byte
+		if _, err := io.ReadFull(r, ln[:]); err != nil || ln[frameDigits] != '\n' {
+			return ls, fmt.Errorf("%d frames, not 4 (frame %d has no length line)", i, i)
 		}
-		if ls.rel, err = relations.DecodeAcc(bytes.NewReader(fr[2])); err != nil {
-			return loadedState{}, damaged(p, err.Error())
+		n, err := strconv.ParseUint(string(ln[:frameDigits]), 10, 63)
+		if err != nil {
+			return ls, fmt.Errorf("frame %d: length %q", i, ln[:frameDigits])
 		}
-		if len(fr[3]) > 0 {
-			if ls.fac, err = factors.DecodeAcc(bytes.NewReader(fr[3])); err != nil {
-				return loadedState{}, damaged(p, err.Error())
+		fr := &io.LimitedReader{R: r, N: int64(n)}
+		switch {
+		case i == 0:
+			var s runState
+			if err := gob.NewDecoder(fr).Decode(&s); err != nil {
+				return ls, err
+			}
+			if s.Format != stateFormat {
+				return ls, fmt.Errorf("its body has format %q", s.Format)
+			}
+			ls.meta, ls.noRel = s.Meta, s.NoRelations
+		case i == 1:
+			if ls.acc, err = accumulate.Decode(fr); err != nil {
+				return ls, err
+			}
+		case i == 2 && withRel && ls.noRel == "":
+			if n == 0 {
+				return ls, errors.New("it holds no relationship accumulator")
+			}
+			if ls.rel, err = relations.DecodeAcc(fr); err != nil {
+				return ls, err
+			}
+		case i == 3 && withRel && ls.noRel == "" && n > 0:
+			if ls.fac, err = factors.DecodeAcc(fr); err != nil {
+				return ls, err
 			}
 		}
+		if _, err := io.Copy(io.Discard, fr); err != nil {
+			return ls, err
+		}
+		if fr.N != 0 {
+			return ls, fmt.Errorf("frame %d: length %d for fewer bytes left", i, n)
+		}
+	}
+	if _, err := r.ReadByte(); err != io.EOF {
+		return ls, errors.New("more than 4 frames")
 	}
 	return ls, nil
 }
