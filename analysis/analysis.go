@@ -382,10 +382,11 @@ func WriteRun(ctx context.Context, st *runfolder.Stage, o *Outcome, opt Options)
 	// The stream's buffers (step outputs, read slabs: about 200 MB at
 	// 0.25°) are garbage now but still resident: collect them and hand the
 	// pages back first, or the maps below pile on top of them. Then a soft
-	// limit a quarter above what is left (the accumulators) plus 64 MB:
+	// limit an eighth above what is left (the accumulators) plus 32 MB:
 	// near it the collector runs more often and returns freed pages to the
 	// system at once, so the transient maps and encoding buffers reuse
-	// the same memory instead of adding to the peak (0.25°: 700 → 590 MB).
+	// the same memory instead of adding to the peak (0.25°, 1 year: the
+	// end of run 700 → under 590 MB, below the stream).
 	// The heap is mostly pointer-free float slices, so each collection is
 	// cheap; the limit is soft, work above it only collects more often.
 	debug.FreeOSMemory()
@@ -443,12 +444,14 @@ func WriteRun(ctx context.Context, st *runfolder.Stage, o *Outcome, opt Options)
 }
 
 // writeLimit is the soft memory limit while a run's results are written:
-// the Go runtime's memory in use now, a quarter more, and 64 MB.
+// the Go runtime's memory in use now (the accumulators, once the stream's
+// buffers are returned), an eighth more, and 32 MB: room for one map of
+// the output at a time and its conversion buffers (0.25°: 24 + 36 MB).
 func writeLimit() int64 {
 	var ms runtime.MemStats
 	runtime.ReadMemStats(&ms)
 	used := int64(ms.Sys - ms.HeapReleased)
-	return used + used/4 + 64<<20
+	return used + used/8 + 32<<20
 }
 
 // estimateOutputs estimates the bytes a run writes from the number of

@@ -40,23 +40,16 @@ func (c *checked) timeComment(comment string) string {
 	return "(comment: " + comment + ")"
 }
 
-// mapVar is one variable of maps.nc with its values for the single time
-// step (the whole record): data, or fill to make them when they are
-// written (the regime maps of every quantity would otherwise all be in
-// memory at once, most of a fine grid's end-of-run peak).
+// mapVar is one variable of maps.nc and fill, which makes its values for
+// the single time step (the whole record) when it is written: one map at
+// a time in memory, not all of them (a fine grid's end-of-run peak).
 type mapVar struct {
 	spec cfwrite.VarSpec
-	data []float64
 	fill func() []float64
 }
 
 // values returns the variable's values.
-func (v mapVar) values() []float64 {
-	if v.fill != nil {
-		return v.fill()
-	}
-	return v.data
-}
+func (v mapVar) values() []float64 { return v.fill() }
 
 // mapVars builds every variable of maps.nc. Regime variables are laid out
 // [regime][lat][lon] in the order of regimes.All.
@@ -68,36 +61,42 @@ func (c *checked) mapVars() []mapVar {
 	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
 	steps := strconv.FormatFloat(c.meta.StepsPerYear, 'g', -1, 64)
 	var out []mapVar
-	add := func(s cfwrite.VarSpec, d []float64) { out = append(out, mapVar{spec: s, data: d}) }
+	add := func(s cfwrite.VarSpec, fill func() []float64) { out = append(out, mapVar{spec: s, fill: fill}) }
 
 	for _, r := range regimes.All {
-		d := make([]float64, n)
-		for i := range d {
-			d[i] = math.NaN()
-			if v := acc.ValidSteps(i); v > 0 {
-				d[i] = float64(acc.RegimeSteps(r, i)) / float64(v)
+		frac := func() []float64 {
+			d := make([]float64, n)
+			for i := range d {
+				d[i] = math.NaN()
+				if v := acc.ValidSteps(i); v > 0 {
+					d[i] = float64(acc.RegimeSteps(r, i)) / float64(v)
+				}
 			}
+			return d
 		}
 		add(cfwrite.VarSpec{
 			Name: r.String() + "_" + vocab.TimeFraction, Dims: yx, Units: vocab.UnitOne,
 			LongName:    "fraction of valid time steps in the " + r.String() + " regime",
 			CellMethods: "time: mean " + c.timeComment("of the "+r.String()+"-regime indicator over the time steps in which the column was valid ocean with data"),
-		}, d)
+		}, frac)
 	}
 	add(cfwrite.VarSpec{
 		Name: vocab.CrossingRate, Dims: yx, Units: vocab.UnitPerYear,
 		LongName:    "crossings between the convective and subsidence regimes per year of record",
 		CellMethods: "time: mean " + c.timeComment("crossings counted with hysteresis across transition and missing steps, divided by the record length in years"),
 		Attributes:  map[string]any{vocab.SamplingFrequency: c.meta.StepsPerYear, vocab.SamplingFrequency + "_units": vocab.UnitPerYear},
-	}, acc.CrossingsPerYear(c.meta.StepsPerYear))
+	}, func() []float64 { return acc.CrossingsPerYear(c.meta.StepsPerYear) })
 	for _, r := range []regimes.Regime{regimes.Convective, regimes.Subsidence} {
-		d := make([]float64, n)
-		for i := range d {
-			d[i] = math.NaN()
-			if acc.ValidSteps(i) > 0 {
-				t := acc.Track(i)
-				d[i] = t.MeanDwell(r)
+		dwell := func() []float64 {
+			d := make([]float64, n)
+			for i := range d {
+				d[i] = math.NaN()
+				if acc.ValidSteps(i) > 0 {
+					t := acc.Track(i)
+					d[i] = t.MeanDwell(r)
+				}
 			}
+			return d
 		}
 		// One variable per regime: in months (UDUNITS-2: a twelfth of a
 		// year) for monthly steps, otherwise in time steps, the units
@@ -117,11 +116,14 @@ func (c *checked) mapVars() []mapVar {
 			LongName:    long,
 			CellMethods: "time: mean " + c.timeComment("mean length of the runs of steps in the regime, runs cut off by the ends of the record included"),
 			Attributes:  attrs,
-		}, d)
+		}, dwell)
 	}
-	valid := make([]float64, n)
-	for i := range valid {
-		valid[i] = float64(acc.ValidSteps(i))
+	valid := func() []float64 {
+		d := make([]float64, n)
+		for i := range d {
+			d[i] = float64(acc.ValidSteps(i))
+		}
+		return d
 	}
 	add(cfwrite.VarSpec{
 		Name: "valid_steps", Dims: yx, Type: cfwrite.Int32, Units: "1",
@@ -129,21 +131,25 @@ func (c *checked) mapVars() []mapVar {
 		CellMethods: "time: sum " + c.timeComment("of the indicator of a valid step"),
 		Attributes:  map[string]any{vocab.TimeSteps: cells.Steps},
 	}, valid)
-	rm, rs := make([]float64, n), make([]float64, n)
-	for i := range rm {
-		m := acc.RelMoments(i)
-		rm[i], rs[i] = m.MeanOrNaN(), m.Std()
+	relMap := func(of func(m stats.Moments) float64) func() []float64 {
+		return func() []float64 {
+			d := make([]float64, n)
+			for i := range d {
+				d[i] = of(acc.RelMoments(i))
+			}
+			return d
+		}
 	}
 	add(cfwrite.VarSpec{
 		Name: "rel_sst_mean", Dims: yx, Units: "K",
 		LongName:    "relative sea surface temperature (SST minus tropical-mean SST)",
 		CellMethods: "time: mean " + c.timeComment("over the valid time steps of the column"),
-	}, rm)
+	}, relMap(func(m stats.Moments) float64 { return m.MeanOrNaN() }))
 	add(cfwrite.VarSpec{
 		Name: "rel_sst_std", Dims: yx, Units: "K",
 		LongName:    "relative sea surface temperature (SST minus tropical-mean SST)",
 		CellMethods: "time: standard_deviation " + c.timeComment("population standard deviation over the valid time steps of the column"),
-	}, rs)
+	}, relMap(func(m stats.Moments) float64 { return m.Std() }))
 
 	for qi, name := range acc.L.Quantities {
 		q := c.qs[qi]
@@ -169,14 +175,12 @@ func (c *checked) mapVars() []mapVar {
 			LongName: q.LongName, StandardName: q.StandardName,
 			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
 			Coordinates: coord,
-		}, nil)
-		out[len(out)-1].fill = mean
+		}, mean)
 		add(cfwrite.VarSpec{
 			Name: name + "_" + vocab.Count, Dims: ryx, Type: cfwrite.Int32, Units: vocab.UnitOne,
 			LongName:    "number of time steps averaged in " + name + "_mean",
 			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
-		}, nil)
-		out[len(out)-1].fill = cnt
+		}, cnt)
 	}
 	return out
 }
@@ -346,7 +350,6 @@ func (c *checked) writeMaps(path string, notes []string) error {
 		if err := handles[k].WriteStep(step, v.values()); err != nil {
 			return err
 		}
-		vars[k].data = nil // written: garbage from here on
 	}
 	return w.Close()
 }
