@@ -20,14 +20,20 @@ import (
 //   - factors: with a factors section, the per-cell fold co-moments and
 //     lag sums of the mapped cells (factors.BytesPerCell, for the blocks
 //     of cell_fold_years the record spans) and the per-step domain means;
-//   - end of run: the transient copies made while writing (the run state
-//     is encoded in memory, about twice the accumulator, and the output
-//     maps);
+//   - end of run: what writing adds to the accumulators: one output map
+//     at a time (a regime map in float64 and its float32 or int32 copy
+//     for netCDF) within the soft memory limit WriteRun sets (an eighth
+//     above what is in use, plus 32 MB; counted as an eighth of the
+//     state); the run state is written as it is encoded;
 //   - fixed: netCDF-C and HDF5 (chunk caches) and the Go runtime, about
 //     45 MB as measured by bench/readonly.
 //
-// Peak RSS is about the sum; Go's collector may hold up to as much again
-// of garbage between collections (GOGC), which the figure leaves out.
+// The stream's buffers are returned before the results are written, so
+// the peak is the fixed part, the state, the relationship analysis, the
+// factors and the larger of the buffers and the end of run. Go's collector and
+// the C allocator keep some garbage and free pages on top (at 0.25°
+// about 140 MB of the stream's measured 565 MB), which the figure
+// leaves out.
 type MemoryEstimate struct {
 	Dataset      string
 	Shape        pipeline.Shape
@@ -77,11 +83,10 @@ func EstimateMemory(r *config.Study, d *config.Dataset) (MemoryEstimate, error) 
 	if r.Factors.On {
 		m.FactorsPerCell, m.Factors = factorsBytes(r, sh)
 	}
-	// the run state holds the accumulator encoded (about its size, in a
-	// buffer that may have doubled) and the maps are float32 per
-	// quantity, regime and statistic
-	m.EndOfRun = 2*m.State + int64(sh.Cells)*int64(nq*3*8+12*4)
-	m.Total = m.Fixed + m.State + m.Buffers + m.Relations + m.Factors + m.EndOfRun
+	// one regime map (three regimes) in float64 and its conversion
+	// buffer, within the write limit's headroom
+	m.EndOfRun = int64(sh.Cells)*3*(8+4) + m.State/8 + 32<<20
+	m.Total = m.Fixed + m.State + m.Relations + m.Factors + max(m.Buffers, m.EndOfRun)
 	return m, nil
 }
 
