@@ -55,10 +55,53 @@ func (v mapVar) values() []float64 { return v.fill() }
 // [regime][lat][lon] in the order of regimes.All.
 func (c *checked) mapVars() []mapVar {
 	acc := c.acc
+	n := acc.NCells()
+	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
+	out := c.columnVars()
+	add := func(s cfwrite.VarSpec, fill func() []float64) { out = append(out, mapVar{spec: s, fill: fill}) }
+
+	for qi, name := range acc.L.Quantities {
+		q := c.qs[qi]
+		regimeMaps := func(of func(m stats.Moments) float64) func() []float64 {
+			return func() []float64 {
+				d := make([]float64, len(regimes.All)*n)
+				for k, r := range regimes.All {
+					for i := 0; i < n; i++ {
+						d[k*n+i] = of(acc.Moments(qi, r, i))
+					}
+				}
+				return d
+			}
+		}
+		mean := regimeMaps(func(m stats.Moments) float64 { return m.MeanOrNaN() })
+		cnt := regimeMaps(func(m stats.Moments) float64 { return float64(m.N) })
+		coord := ""
+		if q.PressurePa > 0 {
+			coord = pressureCoordName(q.PressurePa)
+		}
+		add(cfwrite.VarSpec{
+			Name: name + "_" + vocab.Mean, Dims: ryx, Units: q.Units,
+			LongName: q.LongName, StandardName: q.StandardName,
+			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
+			Coordinates: coord,
+		}, mean)
+		add(cfwrite.VarSpec{
+			Name: name + "_" + vocab.Count, Dims: ryx, Type: cfwrite.Int32, Units: vocab.UnitOne,
+			LongName:    "number of time steps averaged in " + name + "_mean",
+			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
+		}, cnt)
+	}
+	return out
+}
+
+// columnVars builds the variables of maps.nc that are one map per column
+// statistic: regime fractions, crossings, dwell times, valid steps and
+// relative SST.
+func (c *checked) columnVars() []mapVar {
+	acc := c.acc
 	cells := &acc.Cells
 	n := acc.NCells()
 	yx := []string{cfwrite.DimTime, cfwrite.DimLat, cfwrite.DimLon}
-	ryx := []string{cfwrite.DimTime, regimeDim, cfwrite.DimLat, cfwrite.DimLon}
 	steps := strconv.FormatFloat(c.meta.StepsPerYear, 'g', -1, 64)
 	var out []mapVar
 	add := func(s cfwrite.VarSpec, fill func() []float64) { out = append(out, mapVar{spec: s, fill: fill}) }
@@ -151,37 +194,6 @@ func (c *checked) mapVars() []mapVar {
 		CellMethods: "time: standard_deviation " + c.timeComment("population standard deviation over the valid time steps of the column"),
 	}, relMap(func(m stats.Moments) float64 { return m.Std() }))
 
-	for qi, name := range acc.L.Quantities {
-		q := c.qs[qi]
-		regimeMaps := func(of func(m stats.Moments) float64) func() []float64 {
-			return func() []float64 {
-				d := make([]float64, len(regimes.All)*n)
-				for k, r := range regimes.All {
-					for i := 0; i < n; i++ {
-						d[k*n+i] = of(acc.Moments(qi, r, i))
-					}
-				}
-				return d
-			}
-		}
-		mean := regimeMaps(func(m stats.Moments) float64 { return m.MeanOrNaN() })
-		cnt := regimeMaps(func(m stats.Moments) float64 { return float64(m.N) })
-		coord := ""
-		if q.PressurePa > 0 {
-			coord = pressureCoordName(q.PressurePa)
-		}
-		add(cfwrite.VarSpec{
-			Name: name + "_" + vocab.Mean, Dims: ryx, Units: q.Units,
-			LongName: q.LongName, StandardName: q.StandardName,
-			CellMethods: "time: mean " + c.timeComment("over the time steps in which the column was in the regime given by the regime coordinate"),
-			Coordinates: coord,
-		}, mean)
-		add(cfwrite.VarSpec{
-			Name: name + "_" + vocab.Count, Dims: ryx, Type: cfwrite.Int32, Units: vocab.UnitOne,
-			LongName:    "number of time steps averaged in " + name + "_mean",
-			CellMethods: "time: sum " + c.timeComment("of the indicator of a step in the regime of the regime coordinate with a value of "+name),
-		}, cnt)
-	}
 	return out
 }
 
