@@ -356,8 +356,8 @@ func (d *DemoReport) WriteSummary(w io.Writer) {
 			fmt.Fprintf(w, "      predicted (model's own sensitivities x its factor changes)   %s\n", pc(dm.Predicted))
 			fmt.Fprintf(w, "      the model's actual change                                  %s\n", pc(dm.Actual))
 			for _, f := range dm.Factors {
-				fmt.Fprintf(w, "      %-9s contribution %+.3g %% per K (observed sensitivity %.3g, model %.3g; model change %.3g %s per K)\n",
-					f.Factor, 100*f.Contribution, f.ObsCoef, f.ModelCoef, f.PerKelvin, f.Units)
+				fmt.Fprintf(w, "      %-9s contribution %+.3g %% per K (observed sensitivity %.3g, model %.3g; model change %.3g%s per K)\n",
+					f.Factor, 100*f.Contribution, f.ObsCoef, f.ModelCoef, f.PerKelvin, spaceUnits(f.Units))
 			}
 		}
 	}

@@ -8,7 +8,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -425,7 +424,7 @@ func (f *fig) changesPage(d ConstraintFigures) (*page, error) {
 
 // ConstraintLabel is the figures' label of a domain and regime.
 func ConstraintLabel(domain, regime string) string {
-	d := strings.ReplaceAll(domain, "_", " ")
+	d := placeWords(domain)
 	if domain == "tropical_band" {
 		d = "tropical band"
 	}

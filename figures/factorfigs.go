@@ -302,7 +302,7 @@ func (f *fig) factorBarsPage() (*page, error) {
 			ticks = append(ticks, plot.Tick{Value: float64(i), Label: factorLabel(fi.Name)})
 		}
 		p.X.Tick.Marker = plot.ConstantTicks(ticks)
-		name := dom
+		name := placeWords(dom)
 		if dom == "tropical_band" {
 			name = "tropical band " + degreeLabel(f.run.BandSouth, true) + "–" + degreeLabel(f.run.BandNorth, true)
 		}

@@ -53,19 +53,25 @@ func (f *fig) drawPanelTitles(c draw.Canvas, titles []string, data []vg.Rectangl
 }
 
 // patchLabel is the legend text of a flip patch: its study name in words
-// ("east_pacific" → "east Pacific patch"); words that name an ocean or a
-// sea keep their capital.
+// ("east_pacific" → "east Pacific patch").
 func patchLabel(name string) string {
+	if w := placeWords(name); w != "" {
+		return w + " patch"
+	}
+	return "patch"
+}
+
+// placeWords writes a study's name of a region or patch in words
+// ("cold_tongue" → "cold tongue", "east_pacific" → "east Pacific"); words
+// that name an ocean or a sea keep their capital.
+func placeWords(name string) string {
 	words := strings.FieldsFunc(name, func(r rune) bool { return r == '_' || r == '-' })
 	for i, w := range words {
 		if properNames[w] {
 			words[i] = strings.ToUpper(w[:1]) + w[1:]
 		}
 	}
-	if len(words) == 0 {
-		return "patch"
-	}
-	return strings.Join(words, " ") + " patch"
+	return strings.Join(words, " ")
 }
 
 // properNames are the geographic words a patch name may hold that are

@@ -106,6 +106,25 @@ func TestFlipsLegendReadable(t *testing.T) {
 	}
 }
 
+// TestPlaceWords: a region's study name in words in panel titles and row
+// labels (factor_sensitivities, constraint_changes), capitals for the
+// ocean names only.
+func TestPlaceWords(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"cold_tongue", "cold tongue"},
+		{"upwelling_magna_north", "upwelling magna north"},
+		{"south_atlantic-deck", "south Atlantic deck"},
+		{"", ""},
+	} {
+		if got := placeWords(c.in); got != c.want {
+			t.Errorf("placeWords(%q) = %q, want %q", c.in, got, c.want)
+		}
+		if got := ConstraintLabel(c.in, "subsidence"); c.in != "" && got != c.want+", subsidence" {
+			t.Errorf("ConstraintLabel(%q) = %q", c.in, got)
+		}
+	}
+}
+
 func TestPatchLabel(t *testing.T) {
 	for _, c := range []struct{ in, want string }{
 		{"east_pacific", "east Pacific patch"},
