@@ -309,13 +309,9 @@ func writeNC(path string, r *Result, meta Meta) error {
 	}
 	dims := []string{cfwrite.DimLat, cfwrite.DimLon}
 	cu := changeUnits(r.ResponseUnits)
-	type out struct {
-		spec cfwrite.VarSpec
-		data []float64
-	}
-	var vs []out
+	var vs []cfwrite.Field
 	add := func(name, units, long string, data []float64) {
-		vs = append(vs, out{cfwrite.VarSpec{Name: name, Dims: dims, Units: units, LongName: long, Type: cfwrite.Float64}, data})
+		vs = append(vs, cfwrite.Field{Spec: cfwrite.VarSpec{Name: name, Dims: dims, Units: units, LongName: long, Type: cfwrite.Float64}, Data: data})
 	}
 	resp := r.Response
 	add(constrainedKey, cu, fmt.Sprintf("change of %s per K of global warming constrained by the observed sensitivities", resp), c.Constrained)
@@ -326,18 +322,8 @@ func writeNC(path string, r *Result, meta Meta) error {
 		add(f.Name+"_contribution", cu, "contribution of "+f.Name+" to the constrained change (observed sensitivity times the model's change)", c.Contribution[i])
 		add(f.Name+"_"+changeName, changeUnits(f.Units), "the model's change of the time mean of "+f.Name+" per K of global warming", c.PerKelvin[i])
 	}
-	var handles []*cfwrite.Var
-	for _, v := range vs {
-		h, err := w.AddVar(v.spec)
-		if err != nil {
-			return err
-		}
-		handles = append(handles, h)
-	}
-	for i, v := range vs {
-		if err := handles[i].Write(v.data); err != nil {
-			return err
-		}
+	if err := w.WriteFields(vs); err != nil {
+		return err
 	}
 	return w.Close()
 }

@@ -235,18 +235,14 @@ func writeNC(path string, r *Results, meta Meta) error {
 		return err
 	}
 	dims := []string{cfwrite.DimLat, cfwrite.DimLon}
-	type out struct {
-		spec cfwrite.VarSpec
-		data []float64
-	}
-	var vs []out
+	var vs []cfwrite.Field
 	add := func(name, units, long string, data []float64) {
 		fin := make([]float64, len(data))
 		for i, x := range data {
 			fin[i] = finite(x)
 		}
 		data = fin
-		vs = append(vs, out{cfwrite.VarSpec{Name: name, Dims: dims, Units: units, LongName: long, Type: cfwrite.Float64}, data})
+		vs = append(vs, cfwrite.Field{Spec: cfwrite.VarSpec{Name: name, Dims: dims, Units: units, LongName: long, Type: cfwrite.Float64}, Data: data})
 	}
 	resp, ru := r.Response, r.ResponseUnits
 	p := len(r.Factors)
@@ -276,18 +272,8 @@ func writeNC(path string, r *Results, meta Meta) error {
 	add(cellName(resp, vocab.NEff), vocab.UnitOne, "effective sample size of the factor regression", m.NEff)
 	add(cellName(resp, vocab.Count), vocab.UnitOne, "monthly samples of the factor regression", m.N)
 	add(cellName(resp, statPenalty), vocab.UnitOne, "ridge penalty chosen by cross-validation (correlation-matrix scale; 0 is OLS)", m.Pen)
-	var handles []*cfwrite.Var
-	for _, v := range vs {
-		h, err := w.AddVar(v.spec)
-		if err != nil {
-			return err
-		}
-		handles = append(handles, h)
-	}
-	for i, v := range vs {
-		if err := handles[i].Write(v.data); err != nil {
-			return err
-		}
+	if err := w.WriteFields(vs); err != nil {
+		return err
 	}
 	return w.Close()
 }

@@ -582,3 +582,29 @@ func (v *Var) complete() error {
 	}
 	return nil
 }
+
+// Field is a variable's declaration with its whole data, for WriteFields.
+type Field struct {
+	Spec VarSpec
+	Data []float64
+}
+
+// WriteFields declares every field, then writes each one's whole data
+// (Var.Write), in order: the pattern of a file of maps, all declared
+// before any is written.
+func (w *Writer) WriteFields(fs []Field) error {
+	vars := make([]*Var, len(fs))
+	for i, f := range fs {
+		v, err := w.AddVar(f.Spec)
+		if err != nil {
+			return err
+		}
+		vars[i] = v
+	}
+	for i, f := range fs {
+		if err := vars[i].Write(f.Data); err != nil {
+			return err
+		}
+	}
+	return nil
+}
