@@ -406,9 +406,7 @@ func (cp ciPoints) Plot(c draw.Canvas, p *plot.Plot) {
 			x := trX(cp.x(i, k))
 			ls := draw.LineStyle{Color: col, Width: 1}
 			if !math.IsNaN(lo) && !math.IsNaN(hi) {
-				c.StrokeLine2(ls, x, trY(lo), x, trY(hi))
-				c.StrokeLine2(ls, x-2, trY(lo), x+2, trY(lo))
-				c.StrokeLine2(ls, x-2, trY(hi), x+2, trY(hi))
+				capped(c, ls, x, trY(lo), trY(hi))
 			}
 			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: 2.2, Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: trY(v)})
 		}

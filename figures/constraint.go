@@ -168,33 +168,37 @@ func (b bars) Plot(c draw.Canvas, p *plot.Plot) {
 			}
 			if !math.IsNaN(v.Lo) && !math.IsNaN(v.Hi) && v.Hi > v.Lo {
 				ls := draw.LineStyle{Color: inkColour, Width: 0.8}
-				xx := trX(x)
-				c.StrokeLine2(ls, xx, trY(v.Lo), xx, trY(v.Hi))
-				c.StrokeLine2(ls, xx-2, trY(v.Lo), xx+2, trY(v.Lo))
-				c.StrokeLine2(ls, xx-2, trY(v.Hi), xx+2, trY(v.Hi))
+				capped(c, ls, trX(x), trY(v.Lo), trY(v.Hi))
 			}
 		}
 	}
 }
 
-func (b bars) DataRange() (xmin, xmax, ymin, ymax float64) {
-	ymin, ymax = 0, 0
-	for g := range b.groups {
-		for m := range b.members {
-			v, ok := b.val(g, m)
+// intervalExtent is the range of the finite values and interval bounds of
+// n × m slots, 0 included (the axis of a change or a contribution keeps its
+// zero line); (−1, 1) when nothing is finite or all is 0.
+func intervalExtent(n, m int, val func(i, j int) (Interval, bool)) (lo, hi float64) {
+	for i := range n {
+		for j := range m {
+			v, ok := val(i, j)
 			if !ok {
 				continue
 			}
-			for _, y := range []float64{v.Value, v.Lo, v.Hi} {
-				if !math.IsNaN(y) && !math.IsInf(y, 0) {
-					ymin, ymax = math.Min(ymin, y), math.Max(ymax, y)
+			for _, x := range []float64{v.Value, v.Lo, v.Hi} {
+				if !math.IsNaN(x) && !math.IsInf(x, 0) {
+					lo, hi = math.Min(lo, x), math.Max(hi, x)
 				}
 			}
 		}
 	}
-	if ymin == ymax {
-		ymin, ymax = -1, 1
+	if lo == hi {
+		return -1, 1
 	}
+	return lo, hi
+}
+
+func (b bars) DataRange() (xmin, xmax, ymin, ymax float64) {
+	ymin, ymax = intervalExtent(b.groups, b.members, b.val)
 	pad := 0.08 * (ymax - ymin)
 	return -0.5, float64(b.groups) - 0.5, ymin - pad, ymax + 0.35*(ymax-ymin)
 }
@@ -327,23 +331,7 @@ func (h hPoints) Plot(c draw.Canvas, p *plot.Plot) {
 }
 
 func (h hPoints) DataRange() (xmin, xmax, ymin, ymax float64) {
-	xmin, xmax = 0, 0
-	for r := range h.rows {
-		for s := range h.series {
-			v, ok := h.val(r, s)
-			if !ok {
-				continue
-			}
-			for _, x := range []float64{v.Value, v.Lo, v.Hi} {
-				if !math.IsNaN(x) && !math.IsInf(x, 0) {
-					xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
-				}
-			}
-		}
-	}
-	if xmin == xmax {
-		xmin, xmax = -1, 1
-	}
+	xmin, xmax = intervalExtent(h.rows, h.series, h.val)
 	pad := 0.06 * (xmax - xmin)
 	return xmin - pad, xmax + pad, -0.6, float64(h.rows) - 0.4 + 0.9
 }
@@ -448,9 +436,7 @@ func (cp coefPoints) Plot(c draw.Canvas, p *plot.Plot) {
 		x := trX(float64(i))
 		ls := draw.LineStyle{Color: col, Width: 1}
 		if !math.IsNaN(v.Lo) && !math.IsNaN(v.Hi) && v.Hi > v.Lo {
-			c.StrokeLine2(ls, x, trY(v.Lo), x, trY(v.Hi))
-			c.StrokeLine2(ls, x-2, trY(v.Lo), x+2, trY(v.Lo))
-			c.StrokeLine2(ls, x-2, trY(v.Hi), x+2, trY(v.Hi))
+			capped(c, ls, x, trY(v.Lo), trY(v.Hi))
 		}
 		c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: 2.2, Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: trY(v.Value)})
 	}

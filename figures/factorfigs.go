@@ -238,13 +238,19 @@ func (fp factorPoints) Plot(c draw.Canvas, p *plot.Plot) {
 			x := trX(fp.x(i, k))
 			ls := draw.LineStyle{Color: col, Width: 1}
 			if !math.IsNaN(lo) && !math.IsNaN(hi) {
-				c.StrokeLine2(ls, x, trY(lo), x, trY(hi))
-				c.StrokeLine2(ls, x-2, trY(lo), x+2, trY(lo))
-				c.StrokeLine2(ls, x-2, trY(hi), x+2, trY(hi))
+				capped(c, ls, x, trY(lo), trY(hi))
 			}
 			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: 2.2, Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: trY(v)})
 		}
 	}
+}
+
+// capped draws a vertical interval from lo to hi at x with caps 2 points
+// wide either side, the interval mark of every points figure.
+func capped(c draw.Canvas, ls draw.LineStyle, x, lo, hi vg.Length) {
+	c.StrokeLine2(ls, x, lo, x, hi)
+	c.StrokeLine2(ls, x-2, lo, x+2, lo)
+	c.StrokeLine2(ls, x-2, hi, x+2, hi)
 }
 
 func (fp factorPoints) DataRange() (xmin, xmax, ymin, ymax float64) {
